@@ -1,0 +1,35 @@
+# Two commands do all set-up on a fresh machine: `make run` and `make test`.
+PYTHON ?= python3
+VENV := .venv
+PY := $(VENV)/bin/python
+STAMP := $(VENV)/.installed
+
+.PHONY: run test lint bench bench-quick samples clean
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade pip
+	$(PY) -m pip install --quiet -e '.[dev]'
+	touch $(STAMP)
+
+run: $(STAMP)
+	$(VENV)/bin/netstretch demo
+
+test: $(STAMP)
+	$(PY) -m ruff check .
+	$(PY) -m pytest -q
+
+lint: $(STAMP)
+	$(PY) -m ruff check .
+
+bench: $(STAMP)
+	$(PY) -m benchmarks
+
+bench-quick: $(STAMP)
+	$(PY) -m benchmarks --quick --json
+
+samples: $(STAMP)
+	$(PY) sample_sets/make_samples.py
+
+clean:
+	rm -rf $(VENV) build *.egg-info .pytest_cache .ruff_cache

@@ -1,0 +1,57 @@
+"""``netstretch`` command line.  Each sub-command lives in ``network_models/commands/<name>.py`` and
+exposes ``add_parser(subparsers)``; the parser calls ``args.run(args)`` which returns an exit code.
+
+Errors a user can cause (bad file, bad unit, bad number) are printed to stderr as one readable sentence
+with exit code 2; never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+#: sub-command modules, in the order ``--help`` lists them
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "report", "serve")
+
+
+class UserError(Exception):
+    """A problem with the user's input; the message says what is wrong and what to do."""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="netstretch",
+        description="Rubber-network models, lab-curve fitting and crosslink density for compound designers.",
+        epilog="Results support design decisions; they do not replace validation testing of parts.",
+    )
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        try:
+            mod = importlib.import_module(f"network_models.commands.{name}")
+        except ModuleNotFoundError as exc:
+            if exc.name and exc.name.endswith(f"commands.{name}"):
+                continue  # command not built yet
+            raise
+        mod.add_parser(sub)
+    return parser
+
+
+def main(argv=None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return 0
+    try:
+        return int(args.run(args) or 0)
+    except (UserError, ValueError, KeyError, FileNotFoundError, PermissionError, IsADirectoryError) as exc:
+        msg = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)
+        print(f"netstretch {args.command}: {msg}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,211 @@
+"""The model interface every network model answers, and the generic machinery behind it.
+
+A model declares its parameters once (:class:`~network_models.params.Param`) and implements a few small
+pure functions; this base class turns them into nominal stress in every test mode, strain energy,
+locking stretches and masks.  Beyond a model's finite-extensibility limit the stress is NaN (never an
+exception, never a warning).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy.optimize import brentq
+
+from ..deformation import MODES, Mode, principal_stretches
+from ..params import ParamSet
+
+
+class ModeNotSupportedError(ValueError):
+    """The model has no expression for this test mode (e.g. a uniaxial-only Mooney-plot form)."""
+
+
+class Model:
+    """Base class.  Subclasses set the class attributes and implement either
+
+    * ``_dW_dI(I1, I2, p) -> (W1, W2)`` and ``_W_inv(I1, I2, p)`` (invariant models), or
+    * ``_dW_dlam(l, p) -> dW/dλ`` for one principal stretch and ``_W_lam(l1, l2, l3, p)`` (separable
+      principal-stretch terms, added to any invariant part);
+
+    plus ``small_strain_modulus`` and, where the model locks, ``_margin`` (positive inside the domain,
+    zero at the lock).
+    """
+
+    name: str = ""
+    title: str = ""
+    family: str = ""
+    params: ParamSet = ParamSet()
+    modes: tuple[Mode, ...] = MODES
+    equation: str = ""
+    references: tuple[str, ...] = ()
+    assumption: str = ""  # how the model's modulus maps to a network (read by crosslinks)
+    has_invariant_part = True
+    has_stretch_part = False
+
+    # ----- parameters -------------------------------------------------------------------------
+    def resolve(self, params: dict | None = None, **kw) -> dict[str, float]:
+        """Defaults filled in, every value checked against its declaration."""
+        given = dict(params or {}, **kw)
+        unknown = set(given) - set(self.params.names())
+        if unknown:
+            raise ValueError(
+                f"model {self.name!r} has no parameter(s) {sorted(unknown)}; "
+                f"its parameters are {list(self.params.names())}"
+            )
+        out = {}
+        for p in self.params:
+            out[p.name] = p.check(given.get(p.name, p.default))
+        self._check_combination(out)
+        return out
+
+    def _check_combination(self, p):
+        """Hook for constraints between parameters."""
+
+    def supports(self, mode) -> bool:
+        return Mode.parse(mode) in self.modes
+
+    def _require_mode(self, mode) -> Mode:
+        mode = Mode.parse(mode)
+        if mode not in self.modes:
+            raise ModeNotSupportedError(
+                f"the {self.title} model is defined for {', '.join(m.value for m in self.modes)} only, "
+                f"not for {mode.value}; choose another model for {mode.value} data"
+            )
+        return mode
+
+    # ----- to be provided ---------------------------------------------------------------------
+    def _dW_dI(self, I1, I2, p):
+        z = np.zeros_like(I1)
+        return z, z
+
+    def _W_inv(self, I1, I2, p):
+        return np.zeros_like(I1)
+
+    def _dW_dlam(self, lam, p):
+        return np.zeros_like(lam)
+
+    def _W_lam(self, l1, l2, l3, p):
+        return np.zeros_like(l1)
+
+    def _margin(self, l1, l2, l3, I1, p):
+        """Positive inside the model's domain, <= 0 past its finite-extensibility limit; None = no limit."""
+        return None
+
+    def small_strain_modulus(self, **params) -> float:
+        raise NotImplementedError
+
+    def from_network(self, network) -> dict[str, float]:
+        raise NotImplementedError
+
+    def guess(self, modulus: float) -> dict[str, float]:
+        """Start values for a fit, from the data's small-strain shear modulus estimate (Pa)."""
+        raise NotImplementedError
+
+    # ----- generic answers --------------------------------------------------------------------
+    def _state(self, mode, lam):
+        l1, l2, l3 = principal_stretches(mode, lam)
+        a, b, c = l1 * l1, l2 * l2, l3 * l3
+        return l1, l2, l3, a + b + c, a * b + b * c + c * a
+
+    def _valid(self, l1, l2, l3, I1, p):
+        valid = np.isfinite(l1) & (l1 > 0)
+        m = self._margin(l1, l2, l3, I1, p)
+        if m is not None:
+            valid &= m > 0
+        return valid
+
+    def nominal_stress(self, mode, lam, params: dict | None = None, **kw):
+        """Nominal (engineering) stress along the loaded direction, Pa; NaN past the locking limit."""
+        mode = self._require_mode(mode)
+        p = self.resolve(params, **kw)
+        lam = np.asarray(lam, dtype=np.float64)
+        return self._nominal_stress(mode, lam, p)
+
+    def _nominal_stress(self, mode, lam, p):
+        with np.errstate(all="ignore"):
+            l1, l2, l3, I1, I2 = self._state(mode, lam)
+            valid = self._valid(l1, l2, l3, I1, p)
+            # P1 = (λ1 ∂W/∂λ1 − λ3 ∂W/∂λ3)/λ1 with direction 3 stress-free (physics.md §2)
+            out = np.zeros_like(l1)
+            if self.has_invariant_part:
+                W1, W2 = self._dW_dI(I1, I2, p)
+                a1, a3 = l1 * l1, l3 * l3
+                out = out + 2.0 * (W1 * (a1 - a3) + W2 * (a1 * (I1 - a1) - a3 * (I1 - a3)))
+            if self.has_stretch_part:
+                out = out + l1 * self._dW_dlam(l1, p) - l3 * self._dW_dlam(l3, p)
+            out = out / l1
+        return np.where(valid, out, np.nan)
+
+    def true_stress(self, mode, lam, params=None, **kw):
+        """Cauchy stress along the loaded direction (λ × nominal, incompressible)."""
+        return np.asarray(lam, dtype=np.float64) * self.nominal_stress(mode, lam, params, **kw)
+
+    def reduced_stress(self, lam, params=None, **kw):
+        """Mooney reduced stress σ* = P/(λ − λ⁻²) in uniaxial tension/compression, Pa."""
+        lam = np.asarray(lam, dtype=np.float64)
+        with np.errstate(all="ignore"):
+            return self.nominal_stress(Mode.UNIAXIAL, lam, params, **kw) / (lam - lam**-2)
+
+    def energy(self, mode, lam, params: dict | None = None, **kw):
+        """Strain energy per unit reference volume, J/m³ (zero in the undeformed state); NaN past lock."""
+        mode = self._require_mode(mode)
+        p = self.resolve(params, **kw)
+        lam = np.asarray(lam, dtype=np.float64)
+        with np.errstate(all="ignore"):
+            l1, l2, l3, I1, I2 = self._state(mode, lam)
+            valid = self._valid(l1, l2, l3, I1, p)
+            w = np.zeros_like(l1)
+            if self.has_invariant_part:
+                w = w + self._W_inv(I1, I2, p)
+            if self.has_stretch_part:
+                w = w + self._W_lam(l1, l2, l3, p)
+        return np.where(valid, w, np.nan)
+
+    def stretch_range(self, mode, params: dict | None = None, **kw) -> tuple[float, float]:
+        """(lowest, highest) stretch the model allows in this mode; (0, inf) when it never locks."""
+        mode = self._require_mode(mode)
+        p = self.resolve(params, **kw)
+
+        def margin(x):
+            l1, l2, l3, I1, _ = self._state(mode, np.array([x]))
+            m = self._margin(l1, l2, l3, I1, p)
+            return float(m[0])
+
+        if self._margin(*self._state(mode, np.array([1.0]))[:4], p) is None:
+            return 0.0, float("inf")
+        hi = float("inf")
+        x = 2.0
+        while x < 1e8:
+            if margin(x) <= 0:
+                hi = brentq(margin, 1.0, x, xtol=1e-14, rtol=1e-15)
+                break
+            x *= 2.0
+        lo = 0.0
+        if mode is Mode.UNIAXIAL:
+            x = 0.5
+            while x > 1e-8:
+                if margin(x) <= 0:
+                    lo = brentq(margin, x, 1.0, xtol=1e-15, rtol=1e-15)
+                    break
+                x *= 0.5
+        return lo, hi
+
+    def stretch_limit(self, mode, params: dict | None = None, **kw) -> float | None:
+        """Locking stretch in tension for the mode (finite-extensibility limit), or None."""
+        hi = self.stretch_range(mode, params, **kw)[1]
+        return None if not np.isfinite(hi) else hi
+
+    def describe(self) -> dict:
+        return {
+            "name": self.name, "title": self.title, "family": self.family,
+            "modes": [m.value for m in self.modes], "equation": self.equation,
+            "references": list(self.references), "assumption": self.assumption,
+            "parameters": [
+                {"name": q.name, "symbol": q.symbol, "unit": q.unit, "meaning": q.meaning,
+                 "bounds": list(q.bounds), "typical": list(q.typical), "default": q.default,
+                 "source": q.source, "held": q.held}
+                for q in self.params
+            ],
+        }
+
+    def __repr__(self):
+        return f"<{type(self).__name__} {self.name!r}>"

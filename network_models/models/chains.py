@@ -1,0 +1,100 @@
+"""Non-Gaussian (Langevin) chain networks: eight-chain (Arruda–Boyce) and three-chain (Wang–Guth)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..langevin import inverse_langevin, langevin_derivative
+from ..params import ParamSet, kuhn_number_param, shear_modulus_param
+from ._special import log_x_over_sinh
+from .base import Model
+
+
+class EightChain(Model):
+    name = "eight-chain"
+    title = "Eight-chain (Arruda–Boyce)"
+    family = "network (Langevin chains)"
+    params = ParamSet((
+        shear_modulus_param("mu", "μ", "chain modulus nkT (small-strain modulus is slightly larger)", 0.27e6),
+        kuhn_number_param(),
+    ))
+    equation = ("W = μN[(λ_ch/√N)β + ln(β/sinh β)],  λ_ch = √(I₁/3),  β = L⁻¹(λ_ch/√N);  "
+                "2W₁ = (μ/3)(√N/λ_ch)β")
+    references = ("Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389",)
+    assumption = "affine chain density n: μ = nkT = νRT; locking when λ_ch reaches √N"
+
+    def _dW_dI(self, I1, I2, p):
+        sn = np.sqrt(p["N"])
+        lch = np.sqrt(I1 / 3.0)
+        beta = inverse_langevin(lch / sn)
+        return (p["mu"] / 6.0) * (sn / lch) * beta, np.zeros_like(I1)
+
+    def _W_inv(self, I1, I2, p):
+        N = p["N"]
+        sn = np.sqrt(N)
+
+        def w(lch):
+            r = lch / sn
+            beta = inverse_langevin(r)
+            return r * beta + log_x_over_sinh(beta)
+
+        return p["mu"] * N * (w(np.sqrt(I1 / 3.0)) - w(np.ones(1))[0])
+
+    def _margin(self, l1, l2, l3, I1, p):
+        return 3.0 * p["N"] - I1
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        sn = np.sqrt(p["N"])
+        return float(p["mu"] * sn * inverse_langevin(1.0 / sn) / 3.0)
+
+    def from_network(self, network):
+        return {"mu": network.affine_modulus + network.entanglement_modulus, "N": network.N}
+
+    def guess(self, modulus):
+        return {"mu": 0.95 * modulus, "N": 30.0}
+
+
+class ThreeChain(Model):
+    name = "three-chain"
+    title = "Three-chain (Wang–Guth)"
+    family = "network (Langevin chains)"
+    has_invariant_part = False
+    has_stretch_part = True
+    params = ParamSet((shear_modulus_param("mu", "μ", "chain modulus nkT", 0.27e6), kuhn_number_param()))
+    equation = "σ₁ − σ₂ = (μ/3)√N[λ₁L⁻¹(λ₁/√N) − λ₂L⁻¹(λ₂/√N)]"
+    references = ("Wang & Guth 1952, J. Chem. Phys. 20:1144",
+                  "Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389, eq. 22")
+    assumption = "chains along the principal axes; μ = nkT; locks when any λᵢ reaches √N"
+
+    def _dW_dlam(self, lam, p):
+        sn = np.sqrt(p["N"])
+        return (p["mu"] / 3.0) * sn * inverse_langevin(lam / sn)
+
+    def _W_lam(self, l1, l2, l3, p):
+        N = p["N"]
+        sn = np.sqrt(N)
+
+        def w(lam):
+            r = lam / sn
+            beta = inverse_langevin(r)
+            return r * beta + log_x_over_sinh(beta)
+
+        ref = 3.0 * w(np.ones(1))[0]
+        return (p["mu"] * N / 3.0) * (w(l1) + w(l2) + w(l3) - ref)
+
+    def _margin(self, l1, l2, l3, I1, p):
+        return np.sqrt(p["N"]) - np.maximum(np.maximum(l1, l2), l3)
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        sn = np.sqrt(p["N"])
+        beta = inverse_langevin(1.0 / sn)
+        # separable W = Σ w(λᵢ): G = (w'(1) + w''(1))/2 [derived]
+        return float(p["mu"] / 6.0 * (sn * beta + 1.0 / langevin_derivative(beta)))
+
+    def from_network(self, network):
+        return {"mu": network.affine_modulus + network.entanglement_modulus, "N": network.N}
+
+    def guess(self, modulus):
+        return {"mu": 0.95 * modulus, "N": 30.0}

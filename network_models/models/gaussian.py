@@ -1,0 +1,156 @@
+"""Gaussian-chain networks and their trade companions: neo-Hookean, affine, phantom, Mooney–Rivlin and
+the constrained-junction model of Flory & Erman."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..params import FUNCTIONALITY, Param, ParamSet, shear_modulus_param
+from .base import Model
+
+
+class NeoHookean(Model):
+    name = "neo-hookean"
+    title = "Neo-Hookean"
+    family = "phenomenological"
+    params = ParamSet((shear_modulus_param(),))
+    equation = "W = (G/2)(I₁ − 3)"
+    references = ("Treloar, The Physics of Rubber Elasticity, 3rd ed. (1975), ch. 4",)
+    assumption = "Gaussian network, modulus taken as measured (no network interpretation)"
+
+    def _dW_dI(self, I1, I2, p):
+        return np.full_like(I1, 0.5 * p["G"]), np.zeros_like(I1)
+
+    def _W_inv(self, I1, I2, p):
+        return 0.5 * p["G"] * (I1 - 3.0)
+
+    def small_strain_modulus(self, **params):
+        return self.resolve(params)["G"]
+
+    def from_network(self, network):
+        return {"G": network.affine_modulus + network.entanglement_modulus}
+
+    def guess(self, modulus):
+        return {"G": modulus}
+
+
+class Affine(NeoHookean):
+    name = "affine"
+    title = "Affine network"
+    family = "network (Gaussian)"
+    params = ParamSet((shear_modulus_param(meaning="affine network modulus νRT"),))
+    equation = "W = (G/2)(I₁ − 3),  G = νRT = ρRT/M_c"
+    references = ("Kuhn; Wall; Flory — affine Gaussian network, as in Treloar (1975) ch. 4",)
+    assumption = "affine junction displacements: G = νRT (ν = strand density)"
+
+    def from_network(self, network):
+        return {"G": network.affine_modulus}
+
+
+class Phantom(NeoHookean):
+    name = "phantom"
+    title = "Phantom network"
+    family = "network (Gaussian)"
+    params = ParamSet((shear_modulus_param(meaning="phantom network modulus (1 − 2/f)νRT"),))
+    equation = "W = (G/2)(I₁ − 3),  G = ξRT = (1 − 2/f)νRT"
+    references = ("James & Guth 1943, J. Chem. Phys. 11:455 — phantom network",)
+    assumption = "junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j)"
+
+    def from_network(self, network):
+        return {"G": network.phantom_modulus}
+
+
+class MooneyRivlin(Model):
+    name = "mooney-rivlin"
+    title = "Mooney–Rivlin"
+    family = "phenomenological"
+    params = ParamSet((
+        Param("C1", "C₁", "Pa", (0.0, 1e9), (0.02e6, 1.5e6), 0.18e6, "Mooney–Rivlin C₁ (2C₁: Mooney intercept)",
+              "Mooney 1940, J. Appl. Phys. 11:582", "MPa", 1e-6),
+        Param("C2", "C₂", "Pa", (-1e9, 1e9), (0.0, 0.5e6), 0.05e6, "Mooney–Rivlin C₂ (2C₂: Mooney slope)",
+              "Rivlin 1948, Phil. Trans. R. Soc. A241:379", "MPa", 1e-6),
+    ))
+    equation = "W = C₁(I₁ − 3) + C₂(I₂ − 3);  σ* = 2C₁ + 2C₂/λ"
+    references = ("Mooney 1940, J. Appl. Phys. 11:582", "Rivlin 1948, Phil. Trans. R. Soc. A241:379")
+    assumption = "empirical; 2C₁ and 2C₂ bracket the modulus, 2C₂ often read as the entanglement share"
+
+    def _dW_dI(self, I1, I2, p):
+        return np.full_like(I1, p["C1"]), np.full_like(I1, p["C2"])
+
+    def _W_inv(self, I1, I2, p):
+        return p["C1"] * (I1 - 3.0) + p["C2"] * (I2 - 3.0)
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        return 2.0 * (p["C1"] + p["C2"])
+
+    def from_network(self, network):
+        return {"C1": network.affine_modulus / 2.0, "C2": network.entanglement_modulus / 2.0}
+
+    def guess(self, modulus):
+        return {"C1": 0.4 * modulus, "C2": 0.1 * modulus}
+
+
+class ConstrainedJunction(Model):
+    name = "constrained-junction"
+    title = "Constrained junction (Flory–Erman)"
+    family = "network (Gaussian)"
+    has_stretch_part = True
+    params = ParamSet((
+        shear_modulus_param("G_ph", "G_ph", "phantom part ξRT", 0.2e6),
+        Param("kappa", "κ", "1", (0.0, 1e4), (0.5, 20.0), 5.0,
+              "constraint strength on junction fluctuations (κ→0 phantom, κ→∞ affine)",
+              "Flory & Erman 1982, Macromolecules 15:800 [paper, as printed in Arruda & Boyce 1993 appendix]"),
+        FUNCTIONALITY,
+    ))
+    equation = ("W = ½ξRT(I₁ − 3) + ½μ_jRT Σ[Bᵢ + Dᵢ − ln(1 + Bᵢ) − ln(1 + Dᵢ)],  "
+                "Bᵢ = κ²(λᵢ² − 1)/(λᵢ² + κ)², Dᵢ = λᵢ²Bᵢ/κ,  μ_j = 2ξ/(f − 2)")
+    references = ("Flory & Erman 1982, Macromolecules 15:800",
+                  "Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389, appendix")
+    assumption = "phantom network plus junction constraints of strength κ; junction density μ_j = 2ν/f"
+
+    def _mu_j(self, p):
+        return p["G_ph"] * 2.0 / (p["f"] - 2.0)
+
+    def _dW_dI(self, I1, I2, p):
+        return np.full_like(I1, 0.5 * p["G_ph"]), np.zeros_like(I1)
+
+    def _W_inv(self, I1, I2, p):
+        return 0.5 * p["G_ph"] * (I1 - 3.0)
+
+    def _BD(self, a, k):
+        B = k * k * (a - 1.0) / (a + k) ** 2
+        return B, a * B / k
+
+    def _W_lam(self, l1, l2, l3, p):
+        k = p["kappa"]
+        if k == 0:
+            return np.zeros_like(l1)
+        tot = np.zeros_like(l1)
+        for lam in (l1, l2, l3):
+            B, D = self._BD(lam * lam, k)
+            tot = tot + B + D - np.log1p(B) - np.log1p(D)
+        return 0.5 * self._mu_j(p) * tot
+
+    def _dW_dlam(self, lam, p):
+        k = p["kappa"]
+        if k == 0:
+            return np.zeros_like(lam)
+        a = lam * lam
+        B, D = self._BD(a, k)
+        dB = k * k * (k + 2.0 - a) / (a + k) ** 3  # dB/d(λ²)
+        dD = (B + a * dB) / k
+        dW_da = 0.5 * self._mu_j(p) * (dB * B / (1.0 + B) + dD * D / (1.0 + D))
+        return 2.0 * lam * dW_da
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        k = p["kappa"]
+        # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴  [derived from the strain energy above]
+        return p["G_ph"] + self._mu_j(p) * k * k * (k * k + 1.0) / (1.0 + k) ** 4
+
+    def from_network(self, network):
+        return {"G_ph": network.phantom_modulus, "kappa": self.params["kappa"].default, "f": network.f}
+
+    def guess(self, modulus):
+        return {"G_ph": 0.6 * modulus, "kappa": 5.0}

@@ -1,0 +1,162 @@
+"""Tube models: crosslinks plus a non-permanent entanglement (tube) contribution.
+
+G_c belongs to the crosslink strands, G_e to the topological constraints (tied to the plateau modulus of
+the uncrosslinked polymer).  Both scale with absolute temperature at a fixed network.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..deformation import Mode
+from ..params import Param, ParamSet, shear_modulus_param
+from .base import Model
+
+_GC = shear_modulus_param("Gc", "G_c", "crosslink modulus", 0.3e6)
+_GE = shear_modulus_param("Ge", "G_e", "entanglement (tube) modulus", 0.2e6)
+
+
+class NonAffineTube(Model):
+    name = "non-affine-tube"
+    title = "Non-affine tube"
+    family = "tube"
+    has_stretch_part = True
+    params = ParamSet((_GC, _GE))
+    equation = ("W = (G_c/2)(I₁ − 3) + G_e Σᵢ(λᵢ + 1/λᵢ − 2);  uniaxial σ* = G_c + G_e/(λ − √λ + 1)")
+    references = ("Rubinstein & Panyukov 1997, Macromolecules 30:8036 [memory: form not re-read]",)
+    assumption = "G_c = crosslink strands (affine, νRT); G_e = entanglements (≈ plateau modulus)"
+
+    def _dW_dI(self, I1, I2, p):
+        return np.full_like(I1, 0.5 * p["Gc"]), np.zeros_like(I1)
+
+    def _W_inv(self, I1, I2, p):
+        return 0.5 * p["Gc"] * (I1 - 3.0)
+
+    def _dW_dlam(self, lam, p):
+        return p["Ge"] * (1.0 - 1.0 / (lam * lam))
+
+    def _W_lam(self, l1, l2, l3, p):
+        return p["Ge"] * (l1 + 1.0 / l1 + l2 + 1.0 / l2 + l3 + 1.0 / l3 - 6.0)
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        return p["Gc"] + p["Ge"]
+
+    def from_network(self, network):
+        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus}
+
+    def guess(self, modulus):
+        return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
+
+
+# Gauss–Legendre nodes for the slip-tube energy integral along the uniaxial path.
+_GL_X, _GL_W = np.polynomial.legendre.leggauss(48)
+
+
+class SlipTube(Model):
+    name = "slip-tube"
+    title = "Slip-tube (Mooney-plot form)"
+    family = "tube"
+    params = ParamSet((_GC, _GE))
+    modes = (Mode.UNIAXIAL,)
+    equation = "σ* = G_c + G_e/(0.74λ + 0.61λ^(−1/2) − 0.35)   (uniaxial only)"
+    references = ("Rubinstein & Panyukov 2002, Macromolecules 35:6670 [memory: form not re-read]",)
+    assumption = "a uniaxial Mooney-plot form only; G_c crosslinks, G_e entanglements"
+
+    @staticmethod
+    def _den(lam):
+        return 0.74 * lam + 0.61 / np.sqrt(lam) - 0.35
+
+    def _nominal_stress(self, mode, lam, p):
+        with np.errstate(all="ignore"):
+            red = p["Gc"] + p["Ge"] / self._den(lam)
+            out = red * (lam - lam**-2)
+        return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
+
+    def energy(self, mode, lam, params=None, **kw):
+        mode = self._require_mode(mode)
+        p = self.resolve(params, **kw)
+        lam = np.asarray(lam, dtype=np.float64)
+        with np.errstate(all="ignore"):
+            gc = 0.5 * p["Gc"] * (lam * lam + 2.0 / lam - 3.0)
+            # ∫₁^λ G_e (s − s⁻²)/den(s) ds by 48-point Gauss–Legendre (the integrand is smooth)
+            half = 0.5 * (lam - 1.0)
+            s = 1.0 + half[..., None] * (_GL_X + 1.0)
+            integrand = (s - s**-2) / self._den(s)
+            ge = p["Ge"] * half * np.sum(_GL_W * integrand, axis=-1)
+            out = gc + ge
+        return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        return p["Gc"] + p["Ge"]  # den(1) = 1
+
+    def from_network(self, network):
+        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus}
+
+    def guess(self, modulus):
+        return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
+
+
+# Sign before the logarithm in the crosslink part of the extended tube model.  "+1" is the usual print of
+# Kaliske & Heinrich 1999 [memory: not re-read]; with it the small-strain modulus is G_c(1 − 2δ²) + G_e,
+# checked in tests by differentiating W numerically.
+EXTENDED_TUBE_LOG_SIGN = +1.0
+
+
+class ExtendedTube(Model):
+    name = "extended-tube"
+    title = "Extended tube (Kaliske–Heinrich)"
+    family = "tube"
+    has_stretch_part = True
+    params = ParamSet((
+        _GC, _GE,
+        Param("delta", "δ", "1", (0.0, 1.0), (0.02, 0.3), 0.1,
+              "finite extensibility: the model locks at I₁ − 3 = 1/δ²",
+              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [memory]"),
+        Param("beta", "β", "1", (1e-6, 1.0), (0.05, 1.0), 0.2,
+              "tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
+              "Kaliske & Heinrich 1999 [memory]", held=True),
+    ))
+    equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
+                "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
+    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [memory: sign of the log term not re-read]",)
+    assumption = "G_c crosslinks, G_e entanglements; δ sets the extensibility of crosslink strands"
+
+    def _dW_dI(self, I1, I2, p):
+        d2 = p["delta"] ** 2
+        u = 1.0 - d2 * (I1 - 3.0)
+        W1 = 0.5 * p["Gc"] * ((1.0 - d2) / (u * u) - EXTENDED_TUBE_LOG_SIGN * d2 / u)
+        return W1, np.zeros_like(I1)
+
+    def _W_inv(self, I1, I2, p):
+        d2 = p["delta"] ** 2
+        x = I1 - 3.0
+        u = 1.0 - d2 * x
+        return 0.5 * p["Gc"] * ((1.0 - d2) * x / u + EXTENDED_TUBE_LOG_SIGN * np.log(u))
+
+    def _dW_dlam(self, lam, p):
+        b = p["beta"]
+        return -(2.0 * p["Ge"] / b) * lam ** (-b - 1.0)
+
+    def _W_lam(self, l1, l2, l3, p):
+        b = p["beta"]
+        return (2.0 * p["Ge"] / b**2) * (l1**-b + l2**-b + l3**-b - 3.0)
+
+    def _margin(self, l1, l2, l3, I1, p):
+        d2 = p["delta"] ** 2
+        return 1.0 - d2 * (I1 - 3.0)
+
+    def small_strain_modulus(self, **params):
+        p = self.resolve(params)
+        d2 = p["delta"] ** 2
+        return p["Gc"] * (1.0 - d2 + EXTENDED_TUBE_LOG_SIGN * (-d2)) + p["Ge"]
+
+    def from_network(self, network):
+        # match the extensibility to the eight-chain lock: I₁ − 3 = 3N − 3  ⇒  δ = 1/√(3(N − 1))
+        delta = min(0.999, 1.0 / np.sqrt(max(3.0 * (network.N - 1.0), 1e-12)))
+        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus, "delta": float(delta),
+                "beta": self.params["beta"].default}
+
+    def guess(self, modulus):
+        return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus, "delta": 0.08}
