@@ -6,12 +6,12 @@ direction.  Stress in test data is nominal: force per undeformed cross-section.
 
 from __future__ import annotations
 
-from enum import Enum
+from enum import StrEnum
 
 import numpy as np
 
 
-class Mode(str, Enum):
+class Mode(StrEnum):
     UNIAXIAL = "uniaxial"
     EQUIBIAXIAL = "equibiaxial"
     PLANAR = "planar"

@@ -136,10 +136,10 @@ class Network:
 
     def with_(self, **changes) -> Network:
         """A copy with changes; setting ``nu`` clears ``Mc`` and vice versa."""
-        if "nu" in changes and "Mc" not in changes:
-            changes["Mc"] = None
         if "Mc" in changes and "nu" not in changes:
             changes["nu"] = None
+        elif "Mc" not in changes:
+            changes["Mc"] = None  # ν stays the identity of the network
         if not self.N_direct and "N" not in changes:
             changes["N"] = None
         return replace(self, **changes)

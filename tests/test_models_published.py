@@ -1,0 +1,135 @@
+"""Each model against published formulas and check values (sources beside each check)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy.constants import R
+from scipy.optimize import brentq
+
+from network_models import Network, get_model
+from network_models.langevin import inverse_langevin
+
+
+def test_affine_and_phantom_moduli_from_R():
+    # G = νRT (Kuhn, Wall, Flory; Treloar 1975 ch. 4) and G = (1 − 2/f)νRT (James & Guth 1943); R from
+    # scipy.constants (CODATA).
+    net = Network(polymer="NR", nu=200.0, T=300.0, entanglements=False)
+    assert get_model("affine").from_network(net)["G"] == pytest.approx(200.0 * R * 300.0, rel=1e-15)
+    assert get_model("phantom").from_network(net)["G"] == pytest.approx(0.5 * 200.0 * R * 300.0, rel=1e-15)
+    net6 = Network(polymer="NR", nu=200.0, T=300.0, f=6)
+    assert get_model("phantom").from_network(net6)["G"] == pytest.approx((1 - 2 / 6) * 200.0 * R * 300.0)
+
+
+@pytest.mark.parametrize(("N", "ratio"), [(5, 1.148587), (10, 1.066313), (26.5, 1.023480), (100, 1.006057)])
+def test_eight_chain_small_strain_modulus_ratio(N, ratio):
+    # physics.md §3 [derived]: μ₀/μ = √N L⁻¹(1/√N)/3; values to 7 digits.
+    m = get_model("eight-chain")
+    assert m.small_strain_modulus(mu=1.0e6, N=N) / 1.0e6 == pytest.approx(ratio, abs=6e-7)
+    # and the series 1 + 3/(5N) + 99/(175N²) for large N (physics.md §3)
+    if N >= 26.5:
+        assert m.small_strain_modulus(mu=1.0, N=N) == pytest.approx(1 + 3 / (5 * N) + 99 / (175 * N**2), rel=5e-5)
+
+
+def test_eight_chain_against_arruda_boyce_five_term_series():
+    # Arruda & Boyce 1993, eq. 21: W = μ[½(I₁−3) + (I₁²−9)/(20N) + 11(I₁³−27)/(1050N²) + 19(I₁⁴−81)/(7000N³)
+    # + 519(I₁⁵−243)/(673750N⁴)]; at moderate stretch it must agree with the exact model closely.
+    mu, N = 0.27e6, 26.5
+    m = get_model("eight-chain")
+    lam = np.linspace(1.05, 2.0, 40)
+    I1 = lam**2 + 2 / lam
+    W1 = mu * (0.5 + I1 / (10 * N) + 33 * I1**2 / (1050 * N**2) + 76 * I1**3 / (7000 * N**3)
+               + 2595 * I1**4 / (673750 * N**4))
+    P_series = 2 * (lam - lam**-2) * W1
+    P = m.nominal_stress("uniaxial", lam, mu=mu, N=N)
+    np.testing.assert_allclose(P, P_series, rtol=2e-4)
+
+
+@pytest.mark.parametrize(("mode", "equation"), [
+    # Arruda & Boyce 1993: locking where λ_ch = √N, i.e. I₁ = 3N (physics.md §3)
+    ("uniaxial", lambda x: x**2 + 2 / x),
+    ("equibiaxial", lambda x: 2 * x**2 + x**-4),
+    ("planar", lambda x: x**2 + 1 + x**-2),
+])
+def test_eight_chain_locking_stretch(mode, equation):
+    N = 26.5
+    lock = get_model("eight-chain").stretch_limit(mode, mu=1.0, N=N)
+    expected = brentq(lambda x: equation(x) - 3 * N, 1.0, 100.0, xtol=1e-14)
+    assert lock == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(("lam", "slip", "nonaffine"), [
+    # physics.md §3 check values, G_c = G_e = 0.2 MPa [derived from the printed forms]
+    (1.5, 0.35897, 0.35683), (2.0, 0.32810, 0.32612), (3.0, 0.29000, 0.28819), (5.0, 0.25521, 0.25314),
+])
+def test_tube_reduced_stress_check_values(lam, slip, nonaffine):
+    p = {"Gc": 0.2e6, "Ge": 0.2e6}
+    assert get_model("slip-tube").reduced_stress(lam, p) / 1e6 == pytest.approx(slip, abs=6e-6)
+    assert get_model("non-affine-tube").reduced_stress(lam, p) / 1e6 == pytest.approx(nonaffine, abs=6e-6)
+
+
+def test_extended_tube_small_strain_modulus_by_differentiating_energy():
+    # physics.md §3: test the small-strain modulus by differentiating W numerically, not by an identity.
+    # Uniaxial W(λ) ≈ (3/2)G(λ − 1)², so G = W''(1)/3.
+    m = get_model("extended-tube")
+    for p in ({"Gc": 0.3e6, "Ge": 0.2e6, "delta": 0.1, "beta": 0.2},
+              {"Gc": 0.5e6, "Ge": 0.05e6, "delta": 0.25, "beta": 0.6}):
+        h = 1e-4
+        W = m.energy("uniaxial", np.array([1 - h, 1.0, 1 + h]), p)
+        G_num = (W[0] - 2 * W[1] + W[2]) / h**2 / 3
+        assert m.small_strain_modulus(**p) == pytest.approx(G_num, rel=1e-5)
+        # and the lock at I₁ − 3 = 1/δ² (Kaliske & Heinrich 1999 [from memory])
+        lock = m.stretch_limit("uniaxial", p)
+        assert lock**2 + 2 / lock - 3 == pytest.approx(1 / p["delta"] ** 2, rel=1e-10)
+
+
+def test_mooney_rivlin_reduced_stress_is_a_straight_line_in_inverse_stretch():
+    # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (physics.md §2)
+    lam = np.linspace(1.1, 4, 20)
+    red = get_model("mooney-rivlin").reduced_stress(lam, C1=0.15e6, C2=0.07e6)
+    np.testing.assert_allclose(red, 2 * 0.15e6 + 2 * 0.07e6 / lam, rtol=1e-13)
+
+
+def test_gent_lock_and_neo_hookean_limit():
+    # Gent 1996: lock at I₁ − 3 = J_m; J_m → ∞ recovers neo-Hookean.
+    g = get_model("gent")
+    lock = g.stretch_limit("uniaxial", G=0.5e6, Jm=50)
+    assert lock**2 + 2 / lock - 3 == pytest.approx(50, rel=1e-12)
+    lam = np.linspace(1.1, 3, 10)
+    np.testing.assert_allclose(g.nominal_stress("uniaxial", lam, G=0.5e6, Jm=1e6),
+                               0.5e6 * (lam - lam**-2), rtol=2e-5)
+
+
+def test_constrained_junction_limits():
+    # Flory & Erman 1982: κ → 0 gives the phantom network, κ → ∞ the affine network (f = 4: twice phantom).
+    cj = get_model("constrained-junction")
+    lam = np.linspace(0.6, 4, 25)
+    G_ph = 0.2e6
+    phantom = G_ph * (lam - lam**-2)
+    np.testing.assert_allclose(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=0.0), phantom, rtol=1e-12)
+    devs = [np.max(np.abs(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=k) / (2 * phantom) - 1))
+            for k in (1e2, 1e3, 1e4)]
+    assert devs[0] > devs[1] > devs[2] and devs[2] < 5e-3
+
+
+def test_three_chain_matches_its_published_difference_form():
+    # Wang & Guth 1952 via Arruda & Boyce 1993 eq. 22: σ₁ − σ₂ = (μ/3)√N[λ₁L⁻¹(λ₁/√N) − λ₂L⁻¹(λ₂/√N)];
+    # uniaxial: nominal = (σ₁ − σ₂)/λ.
+    mu, N = 0.3e6, 20.0
+    lam = np.linspace(1.1, 3.5, 15)
+    l2 = lam**-0.5
+    sn = np.sqrt(N)
+    expected = (mu / 3) * sn * (lam * inverse_langevin(lam / sn) - l2 * inverse_langevin(l2 / sn)) / lam
+    np.testing.assert_allclose(get_model("three-chain").nominal_stress("uniaxial", lam, mu=mu, N=N),
+                               expected, rtol=1e-12)
+
+
+def test_neo_hookean_modes_match_textbook_forms():
+    # Treloar (1975) ch. 5: uniaxial G(λ − λ⁻²), equibiaxial G(λ − λ⁻⁵), planar G(λ − λ⁻³).
+    G = 0.4e6
+    lam = np.linspace(0.7, 3, 12)
+    m = get_model("neo-hookean")
+    np.testing.assert_allclose(m.nominal_stress("uniaxial", lam, G=G), G * (lam - lam**-2), rtol=1e-14)
+    lam_t = lam[lam > 1]
+    np.testing.assert_allclose(m.nominal_stress("equibiaxial", lam_t, G=G), G * (lam_t - lam_t**-5), rtol=1e-14)
+    np.testing.assert_allclose(m.nominal_stress("planar", lam_t, G=G), G * (lam_t - lam_t**-3), rtol=1e-14)

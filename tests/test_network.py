@@ -1,0 +1,105 @@
+"""The molecular picture: densities, M_c, N, filler, dangling ends, temperature, incompressibility."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+from scipy.constants import R
+
+from network_models import MODELS, Mode, Network, get_polymer, guth_gold, polymers
+
+
+def test_strand_and_junction_density_and_Mc():
+    # physics.md §1: μ_j = 2ν/f; M_c = ρ/ν
+    net = Network(polymer="NR", nu=120.0, f=4)
+    rho = get_polymer("NR").density
+    assert net.junction_density == pytest.approx(60.0)
+    assert net.Mc == pytest.approx(rho / 120.0)
+    assert Network(polymer="NR", nu=120.0, f=6).junction_density == pytest.approx(40.0)
+    # M_c in, ν out
+    back = Network(polymer="NR", Mc=net.Mc)
+    assert back.nu == pytest.approx(120.0)
+    with pytest.raises(ValueError, match="either"):
+        Network(nu=100.0, Mc=5.0)
+
+
+def test_N_from_kuhn_molar_mass_or_direct():
+    # physics.md §4: N ≈ M_c / M_K
+    net = Network(polymer="BR", nu=150.0)
+    assert net.N == pytest.approx(net.Mc / get_polymer("BR").kuhn_molar_mass)
+    assert net.N_source.startswith("from")
+    d = Network(polymer="BR", nu=150.0, N=12.0)
+    assert d.N == 12.0 and d.N_source == "set directly"
+    # changing ν keeps a derived N derived, and a direct N direct
+    assert net.with_(nu=300.0).N == pytest.approx(net.N / 2)
+    assert d.with_(nu=300.0).N == 12.0
+
+
+@pytest.mark.parametrize(("phi", "value"), [(0.05, 1.1603), (0.10, 1.3910), (0.20, 2.0640)])
+def test_guth_gold(phi, value):
+    # Guth & Gold 1938 [from memory]: 1 + 2.5φ + 14.1φ²; values in physics.md §4 [derived]
+    assert guth_gold(phi) == pytest.approx(value, abs=6e-5)  # values printed to 4 decimals
+
+
+def test_filler_and_dangling_ends_scale_the_modulus():
+    base = Network(polymer="NR", nu=150.0, T=300.0, entanglements=False)
+    assert base.affine_modulus == pytest.approx(150.0 * R * 300.0)
+    filled = base.with_(filler_fraction=0.1)
+    assert filled.affine_modulus / base.affine_modulus == pytest.approx(guth_gold(0.1))
+    # Flory's dangling-end correction ν_eff = ν(1 − 2M_c/M_n) [from memory, physics.md §3]
+    de = base.with_(Mn=10 * base.Mc)
+    assert de.affine_modulus / base.affine_modulus == pytest.approx(1 - 2 / 10)
+
+
+def test_modulus_proportional_to_absolute_temperature():
+    # Entropic network at fixed structure: G ∝ T (Meyer & Ferri 1935), G_e ∝ T as well (physics.md §4).
+    a = Network(polymer="NR", nu=150.0, T=250.0)
+    b = a.with_(T=375.0)
+    for name, m in MODELS.items():
+        ga = m.small_strain_modulus(**a.model_params(m))
+        gb = m.small_strain_modulus(**b.model_params(m))
+        assert gb / ga == pytest.approx(1.5, rel=1e-12), name
+
+
+def test_poisson_ratio_and_bulk_to_shear():
+    # isotropic elasticity: ν_P = (3K − 2G)/(2(3K + G)); rubber K/G ~ 10³–10⁴ [common practice]
+    net = Network(polymer="NR", nu=150.0)
+    G, K = net.small_strain_modulus, net.bulk_modulus
+    assert net.poisson_ratio == pytest.approx((3 * K - 2 * G) / (2 * (3 * K + G)))
+    assert 0.499 < net.poisson_ratio < 0.5
+    assert 1e3 < net.bulk_to_shear < 1e5
+
+
+def test_locking_stretch_per_mode_orders():
+    net = Network(polymer="NR", nu=150.0)
+    u, e, p = (net.locking_stretch(m) for m in (Mode.UNIAXIAL, Mode.EQUIBIAXIAL, Mode.PLANAR))
+    assert e < p < u  # equibiaxial locks first: I₁ grows fastest there
+
+
+def test_every_model_maps_from_a_network():
+    net = Network(polymer="SBR", nu=180.0, filler_fraction=0.1, Mn=200.0)
+    for _name, m in MODELS.items():
+        p = net.model_params(m)
+        assert set(p) == set(m.params.names())
+
+
+def test_polymer_table_rows_name_their_source():
+    for key, p in polymers().items():
+        assert p.source and p.status in {"read", "memory"}, key
+        assert 800 < p.density < 1300 and p.kuhn_molar_mass > p.monomer_molar_mass * 0.5
+
+
+def test_bad_network_inputs_are_sentences():
+    for kw, word in [({"nu": -5.0}, "positive"), ({"T": 0.0}, "absolute zero"), ({"f": 2}, "functionality"),
+                     ({"polymer": "unobtainium"}, "unknown polymer"), ({"filler_fraction": 0.7}, "filler")]:
+        with pytest.raises((ValueError, KeyError), match=word):
+            Network(**kw)
+
+
+def test_core_does_not_import_the_ui_stack():
+    code = ("import sys, network_models, network_models.cli as c; c.build_parser(); "
+            "bad=[m for m in ('panel','holoviews','bokeh') if m in sys.modules]; print(bad); sys.exit(1 if bad else 0)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert out.returncode == 0, out.stdout + out.stderr
