@@ -29,6 +29,7 @@ def run(args):
         lock = m.stretch_limit("uniaxial", p)
         P = m.nominal_stress("uniaxial", lams, p) / 1e6
         cells = "  ".join("  past lock" if not np.isfinite(v) else f"{v:9.3f}" for v in P)
-        print(f"{name:24s} {m.small_strain_modulus(**p) / 1e6:9.3f} {('—' if lock is None else f'{lock:.2f}'):>8s}   {cells}")
+        lock_text = "—" if lock is None else f"{lock:.2f}"
+        print(f"{name:24s} {m.small_strain_modulus(**p) / 1e6:9.3f} {lock_text:>8s}   {cells}")
     print("\nModel results support design decisions; they do not replace validation testing of parts.")
     return 0
