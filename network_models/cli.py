@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import sys
 
 #: sub-command modules, in the order ``--help`` lists them
@@ -51,6 +52,15 @@ def main(argv=None) -> int:
         return 2
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:  # output piped into `head` and friends
+        sys.stderr.close()
+        return 0
+    except Exception as exc:  # last resort: a sentence, not a traceback (NETSTRETCH_DEBUG=1 shows it)
+        if os.environ.get("NETSTRETCH_DEBUG"):
+            raise
+        print(f"netstretch {args.command}: unexpected problem ({type(exc).__name__}: {exc}). "
+              "Please report it with the command you ran; set NETSTRETCH_DEBUG=1 to see details.", file=sys.stderr)
+        return 1
 
 
 if __name__ == "__main__":
