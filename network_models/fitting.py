@@ -1,0 +1,746 @@
+"""Fitting network models to lab curves, with uncertainty and plain-language diagnostics.
+
+    >>> from network_models.fitting import fit
+    >>> res = fit("eight-chain", curves)              # curves: list of TestCurve, one or several modes
+    >>> res.params["mu"].value, res.params["mu"].ci95  # Pa, 95 % interval
+    >>> res.predict("planar", [1.5, 2.0])              # fit one mode, predict another
+    >>> res.warnings                                   # plain sentences
+
+Method
+------
+* Least squares with :func:`scipy.optimize.least_squares` (``trf``, bounds from each parameter's
+  declaration).  Parameters are optimised in a scaled space: ``log`` for parameters declared
+  ``log_scale`` (N, J_m, ν), ``value / scale`` for the rest (moduli scaled by the data's modulus).
+* Residuals: ``"absolute"`` (default) is ``model − data`` in Pa, so the stiff high-stress points weigh
+  most; ``"relative"`` is ``(model − data) / max(|data|, 2 % of the largest |stress| in that mode)``, which
+  gives the small-strain region and a soft mode (planar, equibiaxial at low stress) equal say.  Use
+  relative residuals when curves of very different stress levels are fitted together.
+* Start values come from the data: the small-strain shear modulus G₀ from a neo-Hookean least-squares
+  slope over the points with 0.7 ≤ λ ≤ 1.5, then ``model.guess(G₀)``, one common scale factor on every
+  modulus, and for locking parameters (N, J_m, δ) a few candidates placed relative to the data's largest
+  stretch; the best candidate starts the optimiser.
+* Finite extensibility: a locking parameter is bounded so that the largest data stretch stays inside the
+  lock (found by bisection on the model's own domain test), so no prediction is NaN during the fit.  When
+  the optimum sits on that bound the result says so.
+* Standard errors from the Jacobian at the optimum, cov = (JᵀJ)⁻¹ s², s² = RSS/(n − k); 95 % intervals
+  with Student's t (n − k degrees of freedom).  For log-scaled parameters the interval is formed on the
+  log scale (asymmetric, always positive); their ``stderr`` is the delta-method value in SI units.
+* AIC = n ln(RSS/n) + 2k, BIC = n ln(RSS/n) + k ln n, with RSS of the residual used in the fit: compare
+  models only on the same curves and the same residual choice.
+
+The model is evaluated through a private vectorised path: the principal stretches and invariants of all
+curves are computed once, then each evaluation calls the model's ``_dW_dI``/``_dW_dlam`` directly.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy import stats
+from scipy.optimize import least_squares
+
+from .deformation import MODES, Mode, principal_stretches
+from .models import Model, get_model
+from .models.base import Model as _BaseModel
+from .testdata import TestCurve
+
+__all__ = ["FitError", "FitResult", "ModeStats", "ParamEstimate", "estimate_modulus", "fit", "fit_many"]
+
+_RELATIVE_FLOOR = 0.02  # relative residual denominator floor, fraction of the largest |stress| of a mode
+_SMALL_STRAIN = (0.7, 1.5)  # stretch window for the start modulus
+_LOCK_CANDIDATES = (1.05, 1.3, 2.0, 4.0, 12.0)  # start multiples of the locking threshold
+
+
+class FitError(ValueError):
+    """The fit could not be done or did not converge; the message says why and what to try."""
+
+
+@dataclass(frozen=True)
+class ParamEstimate:
+    """One fitted (or fixed) parameter in SI units."""
+
+    name: str
+    value: float
+    stderr: float | None
+    ci95: tuple[float | None, float | None]
+    unit: str
+    fixed: bool  # held by the model's declaration or fixed by the user: not fitted
+    symbol: str = ""
+    display_unit: str = ""
+    display_scale: float = 1.0
+    meaning: str = ""
+
+    @property
+    def relative_stderr(self) -> float | None:
+        if self.stderr is None or self.value == 0:
+            return None
+        return abs(self.stderr / self.value)
+
+    def to_dict(self) -> dict:
+        lo, hi = self.ci95
+        return {"value": _clean(self.value), "unit": self.unit, "stderr": _clean(self.stderr),
+                "ci95": [_clean(lo), _clean(hi)], "fixed": self.fixed}
+
+
+@dataclass(frozen=True)
+class ModeStats:
+    mode: Mode
+    n: int
+    rms: float  # Pa, absolute residual
+    r2: float | None
+    tested_range: tuple[float, float]
+
+    def to_dict(self) -> dict:
+        return {"n": self.n, "rms_Pa": _clean(self.rms), "r2": _clean(self.r2),
+                "tested_range": [float(self.tested_range[0]), float(self.tested_range[1])]}
+
+
+@dataclass
+class FitResult:
+    model: str
+    title: str
+    params: dict[str, ParamEstimate]
+    free: tuple[str, ...]
+    correlation: np.ndarray  # between free parameters, in the order of ``free``
+    covariance: np.ndarray  # SI units, free parameters
+    modes: dict[Mode, ModeStats]
+    n: int
+    k: int
+    rss: float  # of the residual used in the fit (Pa² absolute; dimensionless relative)
+    aic: float
+    bic: float
+    residual: str
+    converged: bool
+    message: str
+    nfev: int
+    warnings: list[str] = field(default_factory=list)
+    curve_names: list[str] = field(default_factory=list)
+    temperature: float | None = None  # K, of the fitted curves when they state it
+
+    @property
+    def values(self) -> dict[str, float]:
+        """{name: value} in SI, ready for ``model.nominal_stress``."""
+        return {k: v.value for k, v in self.params.items()}
+
+    @property
+    def model_obj(self) -> Model:
+        return get_model(self.model)
+
+    @property
+    def tested_range(self) -> dict[str, tuple[float, float]]:
+        return {m.value: s.tested_range for m, s in self.modes.items()}
+
+    @property
+    def small_strain_modulus(self) -> float:
+        return float(self.model_obj.small_strain_modulus(**self.values))
+
+    def predict(self, mode, lam):
+        """Nominal stress (Pa) of the fitted model in any mode it supports; NaN past its lock.
+        Use :meth:`range_note` to learn whether ``lam`` lies outside the tested range."""
+        return self.model_obj.nominal_stress(mode, lam, self.values)
+
+    def range_note(self, mode, lam) -> str | None:
+        """A sentence when stretches in ``lam`` lie outside the tested range for ``mode`` (or the mode was
+        not tested); None when every stretch was covered by data."""
+        mode = Mode.parse(mode)
+        lam = np.asarray(lam, dtype=np.float64)
+        if mode not in self.modes:
+            return (f"no {mode.value} data were fitted: {mode.value} predictions of the {self.title} model "
+                    "are extrapolations from the other modes")
+        lo, hi = self.modes[mode].tested_range
+        if lam.size and (np.nanmax(lam) > hi * (1 + 1e-9) or np.nanmin(lam) < lo * (1 - 1e-9)):
+            return (f"{mode.value} predictions beyond the tested stretch range λ = {lo:.3g}–{hi:.3g} are "
+                    "extrapolations: check them against a test before relying on them")
+        return None
+
+    def to_dict(self) -> dict:
+        """One JSON-ready document (SI units; no NaN: undefined numbers are null with a warning)."""
+        warns = list(self.warnings)
+        out = {
+            "model": self.model, "title": self.title, "residual": self.residual,
+            "converged": self.converged, "message": self.message,
+            "parameters": {k: v.to_dict() for k, v in self.params.items()},
+            "statistics": {
+                "n": self.n, "k": self.k, "rss": _clean(self.rss), "aic": _clean(self.aic), "bic": _clean(self.bic),
+                "small_strain_modulus_Pa": _clean(self.small_strain_modulus),
+                "per_mode": {m.value: s.to_dict() for m, s in self.modes.items()},
+            },
+            "correlation": {"parameters": list(self.free),
+                            "matrix": [[_clean(x) for x in row] for row in np.asarray(self.correlation)]},
+            "curves": list(self.curve_names),
+            "temperature_K": _clean(self.temperature),
+            "warnings": warns,
+        }
+        if _has_null(out["parameters"]) and not any("could not estimate" in w for w in warns):
+            warns.append("some uncertainties could not be computed and are given as null")
+        return out
+
+
+def _clean(x):
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def _has_null(d) -> bool:
+    if isinstance(d, dict):
+        return any(_has_null(v) for v in d.values())
+    if isinstance(d, list):
+        return any(_has_null(v) for v in d)
+    return d is None
+
+
+# ------------------------------------------------------------------------------------------------
+# data preparation
+# ------------------------------------------------------------------------------------------------
+_NEO_SHAPE = {  # nominal stress / G for the neo-Hookean solid (physics.md §2 with W₁ = G/2, W₂ = 0)
+    Mode.UNIAXIAL: lambda x: x - x**-2,
+    Mode.EQUIBIAXIAL: lambda x: x - x**-5,
+    Mode.PLANAR: lambda x: x - x**-3,
+}
+
+
+class _Data:
+    """All curves concatenated, with per-point mode and the precomputed kinematics."""
+
+    def __init__(self, curves: list[TestCurve]):
+        lam, P, mode_of = [], [], []
+        for c in curves:
+            if not isinstance(c, TestCurve):
+                raise TypeError(f"fit expects TestCurve objects, got {type(c).__name__}")
+            s, p = np.asarray(c.stretch, float), np.asarray(c.stress, float)
+            bad = ~(np.isfinite(s) & np.isfinite(p))
+            if bad.any():
+                i = int(np.flatnonzero(bad)[0])
+                raise FitError(f"curve {c.name!r} has a missing or non-numeric value at point {i + 1}; "
+                               "remove or fix that row and fit again")
+            if np.any(s <= 0):
+                raise FitError(f"curve {c.name!r} has a stretch ≤ 0; stretch λ = 1 + strain must be positive "
+                               "(did the file hold strain in % or displacement?)")
+            lam.append(s)
+            P.append(p)
+            mode_of.append(np.full(s.size, MODES.index(c.mode)))
+        self.lam = np.concatenate(lam)
+        self.P = np.concatenate(P)
+        self.mode_idx = np.concatenate(mode_of)
+        self.modes = [m for m in MODES if np.any(self.mode_idx == MODES.index(m))]
+        self.masks = {m: self.mode_idx == MODES.index(m) for m in self.modes}
+        self._kinematics()
+
+    def _kinematics(self):
+        n = self.lam.size
+        l1, l2, l3 = np.empty(n), np.empty(n), np.empty(n)
+        for m, mask in self.masks.items():
+            a, b, c = principal_stretches(m, self.lam[mask])
+            l1[mask], l2[mask], l3[mask] = a, b, c
+        self.l1, self.l2, self.l3 = l1, l2, l3
+        a1, a2, a3 = l1 * l1, l2 * l2, l3 * l3
+        self.I1 = a1 + a2 + a3
+        self.I2 = a1 * a2 + a2 * a3 + a3 * a1
+        # P₁ = 2[W₁(a₁ − a₃) + W₂(a₁(I₁ − a₁) − a₃(I₁ − a₃))]/λ₁ (models/base.py)
+        self.A = 2.0 * (a1 - a3) / l1
+        self.B = 2.0 * (a1 * (self.I1 - a1) - a3 * (self.I1 - a3)) / l1
+        self.l3_over_l1 = l3 / l1
+
+    def subset(self, keep: np.ndarray) -> _Data:
+        new = object.__new__(_Data)
+        new.lam, new.P, new.mode_idx = self.lam[keep], self.P[keep], self.mode_idx[keep]
+        new.modes = [m for m in MODES if np.any(new.mode_idx == MODES.index(m))]
+        new.masks = {m: new.mode_idx == MODES.index(m) for m in new.modes}
+        new._kinematics()
+        return new
+
+
+def estimate_modulus(curves) -> float:
+    """Small-strain shear modulus G₀ (Pa) from curves: neo-Hookean least-squares slope over the points with
+    0.7 ≤ λ ≤ 1.5 (λ ≠ 1), or the five points nearest λ = 1 when fewer than three lie there."""
+    if isinstance(curves, TestCurve):
+        curves = [curves]
+    num = den = 0.0
+    for c in curves:
+        lam = np.asarray(c.stretch, float)
+        P = np.asarray(c.stress, float)
+        ok = np.isfinite(lam) & np.isfinite(P) & (lam > 0) & (np.abs(lam - 1.0) > 1e-6)
+        lam, P = lam[ok], P[ok]
+        if lam.size == 0:
+            continue
+        sel = (lam >= _SMALL_STRAIN[0]) & (lam <= _SMALL_STRAIN[1])
+        if sel.sum() < 3:
+            sel = np.argsort(np.abs(lam - 1.0))[:5]
+        g = _NEO_SHAPE[c.mode](lam[sel])
+        num += float(np.dot(g, P[sel]))
+        den += float(np.dot(g, g))
+    G0 = num / den if den > 0 else float("nan")
+    if not (math.isfinite(G0) and G0 > 0):
+        raise FitError("cannot estimate a modulus from these curves: the stress does not rise with stretch "
+                       "near λ = 1 (check the stress column, its unit and sign)")
+    return G0
+
+
+# ------------------------------------------------------------------------------------------------
+# the problem
+# ------------------------------------------------------------------------------------------------
+def _fast_evaluator(model: Model, data: _Data):
+    """p -> nominal stress at every data point (NaN past the lock), through the model's private pieces."""
+    generic = type(model)._nominal_stress is _BaseModel._nominal_stress
+    if not generic:  # models with their own stress expression (e.g. slip tube)
+        slices = [(data.masks[m], m, data.lam[data.masks[m]]) for m in data.modes]
+
+        def ev(p):
+            out = np.empty_like(data.lam)
+            for mask, m, lam in slices:
+                out[mask] = model._nominal_stress(m, lam, p)
+            return out
+
+        return ev
+
+    l1, l2, l3, I1, I2 = data.l1, data.l2, data.l3, data.I1, data.I2
+    A, B, r31 = data.A, data.B, data.l3_over_l1
+    inv, lamp = model.has_invariant_part, model.has_stretch_part
+
+    def ev(p):
+        with np.errstate(all="ignore"):
+            out = np.zeros_like(l1)
+            if inv:
+                W1, W2 = model._dW_dI(I1, I2, p)
+                out = W1 * A
+                if np.any(W2 != 0):
+                    out = out + W2 * B
+            if lamp:
+                out = out + model._dW_dlam(l1, p) - r31 * model._dW_dlam(l3, p)
+            m = model._margin(l1, l2, l3, I1, p)
+            if m is not None:
+                out = np.where(m > 0, out, np.nan)
+        return out
+
+    return ev
+
+
+def _inside(model, data, p) -> np.ndarray:
+    with np.errstate(all="ignore"):
+        m = model._margin(data.l1, data.l2, data.l3, data.I1, p)
+    if m is None:
+        return np.ones(data.lam.size, bool)
+    return np.asarray(m > 0)
+
+
+class _Transform:
+    """Physical value <-> optimiser coordinate for one parameter."""
+
+    def __init__(self, param, start, G0):
+        self.log = bool(param.log_scale) and param.bounds[0] > 0
+        if self.log:
+            self.scale = 1.0
+        elif param.unit == "Pa":
+            self.scale = G0
+        else:
+            self.scale = abs(start) if start != 0 else (param.typical[1] - param.typical[0])
+
+    def to_x(self, v):
+        return math.log(v) if self.log else v / self.scale
+
+    def to_v(self, x):
+        return math.exp(x) if self.log else x * self.scale
+
+    def dv_dx(self, v):
+        return v if self.log else self.scale
+
+
+def _lock_threshold(model, data, p, name, lo, hi):
+    """If ``name`` controls the model's domain on these data, (threshold, valid_side) with valid_side
+    'above' or 'below'; else None.  Found by bisection on the model's own domain test."""
+
+    def ok(v):
+        q = dict(p)
+        q[name] = v
+        return bool(np.all(_inside(model, data, q)))
+
+    lo_f, hi_f = lo, hi
+    if not math.isfinite(lo_f) or not math.isfinite(hi_f):
+        return None
+    a, b = ok(lo_f), ok(hi_f)
+    if a == b:
+        return None
+    use_log = lo_f > 0
+    x0, x1 = (math.log(lo_f), math.log(hi_f)) if use_log else (lo_f, hi_f)
+    # invariant: ok(x0) == a, ok(x1) == b
+    for _ in range(80):
+        xm = 0.5 * (x0 + x1)
+        vm = math.exp(xm) if use_log else xm
+        if ok(vm) == a:
+            x0 = xm
+        else:
+            x1 = xm
+        if abs(x1 - x0) <= 1e-12 * max(1.0, abs(x0)):
+            break
+    valid_side = "below" if a else "above"
+    edge = x0 if a else x1  # the valid-side end of the bracket
+    thr = math.exp(edge) if use_log else edge
+    return thr, valid_side
+
+
+def _resolve_names(model, names, what):
+    if names is None:
+        return set()
+    names = {names} if isinstance(names, str) else set(names)
+    unknown = names - set(model.params.names())
+    if unknown:
+        raise FitError(f"{what}: the {model.title} model has no parameter(s) {sorted(unknown)}; "
+                       f"its parameters are {list(model.params.names())}")
+    return names
+
+
+def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | None = None,
+        start: dict | None = None) -> FitResult:
+    """Fit ``model`` (name or Model) to ``curves`` (TestCurve or list, any mix of modes).
+
+    ``free``: held parameters to fit as well (e.g. ``{"beta"}``); ``fixed``: {name: value} kept at that
+    value; ``start``: {name: value} start values replacing the automatic ones.  Raises :class:`FitError`
+    (a ValueError) with a sentence when the fit cannot be done or does not converge.
+    """
+    m = get_model(model) if isinstance(model, str) else model
+    if isinstance(curves, TestCurve):
+        curves = [curves]
+    curves = list(curves)
+    if not curves:
+        raise FitError("no curves to fit: give at least one test curve")
+    if residual not in ("absolute", "relative"):
+        raise FitError(f"residual must be 'absolute' or 'relative', not {residual!r}")
+    for c in curves:
+        m._require_mode(c.mode)
+    data = _Data(curves)
+    warns: list[str] = []
+
+    fixed = dict(fixed or {})
+    start = dict(start or {})
+    freed = _resolve_names(m, free, "free")
+    _resolve_names(m, set(fixed), "fixed")
+    _resolve_names(m, set(start), "start")
+    fixed_names = {q.name for q in m.params if q.held and q.name not in freed} | set(fixed)
+    free_names = [q.name for q in m.params if q.name not in fixed_names]
+    if not free_names:
+        raise FitError("every parameter is fixed: free at least one to fit")
+
+    # ---- start values ------------------------------------------------------------------------
+    G0 = estimate_modulus(curves)
+    try:
+        p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
+    except ValueError as exc:
+        raise FitError(f"start values rejected: {exc}") from None
+    ev = _fast_evaluator(m, data)
+
+    lb = {q.name: q.bounds[0] for q in m.params}
+    ub = {q.name: q.bounds[1] for q in m.params}
+    locks: dict[str, tuple[float, str]] = {}
+    for name in free_names:
+        q = m.params[name]
+        t = _lock_threshold(m, data, p0, name, q.bounds[0], q.bounds[1])
+        if t is None:
+            continue
+        thr, side = t
+        locks[name] = t
+        if side == "above":
+            lb[name] = max(lb[name], thr * (1 + 1e-7) if thr > 0 else thr + 1e-12)
+        else:
+            ub[name] = min(ub[name], thr * (1 - 1e-7) if thr > 0 else thr - 1e-12)
+
+    # points past a lock that no free parameter can move: leave them out, and say so
+    inside = _inside(m, data, p0) if not locks else np.ones(data.lam.size, bool)
+    if not np.all(inside):
+        nout = int((~inside).sum())
+        top = float(data.lam[~inside].min())
+        warns.append(f"{nout} data point(s) from λ = {top:.3g} upward lie beyond the locking stretch of the "
+                     f"{m.title} model with the fixed parameters and were left out of the fit; free the "
+                     "locking parameter or remove those points")
+        data = data.subset(inside)
+        ev = _fast_evaluator(m, data)
+        if data.lam.size == 0:
+            raise FitError("every data point lies beyond the model's locking stretch with the fixed parameters")
+
+    n = data.lam.size
+    k = len(free_names)
+    if n <= k:
+        raise FitError(f"{n} data point(s) cannot determine {k} parameter(s): give more points or fix parameters")
+
+    if residual == "relative":
+        floor = np.empty(n)
+        for mask in data.masks.values():
+            floor[mask] = _RELATIVE_FLOOR * np.max(np.abs(data.P[mask]))
+        weight = 1.0 / np.maximum(np.abs(data.P), np.maximum(floor, 1e-300))
+    else:
+        weight = np.full(n, 1.0 / G0)
+
+    def cost_of(p):
+        r = (ev(p) - data.P) * weight
+        return float(np.dot(r, r)) if np.all(np.isfinite(r)) else math.inf
+
+    moduli = [q.name for q in m.params if q.unit == "Pa"]
+    scale_moduli = moduli and all(name in free_names and name not in start for name in moduli)
+
+    def rescaled(p):
+        """Common best factor on every modulus (stress is linear in the moduli together)."""
+        if not scale_moduli:
+            return p
+        pm = ev(p)
+        if not np.all(np.isfinite(pm)):
+            return p
+        wm, wd = pm * weight, data.P * weight
+        den = float(np.dot(wm, wm))
+        if den <= 0:
+            return p
+        a = float(np.dot(wm, wd)) / den
+        if not (a > 0 and math.isfinite(a)):
+            return p
+        q = dict(p)
+        for name in moduli:
+            q[name] = min(max(q[name] * a, lb[name]), ub[name])
+        return q
+
+    candidates = [p0]
+    for name, (thr, side) in locks.items():
+        if name in start:
+            continue
+        for c in _LOCK_CANDIDATES:
+            v = thr * c if side == "above" else thr / c
+            if lb[name] <= v <= ub[name]:
+                q = dict(p0)
+                q[name] = v
+                candidates.append(q)
+    best, best_cost = None, math.inf
+    for q in candidates:
+        for name in locks:  # keep start values inside the lock bound
+            q[name] = min(max(q[name], lb[name]), ub[name])
+        q = rescaled(q)
+        c = cost_of(q)
+        if c < best_cost:
+            best, best_cost = q, c
+    if best is None:
+        raise FitError(f"the {m.title} model cannot be evaluated at any start value on these data")
+    p_start = best
+
+    tr = {name: _Transform(m.params[name], p_start[name], G0) for name in free_names}
+
+    def x_bounds(name):
+        t = tr[name]
+        lo, hi = lb[name], ub[name]
+        if t.log:
+            return (math.log(lo) if lo > 0 else -np.inf), (math.log(hi) if math.isfinite(hi) else np.inf)
+        return lo / t.scale, hi / t.scale
+
+    xlb = np.array([x_bounds(nm)[0] for nm in free_names])
+    xub = np.array([x_bounds(nm)[1] for nm in free_names])
+    x0 = np.array([tr[nm].to_x(p_start[nm]) for nm in free_names])
+    span = np.where(np.isfinite(xub - xlb), xub - xlb, 1.0)
+    x0 = np.clip(x0, xlb + 1e-9 * span, xub - 1e-9 * span)
+
+    base = dict(p_start)
+    big = 1e3 * max(1.0, float(np.max(np.abs(data.P * weight))))
+
+    def fun(x):
+        p = base.copy()
+        for i, nm in enumerate(free_names):
+            p[nm] = tr[nm].to_v(x[i])
+        r = (ev(p) - data.P) * weight
+        bad = ~np.isfinite(r)
+        if bad.any():
+            r[bad] = big
+        return r
+
+    try:
+        res = least_squares(fun, x0, bounds=(xlb, xub), method="trf", ftol=1e-10, xtol=1e-10, gtol=1e-10,
+                            max_nfev=100 * (k + 1))
+    except (ValueError, FloatingPointError, np.linalg.LinAlgError) as exc:
+        raise FitError(f"the {m.title} fit failed numerically ({exc}); try relative residuals, fix a "
+                       "parameter, or check the data") from None
+    if res.status <= 0 or not np.all(np.isfinite(res.x)):
+        raise FitError(f"the {m.title} fit did not converge ({res.message.rstrip('.')}); try another model, "
+                       "fix a parameter with --fixed/fixed=, or check the data for outliers")
+    r = res.fun
+    if np.any(np.abs(r) >= big):
+        raise FitError(f"the {m.title} fit ended with data beyond the model's locking stretch; "
+                       "remove the points at the largest stretches or choose a model without a lock")
+
+    values = dict(base)
+    for i, nm in enumerate(free_names):
+        values[nm] = tr[nm].to_v(res.x[i])
+    Pm = ev(values)
+
+    # ---- uncertainty -------------------------------------------------------------------------
+    rss = float(np.dot(r, r))
+    dof = n - k
+    s2 = rss / dof
+    J = res.jac
+    cov_x = np.full((k, k), np.nan)
+    try:
+        U, sv, Vt = np.linalg.svd(J, full_matrices=False)
+        if sv.size and sv[0] > 0 and sv[-1] > sv[0] * 1e-10:
+            cov_x = (Vt.T / sv**2) @ Vt * s2
+    except np.linalg.LinAlgError:
+        pass
+    se_x = np.sqrt(np.clip(np.diag(cov_x), 0, None)) if np.all(np.isfinite(cov_x)) else np.full(k, np.nan)
+    with np.errstate(all="ignore"):
+        corr = cov_x / np.outer(se_x, se_x)
+    D = np.array([tr[nm].dv_dx(values[nm]) for nm in free_names])
+    cov = cov_x * np.outer(D, D)
+    tq = float(stats.t.ppf(0.975, dof))
+
+    params: dict[str, ParamEstimate] = {}
+    for q in m.params:
+        v = float(values[q.name])
+        kw = dict(symbol=q.symbol, display_unit=q.display_unit, display_scale=q.display_scale, meaning=q.meaning)
+        if q.name in free_names:
+            i = free_names.index(q.name)
+            sx = float(se_x[i])
+            if math.isfinite(sx):
+                t = tr[q.name]
+                if t.log:
+                    ci = (math.exp(res.x[i] - tq * sx), math.exp(res.x[i] + tq * sx))
+                else:
+                    ci = (v - tq * sx * t.scale, v + tq * sx * t.scale)
+                params[q.name] = ParamEstimate(q.name, v, float(sx * abs(D[i])), (float(ci[0]), float(ci[1])), q.unit,
+                                               False, **kw)
+            else:
+                params[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, False, **kw)
+        else:
+            params[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, True, **kw)
+
+    # ---- statistics --------------------------------------------------------------------------
+    mode_stats = {}
+    for mode, mask in data.masks.items():
+        e = Pm[mask] - data.P[mask]
+        sst = float(np.sum((data.P[mask] - data.P[mask].mean()) ** 2))
+        ssr = float(np.dot(e, e))
+        lam = data.lam[mask]
+        mode_stats[mode] = ModeStats(mode, int(mask.sum()), math.sqrt(ssr / mask.sum()),
+                                     (1.0 - ssr / sst) if sst > 0 else None,
+                                     (float(lam.min()), float(lam.max())))
+    rss_out = rss * (G0 * G0 if residual == "absolute" else 1.0)  # Pa² for absolute residuals
+    if rss_out > 0:
+        aic = n * math.log(rss_out / n) + 2 * k
+        bic = n * math.log(rss_out / n) + k * math.log(n)
+    else:
+        aic = bic = -math.inf
+
+    temps = {c.temperature for c in curves if c.temperature is not None}
+    if len(temps) > 1:
+        warns.append("the curves were tested at different temperatures (" +
+                     ", ".join(f"{t - 273.15:.0f} °C" for t in sorted(temps)) +
+                     "); one parameter set was fitted to all of them")
+
+    result = FitResult(
+        model=m.name, title=m.title, params=params, free=tuple(free_names), correlation=corr, covariance=cov,
+        modes=mode_stats, n=n, k=k, rss=rss_out,
+        aic=aic, bic=bic, residual=residual, converged=True, message=str(res.message), nfev=int(res.nfev),
+        warnings=warns, curve_names=[c.name for c in curves],
+        temperature=temps.pop() if len(temps) == 1 else None,
+    )
+    _diagnose(result, m, data, values, locks, lb, ub, res.x, xlb, xub, free_names, se_x, corr)
+    return result
+
+
+# ------------------------------------------------------------------------------------------------
+# diagnostics
+# ------------------------------------------------------------------------------------------------
+_LOCK_WORDS = {"N": "Kuhn segments per strand N", "Jm": "the limiting I₁ − 3 (J_m)", "delta": "δ"}
+
+
+def _fmt(v, unit):
+    if unit == "Pa":
+        return f"{v / 1e6:.4g} MPa"
+    return f"{v:.4g}" + ("" if unit in ("1", "") else f" {unit}")
+
+
+def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, se_x, corr):
+    w = result.warnings
+    k = len(free_names)
+    # 1. the locking bound is active
+    for name, (thr, _side) in locks.items():
+        v = values[name]
+        if abs(v - thr) <= 1e-4 * max(abs(thr), 1e-12):
+            top = float(data.lam.max())
+            w.append(f"the data reach the locking stretch of the {m.title} model: {name} was held at the "
+                     f"limit {_fmt(v, m.params[name].unit)} that keeps the largest stretch (λ = {top:.3g}) inside "
+                     f"the lock; the model cannot follow the upturn, so {name} is a bound, not an estimate")
+    # 2. declared bounds
+    at_bound = set()
+    for i, name in enumerate(free_names):
+        if name in locks and abs(values[name] - locks[name][0]) <= 1e-4 * max(abs(locks[name][0]), 1e-12):
+            continue
+        span = (xub[i] - xlb[i]) if np.isfinite(xub[i] - xlb[i]) else max(1.0, abs(x[i]))
+        q = m.params[name]
+        if np.isfinite(xlb[i]) and x[i] - xlb[i] <= 1e-6 * span:
+            at_bound.add(name)
+            w.append(f"{name} ({q.meaning}) ended at its lower bound {_fmt(lb[name], q.unit)}: the data give no "
+                     f"evidence for it; consider a model without it or fix it")
+        elif np.isfinite(xub[i]) and xub[i] - x[i] <= 1e-6 * span:
+            at_bound.add(name)
+            w.append(f"{name} ({q.meaning}) ended at its upper bound {_fmt(ub[name], q.unit)}: the data do not "
+                     "limit it; it is not identifiable from these curves")
+    # 3. identifiability
+    if k and not np.all(np.isfinite(se_x)):
+        w.append(f"could not estimate uncertainties: the parameters {', '.join(free_names)} are not all "
+                 "identifiable from these data (fix one, or add data in another mode or at larger stretch)")
+    else:
+        for name in free_names:
+            pe = result.params[name]
+            rel = pe.relative_stderr
+            if rel is not None and rel > 0.5 and name not in at_bound:
+                pct = "over 1000 %" if rel > 10 else f"{100 * rel:.0f} %"
+                extra = (" — the curves stay far from the locking stretch, so it is barely constrained"
+                         if name in locks else "")
+                w.append(f"{name} is poorly determined by these data (relative standard error {pct}){extra}")
+        for i in range(k):
+            for j in range(i + 1, k):
+                rho = corr[i, j]
+                if math.isfinite(rho) and abs(rho) > 0.98:
+                    w.append(f"{free_names[i]} and {free_names[j]} are strongly correlated (ρ = {rho:+.3f}): "
+                             "these data cannot separate them; fix one or add data in another mode")
+    # 4. untested modes
+    for mode in m.modes:
+        if mode not in result.modes:
+            w.append(f"no {mode.value} data were fitted: {mode.value} predictions are extrapolations")
+    # 5. stability: stress must rise with stretch in every supported mode
+    if m.name == "mooney-rivlin" and values.get("C2", 0.0) < 0:
+        w.append("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains and its "
+                 "equibiaxial prediction can fall with stretch; do not use it outside the tested range")
+    top = max(3.0, 1.5 * float(data.lam.max()))
+    for mode in m.modes:
+        lim = _quick_limit(m, mode, values, top)
+        hi = min(top, 0.995 * lim) if lim else top
+        grid = np.linspace(1.0 + 1e-3, hi, 200)
+        with np.errstate(all="ignore"):
+            P = m._nominal_stress(mode, grid, values)
+        dP = np.diff(P)
+        bad = np.flatnonzero(np.isfinite(dP) & (dP <= 0))
+        if bad.size:
+            where = grid[bad[0]]
+            w.append(f"the fitted {m.title} model is unstable in {mode.value}: its stress stops rising above "
+                     f"λ ≈ {where:.3g}; do not use its {mode.value} predictions there")
+
+
+def _quick_limit(m, mode, values, top):
+    """Locking stretch in tension below ``top`` (grid search, no root finding), or None."""
+    grid = np.linspace(1.0, top, 400)
+    with np.errstate(all="ignore"):
+        l1, l2, l3, I1, _ = m._state(mode, grid)
+        mg = m._margin(l1, l2, l3, I1, values)
+    if mg is None:
+        return None
+    out = np.flatnonzero(~(mg > 0))
+    return float(grid[out[0]]) if out.size else None
+
+
+def fit_many(models, curves, **kw) -> dict[str, FitResult | FitError]:
+    """Fit several models to the same curves; a model that fails gives its FitError (or
+    ModeNotSupportedError) instead of a result, so one failure does not stop the others."""
+    out = {}
+    for name in models:
+        mm = get_model(name) if isinstance(name, str) else name
+        try:
+            out[mm.name] = fit(mm, curves, **kw)
+        except ValueError as exc:  # FitError, ModeNotSupportedError, ParameterError
+            out[mm.name] = exc if isinstance(exc, FitError) else FitError(str(exc))
+    return out
