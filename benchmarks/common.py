@@ -1,0 +1,75 @@
+"""Shared helpers: timing by median of repeats, machine description."""
+
+from __future__ import annotations
+
+import os
+import platform
+import statistics
+import time
+
+
+def median_time(fn, repeats: int = 7, warmup: int = 1) -> tuple[float, list[float]]:
+    """Median wall time of ``fn()`` in seconds over ``repeats`` runs (after ``warmup`` untimed runs)."""
+    for _ in range(warmup):
+        fn()
+    times = []
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times), times
+
+
+def interleaved_times(fns: dict, repeats: int = 7, warmup: int = 1) -> dict[str, float]:
+    """Median seconds of each callable, their repeats interleaved so that drift (turbo, other work on the
+    machine) hits every contender alike."""
+    for _ in range(warmup):
+        for fn in fns.values():
+            fn()
+    times = {k: [] for k in fns}
+    for _ in range(repeats):
+        for k, fn in fns.items():
+            t0 = time.perf_counter()
+            fn()
+            times[k].append(time.perf_counter() - t0)
+    return {k: statistics.median(v) for k, v in times.items()}
+
+
+def _cpu_model() -> str:
+    try:
+        with open("/proc/cpuinfo", encoding="utf-8") as fh:
+            for line in fh:
+                if line.lower().startswith("model name"):
+                    return line.split(":", 1)[1].strip()
+    except OSError:
+        pass
+    return platform.processor() or platform.machine()
+
+
+def machine_info() -> dict:
+    import numpy as np
+    import scipy
+
+    try:
+        blas = np.show_config(mode="dicts")["Build Dependencies"]["blas"]["name"]
+    except Exception:  # older numpy or unusual build: the BLAS name is informative only
+        blas = "unknown"
+    return {
+        "cpu_model": _cpu_model(),
+        "logical_cores": os.cpu_count(),
+        "usable_cores": len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count(),
+        "platform": platform.platform(),
+        "python": platform.python_version(),
+        "numpy": np.__version__,
+        "scipy": scipy.__version__,
+        "blas": blas,
+        "OPENBLAS_CORETYPE": os.environ.get("OPENBLAS_CORETYPE"),
+        "OMP_NUM_THREADS": os.environ.get("OMP_NUM_THREADS"),
+    }
+
+
+def percentile(values, q: float) -> float:
+    """q-th percentile (0..100), linear interpolation between order statistics (numpy's default)."""
+    import numpy as np
+
+    return float(np.percentile(np.asarray(values, dtype=float), q))

@@ -1,0 +1,225 @@
+"""The benchmarks' fast paths give the same answers as their slow references (correctness only, no timing).
+
+A speed ratio means something only if both contenders compute the same thing: these tests check the
+cached mpmath reference, the naive baselines (brentq L⁻¹, per-point stress, curve_fit) and the fast code
+paths against each other and against outside values.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import mpmath as mp
+import numpy as np
+import pytest
+
+from benchmarks import bench_langevin, naive
+from benchmarks.langevin_reference import load_reference, mp_inverse_langevin, reference_points
+from network_models import MODELS, MODES, Network, get_model, inverse_langevin
+from tests.reference import mp_inverse_langevin as mp_inverse_langevin_findroot
+
+# ----- benchmark 1: the inverse Langevin reference and baselines -----------------------------------------
+
+
+def test_reference_cache_is_the_documented_point_set():
+    y, x = load_reference()
+    assert y.size >= 10_000  # brief: at least 10⁴ points
+    assert y.min() == 0.0 and y.max() == 1.0 - 1e-12
+    assert np.array_equal(y, reference_points())
+    assert np.sum(1.0 - y < 1e-6) >= 1000  # dense near the pole
+
+
+def test_reference_generator_against_physics_md_values():
+    # /work/shared/reference/physics.md §6 (mpmath, 30 digits): L⁻¹(0.1), (0.5), (0.8), (0.9).
+    expected = {0.1: 0.301817149206338, 0.5: 1.79675598472371, 0.8: 4.99772056690742, 0.9: 9.99999958776895}
+    for y, x in expected.items():
+        assert float(mp_inverse_langevin(y)) == pytest.approx(x, rel=2e-15)
+
+
+def test_cached_reference_matches_independent_mpmath_findroot():
+    # tests/reference.py solves coth x − 1/x = y with mpmath.findroot (secant, own start values), a
+    # different route from the cache generator's Newton iteration.
+    y, x = load_reference()
+    idx = np.linspace(0, y.size - 1, 150).astype(int)
+    for i in idx:
+        if y[i] == 0.0:
+            assert x[i] == 0.0
+            continue
+        assert x[i] == pytest.approx(mp_inverse_langevin_findroot(float(y[i])), rel=1e-15)
+
+
+def test_cached_reference_residuals_in_mpmath():
+    # The defining equation itself, at 60 digits: L(x_ref) = y to the rounding of x_ref (|dL/dx|·ulp).
+    y, x = load_reference()
+    for i in np.linspace(1, y.size - 1, 60).astype(int):
+        with mp.workdps(60):
+            X = mp.mpf(float(x[i]))
+            resid = mp.coth(X) - 1 / X - mp.mpf(float(y[i]))
+            slope = 1 / X**2 - 1 / mp.sinh(X) ** 2
+            assert abs(resid) <= 2 * slope * abs(X) * mp.mpf(2) ** -52
+
+
+def test_fast_inverse_langevin_meets_the_benchmark_target():
+    out = bench_langevin.accuracy()
+    assert out["langevin_max_rel_error"] <= 1e-13
+
+
+def test_brentq_baseline_computes_the_same_function():
+    # The baseline must do the same job as the fast path, else the speed ratio is meaningless.
+    y, x = load_reference()
+    # Its plain residual loses digits as y -> 1 (about 1e-16/(1 − y)), so the check stops at 1 − 1e-6.
+    pick = (y > 0) & (y <= 1.0 - 1e-6)
+    ys, xs = y[pick][::20], x[pick][::20]
+    got = bench_langevin.brentq_inverse_langevin_array(ys)
+    np.testing.assert_allclose(got, xs, rtol=1e-9)
+    np.testing.assert_allclose(inverse_langevin(ys), got, rtol=1e-9)
+
+
+def test_cohen_baseline_is_cohens_pade():
+    # Cohen 1991, Rheol. Acta 30:270: y(3 − y²)/(1 − y²); his stated maximum relative error is about 4.9 %
+    # (from memory), reached near y ≈ 0.8.  Against mpmath on a grid:
+    y, x = load_reference()
+    pick = y > 0
+    rel = np.abs(bench_langevin.cohen(y[pick]) / x[pick] - 1.0)
+    assert 0.04 < rel.max() < 0.05
+    assert bench_langevin.cohen(np.array([0.5]))[0] == pytest.approx(0.5 * 2.75 / 0.75, rel=1e-15)
+
+
+# ----- the naive per-point stress (slow reference for benchmarks 3 and 5) -------------------------------
+
+
+def _mp_energy_eight_chain(mode, lam, mu, N):
+    """Arruda & Boyce 1993 (J. Mech. Phys. Solids 41:389) eight-chain energy, evaluated in mpmath."""
+    l1, l2, l3 = naive.stretches(mode, lam)  # plain floats are fine here: mpmath differentiates via lam
+
+    def W(s):
+        if mode == "uniaxial":
+            a = [s, 1 / mp.sqrt(s), 1 / mp.sqrt(s)]
+        elif mode == "equibiaxial":
+            a = [s, s, 1 / s**2]
+        else:
+            a = [s, mp.mpf(1), 1 / s]
+        I1 = sum(v * v for v in a)
+        r = mp.sqrt(I1 / 3) / mp.sqrt(N)
+        beta = mp.findroot(lambda b: mp.coth(b) - 1 / b - r, 3 * r / (1 - r * r))
+        return mu * N * (r * beta + mp.log(beta / mp.sinh(beta)))
+
+    del l1, l2, l3
+    return W
+
+
+@pytest.mark.parametrize("mode", ["uniaxial", "equibiaxial", "planar"])
+def test_naive_eight_chain_is_the_derivative_of_the_published_energy(mode):
+    # Nominal stress = (1/k) dW/dλ along the mode's path, k = 2 for equibiaxial (two loaded faces), 1 otherwise.
+    mu, N = 0.4e6, 12.0
+    k = 2 if mode == "equibiaxial" else 1
+    for lam in (1.3, 2.0, 2.6):
+        with mp.workdps(30):
+            W = _mp_energy_eight_chain(mode, lam, mu, N)
+            ref = float(mp.diff(W, mp.mpf(lam))) / k
+        assert naive.eight_chain_point(mode, lam, mu, N) == pytest.approx(ref, rel=1e-11)
+
+
+@pytest.mark.parametrize("mode", ["uniaxial", "equibiaxial", "planar"])
+def test_naive_extended_tube_is_the_derivative_of_the_published_energy(mode):
+    # Kaliske & Heinrich 1999 (Rubber Chem. Technol. 72:602) energy [form from memory], mpmath derivative.
+    Gc, Ge, d, b = 0.3e6, 0.2e6, 0.1, 0.2
+    k = 2 if mode == "equibiaxial" else 1
+
+    def W(s):
+        if mode == "uniaxial":
+            a = [s, 1 / mp.sqrt(s), 1 / mp.sqrt(s)]
+        elif mode == "equibiaxial":
+            a = [s, s, 1 / s**2]
+        else:
+            a = [s, mp.mpf(1), 1 / s]
+        x = sum(v * v for v in a) - 3
+        u = 1 - d**2 * x
+        return Gc / 2 * ((1 - d**2) * x / u + mp.log(u)) + 2 * Ge / b**2 * sum(v**-b - 1 for v in a)
+
+    for lam in (0.7, 1.5, 2.5) if mode == "uniaxial" else (1.5, 2.5):
+        with mp.workdps(30):
+            ref = float(mp.diff(W, mp.mpf(lam))) / k
+        assert naive.extended_tube_point(mode, lam, Gc, Ge, d, b) == pytest.approx(ref, rel=1e-11)
+
+
+@pytest.mark.parametrize("name,params", [
+    ("eight-chain", {"mu": 0.4e6, "N": 12.0}),
+    ("extended-tube", {"Gc": 0.3e6, "Ge": 0.2e6, "delta": 0.1, "beta": 0.2}),
+])
+@pytest.mark.parametrize("mode", ["uniaxial", "equibiaxial", "planar"])
+def test_core_stress_equals_naive_stress(name, params, mode):
+    m = get_model(name)
+    lam = np.linspace(0.6 if mode == "uniaxial" else 1.0, 3.0, 41)
+    fast = m.nominal_stress(mode, lam, params)
+    slow = naive.naive_stress(name, [mode] * lam.size, lam, params)
+    np.testing.assert_allclose(fast, slow, rtol=1e-12, atol=1e-6)
+
+
+def test_naive_stress_is_nan_past_the_lock_like_the_core():
+    m = get_model("eight-chain")
+    p = {"mu": 0.4e6, "N": 4.0}
+    lam = np.array([1.5, 2.0, 3.0, 4.0])  # uniaxial lock at I₁ = 3N = 12: λ ≈ 3.41
+    fast = m.nominal_stress("uniaxial", lam, p)
+    slow = naive.naive_stress("eight-chain", ["uniaxial"] * 4, lam, p)
+    assert np.array_equal(np.isnan(fast), np.isnan(slow)) and np.isnan(slow[-1])
+
+
+def test_naive_fit_recovers_known_parameters():
+    # Noise-free stress from the published eight-chain form, so the fit must return the generating values.
+    true = {"mu": 0.35e6, "N": 15.0}
+    curves = []
+    for mode, hi in (("uniaxial", 3.5), ("equibiaxial", 2.2), ("planar", 3.0)):
+        lam = np.linspace(1.05, hi, 20)
+        curves.append((mode, lam, naive.naive_stress("eight-chain", [mode] * lam.size, lam, true)))
+    p, cost, _ = naive.naive_fit("eight-chain", curves, {"mu": 0.2e6, "N": 30.0},
+                                 {"mu": (1e3, 1e8), "N": (1.5, 1e4)})
+    assert p["mu"] == pytest.approx(true["mu"], rel=1e-8)
+    assert p["N"] == pytest.approx(true["N"], rel=1e-8)
+
+
+# ----- benchmark 2: the slider-move path ------------------------------------------------------------------
+
+
+def test_core_move_evaluates_every_supported_model_and_mode():
+    from benchmarks.bench_models import core_move
+
+    lam = np.linspace(1.0, 5.0, 400)
+    out = core_move(150.0, lam)
+    expected = {(n, mo.value) for n, m in MODELS.items() for mo in MODES if m.supports(mo)}
+    assert set(out) == expected
+    net = Network(polymer="NR", nu=150.0, T=296.15)
+    m = get_model("eight-chain")
+    np.testing.assert_array_equal(out[("eight-chain", "uniaxial")],
+                                  m.nominal_stress("uniaxial", lam, net.model_params(m)))
+
+
+def test_app_stress_curves_equal_the_core_path():
+    st_mod = pytest.importorskip("app.state", reason="app.state not available")
+    from benchmarks.bench_models import core_move
+
+    st = st_mod.NetworkState(models=list(MODELS), lam_max=5.0)
+    st.nu = 222.0
+    app = st.stress_curves()["curves"]
+    lam = app["uniaxial"]["lam"]
+    core = core_move(222.0, lam, locks=False)
+    for (name, mode), stress in core.items():
+        np.testing.assert_allclose(app[mode][name], stress / 1e6, rtol=1e-14, equal_nan=True)
+
+
+# ----- the runner ------------------------------------------------------------------------------------------
+
+
+def test_runner_writes_one_json_document_with_nulls_and_notes(capsys):
+    from benchmarks.__main__ import main
+
+    assert main(["--quick", "--json", "--only", "langevin"]) == 0
+    lines = capsys.readouterr().out.strip().splitlines()
+    doc = json.loads(lines[-1])
+    assert doc["langevin_max_rel_error"] is not None and doc["langevin_max_rel_error"] <= 1e-13
+    assert math.isfinite(doc["langevin_speed_vs_cohen"])
+    for key in ("models_eval_ms_median", "fit_speedup_vs_naive", "slider_update_ms_median", "batch_curves_per_s"):
+        assert doc[key] is None
+    assert any(n.startswith("fit:") for n in doc["notes"])
+    assert doc["machine"]["numpy"] == np.__version__
