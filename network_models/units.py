@@ -1,0 +1,261 @@
+"""Units at the edges: read "23 °C", "20mm", "0.55MPa", "stress [psi]", "Force/N", "kgf/cm²" into SI.
+
+All conversion factors come from pint (a units library with its own definitions file); this module only
+tidies the text a lab writes (``cm2`` → ``cm**2``, ``23C`` → 23 degree Celsius, ``kg/cm²`` read as
+kgf/cm² as the trade writes it) and checks that a unit has the dimension the caller expects.
+
+    >>> parse_quantity("23C")                       # K
+    296.15
+    >>> parse_quantity("20mm", "length")            # m
+    0.02
+    >>> parse_quantity("0.55MPa", "pressure")       # Pa
+    550000.0
+    >>> split_header("Stress [psi]")
+    ('Stress', 'psi')
+
+SI targets per dimension: length m, area m², force N, pressure Pa, temperature K, dimensionless 1
+(so "%" gives a factor 0.01).  The pint registry is built once, lazily, and never used in hot loops:
+:func:`unit_converter` returns a plain (factor, offset) pair to apply to whole arrays.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+__all__ = [
+    "DIMENSIONS", "UnitError", "UnitConverter", "parse_quantity", "parse_number", "split_header",
+    "unit_converter", "format_si",
+]
+
+
+class UnitError(ValueError):
+    """A unit or quantity that cannot be read, or has the wrong dimension; the message says what to write."""
+
+
+#: dimension name -> (SI target unit for pint, example a user could write)
+DIMENSIONS: dict[str, tuple[str, str]] = {
+    "length": ("meter", "20 mm"),
+    "area": ("meter**2", "8 mm²"),
+    "force": ("newton", "12 N"),
+    "pressure": ("pascal", "0.55 MPa"),
+    "temperature": ("kelvin", "23 °C"),
+    "dimensionless": ("dimensionless", "150 %"),
+}
+
+# Spellings labs use for temperature units; mapped to pint's names (no factors here, pint converts).
+_TEMPERATURE_NAMES = {
+    "c": "degC", "°c": "degC", "ºc": "degC", "degc": "degC", "deg c": "degC", "° c": "degC",
+    "celsius": "degC", "degree celsius": "degC", "degrees celsius": "degC", "℃": "degC",
+    "f": "degF", "°f": "degF", "ºf": "degF", "degf": "degF", "deg f": "degF", "° f": "degF",
+    "fahrenheit": "degF", "degrees fahrenheit": "degF", "℉": "degF",
+    "k": "kelvin", "kelvin": "kelvin", "°k": "kelvin",
+}
+
+_NUMBER = r"[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?"
+_QUANTITY_RE = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+
+
+@lru_cache(maxsize=1)
+def _registry():
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    return ureg
+
+
+def _dimensionality(dimension: str):
+    ureg = _registry()
+    return ureg.Quantity(1, DIMENSIONS[dimension][0]).dimensionality
+
+
+def _tidy_unit_text(text: str) -> str:
+    """Lab spellings → pint syntax: superscripts, ``cm2`` → ``cm**2``, ``sq mm``, ``mm/mm`` etc."""
+    t = text.strip()
+    t = t.replace("\u00b2", "**2").replace("\u00b3", "**3").replace("^", "**")
+    t = t.replace("\u00b5", "u").replace("\u03bc", "u")  # micro sign / Greek mu -> u
+    t = re.sub(r"\bsq\.?\s*(mm|cm|m|in|inch)\b", r"\1**2", t, flags=re.IGNORECASE)
+    t = re.sub(r"(?<=[A-Za-z])([23])\b", r"**\1", t)  # cm2 -> cm**2, mm3 -> mm**3
+    t = re.sub(r"\*\*\*\*", "**", t)
+    if t in {"", "-", "1", "–", "—"}:
+        return "dimensionless"
+    return t
+
+
+@dataclass(frozen=True)
+class UnitConverter:
+    """``si = value * factor + offset`` (offset only for °C/°F); ``dimension`` is one of DIMENSIONS."""
+
+    unit: str  # the unit as written
+    dimension: str
+    factor: float
+    offset: float = 0.0
+
+    def __call__(self, values):
+        return values * self.factor + self.offset if self.offset else values * self.factor
+
+
+def _pint_unit(text: str, dimension: str | None):
+    """Parse unit text with pint; return (pint Unit, note). Raises UnitError."""
+    ureg = _registry()
+    raw = text.strip()
+    low = raw.lower().strip()
+    if dimension in (None, "temperature") and low in _TEMPERATURE_NAMES:
+        return ureg.Unit(_TEMPERATURE_NAMES[low])
+    if low in {"%", "percent", "pct"}:
+        return ureg.Unit("percent")
+    tidy = _tidy_unit_text(raw)
+    try:
+        unit = ureg.Unit(tidy)
+    except Exception:  # pint raises many kinds on junk text (parse, tokenize, key, type errors)
+        raise UnitError(
+            f"unknown unit {raw!r}; write a unit such as MPa, psi, N/mm², kgf/cm², N, mm, % or °C"
+        ) from None
+    # The trade writes "kg/cm²" and "kg" for kilogram-force; read mass as force when a force or
+    # pressure is expected [common practice].
+    if dimension in ("force", "pressure"):
+        mass_like = (ureg.Quantity(1, unit) * ureg.standard_gravity)
+        if mass_like.dimensionality == _dimensionality(dimension):
+            return mass_like.units
+    return unit
+
+
+def unit_converter(unit_text: str, dimension: str) -> UnitConverter:
+    """A converter from ``unit_text`` to the SI unit of ``dimension``; UnitError if unknown or wrong kind.
+
+    >>> unit_converter("kgf/cm2", "pressure").factor     # Pa per kgf/cm²
+    98066.5
+    """
+    if dimension not in DIMENSIONS:
+        raise ValueError(f"unknown dimension {dimension!r}; use one of {', '.join(DIMENSIONS)}")
+    target, example = DIMENSIONS[dimension]
+    unit = _pint_unit(unit_text, dimension)
+    ureg = _registry()
+    if ureg.Quantity(1, unit).dimensionality != _dimensionality(dimension):
+        raise UnitError(
+            f"unit {unit_text!r} is not a {dimension} unit; write e.g. {example!r}"
+        )
+    zero = ureg.Quantity(0.0, unit).to(target).magnitude
+    one = ureg.Quantity(1.0, unit).to(target).magnitude
+    factor = float(one - zero)
+    offset = float(zero)
+    return UnitConverter(unit=unit_text.strip(), dimension=dimension, factor=factor, offset=offset)
+
+
+def parse_number(text) -> float:
+    """A number as labs write it: ``1.5``, ``1,5`` (decimal comma), ``1e3``; UnitError otherwise."""
+    if isinstance(text, (int, float)) and not isinstance(text, bool):
+        return float(text)
+    s = str(text).strip().replace("\u2212", "-").replace(" ", "")
+    if s.count(",") == 1 and "." not in s:
+        s = s.replace(",", ".")
+    try:
+        return float(s)
+    except ValueError:
+        raise UnitError(f"{text!r} is not a number") from None
+
+
+def parse_quantity(text, dimension: str | None = None, *, default_unit: str | None = None) -> float:
+    """Read "23C", "23 °C", "296 K", "73F", "20mm", "0.55MPa", "150 %" into an SI float.
+
+    ``dimension`` (length, area, force, pressure, temperature, dimensionless) checks the unit; without
+    it any unit is accepted and converted to SI base units, with a bare C/F read as °C/°F (never as
+    coulomb or farad).  A bare number gets ``default_unit`` if given, else it is returned unchanged
+    (taken as already SI).  Raises :class:`UnitError` with a sentence saying what to write.
+    """
+    if isinstance(text, (int, float)) and not isinstance(text, bool):
+        value, unit_text = float(text), ""
+    else:
+        s = str(text).replace("\u2212", "-").strip()
+        m = _QUANTITY_RE.match(s)
+        if not m:
+            hint = f" such as {DIMENSIONS[dimension][1]!r}" if dimension in DIMENSIONS else " such as '20 mm'"
+            raise UnitError(f"could not read {text!r} as a number with a unit; write a value{hint}")
+        value = parse_number(m.group(1))
+        unit_text = m.group(2)
+    if not math.isfinite(value):
+        raise UnitError(f"{text!r} is not a finite number")
+    if not unit_text:
+        unit_text = default_unit or ""
+        if not unit_text:
+            return value
+    if dimension is None:
+        ureg = _registry()
+        unit = _pint_unit(unit_text, None)
+        q = ureg.Quantity(value, unit)
+        if q.dimensionality == _dimensionality("temperature"):
+            return float(q.to("kelvin").magnitude)
+        return float(q.to_base_units().magnitude)
+    conv = unit_converter(unit_text, dimension)
+    return float(conv(value))
+
+
+_BRACKETS = re.compile(r"^(.*?)[\s,]*[\[(\{]\s*([^\]\)\}]*?)\s*[\]\)\}]\s*(.*)$")
+
+
+def split_header(header) -> tuple[str, str | None]:
+    """Split a column header into (label, unit text or None).
+
+    Accepts "stress (MPa)", "Stress [psi]", "Force/N", "Force, N", "Force in N", "strain %",
+    "Extension mm" (a last word that pint reads as a unit).  A header without a unit gives None.
+    """
+    h = " ".join(str(header).split())
+    if not h:
+        return "", None
+    m = _BRACKETS.match(h)
+    if m and m.group(2):
+        label = (m.group(1) + " " + m.group(3)).strip()
+        return label, m.group(2).strip()
+    for sep in (",", ";", " in ", " - "):
+        if sep in h:
+            label, _, unit = h.rpartition(sep)
+            if label.strip() and _looks_like_unit(unit):
+                return label.strip(), unit.strip()
+    if h.endswith("%"):
+        return h[:-1].strip().rstrip("/,;").strip(), "%"
+    parts = h.rsplit(" ", 1)
+    if len(parts) == 2 and _looks_like_unit(parts[1]):
+        return parts[0].strip(), parts[1].strip()
+    if "/" in h:
+        label, _, unit = h.partition("/")
+        if label.strip() and unit.strip() and _looks_like_unit(unit):
+            return label.strip(), unit.strip()
+    return h, None
+
+
+# Header words pint happens to know as units but that a lab means as words ("strain", "at", "point").
+_NOT_UNITS = {"strain", "point", "points", "at", "in", "a", "cycle", "cycles", "degree", "lambda", "turn",
+              "count", "b", "ε", "λ", "σ", "x", "y", "no", "nr", "id", "ratio"}
+
+
+def _looks_like_unit(text: str) -> bool:
+    """True when ``text`` reads as a unit of a dimension lab tables carry (length, force, stress, ...)."""
+    t = text.strip()
+    if not t or len(t) > 20 or t.isdigit() or t.lower() in _NOT_UNITS:
+        return False
+    if t.lower() in _TEMPERATURE_NAMES or t in {"%", "-", "1"}:
+        return True
+    try:
+        unit = _pint_unit(t, None)
+        dim = _registry().Quantity(1, unit).dimensionality
+    except Exception:  # any pint failure on header text means "not a unit"
+        return False
+    known = [_dimensionality(d) for d in DIMENSIONS] + [_registry().Quantity(1, "second").dimensionality]
+    return dim in known
+
+
+def format_si(value: float, dimension: str) -> str:
+    """A short trade-unit text for an SI value (for notices): mm, mm², N, MPa, °C."""
+    if dimension == "length":
+        return f"{value * 1e3:g} mm"
+    if dimension == "area":
+        return f"{value * 1e6:g} mm²"
+    if dimension == "pressure":
+        return f"{value / 1e6:g} MPa"
+    if dimension == "temperature":
+        return f"{value - 273.15:g} °C"
+    if dimension == "force":
+        return f"{value:g} N"
+    return f"{value:g}"
