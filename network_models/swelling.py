@@ -1,0 +1,331 @@
+"""Equilibrium swelling: strand density from the Flory–Rehner balance (physics.md §5).
+
+    >>> from network_models.swelling import swelling_estimate
+    >>> r = swelling_estimate(dry=1.000e-3, swollen=3.20e-3, solvent="toluene", polymer="NR")
+    >>> r.nu_affine, r.nu_band("affine")      # mol/m³; ν at χ − 0.05 and χ + 0.05
+
+Formulas used (SI inside; V₁ in m³/mol, ν in mol/m³):
+
+* polymer volume fraction of the swollen gel, φ = (m_r/ρ_p) / (m_r/ρ_p + (m_s − m_d)/ρ_s), where m_d is
+  the dry (extracted) mass, m_s the swollen mass and m_r = w_r·m_d the rubber part of the dry mass
+  (w_r = 1 for a gum; filler does not swell and its mass is not polymer);
+* Flory & Rehner 1943 (J. Chem. Phys. 11:521) [memory, standard form], general functionality f:
+  affine  −[ln(1 − φ) + φ + χφ²] = V₁ν(φ^⅓ − 2φ/f);   phantom  −[ln(1 − φ) + φ + χφ²] = V₁ν(1 − 2/f)φ^⅓;
+* Kraus 1963 (J. Appl. Polym. Sci. 7:861) [memory] for filled compounds with non-swelling, adhering filler:
+  V_r0/V_rf = 1 − m·φ_f/(1 − φ_f),  m = 3c(1 − V_r0^⅓) + V_r0 − 1, with V_rf the rubber volume fraction
+  measured in the swollen filled gel, V_r0 the value the unfilled network would show, φ_f the filler
+  volume fraction of the dry compound and c the filler–rubber constant (c ≈ 1.17 for reinforcing carbon
+  black [memory]).  V_r0 is solved from this implicit relation and used in Flory–Rehner.
+
+ν is the **strand** density; the junction (crosslink) density is μ_j = 2ν/f.  χ depends on temperature,
+concentration and crosslink density, so every result carries ν at χ ± 0.05.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from dataclasses import dataclass, field
+from functools import lru_cache
+from importlib import resources
+
+from scipy.optimize import brentq
+
+from .network import get_polymer
+
+__all__ = [
+    "CHI_BAND", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingResult", "chi_values", "compare_with_modulus",
+    "flory_rehner_nu", "get_solvent", "kraus_gum_fraction", "polymer_volume_fraction", "solvents",
+    "swelling_estimate", "swollen_fraction",
+]
+
+CHI_BAND = 0.05
+#: Kraus filler–rubber constant for reinforcing carbon black, Kraus 1963 [memory]
+KRAUS_C_CARBON_BLACK = 1.17
+
+
+@dataclass(frozen=True)
+class Solvent:
+    key: str
+    title: str
+    formula: str
+    molar_mass: float  # kg/mol
+    density: float  # kg/m³
+    density_source: str
+
+    @property
+    def molar_volume(self) -> float:
+        """V₁ = M/ρ, m³/mol."""
+        return self.molar_mass / self.density
+
+
+@dataclass(frozen=True)
+class ChiValue:
+    polymer: str
+    solvent: str
+    chi: float
+    temperature: float  # K
+    default: bool
+    status: str  # "handbook" | "memory" | "user"
+    source: str
+    note: str = ""
+
+
+@lru_cache(maxsize=1)
+def _table():
+    return tomllib.loads(resources.files(__package__).joinpath("solvents.toml").read_text("utf-8"))
+
+
+def solvents() -> dict[str, Solvent]:
+    out = {}
+    for key, r in _table()["solvent"].items():
+        out[key] = Solvent(key, r["title"], r["formula"], r["molar_mass_g_mol"] / 1000.0,
+                           r["density_g_cm3"] * 1000.0, r["density_source"])
+    return out
+
+
+def get_solvent(key: str) -> Solvent:
+    table = solvents()
+    k = str(key).strip().lower().replace(" ", "-")
+    aliases = {"mek": "2-butanone", "methyl-ethyl-ketone": "2-butanone", "heptane": "n-heptane"}
+    k = aliases.get(k, k)
+    if k not in table:
+        raise KeyError(f"unknown solvent {key!r}; the table has {', '.join(table)}")
+    return table[k]
+
+
+def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[ChiValue]:
+    """χ rows of the table, optionally for one polymer and/or solvent."""
+    rows = []
+    for r in _table()["chi"]:
+        if polymer is not None and r["polymer"] != str(polymer).strip().upper():
+            continue
+        if solvent is not None and r["solvent"] != get_solvent(solvent).key:
+            continue
+        rows.append(ChiValue(r["polymer"], r["solvent"], float(r["chi"]), r["temperature_C"] + 273.15,
+                             bool(r["default"]), r["status"], r["source"], r.get("note", "")))
+    return rows
+
+
+def default_chi(polymer: str, solvent: str) -> ChiValue:
+    rows = chi_values(polymer, solvent)
+    if not rows:
+        raise KeyError(
+            f"the solvent table has no χ for {polymer}–{get_solvent(solvent).key}; give χ yourself "
+            "(--chi 0.4, or chi=0.4 from Python) from a source you trust"
+        )
+    for r in rows:
+        if r.default:
+            return r
+    return rows[0]
+
+
+# ------------------------------------------------------------------------------------------------
+def polymer_volume_fraction(dry: float, swollen: float, rho_polymer: float, rho_solvent: float,
+                            rubber_fraction: float = 1.0) -> float:
+    """φ of rubber in the swollen gel from masses (any one mass unit) and densities (kg/m³)."""
+    for name, v in (("dry mass", dry), ("swollen mass", swollen)):
+        if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
+            raise ValueError(f"{name} must be a positive number; got {v!r}")
+    if swollen <= dry:
+        raise ValueError(
+            f"the swollen mass ({swollen:g}) must exceed the dry mass ({dry:g}): check that the two were not "
+            "swapped and that the swollen piece was weighed before the solvent evaporated"
+        )
+    if not (0 < rubber_fraction <= 1):
+        raise ValueError(f"rubber mass fraction of the dry compound must be in (0, 1]; got {rubber_fraction!r}")
+    vr = rubber_fraction * dry / rho_polymer
+    vs = (swollen - dry) / rho_solvent
+    return vr / (vr + vs)
+
+
+def _mixing(phi, chi):
+    return -(math.log1p(-phi) + phi + chi * phi * phi)
+
+
+def _elastic_factor(phi, f, network):
+    if network == "affine":
+        return phi ** (1.0 / 3.0) - 2.0 * phi / f
+    if network == "phantom":
+        return (1.0 - 2.0 / f) * phi ** (1.0 / 3.0)
+    raise ValueError(f"network assumption must be 'affine' or 'phantom', not {network!r}")
+
+
+def flory_rehner_nu(phi: float, chi: float, V1: float, f: float = 4.0, network: str = "affine") -> float:
+    """Strand density ν (mol/m³) from φ, χ and the solvent molar volume V₁ (m³/mol)."""
+    if not (0 < phi < 1):
+        raise ValueError(f"polymer volume fraction φ must lie between 0 and 1; got {phi!r}")
+    if not (f >= 3):
+        raise ValueError(f"junction functionality f must be at least 3; got {f!r}")
+    num = _mixing(phi, chi)
+    if num <= 0:
+        raise ValueError(
+            f"with χ = {chi:g} the solvent is too poor for the measured swelling (φ = {phi:.3f}): Flory–Rehner "
+            "gives no positive strand density; check χ for this rubber–solvent pair and temperature"
+        )
+    return num / (V1 * _elastic_factor(phi, f, network))
+
+
+def swollen_fraction(nu: float, chi: float, V1: float, f: float = 4.0, network: str = "affine") -> float:
+    """Inverse of :func:`flory_rehner_nu`: equilibrium φ for strand density ν (mol/m³)."""
+    if not (nu > 0):
+        raise ValueError(f"strand density must be positive; got {nu!r}")
+
+    def g(phi):
+        return _mixing(phi, chi) - V1 * nu * _elastic_factor(phi, f, network)
+
+    lo, hi = 1e-9, 1.0 - 1e-12
+    if g(lo) * g(hi) > 0:
+        raise ValueError(f"no swelling equilibrium for ν = {nu:g} mol/m³ with χ = {chi:g}")
+    return brentq(g, lo, hi, xtol=1e-15, rtol=1e-14)
+
+
+def kraus_gum_fraction(v_rf: float, filler_fraction: float, c: float = KRAUS_C_CARBON_BLACK) -> float:
+    """Kraus 1963 [memory]: the gum-equivalent rubber fraction V_r0 from the filled V_rf (see module doc)."""
+    if not (0 <= filler_fraction < 0.5):
+        raise ValueError(f"filler volume fraction must be in [0, 0.5); got {filler_fraction!r}")
+    if filler_fraction == 0:
+        return v_rf
+    q = filler_fraction / (1.0 - filler_fraction)
+
+    def g(vr0):
+        m = 3.0 * c * (1.0 - vr0 ** (1.0 / 3.0)) + vr0 - 1.0
+        return vr0 - v_rf * (1.0 - m * q)
+
+    lo, hi = 1e-9, 1.0 - 1e-12
+    if g(lo) * g(hi) > 0:
+        raise ValueError("the Kraus correction has no solution for these values; check the filler fraction and c")
+    return brentq(g, lo, hi, xtol=1e-15, rtol=1e-14)
+
+
+# ------------------------------------------------------------------------------------------------
+@dataclass
+class SwellingResult:
+    phi: float  # rubber volume fraction used in Flory–Rehner (Kraus-corrected when filled)
+    phi_measured: float  # before any Kraus correction
+    chi: ChiValue
+    solvent: Solvent
+    polymer: str
+    f: float
+    T: float | None
+    nu_affine: float
+    nu_phantom: float
+    band: dict[str, tuple[float | None, float | None]]  # network -> (ν at χ − 0.05, ν at χ + 0.05)
+    rho_polymer: float
+    soluble_fraction: float | None = None
+    kraus: dict | None = None
+    notes: list[str] = field(default_factory=list)
+
+    def nu(self, network="affine") -> float:
+        return self.nu_affine if network == "affine" else self.nu_phantom
+
+    def nu_band(self, network="affine"):
+        return self.band[network]
+
+    def junction_density(self, network="affine") -> float:
+        return 2.0 * self.nu(network) / self.f
+
+    def rows(self) -> list[dict]:
+        """One row per assumption: ν, μ_j, M_c with their χ ± 0.05 bands (SI)."""
+        out = []
+        for net, text in (("affine", "affine junctions: elastic term φ^⅓ − 2φ/f"),
+                          ("phantom", f"phantom network: elastic term (1 − 2/f)φ^⅓, f = {self.f:g}")):
+            nu = self.nu(net)
+            lo, hi = self.band[net]
+            out.append({
+                "assumption": net, "assumes": text,
+                "strand_density": nu, "strand_density_band": [lo, hi],
+                "junction_density": 2.0 * nu / self.f,
+                "junction_density_band": [None if lo is None else 2 * lo / self.f,
+                                          None if hi is None else 2 * hi / self.f],
+                "Mc": self.rho_polymer / nu,
+                "Mc_band": [None if hi is None else self.rho_polymer / hi,
+                            None if lo is None else self.rho_polymer / lo],
+            })
+        return out
+
+    def to_dict(self) -> dict:
+        return {
+            "polymer": self.polymer, "solvent": self.solvent.key,
+            "solvent_molar_volume_m3_mol": self.solvent.molar_volume,
+            "chi": {"value": self.chi.chi, "status": self.chi.status, "source": self.chi.source,
+                    "note": self.chi.note, "band": [self.chi.chi - CHI_BAND, self.chi.chi + CHI_BAND]},
+            "polymer_volume_fraction": self.phi, "polymer_volume_fraction_measured": self.phi_measured,
+            "functionality": self.f, "temperature_K": self.T,
+            "soluble_fraction": self.soluble_fraction, "kraus": self.kraus,
+            "units": {"strand_density": "mol/m³", "junction_density": "mol/m³", "Mc": "kg/mol"},
+            "rows": self.rows(), "notes": list(self.notes),
+        }
+
+
+def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
+                      chi: float | None = None, f: float = 4.0, T: float | None = None,
+                      initial: float | None = None, rubber_fraction: float = 1.0,
+                      filler_fraction: float = 0.0, kraus_c: float = KRAUS_C_CARBON_BLACK,
+                      rho_polymer: float | None = None) -> SwellingResult:
+    """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI); ``dry`` is the
+    dry mass after swelling and drying (sol extracted), ``initial`` the mass before swelling (optional:
+    gives the soluble fraction).  ``chi`` overrides the table; ``filler_fraction`` (volume fraction of
+    filler in the dry compound) switches the Kraus correction on."""
+    poly = get_polymer(polymer)
+    sol = get_solvent(solvent)
+    rho_p = poly.density if rho_polymer is None else float(rho_polymer)
+    notes = []
+    if chi is None:
+        cv = default_chi(poly.key, sol.key)
+        notes.append(f"χ = {cv.chi:g} from the solvent table [{cv.status}]: {cv.source}"
+                     + (f" ({cv.note})" if cv.note else ""))
+    else:
+        if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
+            raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
+        cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
+        notes.append(f"χ = {chi:g} as given")
+    phi_m = polymer_volume_fraction(dry, swollen, rho_p, sol.density, rubber_fraction)
+    soluble = None
+    if initial is not None:
+        if not (initial > 0):
+            raise ValueError(f"initial mass must be positive; got {initial!r}")
+        if initial < dry:
+            raise ValueError(f"the initial mass ({initial:g}) is below the dry extracted mass ({dry:g}); "
+                             "the dry mass must be weighed after swelling and drying")
+        soluble = (initial - dry) / initial
+    phi = phi_m
+    kraus = None
+    if filler_fraction > 0:
+        phi = kraus_gum_fraction(phi_m, filler_fraction, kraus_c)
+        kraus = {"filler_volume_fraction": filler_fraction, "c": kraus_c, "V_rf": phi_m, "V_r0": phi,
+                 "formula": "V_r0/V_rf = 1 − m φ/(1 − φ), m = 3c(1 − V_r0^⅓) + V_r0 − 1 (Kraus 1963 [memory])"}
+        notes.append(f"Kraus correction for filler (φ_filler = {filler_fraction:g}, c = {kraus_c:g}): "
+                     f"V_r = {phi_m:.4f} measured → {phi:.4f} gum-equivalent")
+    elif rubber_fraction < 1:
+        notes.append("filled compound without a Kraus correction: restricted swelling makes the swelling "
+                     "density larger than the mechanical one")
+    nu_a = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "affine")
+    nu_p = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "phantom")
+    band = {}
+    for net in ("affine", "phantom"):
+        vals = []
+        for c in (cv.chi - CHI_BAND, cv.chi + CHI_BAND):
+            try:
+                vals.append(flory_rehner_nu(phi, c, sol.molar_volume, f, net))
+            except ValueError:
+                vals.append(None)
+        band[net] = (vals[0], vals[1])
+    if any(v is None for b in band.values() for v in b):
+        notes.append("χ + 0.05 leaves no positive strand density for this swelling: the upper band is missing")
+    notes.append("Flory–Rehner assumes a perfect network in equilibrium with pure solvent at the test "
+                 "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
+    return SwellingResult(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes)
+
+
+def compare_with_modulus(swelling: SwellingResult, table) -> list[dict]:
+    """Side by side: swelling ν (affine, phantom) against the modulus-based rows of a crosslink table
+    (:class:`network_models.crosslinks.CrosslinkTable`) with the same assumption; ratio = swelling/modulus."""
+    out = []
+    for row in table.rows:
+        net = "phantom" if row.key.startswith("phantom") else "affine"
+        sw = swelling.nu(net)
+        ratio = (sw / row.nu) if (row.nu and row.nu > 0) else None
+        out.append({"modulus_row": row.label, "assumption": net, "swelling_strand_density": sw,
+                    "modulus_strand_density": row.nu, "ratio": ratio})
+    return out
