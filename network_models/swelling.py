@@ -7,8 +7,9 @@
 Formulas used (SI inside; V₁ in m³/mol, ν in mol/m³):
 
 * polymer volume fraction of the swollen gel, φ = (m_r/ρ_p) / (m_r/ρ_p + (m_s − m_d)/ρ_s), where m_d is
-  the dry (extracted) mass, m_s the swollen mass and m_r = w_r·m_d the rubber part of the dry mass
-  (w_r = 1 for a gum; filler does not swell and its mass is not polymer);
+  the mass of the network in the gel (the extracted, re-dried mass when it was measured, else the dry mass
+  before swelling), m_s the swollen mass and m_r = w_r·m_d the rubber part of it (w_r = 1 for a gum;
+  filler does not swell and its mass is not polymer);
 * Flory & Rehner 1943 (J. Chem. Phys. 11:521) [memory, standard form], general functionality f:
   affine  −[ln(1 − φ) + φ + χφ²] = V₁ν(φ^⅓ − 2φ/f);   phantom  −[ln(1 − φ) + φ + χφ²] = V₁ν(1 − 2/f)φ^⅓;
 * Kraus 1963 (J. Appl. Polym. Sci. 7:861) [memory] for filled compounds with non-swelling, adhering filler:
@@ -34,8 +35,8 @@ from scipy.optimize import brentq
 from .network import get_polymer
 
 __all__ = [
-    "CHI_BAND", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingResult", "chi_values", "compare_with_modulus",
-    "flory_rehner_nu", "get_solvent", "kraus_gum_fraction", "polymer_volume_fraction", "solvents",
+    "CHI_BAND", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingEstimate", "chi_values", "compare_with_modulus",
+    "flory_rehner_nu", "from_record", "get_solvent", "kraus_gum_fraction", "polymer_volume_fraction", "solvents",
     "swelling_estimate", "swollen_fraction",
 ]
 
@@ -124,12 +125,12 @@ def default_chi(polymer: str, solvent: str) -> ChiValue:
 def polymer_volume_fraction(dry: float, swollen: float, rho_polymer: float, rho_solvent: float,
                             rubber_fraction: float = 1.0) -> float:
     """φ of rubber in the swollen gel from masses (any one mass unit) and densities (kg/m³)."""
-    for name, v in (("dry mass", dry), ("swollen mass", swollen)):
+    for name, v in (("dry (network) mass", dry), ("swollen mass", swollen)):
         if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
             raise ValueError(f"{name} must be a positive number; got {v!r}")
     if swollen <= dry:
         raise ValueError(
-            f"the swollen mass ({swollen:g}) must exceed the dry mass ({dry:g}): check that the two were not "
+            f"the swollen mass ({swollen:g}) must exceed the dry network mass ({dry:g}): check that the two were not "
             "swapped and that the swollen piece was weighed before the solvent evaporated"
         )
     if not (0 < rubber_fraction <= 1):
@@ -200,7 +201,7 @@ def kraus_gum_fraction(v_rf: float, filler_fraction: float, c: float = KRAUS_C_C
 
 # ------------------------------------------------------------------------------------------------
 @dataclass
-class SwellingResult:
+class SwellingEstimate:
     phi: float  # rubber volume fraction used in Flory–Rehner (Kraus-corrected when filled)
     phi_measured: float  # before any Kraus correction
     chi: ChiValue
@@ -260,13 +261,14 @@ class SwellingResult:
 
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
                       chi: float | None = None, f: float = 4.0, T: float | None = None,
-                      initial: float | None = None, rubber_fraction: float = 1.0,
+                      extracted: float | None = None, rubber_fraction: float = 1.0,
                       filler_fraction: float = 0.0, kraus_c: float = KRAUS_C_CARBON_BLACK,
-                      rho_polymer: float | None = None) -> SwellingResult:
-    """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI); ``dry`` is the
-    dry mass after swelling and drying (sol extracted), ``initial`` the mass before swelling (optional:
-    gives the soluble fraction).  ``chi`` overrides the table; ``filler_fraction`` (volume fraction of
-    filler in the dry compound) switches the Kraus correction on."""
+                      rho_polymer: float | None = None) -> SwellingEstimate:
+    """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
+    :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
+    equilibrium, ``extracted`` (optional) re-dried after swelling — when given it is the network mass and
+    the soluble fraction (dry − extracted)/dry is reported.  ``chi`` overrides the table;
+    ``filler_fraction`` (volume fraction of filler in the dry compound) switches the Kraus correction on."""
     poly = get_polymer(polymer)
     sol = get_solvent(solvent)
     rho_p = poly.density if rho_polymer is None else float(rho_polymer)
@@ -280,15 +282,20 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
             raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
         cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
         notes.append(f"χ = {chi:g} as given")
-    phi_m = polymer_volume_fraction(dry, swollen, rho_p, sol.density, rubber_fraction)
     soluble = None
-    if initial is not None:
-        if not (initial > 0):
-            raise ValueError(f"initial mass must be positive; got {initial!r}")
-        if initial < dry:
-            raise ValueError(f"the initial mass ({initial:g}) is below the dry extracted mass ({dry:g}); "
-                             "the dry mass must be weighed after swelling and drying")
-        soluble = (initial - dry) / initial
+    network_mass = dry
+    if extracted is not None:
+        if not (isinstance(extracted, (int, float)) and math.isfinite(extracted) and extracted > 0):
+            raise ValueError(f"extracted mass must be a positive number; got {extracted!r}")
+        if extracted > dry * (1 + 1e-9):
+            raise ValueError(f"the extracted mass ({extracted:g}) exceeds the dry mass before swelling ({dry:g}); "
+                             "check that the two were not swapped and that the piece was fully dried")
+        soluble = (dry - extracted) / dry
+        network_mass = extracted
+    else:
+        notes.append("no extracted (re-dried) mass given: the dry mass before swelling is taken as network, "
+                     "so any soluble fraction is counted as network")
+    phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
     phi = phi_m
     kraus = None
     if filler_fraction > 0:
@@ -315,10 +322,17 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         notes.append("χ + 0.05 leaves no positive strand density for this swelling: the upper band is missing")
     notes.append("Flory–Rehner assumes a perfect network in equilibrium with pure solvent at the test "
                  "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
-    return SwellingResult(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes)
+    return SwellingEstimate(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes)
 
 
-def compare_with_modulus(swelling: SwellingResult, table) -> list[dict]:
+def from_record(record, polymer: str, **kw) -> SwellingEstimate:
+    """Estimate from a :class:`network_models.testdata.SwellingResult` row (``read_swelling``)."""
+    kw.setdefault("T", record.temperature)
+    return swelling_estimate(record.dry_mass, record.swollen_mass, record.solvent or "toluene", polymer,
+                             extracted=record.extracted_mass, **kw)
+
+
+def compare_with_modulus(swelling: SwellingEstimate, table) -> list[dict]:
     """Side by side: swelling ν (affine, phantom) against the modulus-based rows of a crosslink table
     (:class:`network_models.crosslinks.CrosslinkTable`) with the same assumption; ratio = swelling/modulus."""
     out = []
