@@ -35,7 +35,8 @@ from scipy.constants import R
 
 from .network import get_polymer, guth_gold
 
-__all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "from_fit", "from_modulus", "shear_modulus_from"]
+__all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
+           "shear_modulus_from"]
 
 #: stretch at which the trade "moduli" are read
 _TRADE_STRETCH = {"M100": 2.0, "M300": 4.0}
@@ -97,6 +98,12 @@ class CrosslinkTable:
     G_ci: tuple[float, float] | None
     inputs: dict
     notes: list[str] = field(default_factory=list)
+
+    def __iter__(self):
+        return iter(self.rows)
+
+    def __len__(self):
+        return len(self.rows)
 
     def row(self, key: str) -> CrosslinkRow:
         for r in self.rows:
@@ -311,3 +318,11 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
                   Ge_source=src, Gc=Gc, Gc_ci=Gc_ci, extra_rows=extra,
                   inputs={"fit_model": result.model, "small_strain_modulus_Pa": G}, notes=notes)
+
+
+def crosslink_table(source, kind: str = "G", **kw) -> CrosslinkTable:
+    """One entry point: ``source`` is a FitResult (→ :func:`from_fit`) or a modulus in Pa of ``kind``
+    (→ :func:`from_modulus`).  The table iterates over its rows; each row has ``to_dict()``."""
+    if hasattr(source, "params") and hasattr(source, "model"):
+        return from_fit(source, **kw)
+    return from_modulus(source, kind, **kw)

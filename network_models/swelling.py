@@ -261,13 +261,15 @@ class SwellingEstimate:
 
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
                       chi: float | None = None, f: float = 4.0, T: float | None = None,
-                      extracted: float | None = None, rubber_fraction: float = 1.0,
+                      extracted: float | None = None, initial: float | None = None, rubber_fraction: float = 1.0,
                       filler_fraction: float = 0.0, kraus_c: float = KRAUS_C_CARBON_BLACK,
                       rho_polymer: float | None = None) -> SwellingEstimate:
     """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
     :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
     equilibrium, ``extracted`` (optional) re-dried after swelling — when given it is the network mass and
-    the soluble fraction (dry − extracted)/dry is reported.  ``chi`` overrides the table;
+    the soluble fraction (dry − extracted)/dry is reported.  The other convention is accepted too:
+    ``dry`` = the re-dried network mass with ``initial`` = the mass before swelling (give one of
+    ``extracted``/``initial``, not both).  ``chi`` overrides the table;
     ``filler_fraction`` (volume fraction of filler in the dry compound) switches the Kraus correction on."""
     poly = get_polymer(polymer)
     sol = get_solvent(solvent)
@@ -284,7 +286,17 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         notes.append(f"χ = {chi:g} as given")
     soluble = None
     network_mass = dry
-    if extracted is not None:
+    if extracted is not None and initial is not None:
+        raise ValueError("give either the extracted mass (with dry = before swelling) or the initial mass "
+                         "(with dry = re-dried network), not both")
+    if initial is not None:
+        if not (isinstance(initial, (int, float)) and math.isfinite(initial) and initial > 0):
+            raise ValueError(f"initial mass must be a positive number; got {initial!r}")
+        if dry > initial * (1 + 1e-9):
+            raise ValueError(f"the re-dried mass ({dry:g}) exceeds the mass before swelling ({initial:g}); "
+                             "check that the two were not swapped")
+        soluble = (initial - dry) / initial
+    elif extracted is not None:
         if not (isinstance(extracted, (int, float)) and math.isfinite(extracted) and extracted > 0):
             raise ValueError(f"extracted mass must be a positive number; got {extracted!r}")
         if extracted > dry * (1 + 1e-9):
