@@ -1,0 +1,295 @@
+"""Network controls and the model-explorer views (force–stretch, Mooney plot, moduli and limits)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import panel as pn
+
+from network_models import MODELS, MODES, get_model, polymers
+
+from .messages import Messages, guarded
+from .plots import (
+    force_T_figure,
+    modulus_nu_figure,
+    modulus_T_figure,
+    mooney_figure,
+    set_visible_models,
+    stress_figure,
+)
+from .state import NetworkState, fmt, model_colour, polymer_label
+from .ui import html
+
+
+def _nanrange(arrays, pad=0.06, floor=None):
+    vals = np.concatenate([np.asarray(a, dtype=float).ravel() for a in arrays]) if arrays else np.array([])
+    vals = vals[np.isfinite(vals)]
+    if vals.size == 0:
+        return (0.0, 1.0)
+    lo, hi = float(vals.min()), float(vals.max())
+    if floor is not None:
+        lo = min(lo, floor)
+    if hi - lo <= 0:
+        hi = lo + 1.0
+    span = hi - lo
+    return lo - (pad * span if floor is None else 0.0), hi + pad * span
+
+
+def legend_html(shown) -> str:
+    items = "".join(
+        f"<span class='ns-leg-item'><span class='ns-leg-line' style='background:{model_colour(n)}'></span>"
+        f"{get_model(n).title}</span>" for n in MODELS if n in shown)
+    return (f"<div class='ns-legend-box'>{items}<span class='ns-leg-item ns-note'>"
+            "<span class='ns-leg-dot'></span>locking stretch · ● test data</span></div>")
+
+
+class NetworkControls(pn.viewable.Viewer):
+    """The sidebar: polymer, ν (with μ_j beside it), N coupled or free, T, f, filler, entanglements."""
+
+    def __init__(self, state: NetworkState, **params):
+        super().__init__(**params)
+        self.state = state
+        s = state
+        self.polymer = pn.widgets.Select.from_param(
+            s.param.polymer, name="Polymer", options={polymer_label(k): k for k in polymers()},
+            css_classes=["ns-polymer"], sizing_mode="stretch_width")
+        self.nu = pn.widgets.EditableFloatSlider.from_param(
+            s.param.nu, name="Strand density ν (mol/m³)", step=1.0, format="0.0",
+            fixed_start=s.param.nu.bounds[0], fixed_end=s.param.nu.bounds[1],
+            css_classes=["ns-nu-input"], sizing_mode="stretch_width")
+        self.couple = pn.widgets.Checkbox.from_param(s.param.couple_N, css_classes=["ns-couple-n"])
+        self.N = pn.widgets.EditableFloatSlider.from_param(
+            s.param.N_free, name="Kuhn segments per strand N", step=0.5, format="0.0",
+            fixed_start=s.param.N_free.bounds[0], fixed_end=s.param.N_free.bounds[1],
+            disabled=s.couple_N, css_classes=["ns-n-input"], sizing_mode="stretch_width")
+        self.T = pn.widgets.EditableFloatSlider.from_param(
+            s.param.T_C, name="Temperature (°C)", step=1.0, format="0",
+            fixed_start=s.param.T_C.bounds[0], fixed_end=s.param.T_C.bounds[1],
+            css_classes=["ns-t-input"], sizing_mode="stretch_width")
+        self.f = pn.widgets.EditableFloatSlider.from_param(
+            s.param.f, name="Junction functionality f", step=1.0, format="0",
+            fixed_start=s.param.f.bounds[0], fixed_end=s.param.f.bounds[1],
+            css_classes=["ns-f-input"], sizing_mode="stretch_width")
+        self.filler = pn.widgets.EditableFloatSlider.from_param(
+            s.param.filler, name="Filler volume fraction φ (1)", step=0.01, format="0.00",
+            fixed_start=0.0, fixed_end=s.param.filler.bounds[1], css_classes=["ns-filler-input"],
+            sizing_mode="stretch_width")
+        self.ent = pn.widgets.Checkbox.from_param(s.param.entanglements, css_classes=["ns-entanglements"])
+        self.models = pn.widgets.CheckBoxGroup.from_param(
+            s.param.models, options={get_model(n).title: n for n in MODELS}, inline=False,
+            css_classes=["ns-models"])
+        self.lam_max = pn.widgets.EditableFloatSlider.from_param(
+            s.param.lam_max, name="Largest stretch shown λ (1)", step=0.1, format="0.0",
+            fixed_start=s.param.lam_max.bounds[0], fixed_end=s.param.lam_max.bounds[1],
+            css_classes=["ns-lammax-input"], sizing_mode="stretch_width")
+        self.derived = html("", css_classes=["ns-readout"], sizing_mode="stretch_width",
+                                    margin=(0, 10))
+        self.polymer_note = html("", css_classes=["ns-polymer-note"], sizing_mode="stretch_width",
+                                         margin=(0, 10))
+        s.param.watch(lambda e: setattr(self.N, "disabled", e.new), "couple_N")
+
+    def set_readout(self, r: dict, moduli: dict):
+        rows = [
+            ("strand density ν", f"{r['nu']:.4g} mol/m³", "elastically active network strands"),
+            ("junction density μ<sub>j</sub> = 2ν/f", f"{r['junction_density']:.4g} mol/m³",
+             "crosslinks (junctions)"),
+            ("strand molar mass M<sub>c</sub>", f"{r['Mc_g_mol']:.4g} g/mol", "ρ/ν"),
+            ("Kuhn segments N", f"{r['N']:.3g}", r["N_source"]),
+            ("affine νRT", fmt(r["affine_MPa"], 3, "MPa"), "crosslink part"),
+            ("phantom (1−2/f)νRT", fmt(r["phantom_MPa"], 3, "MPa"), ""),
+            ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), "from the plateau modulus, ∝ T"),
+        ]
+        body = "".join(f"<tr title='{c}'><td>{a}</td><td class='ns-num'>{b}</td></tr>" for a, b, c in rows)
+        g0 = "<tr><th colspan='2'>small-strain shear modulus G₀</th></tr>" + "".join(
+            f"<tr data-model='{n}'><td><span class='ns-swatch' style='background:{model_colour(n)}'></span>"
+            f"{get_model(n).title}</td><td class='ns-num ns-g0' data-model='{n}'>{v / 1e6:.4g} MPa</td></tr>"
+            for n, v in moduli.items())
+        self.derived.object = f"<table class='ns-table'>{body}{g0}</table>"
+        flag = ("<b>from memory</b> — check the constants before a design decision rests on them"
+                if r["polymer_status"] == "memory" else "read in the source")
+        self.polymer_note.object = (f"<div class='ns-small'>Polymer constants: {flag}.<br>"
+                                    f"Source: {r['polymer_source']}</div>")
+
+    def __panel__(self):
+        return pn.Column(
+            html("<div class='ns-side-h'>Network</div>", margin=(0, 10)),
+            self.polymer, self.polymer_note, self.nu, self.couple, self.N, self.T, self.f, self.filler,
+            self.ent, self.derived,
+            html("<div class='ns-side-h'>Models</div>", margin=(8, 10, 0, 10)),
+            self.models, self.lam_max,
+            sizing_mode="stretch_width", css_classes=["ns-controls"],
+        )
+
+
+class ExplorerViews(pn.viewable.Viewer):
+    """Force–stretch, Mooney and moduli/limits views of the current network, updated on every change."""
+
+    def __init__(self, state: NetworkState, controls: NetworkControls, messages: Messages, **params):
+        super().__init__(**params)
+        self.state, self.controls, self.messages = state, controls, messages
+        self.stress = {}
+        for mode in MODES:
+            self.stress[mode.value] = stress_figure(mode.value, legend=False)
+        self.mooney, self.mooney_src, self.mooney_data, self.mooney_r = mooney_figure()
+        self.mod_nu, self.mod_nu_src, self.mod_nu_now, self.mod_nu_r = modulus_nu_figure()
+        self.mod_T, self.mod_T_src, self.mod_T_r = modulus_T_figure()
+        self.force, self.force_src, self.force_ref = force_T_figure()
+        self.legends = [html("", css_classes=["ns-legend"]) for _ in range(3)]
+        self.limits = html("", sizing_mode="stretch_width", css_classes=["ns-limits"])
+        self.inversion = html("", sizing_mode="stretch_width", css_classes=["ns-inversion"])
+        self.clamp = pn.widgets.EditableFloatSlider.from_param(
+            state.param.clamp_stretch, name="Clamped stretch Λ (1)", step=0.01, format="0.00",
+            fixed_start=state.param.clamp_stretch.bounds[0], fixed_end=state.param.clamp_stretch.bounds[1],
+            width=260)
+        self.expansion = pn.widgets.Checkbox.from_param(state.param.expansion)
+        self.stress_row = pn.Row(*(pn.pane.Bokeh(self.stress[m.value][0], sizing_mode="stretch_width")
+                                   for m in MODES),
+                                 sizing_mode="stretch_width", css_classes=["ns-stress-plot"])
+        self._update_fast = guarded(messages, "network", "Network settings")(self._update_fast)
+        self._update_slow = guarded(messages, "network", "Network settings")(self._update_slow)
+        fast = ["polymer", "nu", "couple_N", "N_free", "T_C", "f", "filler", "entanglements", "models", "lam_max"]
+        state.param.watch(self._on_change, fast)
+        state.param.watch(lambda e: self._update_slow(), ["clamp_stretch", "expansion"])
+        self._data_overlay = {}
+        self._slow_pending = False
+        self._update_fast()
+        self._update_slow()
+
+    # -- data overlay from the data view (uploaded curves) ------------------------------------
+    def set_data_overlay(self, points: dict):
+        """``points[mode] = {"x", "y", "color", "file"}`` in λ and MPa; also draws the Mooney points."""
+        self._data_overlay = points
+        for mode in MODES:
+            d = points.get(mode.value, {"x": [], "y": [], "color": [], "file": []})
+            self.stress[mode.value][3].data = dict(d)
+        u = points.get("uniaxial", {"x": [], "y": [], "color": [], "file": []})
+        x = np.asarray(u["x"], dtype=float)
+        y = np.asarray(u["y"], dtype=float)
+        with np.errstate(all="ignore"):
+            keep = x > 1.02
+            red = y[keep] / (x[keep] - x[keep] ** -2)
+        self.mooney_data.data = {"x": list(1.0 / x[keep]), "y": list(red),
+                                 "color": list(np.asarray(u["color"])[keep]),
+                                 "file": list(np.asarray(u["file"])[keep])}
+        self._update_fast()
+
+    def _on_change(self, *events):
+        self._update_fast()
+        self._schedule_slow()
+
+    def _schedule_slow(self):
+        """The moduli/limits views follow one tick later, so the stress plot's patch leaves first;
+        several quick changes collapse into one slow update."""
+        doc = pn.state.curdoc
+        if doc is None or doc.session_context is None:
+            self._update_slow()
+            return
+        if self._slow_pending:
+            return
+        self._slow_pending = True
+
+        def run():
+            self._slow_pending = False
+            self._update_slow()
+
+        doc.add_next_tick_callback(run)
+
+    def _update_fast(self):
+        s = self.state
+        net = s.network()
+        res = s.stress_curves(net)
+        shown = set(s.models)
+        with pn.io.hold():
+            for mode in MODES:
+                p, src, locks, data, r = self.stress[mode.value]
+                cols = res["curves"][mode.value]
+                src.data = cols
+                lk = res["locks"][mode.value]
+                arrays = [cols[n] for n in shown] + [np.asarray(data.data.get("y", []), dtype=float)]
+                lo, hi = _nanrange(arrays, floor=0.0)
+                items = [(n, v) for n, v in lk.items() if v is not None and v <= s.lam_max and n in shown]
+                locks.data = {"x": [v for _, v in items], "y0": [lo] * len(items), "y1": [hi] * len(items),
+                              "color": [model_colour(n) for n, _ in items],
+                              "model": [get_model(n).title for n, _ in items]}
+                p.x_range.start, p.x_range.end = 1.0, float(s.lam_max)
+                p.y_range.start, p.y_range.end = min(lo, 0.0), hi
+                set_visible_models(r, shown, p)
+            mo = s.mooney_curves(net)
+            self.mooney_src.data = mo
+            set_visible_models(self.mooney_r, shown, self.mooney)
+            self.controls.set_readout(s.readout(net), s.moduli(net))
+            for lg in self.legends:
+                lg.object = legend_html(s.models)
+            if s.couple_N:
+                s.N_free = round(float(net.N), 1)
+
+    def _update_slow(self):
+        s = self.state
+        net = s.network()
+        shown = set(s.models)
+        with pn.io.hold():
+            mn = s.modulus_vs_nu(net)
+            self.mod_nu_src.data = mn
+            g = s.moduli(net)
+            self.mod_nu_now.data = {"x": [net.nu] * len(g), "y": [v / 1e6 for v in g.values()],
+                                    "color": [model_colour(n) for n in g]}
+            set_visible_models(self.mod_nu_r, shown, self.mod_nu)
+            self.mod_T_src.data = s.modulus_vs_T(net)
+            set_visible_models(self.mod_T_r, shown)
+            ft = s.force_vs_T(net)
+            self.force_src.data = {"T": ft["T"], "F": ft["F"]}
+            from network_models.thermo import force_at_fixed_length
+            ref = force_at_fixed_length(ft["T"], float(s.clamp_stretch), net.affine_modulus, net.T, expansion=0.0)
+            self.force_ref.data = {"T": ft["T"], "F": ref / 1e6}
+            lo, hi = _nanrange([ft["F"], ref / 1e6], floor=0.0)
+            self.limits.object = self._limits_html(net)
+            inv = s.inversion(net)
+            if inv is None:
+                txt = ("Thermal expansion is off: the force at fixed length is proportional to absolute "
+                       "temperature and its line runs through 0 K.")
+            else:
+                txt = (f"With the polymer's volume expansion β = {ft['beta']:.3g} 1/K, the force at fixed length "
+                       f"falls with temperature below a clamped strain of about <b>{inv * 100:.2g} %</b> "
+                       f"(thermoelastic inversion at {s.T_C:.0f} °C; small-strain Gaussian estimate ≈ βT/3).")
+            self.inversion.object = f"<div class='ns-small'>{txt}</div>"
+
+    def _limits_html(self, net) -> str:
+        rows = self.state.limit_rows(net)
+        df = pd.DataFrame(rows).rename(columns={"model": "model", "uniaxial": "uniaxial λ_lock",
+                                                 "equibiaxial": "equibiaxial λ_lock", "planar": "planar λ_lock"})
+        r = self.state.readout(net)
+        extra = (f"<p class='ns-small'>Poisson's ratio ν<sub>P</sub> = {r['poisson']:.5f} and bulk-to-shear ratio "
+                 f"K/G = {r['K_over_G']:.0f} (bulk modulus K = 2 GPa, a typical gum value [common practice]); "
+                 "rubber is nearly incompressible, which is why the models assume volume is kept.</p>")
+        return ("<h4 class='ns-h4'>Locking (finite-extensibility) stretch per test mode</h4>"
+                + df.to_html(index=False, classes="ns-table ns-lock-table", border=0) + extra)
+
+    # -- tab contents -------------------------------------------------------------------------------
+    def stress_tab(self):
+        return pn.Column(
+            html("<div class='ns-small'>Nominal stress (force per undeformed area) of each shown model for "
+                         "the network set on the left. Dotted verticals: a model's locking stretch "
+                         "(finite extensibility; the curve ends there). Points: your test data. Choose the "
+                         "models on the left.</div>", sizing_mode="stretch_width"),
+            self.legends[0], self.stress_row, sizing_mode="stretch_width")
+
+    def mooney_tab(self):
+        return pn.Column(
+            html("<div class='ns-small'>Reduced stress σ* = P/(λ − λ⁻²) against 1/λ in uniaxial tension. "
+                         "A neo-Hookean network is a flat line; the Mooney–Rivlin form a straight line of slope "
+                         "2C₂; entanglement (tube) models rise towards 1/λ = 1; locking models turn up at "
+                         "small 1/λ.</div>", sizing_mode="stretch_width"),
+            self.legends[1], pn.pane.Bokeh(self.mooney, sizing_mode="stretch_width"), sizing_mode="stretch_width")
+
+    def moduli_tab(self):
+        return pn.Column(
+            self.legends[2],
+            pn.Row(pn.pane.Bokeh(self.mod_nu, sizing_mode="stretch_width"),
+                   pn.pane.Bokeh(self.mod_T, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
+            pn.Row(pn.Column(pn.pane.Bokeh(self.force, sizing_mode="stretch_width"),
+                             pn.Row(self.clamp, self.expansion), self.inversion, sizing_mode="stretch_width"),
+                   pn.Column(self.limits, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
+            sizing_mode="stretch_width", css_classes=["ns-moduli"])
+
+    def __panel__(self):
+        return self.stress_tab()

@@ -1,0 +1,116 @@
+"""The page: ``create_app()`` builds one independent session (state, widgets, figures).
+
+Served as a factory (``pn.serve({"/": create_app})``): nothing mutable lives at module level, so two
+browser sessions never see each other's settings or uploads.
+"""
+
+from __future__ import annotations
+
+import importlib
+import logging
+
+import panel as pn
+
+from .explorer import ExplorerViews, NetworkControls
+from .messages import Messages
+from .state import CAUTION, NetworkState
+from .ui import CSS, html
+
+log = logging.getLogger("netstretch.app")
+
+
+#: Cap on one websocket message (uploads travel as one base64 message): 25 MB.  Files above
+#: MAX_UPLOAD_BYTES are refused with a message before they are read.
+WEBSOCKET_MAX_MESSAGE_SIZE = 25 * 1024 * 1024
+MAX_UPLOAD_BYTES = 20 * 1024 * 1024
+
+
+def configure_panel():
+    """Offline-safe Panel settings: every asset from this server, no CDN, no remote fonts."""
+    pn.config.inline = False
+    pn.config.design = None
+    pn.config.raw_css = []
+    pn.config.notifications = False
+    pn.config.throttled = False
+    try:
+        pn.extension(design="native", inline=False)
+    except Exception:
+        pn.extension(inline=False)
+
+
+def _optional_view(module: str, factory: str, **kw):
+    """Build an optional view (e.g. the compare view) if its module exists; None otherwise."""
+    try:
+        mod = importlib.import_module(module)
+    except ImportError as exc:
+        log.info("optional view %s not available: %s", module, exc)
+        return None
+    fn = getattr(mod, factory, None)
+    if fn is None:
+        return None
+    try:
+        return fn(**kw)
+    except Exception:
+        log.exception("optional view %s failed to build", module)
+        return None
+
+
+def create_app(load_samples: bool = True):
+    """One browser session's page."""
+    messages = Messages()
+    state = NetworkState()
+    controls = NetworkControls(state)
+    explorer = ExplorerViews(state, controls, messages)
+
+    tabs = [
+        ("Force–stretch", explorer.stress_tab()),
+        ("Mooney plot", explorer.mooney_tab()),
+        ("Moduli & limits", explorer.moduli_tab()),
+    ]
+    data_view = _optional_view("app.data_view", "DataView", network_state=state, explorer=explorer,
+                               messages=messages, load_samples=load_samples)
+    if data_view is not None:
+        tabs.append(("Test data & fits", data_view))
+    else:
+        tabs.append(("Test data & fits", pn.pane.Alert("Reading and fitting test data is not available yet.",
+                                                       alert_type="secondary")))
+    swell_view = _optional_view("app.swell_view", "SwellView", network_state=state, messages=messages)
+    if swell_view is not None:
+        tabs.append(("Swelling", swell_view))
+    else:
+        tabs.append(("Swelling", pn.pane.Alert("The swelling (Flory–Rehner) view is not available yet.",
+                                               alert_type="secondary")))
+    compare = _optional_view("app.compare_view", "create_compare_view", network_state=state,
+                             data_view=data_view)
+    if compare is not None:
+        tabs.append(("Compare", compare))
+
+    header = html(
+        "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
+        "<span class='ns-tag'>rubber network explorer — models, test data, crosslink density</span></div>",
+        sizing_mode="stretch_width", margin=0)
+    caution = html(f"<div class='ns-caution'>{CAUTION}</div>", sizing_mode="stretch_width",
+                           css_classes=["ns-caution-pane"])
+    main_tabs = pn.Tabs(*tabs, sizing_mode="stretch_width", css_classes=["ns-tabs"], dynamic=False)
+    side = pn.Column(controls, width=340, css_classes=["ns-side"], scroll=True, margin=(0, 8, 0, 0))
+    body = pn.Row(side, pn.Column(messages, main_tabs, sizing_mode="stretch_width"), sizing_mode="stretch_width")
+    page = pn.Column(header, body, caution, sizing_mode="stretch_width", stylesheets=[CSS],
+                     css_classes=["ns-page"])
+    # Handles for tests and scripting (per session, not global).
+    page.ns_state = state
+    page.ns_messages = messages
+    page.ns_data = data_view
+    return page
+
+
+def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):
+    """Serve the app (blocking) on ``address:port`` with every asset served locally."""
+    configure_panel()
+    allow = kw.pop("allow_websocket_origin", None) or (
+        ["*"] if address in ("0.0.0.0", "::") else [f"{address}:{port}", f"localhost:{port}", f"127.0.0.1:{port}"])
+    return pn.serve(
+        {"/": create_app}, port=port, address=address, show=show, title="netstretch",
+        websocket_origin=allow, websocket_max_message_size=WEBSOCKET_MAX_MESSAGE_SIZE,
+        http_server_kwargs={"max_buffer_size": WEBSOCKET_MAX_MESSAGE_SIZE},
+        **kw,
+    )

@@ -1,0 +1,133 @@
+"""Bokeh figures of the app, built once per session; callbacks replace their sources' ``data``.
+
+Plain Bokeh (no HoloViews) keeps a slider move to one data patch per figure: the browser redraws
+without rebuilding any figure.  Every axis carries a quantity and a unit; every model has its own
+explicit colour (``state.MODEL_COLOURS``) and a legend entry.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from bokeh.models import ColumnDataSource, FixedTicker, HoverTool, Legend, LegendItem, Range1d
+from bokeh.plotting import figure
+
+from network_models import MODELS, get_model
+
+from .state import model_colour
+
+TOOLS = "pan,wheel_zoom,box_zoom,reset,save"
+FONT = "11pt"
+
+
+def _style(p):
+    p.toolbar.logo = None
+    p.title.text_font_size = "11pt"
+    p.title.text_font_style = "bold"
+    p.title.text_color = "#1f3a4d"
+    for ax in (p.xaxis, p.yaxis):
+        ax.axis_label_text_font_size = "10.5pt"
+        ax.axis_label_text_font_style = "normal"
+        ax.major_label_text_font_size = "9.5pt"
+    p.background_fill_color = "#fbfcfd"
+    p.grid.grid_line_color = "#e3e8ec"
+    p.outline_line_color = "#c9d2d9"
+    return p
+
+
+def empty_columns(xname: str, n: int = 2) -> dict:
+    cols = {xname: np.zeros(n)}
+    for name in MODELS:
+        cols[name] = np.full(n, np.nan)
+    return cols
+
+
+def model_lines(p, source, xname: str, legend: bool, line_width=2.2, dash_for=None):
+    """One line per registered model, coloured, with a legend item each (outside, right)."""
+    renderers = {}
+    for name in MODELS:
+        r = p.line(xname, name, source=source, color=model_colour(name), line_width=line_width,
+                   line_dash="dashed" if dash_for and name in dash_for else "solid")
+        renderers[name] = r
+    if legend:
+        items = [LegendItem(label=get_model(n).title, renderers=[renderers[n]]) for n in MODELS]
+        lg = Legend(items=items, location="top_left", click_policy="hide", label_text_font_size="9pt",
+                    spacing=0, padding=4, background_fill_alpha=0.85, glyph_width=22)
+        p.add_layout(lg, "right")
+    return renderers
+
+
+def set_visible_models(renderers: dict, shown, legend_figure=None):
+    for name, r in renderers.items():
+        r.visible = name in shown
+    if legend_figure is not None:
+        for lg in legend_figure.legend:
+            for item in lg.items:
+                item.visible = any(r.visible for r in item.renderers)
+
+
+def stress_figure(mode: str, legend: bool, width=None, height=330):
+    """Nominal stress vs stretch in one mode: model lines, lock markers, data points."""
+    src = ColumnDataSource(empty_columns("lam"), name=f"ns-stress-{mode}")
+    locks = ColumnDataSource({"x": [], "y0": [], "y1": [], "color": [], "model": []}, name=f"ns-locks-{mode}")
+    data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name=f"ns-data-{mode}")
+    p = figure(title=f"{mode.capitalize()} tension", height=height, sizing_mode="stretch_width",
+               tools=TOOLS, x_axis_label="stretch λ (1)", y_axis_label="nominal stress P (MPa)",
+               x_range=Range1d(1.0, 5.0), y_range=Range1d(0.0, 1.0))
+    if width:
+        p.width = width
+    _style(p)
+    r = model_lines(p, src, "lam", legend)
+    p.segment("x", "y0", "x", "y1", source=locks, color="color", line_dash="dotted", line_width=1.6)
+    p.scatter("x", "y", source=data, color="color", size=5, alpha=0.8, marker="circle")
+    p.add_tools(HoverTool(tooltips=[("data", "@file"), ("λ", "@x{0.000}"), ("P (MPa)", "@y{0.000}")],
+                          renderers=[p.renderers[-1]]))
+    return p, src, locks, data, r
+
+
+def mooney_figure(height=380):
+    src = ColumnDataSource(empty_columns("inv_lam"), name="ns-mooney")
+    data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name="ns-mooney-data")
+    p = figure(title="Mooney plot (uniaxial)", height=height, sizing_mode="stretch_width", tools=TOOLS,
+               x_axis_label="inverse stretch 1/λ (1)", y_axis_label="reduced stress σ* = P/(λ − λ⁻²) (MPa)",
+               x_range=Range1d(0.0, 1.0))
+    _style(p)
+    r = model_lines(p, src, "inv_lam", legend=False)
+    p.scatter("x", "y", source=data, color="color", size=5, alpha=0.8)
+    return p, src, data, r
+
+
+def modulus_nu_figure(height=330):
+    src = ColumnDataSource(empty_columns("nu"), name="ns-modulus-nu")
+    now = ColumnDataSource({"x": [], "y": [], "color": []})
+    p = figure(title="Small-strain shear modulus vs strand density", height=height, sizing_mode="stretch_width",
+               tools=TOOLS, x_axis_type="log", x_axis_label="strand density ν (mol/m³)",
+               y_axis_label="shear modulus G₀ (MPa)")
+    _style(p)
+    p.xaxis.ticker = FixedTicker(ticks=[1, 2, 5, 10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000])
+    r = model_lines(p, src, "nu", legend=False)
+    p.scatter("x", "y", source=now, color="color", size=8, marker="diamond")
+    return p, src, now, r
+
+
+def modulus_T_figure(height=330):
+    src = ColumnDataSource(empty_columns("T_C"), name="ns-modulus-T")
+    p = figure(title="Small-strain shear modulus vs temperature", height=height, sizing_mode="stretch_width",
+               tools=TOOLS, x_axis_label="temperature T (°C)", y_axis_label="shear modulus G₀ (MPa)")
+    _style(p)
+    r = model_lines(p, src, "T_C", legend=False)
+    return p, src, r
+
+
+def force_T_figure(height=330):
+    src = ColumnDataSource({"T": np.zeros(2), "F": np.zeros(2)}, name="ns-force-T")
+    ref = ColumnDataSource({"T": np.zeros(2), "F": np.zeros(2)})
+    p = figure(title="Force at fixed length vs temperature (Gaussian network)", height=height,
+               sizing_mode="stretch_width", tools=TOOLS, x_axis_label="absolute temperature T (K)",
+               y_axis_label="force per reference area F/A₀ (MPa)", x_range=Range1d(0.0, 450.0))
+    _style(p)
+    p.line("T", "F", source=ref, color="#9aa7b1", line_dash="dashed", line_width=1.5,
+           legend_label="no expansion: F ∝ T (through 0 K)")
+    p.line("T", "F", source=src, color="#1b6f8a", line_width=2.5, legend_label="current setting")
+    p.legend.location = "top_left"
+    p.legend.label_text_font_size = "9pt"
+    return p, src, ref
