@@ -13,6 +13,7 @@ import datetime as _dt
 import importlib
 import json
 import math
+import os
 import sys
 import time
 import traceback
@@ -112,6 +113,8 @@ def run(quick: bool, only=None, log=print) -> dict:
     doc["details"] = details
     doc["notes"] = notes
     doc["elapsed_s"] = round(time.perf_counter() - t_start, 2)
+    if hasattr(os, "getloadavg"):
+        doc["machine"]["load_average_1min_at_end"] = os.getloadavg()[0]
     return doc
 
 

@@ -65,6 +65,7 @@ def machine_info() -> dict:
         "blas": blas,
         "OPENBLAS_CORETYPE": os.environ.get("OPENBLAS_CORETYPE"),
         "OMP_NUM_THREADS": os.environ.get("OMP_NUM_THREADS"),
+        "load_average_1min_at_start": os.getloadavg()[0] if hasattr(os, "getloadavg") else None,
     }
 
 

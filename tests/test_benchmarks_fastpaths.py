@@ -223,3 +223,40 @@ def test_runner_writes_one_json_document_with_nulls_and_notes(capsys):
         assert doc[key] is None
     assert any(n.startswith("fit:") for n in doc["notes"])
     assert doc["machine"]["numpy"] == np.__version__
+
+
+# ----- benchmarks 3 and 5: the fitter against the naive curve_fit ------------------------------------------
+
+
+@pytest.mark.parametrize("model", ["eight-chain", "extended-tube"])
+def test_fast_fit_reaches_the_naive_optimum(model):
+    pytest.importorskip("network_models.fitting", reason="fitting not available")
+    from benchmarks.bench_fit import compare
+    from benchmarks.datasets import three_mode_curves
+
+    out = compare(model, three_mode_curves(), repeats_fast=1, repeats_naive=1)
+    assert out["max_rel_param_diff"] <= 1e-6, out
+    assert out["fast_rss_Pa2"] == pytest.approx(out["naive_rss_Pa2"], rel=1e-9)
+
+
+def test_batch_fit_of_one_curve_equals_the_naive_fit():
+    fitting = pytest.importorskip("network_models.fitting", reason="fitting not available")
+    from benchmarks.datasets import batch_curves
+
+    c = batch_curves(3)[2]
+    fast = fitting.fit("eight-chain", c).values
+    G0 = fitting.estimate_modulus([c])
+    slow, _, _ = naive.naive_fit("eight-chain", [("uniaxial", c.stretch, c.stress)],
+                                 get_model("eight-chain").guess(G0), {"mu": (1.0, 1e9), "N": (1.0 + 1e-9, 1e6)})
+    assert fast["mu"] == pytest.approx(slow["mu"], rel=1e-6)
+    assert fast["N"] == pytest.approx(slow["N"], rel=1e-6)
+
+
+def test_batch_data_are_inside_the_lock_and_labelled_invented():
+    from benchmarks.datasets import batch_curves, three_mode_curves
+
+    m = get_model("eight-chain")
+    for c in batch_curves(20):
+        assert "invented" in c.name
+        assert np.all(np.isfinite(m.nominal_stress("uniaxial", c.stretch, c.metadata["true"])))
+    assert all("invented" in c.name for c in three_mode_curves())
