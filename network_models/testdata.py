@@ -251,7 +251,7 @@ def _load_table(data: bytes, filename: str, sheet) -> _Table:
 # ---------------------------------------------------------------------------------------------------
 
 _META_KEYS = {
-    "mode": "mode", "test mode": "mode", "test": "mode", "deformation mode": "mode", "test type": "mode",
+    "mode": "mode", "test mode": "mode", "deformation mode": "mode", "test type": "mode",
     "gauge length": "gauge_length", "gage length": "gauge_length", "l0": "gauge_length",
     "initial length": "gauge_length", "clamp distance": "gauge_length", "grip distance": "gauge_length",
     "width": "width", "specimen width": "width",
@@ -259,7 +259,7 @@ _META_KEYS = {
     "area": "area", "cross section": "area", "cross-section": "area", "cross sectional area": "area",
     "cross-sectional area": "area", "section area": "area",
     "temperature": "temperature", "test temperature": "temperature", "temp": "temperature",
-    "specimen": "specimen", "sample": "specimen", "specimen id": "specimen", "test piece": "specimen",
+    "specimen": "specimen", "sample": "specimen", "specimen id": "specimen",
     "cycle": "cycle", "compound": "compound", "material": "compound",
     "stretch": "stretch", "clamp stretch": "stretch", "fixed stretch": "stretch",
 }
@@ -735,10 +735,15 @@ def _clean(fn, lam, stress, rows, notices, y):
             j = int(loaded[0]) if loaded.size else lam.size
             # keep the last unloaded row (the zero from which loading starts); drop the slack before it
             if 1 < j < lam.size:
-                notices.append(f"{j - 1} leading row(s) with near-zero or negative stress (≤ {SLACK_FRACTION:.1%} of "
-                               f"the peak: slack before loading) dropped; the curve starts at λ = {lam[j - 1]:.4g} "
-                               f"(line {rows[j - 1]}); the stretch was not re-zeroed")
+                lam0 = lam[j - 1]
+                text = (f"{j - 1} leading row(s) with near-zero or negative stress (≤ {SLACK_FRACTION:.1%} of "
+                        f"the peak: slack before loading) dropped; loading starts at line {rows[j - 1]}")
                 lam, stress, rows = lam[j - 1:], stress[j - 1:], rows[j - 1:]
+                if lam0 > 1.0:
+                    # the specimen's unstretched length is the length where it became taut: λ' = λ/λ₀
+                    lam = lam / lam0
+                    text += f", where the stretch is re-zeroed (every stretch divided by {lam0:.4g})"
+                notices.append(text)
     # points that do not advance the stretch (repeats, back-steps)
     if lam.size:
         order = lam if tension else -lam

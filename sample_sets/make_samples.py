@@ -1,0 +1,354 @@
+"""Make the bundled sample set: INVENTED data for demonstration, never measurements.
+
+The scenario: "Quillmere Elastomer Works" (an invented maker) compares four invented natural-rubber
+compounds: three sulfur cure doses (QM-S1 low, QM-S2 mid, QM-S3 high) and one carbon-black-filled variant
+of the mid dose (QM-S2B).  The curves are generated from the **extended-tube** model (with each
+compound's parameters from ``network_models.Network``), i.e. from a model other than the ones users
+usually fit (eight-chain, affine, phantom, Mooney–Rivlin), then given realistic faults: ~1 % noise and a
+small force offset, slack at the start of one file, an unloading branch in another, repeated points.
+
+Run from the repository root:  ``.venv/bin/python sample_sets/make_samples.py [out_dir]``
+(default out_dir: this folder).  The output is fixed by the seed; tests/test_samples.py regenerates it
+into a temporary folder and compares it with the committed files.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+import numpy as np
+from scipy.optimize import brentq
+
+from network_models import Network, get_model
+from network_models.thermo import force_at_fixed_length
+
+SEED = 20261202
+HERE = Path(__file__).resolve().parent
+BANNER = ("INVENTED DATA for demonstration only. Quillmere Elastomer Works is an invented maker; "
+          "these are not measurements")
+GENERATOR = get_model("extended-tube")
+T_TEST = 296.15  # 23 °C, the usual laboratory temperature [common practice]
+
+#: The invented compounds: strand density ν (mol/m³) behind the generated data, recipe facts for the manifest.
+COMPOUNDS = {
+    "QM-S1": dict(nu=95.0, sulfur_phr=1.0, filler_phr=0.0, phi=0.0, title="NR gum, low sulfur dose"),
+    "QM-S2": dict(nu=140.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, title="NR gum, mid sulfur dose"),
+    "QM-S3": dict(nu=195.0, sulfur_phr=3.0, filler_phr=0.0, phi=0.0, title="NR gum, high sulfur dose"),
+    "QM-S2B": dict(nu=140.0, sulfur_phr=2.0, filler_phr=30.0, phi=0.13,
+                   title="NR, mid sulfur dose, 30 phr carbon black"),
+}
+
+
+def network(key: str, scale: float = 1.0, T: float = T_TEST) -> Network:
+    c = COMPOUNDS[key]
+    return Network(polymer="NR", nu=c["nu"] * scale, T=T, filler_fraction=c["phi"])
+
+
+def nominal(key, mode, lam, scale=1.0):
+    net = network(key, scale)
+    return GENERATOR.nominal_stress(mode, lam, net.model_params(GENERATOR))
+
+
+def noisy(rng, stress, rel=0.01, offset=3e3):
+    """~1 % multiplicative noise plus a small absolute scatter (Pa) and a constant load-cell offset."""
+    zero = rng.normal(0.0, 0.3 * offset)
+    return stress * (1.0 + rng.normal(0.0, rel, stress.size)) + rng.normal(0.0, offset, stress.size) + zero
+
+
+def header(lines: list[str]) -> str:
+    return "".join(f"# {ln}\n" for ln in [BANNER, *lines])
+
+
+def fmt(x, nd):
+    return f"{x:.{nd}f}"
+
+
+# ---------------------------------------------------------------------------------------------------
+
+def uniaxial_s1(rng) -> str:
+    """Stretch and stress in MPa, three specimens in one file with a specimen column."""
+    out = [header([
+        "compound: QM-S1", "mode: uniaxial", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
+        "test piece: dumbbell, 500 mm/min (invented)",
+    ]), "specimen,stretch,stress (MPa)\n"]
+    for k, scale in enumerate((0.98, 1.0, 1.03), start=1):
+        lam = np.linspace(1.0, 5.5, 56)
+        s = noisy(rng, nominal("QM-S1", "uniaxial", lam, scale))
+        for a, b in zip(lam, s, strict=True):
+            out.append(f"S1-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n")
+    return "".join(out)
+
+
+def uniaxial_s2(rng) -> str:
+    """Force in N against extension in mm with geometry in metadata, repeated column pairs, slack at the start."""
+    gauge, width, thick = 20.0, 4.0, 2.0  # mm
+    cols, n = [], 64
+    for scale in (1.01, 0.99):
+        lam = np.linspace(1.0, 5.5, n - 6)
+        stress = noisy(rng, nominal("QM-S2", "uniaxial", lam, scale))
+        force = stress * (width * thick * 1e-6)
+        # slack: the crosshead travels ~0.4 mm before the specimen is taut; the force hovers around zero
+        slack_ext = np.linspace(-0.4, -0.07, 6)
+        ext = np.concatenate([slack_ext, (lam - 1.0) * gauge]) + 0.4
+        f = np.concatenate([rng.normal(0.0, 0.01, 6) - 0.01, force])
+        cols.append((ext, f))
+    out = [header([
+        "compound: QM-S2", "mode: uniaxial", f"gauge length: {gauge:g} mm", f"width: {width:g} mm",
+        f"thickness: {thick:g} mm", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
+        "note: crosshead zeroed before the specimens were taut (slack at the start)",
+    ]), "Extension S2-1 (mm),Force S2-1 (N),Extension S2-2 (mm),Force S2-2 (N)\n"]
+    for i in range(n):
+        out.append(",".join(f"{fmt(cols[c][0][i], 3)},{fmt(cols[c][1][i], 4)}" for c in range(2)) + "\n")
+    return "".join(out)
+
+
+def uniaxial_s3(rng) -> str:
+    """psi and % strain, semicolons and decimal commas, with an unloading branch and repeated points."""
+    out = [header([
+        "compound: QM-S3", "mode: uniaxial", "temperature: 23 °C",
+        "cycle: 1st loading and unloading, virgin specimens", "exported with decimal commas (invented lab)",
+    ]), "Specimen;Strain (%);Stress [psi]\n"]
+    pa_per_psi = 6894.757293168361  # only to invent the file; readers convert with pint
+    for k, scale in enumerate((1.0, 0.97, 1.02), start=1):
+        lam_up = np.linspace(1.0, 5.0, 48)
+        lam = lam_up
+        if k == 1:  # unloading branch: the return path lies below the loading path (hysteresis)
+            lam_down = np.linspace(5.0, 1.2, 20)[1:]
+            lam = np.concatenate([lam_up, lam_down])
+        s = noisy(rng, nominal("QM-S3", "uniaxial", lam, scale))
+        if k == 1:
+            s[lam_up.size:] *= 0.8
+        rows = list(zip((lam - 1.0) * 100.0, s / pa_per_psi, strict=True))
+        if k == 2:  # the logger wrote a few points twice
+            for j in (10, 11, 30):
+                rows.insert(j, rows[j])
+        for e, p in rows:
+            out.append(f"S3-{k};{fmt(e, 2).replace('.', ',')};{fmt(p, 2).replace('.', ',')}\n")
+    return "".join(out)
+
+
+def planar_s2(rng) -> str:
+    out = [header(["compound: QM-S2", "mode: planar", "temperature: 23 °C",
+                   "test piece: wide strip, 10:1 width to height (invented)"]), "specimen,stretch,stress (MPa)\n"]
+    for k, scale in enumerate((1.0, 1.02), start=1):
+        lam = np.linspace(1.0, 4.0, 40)
+        s = noisy(rng, nominal("QM-S2", "planar", lam, scale))
+        out += [f"P2-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
+    return "".join(out)
+
+
+def equibiaxial_s2(rng) -> str:
+    """True (Cauchy) stress in N/mm², the way a bubble-inflation rig reports it."""
+    out = [header(["compound: QM-S2", "mode: equibiaxial", "temperature: 23 °C",
+                   "method: bubble inflation, stress at the pole (invented)"]),
+           "specimen,stretch,true stress (N/mm²)\n"]
+    lam = np.linspace(1.0, 3.2, 36)
+    s = noisy(rng, nominal("QM-S2", "equibiaxial", lam, 1.0)) * lam  # nominal → true: σ = λP
+    out += [f"E2-1,{fmt(a, 4)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
+    return "".join(out)
+
+
+def planar_s2b(rng) -> str:
+    out = [header(["compound: QM-S2B", "mode: pure shear", "temperature: 23 °C",
+                   "cycle: 3rd loading after 200 % pre-stretch"]), "specimen,strain (%),stress (MPa)\n"]
+    lam = np.linspace(1.0, 3.2, 34)
+    s = noisy(rng, nominal("QM-S2B", "planar", lam, 1.0))
+    out += [f"PB-1,{fmt((a - 1) * 100, 2)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
+    return "".join(out)
+
+
+def uniaxial_s2b_rows(rng) -> tuple[list[list], list[list]]:
+    """Rows for the .xlsx: metadata rows, header row, unit row, then strain % / stress N/mm² pairs."""
+    meta = [[f"# {BANNER}"], ["# compound: QM-S2B"], ["# mode:", "uniaxial"], ["# temperature:", "23 °C"],
+            ["# cycle: 3rd loading after 200 % pre-stretch"]]
+    table = [["Strain B-1", "Stress B-1", "Strain B-2", "Stress B-2"], ["%", "N/mm²", "%", "N/mm²"]]
+    cols = []
+    for scale in (1.0, 0.97):
+        lam = np.linspace(1.0, 4.5, 46)
+        s = noisy(rng, nominal("QM-S2B", "uniaxial", lam, scale))
+        cols.append((np.round((lam - 1) * 100, 2), np.round(s / 1e6, 5)))
+    for i in range(cols[0][0].size):
+        table.append([float(cols[0][0][i]), float(cols[0][1][i]), float(cols[1][0][i]), float(cols[1][1][i])])
+    return meta, table
+
+
+def write_xlsx(path: Path, meta, table):
+    import datetime
+
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "QM-S2B uniaxial"
+    for r in meta + table:
+        ws.append(r)
+    fixed = datetime.datetime(2026, 1, 1)
+    wb.properties.created = fixed
+    wb.properties.modified = fixed
+    wb.properties.creator = "netstretch make_samples.py (invented data)"
+    wb.save(path)
+
+
+# ---------------------------------------------------------------------------------------------------
+
+def flory_rehner_phi(nu, chi=0.39, V1=106.85e-6, f=4):
+    """Swollen polymer volume fraction φ for strand density ν (mol/m³), affine Flory–Rehner (physics.md §5)."""
+    def g(phi):
+        return -(np.log(1 - phi) + phi + chi * phi * phi) - V1 * nu * (phi ** (1 / 3) - 2 * phi / f)
+    return brentq(g, 1e-4, 0.95)
+
+
+def swelling(rng) -> str:
+    """Toluene, 72 h at 23 °C: masses generated from each compound's ν (affine Flory–Rehner, χ = 0.39)."""
+    rho_p, rho_s = 920.0, 867.0  # kg/m³: NR (polymers.toml), toluene (from memory)
+    out = [header(["solvent: toluene, 72 h at 23 °C, blotted and weighed, then dried to constant mass",
+                   "dry mass: specimen before swelling; extracted mass: after drying out the solvent",
+                   "generated with affine Flory–Rehner, f = 4, chi = 0.39, V1 = 106.85 cm³/mol"]),
+           "compound,specimen,dry mass (g),swollen mass (g),extracted mass (g),solvent,temperature (°C)\n"]
+    for key, c in COMPOUNDS.items():
+        rubber_share = 100.0 / (100.0 + c["filler_phr"] + 6.0)  # 6 phr of curatives etc., invented
+        for k in (1, 2):
+            dry = rng.uniform(0.18, 0.26)
+            extracted = dry * (1 - rng.uniform(0.03, 0.05))
+            phi = flory_rehner_phi(c["nu"] * rng.normal(1.0, 0.02))
+            v_rubber = extracted * rubber_share / rho_p
+            solvent = v_rubber * (1 - phi) / phi * rho_s
+            out.append(f"{key},{key}-w{k},{dry:.4f},{extracted + solvent:.4f},{extracted:.4f},toluene,23\n")
+    return "".join(out)
+
+
+def force_temperature(rng) -> str:
+    """QM-S2 clamped at λ = 2.0, heated from 20 to 80 °C; force from the Gaussian network with expansion."""
+    net = network("QM-S2")
+    area = 4e-3 * 2e-3
+    T = np.arange(20.0, 81.0, 5.0) + 273.15
+    F = force_at_fixed_length(T, 2.0, net.affine_modulus + net.entanglement_modulus, T_TEST, area,
+                              expansion=6.6e-4)
+    F = F * (1 + rng.normal(0, 0.004, T.size))
+    out = [header(["compound: QM-S2", "stretch: 2.0", "width: 4 mm", "thickness: 2 mm",
+                   "note: clamped at stretch 2.0 at 23 °C, relaxed 2 h, then heated in 5 °C steps (invented)"]),
+           "temperature (°C),force (N)\n"]
+    out += [f"{t - 273.15:.1f},{f:.4f}\n" for t, f in zip(T, F, strict=True)]
+    return "".join(out)
+
+
+MANIFEST_FILES = {
+    "QM-S1": [("QM-S1_uniaxial.csv", "uniaxial", "stretch and MPa, three specimens (specimen column)")],
+    "QM-S2": [("QM-S2_uniaxial_force.csv", "uniaxial", "force in N and extension in mm, geometry in metadata, "
+               "two specimens as column pairs, slack at the start"),
+              ("QM-S2_planar.csv", "planar", "stretch and MPa, two specimens"),
+              ("QM-S2_equibiaxial.csv", "equibiaxial", "true stress in N/mm² (bubble inflation)")],
+    "QM-S3": [("QM-S3_uniaxial_psi.txt", "uniaxial", "psi and % strain, semicolons, decimal commas; "
+               "specimen S3-1 has an unloading branch, S3-2 repeated points")],
+    "QM-S2B": [("QM-S2B_uniaxial.xlsx", "uniaxial", "workbook: header row plus unit row, % strain and N/mm², "
+                "two specimens as column pairs, 3rd loading after 200 % pre-stretch"),
+               ("QM-S2B_planar.csv", "planar", "% strain and MPa, 3rd loading after 200 % pre-stretch")],
+}
+NOTES = {
+    "QM-S1": "softest of the cure series; longest strands",
+    "QM-S2": "the baseline: the plant's current cure dose (invented)",
+    "QM-S3": "stiffest gum; shortest strands, lowest locking stretch",
+    "QM-S2B": "QM-S2 with 30 phr of a reinforcing carbon black; pre-cycled, so the Mullins-softened curve",
+}
+
+
+def manifest() -> str:
+    """compounds.toml: the compound list the app, the comparison and the report read."""
+    def q(text):
+        return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
+
+    generator = (f"make_samples.py, seed {SEED}: extended-tube model from network_models.Network, "
+                 "~1 % noise plus a small offset")
+    out = [
+        f"# {BANNER}\n",
+        "# Written by make_samples.py; format described in README.md in this folder.\n\n",
+        "[scenario]\n",
+        f"title = {q('Quillmere Elastomer Works: cure-dose and filler study (invented for demonstration)')}\n",
+        f"note = {q(BANNER)}\n",
+        "invented = true\n",
+        "polymer = \"NR\"\n",
+        "baseline = \"QM-S2\"\n",
+        f"test_temperature_C = {T_TEST - 273.15:.1f}\n",
+        f"generator = {q(generator)}\n\n",
+    ]
+    for key, c in COMPOUNDS.items():
+        net = network(key)
+        p = net.model_params(GENERATOR)
+        cure = f"{c['sulfur_phr']:.1f} phr sulfur, 10 min at 160 °C (invented)"
+        out += [
+            "[[compound]]\n",
+            f"key = {q(key)}\n",
+            f"title = {q(c['title'])}\n",
+            "polymer = \"NR\"\n",
+            f"sulfur_phr = {c['sulfur_phr']:.1f}\n",
+            "accelerator_phr = 0.6\n",
+            f"filler = {q('carbon black (reinforcing grade)' if c['filler_phr'] else 'none')}\n",
+            f"filler_phr = {c['filler_phr']:.1f}\n",
+            f"filler_volume_fraction = {c['phi']:.2f}\n",
+            f"cure = {q(cure)}\n",
+            f"notes = {q(NOTES[key])}\n",
+            "files = [\n",
+        ]
+        for path, mode, note in MANIFEST_FILES[key]:
+            out.append(f"    {{ path = {q(path)}, mode = {q(mode)}, note = {q(note)} }},\n")
+        out += [
+            "]\n",
+            "# the values the invented curves were generated from (for demos of how well a fit recovers them)\n",
+            "[compound.generator]\n",
+            f"model = {q(GENERATOR.name)}\n",
+            f"strand_density_mol_m3 = {c['nu']:.1f}\n",
+            f"Gc_MPa = {p['Gc'] / 1e6:.5f}\n",
+            f"Ge_MPa = {p['Ge'] / 1e6:.5f}\n",
+            f"delta = {p['delta']:.5f}\n",
+            f"beta = {p['beta']:.3f}\n\n",
+        ]
+    out += [
+        "[swelling]\n",
+        "path = \"swelling_toluene.csv\"\n",
+        "solvent = \"toluene\"\n",
+        "chi = 0.39\n",
+        f"note = {q('generated with affine Flory–Rehner, f = 4, chi = 0.39, V1 = 106.85 cm³/mol')}\n\n",
+        "[[force_temperature]]\n",
+        "path = \"QM-S2_force_temperature.csv\"\n",
+        "compound = \"QM-S2\"\n",
+    ]
+    return "".join(out)
+
+
+TEXT_FILES = {
+    "QM-S1_uniaxial.csv": uniaxial_s1,
+    "QM-S2_uniaxial_force.csv": uniaxial_s2,
+    "QM-S3_uniaxial_psi.txt": uniaxial_s3,
+    "QM-S2_planar.csv": planar_s2,
+    "QM-S2_equibiaxial.csv": equibiaxial_s2,
+    "QM-S2B_planar.csv": planar_s2b,
+    "swelling_toluene.csv": swelling,
+    "QM-S2_force_temperature.csv": force_temperature,
+}
+XLSX = "QM-S2B_uniaxial.xlsx"
+
+
+def generate(out_dir: Path) -> dict[str, object]:
+    """Write every sample file into ``out_dir``; return {file name: text, or (meta, table) for the xlsx}."""
+    out_dir = Path(out_dir)
+    out_dir.mkdir(parents=True, exist_ok=True)
+    rng = np.random.default_rng(SEED)
+    made: dict[str, object] = {}
+    for name, func in TEXT_FILES.items():
+        text = func(rng)
+        (out_dir / name).write_text(text, encoding="utf-8", newline="\n")
+        made[name] = text
+    meta, table = uniaxial_s2b_rows(rng)
+    write_xlsx(out_dir / XLSX, meta, table)
+    made[XLSX] = (meta, table)
+    text = manifest()
+    (out_dir / "compounds.toml").write_text(text, encoding="utf-8", newline="\n")
+    made["compounds.toml"] = text
+    return made
+
+
+if __name__ == "__main__":
+    target = Path(sys.argv[1]) if len(sys.argv) > 1 else HERE
+    for name in generate(target):
+        print(f"wrote {target / name}")
