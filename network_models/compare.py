@@ -103,6 +103,7 @@ class CompoundResult:
     warnings: list[str] = field(default_factory=list)
     test_temperature: float = DEFAULT_TEST_TEMPERATURE
     crosslink_rows: list[dict] = field(default_factory=list)
+    crosslink_notes: list[str] = field(default_factory=list)
     swelling_rows: list[dict] = field(default_factory=list)
 
     @property
@@ -123,13 +124,10 @@ class CompoundResult:
 
 # ----- fitting adapter ----------------------------------------------------------------------------
 def _fit(model, curves):
-    """Fit with :func:`network_models.fitting.fit` (a small stand-in least-squares fit while that module
-    is not available)."""
-    try:
-        from . import fitting
-    except ImportError:
-        return _stand_in_fit(model, curves)
-    return fitting.fit(model, curves)
+    """Fit with :func:`network_models.fitting.fit`."""
+    from .fitting import fit
+
+    return fit(model, curves)
 
 
 def _param_rows(model, fr) -> list[ParamRow]:
@@ -373,15 +371,16 @@ def result_to_dict(r: CompoundResult) -> dict:
         "quantities": {k: q.to_dict() for k, q in r.quantities.items()},
         "fit_quality": r.fit_quality,
         "crosslink_table": r.crosslink_rows,
+        "crosslink_notes": r.crosslink_notes,
         "swelling": r.swelling_rows,
         "warnings": list(r.warnings),
     }
 
 
-def _interval(value, se):
+def _interval(value, se, q=Z95):
     if se is None or value is None:
         return None, None
-    return value - Z95 * se, value + Z95 * se
+    return value - q * se, value + q * se
 
 
 def analyse(compound: Compound, model="eight-chain", service_temperature: float | None = None,
@@ -431,42 +430,53 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
     poly = get_polymer(compound.polymer)
     f = compound.f
     Q = res.quantities
+    tq = _t95(fr)
+
+    def _iv(value, se):
+        return _interval(value, se, tq)
 
     # small-strain modulus at the test temperature
     G0 = m.small_strain_modulus(**values)
     se_G0 = _propagate(lambda p: m.small_strain_modulus(**p), res.params, cov)
-    Q["G0"] = Quantity("G0", "small-strain shear modulus G₀", G0, "Pa", *_interval(G0, se_G0),
+    Q["G0"] = Quantity("G0", "small-strain shear modulus G₀", G0, "Pa", *_iv(G0, se_G0),
                        basis=f"at test temperature {T - 273.15:.1f} °C", display_unit="MPa", display_scale=1e-6)
 
-    # crosslink part, strand and junction density
+    # crosslink part, strand and junction density: the crosslink table's "affine, entanglement removed" row
     Gx, Ge, how = split_modulus(m, values, poly.key, T)
-    se_Gx = _propagate(lambda p: split_modulus(m, p, poly.key, T)[0], res.params, cov)
-    nu = strand_density_from_modulus(Gx, T)
-    if m.name == "phantom":
-        nu = Gx / ((1 - 2 / f) * R * T)
-        basis = "phantom network"
-    elif m.name == "constrained-junction":
-        nu = Gx / ((1 - 2 / f) * R * T)
-        basis = "phantom part of the constrained-junction model"
-    else:
-        basis = BASIS
-    scale = nu / Gx if Gx else 0.0
-    if Gx <= 0:
-        res.warnings.append(
-            f"{compound.name}: the entanglement part ({Ge / 1e6:.3f} MPa) is as large as the whole modulus "
-            f"({G0 / 1e6:.3f} MPa); no crosslink density can be given on the {basis} basis — try a tube model")
-    else:
-        lo, hi = _interval(Gx, se_Gx)
-        Q["nu"] = Quantity("nu", "strand density ν", nu, "mol/m³", None if lo is None else lo * scale,
-                           None if hi is None else hi * scale, basis=basis, note=how)
-        Q["mu_j"] = Quantity("mu_j", "junction (crosslink) density μ_j = 2ν/f", 2 * nu / f, "mol/m³",
-                             None if lo is None else 2 * lo * scale / f, None if hi is None else 2 * hi * scale / f,
-                             basis=f"{basis}, f = {f:g}")
-        mc_lo = poly.density / (hi * scale) if hi else None
-        mc_hi = poly.density / (lo * scale) if lo and lo > 0 else None
-        Q["Mc"] = Quantity("Mc", "strand molar mass M_c = ρ/ν", poly.density / nu, "kg/mol", mc_lo, mc_hi,
+    table = _crosslink_table(fr, compound, T)
+    res.crosslink_rows = [] if table is None else [r.to_dict() for r in table.rows]
+    if table is not None:
+        res.crosslink_notes = list(table.notes)
+        row = next((r for r in table.rows if r.key == "affine-no-entanglement"), None)
+        if row is not None and row.nu is not None and row.nu > 0:
+            nu_ci = row.nu_ci or (None, None)
+            mj_ci = row.junction_ci or (None, None)
+            mc_ci = row.Mc_ci or (None, None)
+            Q["nu"] = Quantity("nu", "strand density ν", row.nu, "mol/m³", *nu_ci, basis=BASIS, note=row.assumes)
+            Q["mu_j"] = Quantity("mu_j", "junction (crosslink) density μ_j = 2ν/f", row.junction_density, "mol/m³",
+                                 *mj_ci, basis=f"{BASIS}, f = {f:g}")
+            Q["Mc"] = Quantity("Mc", "strand molar mass M_c = ρ/ν", row.Mc, "kg/mol", *mc_ci,
+                               basis=f"ρ = {poly.density:g} kg/m³ ({poly.key})", display_unit="g/mol",
+                               display_scale=1000.0)
+    if "nu" not in Q and Gx > 0 and table is None:
+        se_Gx = _propagate(lambda p: split_modulus(m, p, poly.key, T)[0], res.params, cov)
+        lo, hi = _iv(Gx, se_Gx)
+        k_nu = 1.0 / (R * T)
+        Q["nu"] = Quantity("nu", "strand density ν", Gx * k_nu, "mol/m³", None if lo is None else lo * k_nu,
+                           None if hi is None else hi * k_nu, basis=BASIS, note=how)
+        Q["mu_j"] = Quantity("mu_j", "junction (crosslink) density μ_j = 2ν/f", 2 * Gx * k_nu / f, "mol/m³",
+                             None if lo is None else 2 * lo * k_nu / f, None if hi is None else 2 * hi * k_nu / f,
+                             basis=f"{BASIS}, f = {f:g}")
+        Q["Mc"] = Quantity("Mc", "strand molar mass M_c = ρ/ν", poly.density / (Gx * k_nu), "kg/mol",
+                           poly.density / (hi * k_nu) if hi else None,
+                           poly.density / (lo * k_nu) if lo and lo > 0 else None,
                            basis=f"ρ = {poly.density:g} kg/m³ ({poly.key})", display_unit="g/mol",
                            display_scale=1000.0)
+    if "nu" not in Q:
+        res.warnings.append(
+            f"{compound.name}: the entanglement part ({Ge / 1e6:.3f} MPa) is as large as the whole modulus "
+            f"({G0 / 1e6:.3f} MPa); no crosslink density on the '{BASIS}' basis — see the crosslink table for "
+            "other assumptions, or try a tube model")
     # Kuhn segments per strand
     if "N" in values:
         pr = next(p for p in res.params if p.name == "N")
@@ -491,7 +501,7 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
         share = Ge / G0
         se_share = _propagate(lambda p: split_modulus(m, p, poly.key, T)[1] / m.small_strain_modulus(**p),
                               res.params, cov) if "Ge" in values or m.name == "mooney-rivlin" else None
-        lo, hi = _interval(share, se_share)
+        lo, hi = _iv(share, se_share)
         Q["ent_share"] = Quantity("ent_share", "entanglement share G_e/G₀", share, "1", lo, hi, basis=how,
                                   display_unit="%", display_scale=100.0)
     # service temperature
@@ -521,7 +531,7 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
                     se = None
             Q[f"{key}_predicted"] = Quantity(
                 f"{key}_predicted", f"{key} predicted", pred if np.isfinite(pred) else None, "Pa",
-                *_interval(pred if np.isfinite(pred) else None, se), basis=f"{m.title} fit at {strain}",
+                *_iv(pred if np.isfinite(pred) else None, se), basis=f"{m.title} fit at {strain}",
                 display_unit="MPa", display_scale=1e-6,
                 note="" if np.isfinite(pred) else "past the model's locking stretch")
     # swelling (Flory–Rehner via network_models.swelling)
@@ -548,65 +558,30 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
             max(ends), basis=f"Flory–Rehner, affine, {len(sw_vals)} test(s); range for χ ± 0.05 (not statistical)",
             note="restricted swelling makes filled stocks read higher than mechanical values unless corrected")
     # the crosslink-density assumption table, from the project's crosslinks module when present
-    res.crosslink_rows = _crosslink_rows(fr, m, compound, T) or _basic_crosslink_rows(
-        G0, Ge, T, f, poly.density, compound.metadata.get("filler_fraction"))
     return res
 
 
-def _basic_crosslink_rows(G0, Ge, T, f, rho, filler_fraction=None) -> list[dict]:
-    """Crosslink density of one modulus under the usual assumptions (used when the crosslinks module
-    gives no table): affine ν = G/(RT), phantom ν = G/((1 − 2/f)RT), with and without the entanglement
-    part G_e, and with Guth–Gold filler amplification removed when a filler volume fraction is given."""
-    from .network import guth_gold
+def _crosslink_table(fr, compound, T):
+    """The crosslink-density assumption table of :mod:`network_models.crosslinks` for this fit (None when
+    it cannot be made, e.g. for a stand-in fit result without covariance)."""
+    from .crosslinks import from_fit
 
-    cases = [("affine, whole modulus", G0), ("affine, entanglement part removed", G0 - Ge),
-             ("phantom, whole modulus", G0), ("phantom, entanglement part removed", G0 - Ge)]
-    phi = None
     try:
-        phi = float(filler_fraction) if filler_fraction not in (None, "") else None
-    except (TypeError, ValueError):
-        phi = None
-    if phi:
-        k = guth_gold(phi)
-        cases.append((f"affine, entanglement and filler (Guth–Gold, φ = {phi:g}) removed", (G0 - Ge) / k))
-    rows = []
-    for label, G in cases:
-        phantom = label.startswith("phantom")
-        if G <= 0:
-            rows.append({"assumption": label, "modulus_Pa": G, "nu": None, "mu_j": None, "Mc": None,
-                         "note": "entanglement part exceeds the modulus: no crosslink density on this basis"})
-            continue
-        nu = G / (((1 - 2 / f) if phantom else 1.0) * R * T)
-        rows.append({"assumption": label, "modulus_Pa": G, "nu": nu, "mu_j": 2 * nu / f, "Mc": rho / nu,
-                     "note": f"T = {T - 273.15:.1f} °C, f = {f:g}"})
-    return rows
+        return from_fit(fr, polymer=compound.polymer, T=T, f=compound.f, filler_fraction=compound.filler_fraction,
+                        Mn=compound.metadata.get("Mn_kg_mol"))
+    except (ValueError, KeyError, AttributeError, TypeError):
+        return None
 
 
-def _crosslink_rows(fr, model, compound, T) -> list[dict]:
-    try:
-        from . import crosslinks
-    except ImportError:
-        return []
-    fn = getattr(crosslinks, "crosslink_table", None) or getattr(crosslinks, "table", None)
-    if fn is None:
-        return []
-    try:
-        rows = fn(fr, polymer=compound.polymer, f=compound.f, T=T)
-    except TypeError:
-        try:
-            rows = fn(fr)
-        except Exception:  # the table is optional in the comparison
-            return []
-    except (ValueError, KeyError):
-        return []
-    out = []
-    for row in rows or []:
-        if hasattr(row, "to_dict"):
-            row = row.to_dict()
-        elif not isinstance(row, dict):
-            row = dict(getattr(row, "__dict__", {}))
-        out.append(row)
-    return out
+def _t95(fr) -> float:
+    """Two-sided 95 % quantile: Student t with the fit's n − k degrees of freedom (as the fitter and the
+    crosslink table use), the normal value when the fit does not say."""
+    n, k = getattr(fr, "n", None), getattr(fr, "k", None)
+    if isinstance(n, int) and isinstance(k, int):
+        from scipy import stats
+
+        return float(stats.t.ppf(0.975, max(n - k, 1)))
+    return Z95
 
 
 def compare(compounds: list[Compound], model="eight-chain", baseline: str | None = None,
@@ -632,8 +607,9 @@ def compare(compounds: list[Compound], model="eight-chain", baseline: str | None
         results[0].test_temperature if results else DEFAULT_TEST_TEMPERATURE)
     notes = [TEMPERATURE_NOTE,
              f"Strand density ν and junction density μ_j = 2ν/f: basis '{BASIS}' unless stated beside the number.",
-             "Intervals are 95 % (fit standard errors × 1.96, propagated by the delta method); "
-             "swelling ranges are χ ± 0.05, not statistical."]
+             "Intervals are 95 % (fit standard errors from the Jacobian, Student t, propagated by the delta "
+             "method); they cover the fit only, not specimen-to-specimen scatter. Swelling ranges are χ ± 0.05, "
+             "not statistical."]
     if any(c.metadata.get("filler_phr") not in (None, 0, "0", "") for c in compounds):
         notes.append("Filled compounds: the modulus carries filler reinforcement, so ν here is an upper estimate "
                      "of the rubber's own strand density unless the filler is removed (see the crosslink table).")
@@ -646,75 +622,3 @@ __all__ = [
     "strand_density_from_modulus",
 ]
 
-
-# ----- stand-in fitter (used only while network_models.fitting is not available) -----------------
-@dataclass
-class _Estimate:
-    value: float
-    stderr: float | None
-    ci95: tuple[float, float] | None
-    unit: str
-    held: bool = False
-
-
-@dataclass
-class _StandInFit:
-    params: dict
-    covariance: np.ndarray | None
-    free: list[str]
-    warnings: list[str]
-
-
-def _stand_in_fit(model, curves):
-    from scipy.optimize import least_squares
-
-    lam_all, P_all, w_all = [], [], []
-    modes = []
-    for c in curves:
-        ok = np.isfinite(c.stretch) & np.isfinite(c.stress) & (c.stretch > 0)
-        lam_all.append(c.stretch[ok])
-        P_all.append(c.stress[ok])
-        modes.extend([c.mode] * int(ok.sum()))
-        w_all.append(np.full(int(ok.sum()), 1.0 / max(np.max(np.abs(c.stress[ok])), 1.0)))
-    lam, P, w = np.concatenate(lam_all), np.concatenate(P_all), np.concatenate(w_all)
-    modes = np.array([m.value for m in modes])
-    small = (modes == "uniaxial") & (lam > 1.02) & (lam < 1.5)
-    G = float(np.median(P[small] / (lam[small] - lam[small] ** -2))) if small.any() else 0.4e6
-    start = model.resolve(model.guess(max(G, 1e3)))
-    free = [p.name for p in model.params if not p.held]
-
-    def full(x):
-        d = dict(start)
-        d.update(zip(free, x, strict=True))
-        return d
-
-    def resid(x):
-        p = full(x)
-        out = np.empty_like(P)
-        for mode in set(modes):
-            sel = modes == mode
-            out[sel] = model._nominal_stress(Mode.parse(mode), lam[sel], p)
-        r = (out - P) * w
-        return np.where(np.isfinite(r), r, 10.0)
-
-    lo = [max(model.params[n].bounds[0], 1e-12) for n in free]
-    hi = [model.params[n].bounds[1] for n in free]
-    x0 = np.clip([start[n] for n in free], np.nextafter(lo, np.inf), np.nextafter(hi, -np.inf))
-    sol = least_squares(resid, x0, bounds=(lo, hi), x_scale=np.abs(x0) + 1e-9)
-    dof = max(P.size - len(free), 1)
-    s2 = float(np.sum(sol.fun**2)) / dof
-    try:
-        cov = np.linalg.inv(sol.jac.T @ sol.jac) * s2
-    except np.linalg.LinAlgError:
-        cov = None
-    params = {}
-    fp = full(sol.x)
-    for p in model.params:
-        if p.name in free and cov is not None:
-            i = free.index(p.name)
-            se = float(math.sqrt(max(cov[i, i], 0.0)))
-            params[p.name] = _Estimate(fp[p.name], se, (fp[p.name] - Z95 * se, fp[p.name] + Z95 * se), p.unit)
-        else:
-            params[p.name] = _Estimate(fp[p.name], None, None, p.unit, held=True)
-    warns = [] if sol.success else [f"the fit stopped before converging ({sol.message})"]
-    return _StandInFit(params, cov, free, warns)

@@ -413,10 +413,13 @@ class Report:
                 add("fit_quality", r.name, f"r2_{fq['mode']}", f"R², {fq['mode']}", fq["r2"], "1")
                 add("fit_quality", r.name, f"points_{fq['mode']}", f"points fitted, {fq['mode']}", fq["points"], "1")
             for i, row in enumerate(r.crosslink_rows):
-                for key, unit in (("nu", "mol/m³"), ("mu_j", "mol/m³"), ("Mc", "kg/mol"), ("modulus_Pa", "Pa")):
-                    if key in row:
-                        add("crosslink_table", r.name, f"{key}[{i}]", f"{key} — {row.get('assumption', i)}",
-                            row[key], unit, basis=str(row.get("assumption", "")), note=str(row.get("note", "")))
+                for key, unit in (("modulus_Pa", "Pa"), ("strand_density", "mol/m³"), ("junction_density", "mol/m³"),
+                                  ("Mc", "kg/mol"), ("N", "1")):
+                    if row.get(key) is None:
+                        continue
+                    ci = row.get(f"{key}_ci95") or (None, None)
+                    add("crosslink_table", r.name, f"{row.get('key', i)}:{key}", f"{key} — {row.get('label', i)}",
+                        row[key], unit, ci[0], ci[1], basis=str(row.get("assumes", "")), note=str(row.get("note", "")))
             for i, s in enumerate(r.swelling_rows):
                 for key, unit in (("phi", "1"), ("phi_measured", "1"), ("chi", "1"),
                                   ("molar_volume_cm3_mol", "cm³/mol"), ("nu", "mol/m³"), ("nu_phantom", "mol/m³"),
@@ -581,20 +584,33 @@ class Report:
         return out
 
     def _crosslink_html(self):
-        out = ["<h2>Crosslink density under stated assumptions</h2><p>The same fitted modulus read under "
-               "different assumptions. <b>Strand density ν</b> counts elastically active strands; "
+        out = ["<h2>Crosslink density under stated assumptions</h2><p>The same fitted small-strain modulus read "
+               "under different assumptions. <b>Strand density ν</b> counts elastically active strands; "
                "<b>junction (crosslink) density μ_j = 2ν/f</b> counts junctions. Both are called “crosslink "
-               "density” in the literature.</p>"]
+               "density” in the literature. Brackets: 95 % interval from the fit.</p>"]
         for r in self.cmp.results:
             if not r.crosslink_rows:
                 continue
-            keys = [k for k in r.crosslink_rows[0] if k != "assumption"]
-            out.append(f"<h3>{_e(r.name)}</h3><table><tr><th>assumption</th>"
-                       + "".join(f"<th>{_e(_col_label(k))}</th>" for k in keys) + "</tr>")
-            for row in r.crosslink_rows:
-                out.append(f"<tr><td>{_e(row.get('assumption', ''))}</td>" + "".join(
-                    f"<td class='num'>{_show(k, row.get(k))}</td>" for k in keys) + "</tr>")
+            out.append(f"<h3>{_e(r.name)}</h3><table><tr><th>assumption</th><th>what it assumes</th>"
+                       "<th>modulus used (MPa)</th><th>ν (mol/m³)</th><th>μ_j (mol/m³)</th><th>M_c (g/mol)</th>"
+                       "<th>N</th><th>note</th></tr>")
+            for i, row in enumerate(r.crosslink_rows):
+                cells = []
+                for key, scale in (("modulus_Pa", 1e-6), ("strand_density", 1.0), ("junction_density", 1.0),
+                                   ("Mc", 1000.0), ("N", 1.0)):
+                    v = row.get(key)
+                    ci = row.get(f"{key}_ci95")
+                    txt = fmt(None if v is None else v * scale)
+                    if ci and ci[0] is not None and ci[1] is not None:
+                        txt += f"<br><span class='ci'>[{fmt(ci[0] * scale)} – {fmt(ci[1] * scale)}]</span>"
+                    attr = "" if v is None else (f" data-compound='{_e(r.name)}' data-key='crosslink:{i}:{key}' "
+                                                 f"data-value='{v!r}'")
+                    cells.append(f"<td class='num'{attr}>{txt}</td>")
+                out.append(f"<tr><td>{_e(row.get('label', ''))}</td><td><small>{_e(row.get('assumes', ''))}</small>"
+                           f"</td>{''.join(cells)}<td><small>{_e(row.get('note', ''))}</small></td></tr>")
             out.append("</table>")
+            if r.crosslink_notes:
+                out.append("<ul>" + "".join(f"<li><small>{_e(n)}</small></li>" for n in r.crosslink_notes) + "</ul>")
         return out
 
     def _swelling_html(self):
@@ -658,24 +674,6 @@ class Report:
         paths["csv"].write_text(self.to_csv(), "utf-8")
         paths["json"].write_text(self.to_json(), "utf-8")
         return paths
-
-
-_COL = {"modulus_Pa": "modulus used (MPa)", "nu": "ν (mol/m³)", "mu_j": "μ_j (mol/m³)", "Mc": "M_c (g/mol)",
-        "note": "note"}
-
-
-def _col_label(k):
-    return _COL.get(k, k)
-
-
-def _show(k, v):
-    if isinstance(v, (int, float)) and not isinstance(v, bool):
-        if k == "modulus_Pa":
-            return fmt(v / 1e6)
-        if k == "Mc":
-            return fmt(v * 1000)
-        return fmt(v)
-    return _e("—" if v is None else v)
 
 
 def _json_default(o):
