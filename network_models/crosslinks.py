@@ -194,7 +194,7 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_ci=None, 
     if Mn is not None:
         if not (Mn > 0):
             raise ValueError(f"primary-chain M_n must be positive; got {Mn!r}")
-        rows.append(_row("affine-dangling-ends", f"affine, dangling ends corrected (M_n = {Mn * 1000:.4g} g/mol)",
+        rows.append(_row("affine-dangling-ends", f"affine, dangling ends out (M_n {Mn:.4g} kg/mol)",
                          "νRT(1 − 2M_c/M_n) = G, so ν = G/RT + 2ρ/M_n (Flory [memory]); entanglements counted",
                          G, G_ci, 1.0, T, f, rho, MK, shift=2.0 * rho / Mn))
     rows.extend(extra_rows)
@@ -290,7 +290,9 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
         Gc, Gc_ci = 2 * P["C1"].value, _map_ci(P["C1"].ci95, lambda x: 2 * x)
         Ge, src = 2 * P["C2"].value, "the fitted Mooney slope 2C₂"
         if Ge < 0:
-            notes.append("the fitted 2C₂ is negative: the entanglement-removed rows use it as fitted")
+            Ge = Gc = Gc_ci = src = None
+            notes.append("the fitted 2C₂ is negative, so it cannot be an entanglement share: the "
+                         "entanglement-removed rows use the polymer's plateau modulus instead")
     if "mu" in P and "N" in P:
         mu = P["mu"]
         rho, MK = poly.density, poly.kuhn_molar_mass

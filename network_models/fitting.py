@@ -733,14 +733,28 @@ def _quick_limit(m, mode, values, top):
     return float(grid[out[0]]) if out.size else None
 
 
-def fit_many(models, curves, **kw) -> dict[str, FitResult | FitError]:
-    """Fit several models to the same curves; a model that fails gives its FitError (or
-    ModeNotSupportedError) instead of a result, so one failure does not stop the others."""
+def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str, FitResult | FitError]:
+    """Fit several models to the same curves; a model that fails gives its FitError instead of a result,
+    so one failure does not stop the others.  With ``skip_unsupported`` a model fits only the curves in
+    the modes it supports (e.g. slip tube: uniaxial) and says which curves it left out."""
+    if isinstance(curves, TestCurve):
+        curves = [curves]
     out = {}
     for name in models:
         mm = get_model(name) if isinstance(name, str) else name
+        use = [c for c in curves if mm.supports(c.mode)] if skip_unsupported else list(curves)
+        left = [c for c in curves if c not in use]
+        if not use:
+            out[mm.name] = FitError(f"the {mm.title} model covers {', '.join(x.value for x in mm.modes)} only "
+                                    "and none of the curves is in that mode")
+            continue
         try:
-            out[mm.name] = fit(mm, curves, **kw)
+            res = fit(mm, use, **kw)
         except ValueError as exc:  # FitError, ModeNotSupportedError, ParameterError
             out[mm.name] = exc if isinstance(exc, FitError) else FitError(str(exc))
+            continue
+        if left:
+            res.warnings.insert(0, f"{len(left)} curve(s) in modes the {mm.title} model does not cover were left "
+                                   f"out: {', '.join(c.name for c in left)}")
+        out[mm.name] = res
     return out

@@ -1,0 +1,79 @@
+"""``netstretch crosslinks``: strand and junction density from one modulus a compounder has (G, E, M100,
+M300 or Mooney 2C1), as a table of stated assumptions.
+
+    netstretch crosslinks --modulus 0.55MPa --kind G --temperature 23C --polymer NR
+    netstretch crosslinks --modulus 1.9MPa --kind M100 --polymer SBR --filler 0.15 --json
+"""
+
+from __future__ import annotations
+
+from ..crosslinks import KINDS, from_modulus
+from .fit import CAUTION, format_crosslink_table, json_document, quantity
+
+
+def add_parser(sub):
+    p = sub.add_parser("crosslinks", help="crosslink density from a modulus (G, E, M100, M300, 2C1)",
+                       description="Strand density ν and junction density μ_j = 2ν/f from one modulus, "
+                                   "under each usual assumption.")
+    p.add_argument("--modulus", required=True, metavar="VALUE", help="the modulus with its unit, e.g. 0.55MPa")
+    p.add_argument("--kind", default="G", type=str.upper, choices=KINDS,
+                   help="G shear modulus, E Young's modulus, M100/M300 stress at 100 %%/300 %% elongation, "
+                        "2C1 Mooney intercept (default G)")
+    p.add_argument("--c2", metavar="VALUE", help="Mooney 2C2 with unit (with --kind 2C1): taken as entanglement share")
+    p.add_argument("--range", nargs=2, metavar=("LOW", "HIGH"),
+                   help="95 %% interval of the modulus, same kind, with units (gives intervals on every row)")
+    p.add_argument("--temperature", default="23C", metavar="T", help="test temperature (default 23C)")
+    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
+    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
+    p.add_argument("--filler", type=float, default=0.0, metavar="PHI",
+                   help="filler volume fraction, adds a Guth–Gold row (default 0)")
+    p.add_argument("--mn", metavar="M", help="primary-chain M_n before crosslinking, e.g. 250kg/mol (dangling ends)")
+    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    p.set_defaults(run=run)
+
+
+def _molar_mass(text):
+    from ..units import parse_quantity
+
+    s = str(text).strip().replace(" ", "")
+    if not s.lower().endswith("/mol"):
+        raise ValueError(f"--mn {text!r}: write the molar mass with its unit, e.g. 250kg/mol or 250000g/mol")
+    try:
+        v = parse_quantity(s)  # SI base units: kg/mol
+    except ValueError as exc:
+        raise ValueError(f"--mn: {exc}") from None
+    if not (v > 0):
+        raise ValueError(f"--mn must be positive; got {text!r}")
+    return v
+
+
+def run(args):
+    G = quantity(args.modulus, "pressure", "--modulus", "0.55MPa")
+    T = quantity(args.temperature, "temperature", "--temperature", "23C")
+    if not (0.0 <= args.filler < 0.5):
+        raise ValueError(f"--filler is a volume fraction between 0 and 0.5; got {args.filler:g}")
+    ci = None
+    if args.range:
+        lo = quantity(args.range[0], "pressure", "--range", "0.5MPa")
+        hi = quantity(args.range[1], "pressure", "--range", "0.6MPa")
+        if not (0 < lo <= G <= hi):
+            raise ValueError("--range must bracket the modulus: LOW ≤ modulus ≤ HIGH, both positive")
+        ci = (lo, hi)
+    c2 = None
+    if args.c2:
+        if args.kind != "2C1":
+            raise ValueError("--c2 goes with --kind 2C1 (the Mooney intercept)")
+        c2 = quantity(args.c2, "pressure", "--c2", "0.1MPa")
+    Mn = _molar_mass(args.mn) if args.mn else None
+    table = from_modulus(G, args.kind, polymer=args.polymer, T=T, f=args.functionality,
+                         filler_fraction=args.filler, Mn=Mn, ci95=ci, c2=c2)
+    if args.json:
+        doc = {"command": "crosslinks", **table.to_dict(), "caution": CAUTION}
+        print(json_document(doc))
+        return 0
+    print(f"{args.kind} = {G / 1e6:.4g} MPa → small-strain shear modulus G = {table.G / 1e6:.4g} MPa; "
+          f"polymer {table.polymer}, T = {T - 273.15:.1f} °C, f = {args.functionality:g}")
+    print("\n".join(format_crosslink_table(table)))
+    print()
+    print(CAUTION)
+    return 0

@@ -1,0 +1,220 @@
+"""``netstretch fit``: fit one or more network models to lab curves; parameters with intervals, fit
+statistics, warnings in plain words and the crosslink-density table.
+
+    netstretch fit tensile.csv planar.csv --model eight-chain --model non-affine-tube --temperature 23C
+    netstretch fit tensile.csv --model gent --json
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import re
+
+from ..crosslinks import from_fit
+from ..fitting import fit_many
+from ..models import get_model
+
+CAUTION = ("Caution: model results support design decisions; they do not replace validation testing of parts "
+           "(safety-relevant parts follow the applicable standards).")
+
+
+def add_parser(sub):
+    p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 % intervals, crosslink density)",
+                       description="Fit network models to tensile, planar or equibiaxial curves.")
+    p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT or .xlsx)")
+    p.add_argument("--model", action="append", metavar="NAME",
+                   help="model to fit (repeat for several; default eight-chain; see `netstretch models`)")
+    p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar"),
+                   help="test mode when the files do not state it")
+    p.add_argument("--temperature", metavar="T", help="test temperature, e.g. 23C (overrides the files)")
+    p.add_argument("--gauge-length", metavar="L", help="gauge length for extension columns, e.g. 20mm")
+    p.add_argument("--width", metavar="W", help="specimen width for force columns, e.g. 4mm")
+    p.add_argument("--thickness", metavar="H", help="specimen thickness for force columns, e.g. 2mm")
+    p.add_argument("--relative", action="store_true",
+                   help="relative residuals (each point weighs by its own stress) instead of absolute (Pa)")
+    p.add_argument("--polymer", default="NR", help="polymer for the crosslink table (default NR)")
+    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
+                   help="junction functionality f for the crosslink table (default 4)")
+    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    p.set_defaults(run=run)
+
+
+# ------------------------------------------------------------------------------------------------
+# shared helpers (also used by the crosslinks and swell commands)
+# ------------------------------------------------------------------------------------------------
+def quantity(text, dimension, what, example):
+    """Parse a command-line quantity that must carry a unit, e.g. '23C', '20mm', '0.55MPa'."""
+    from ..units import parse_quantity
+
+    s = str(text).strip()
+    if not re.search(r"[A-Za-zµ%°℃]", s):
+        raise ValueError(f"{what} {s!r} has no unit; write it with its unit, e.g. {example}")
+    try:
+        return parse_quantity(s, dimension)
+    except ValueError as exc:
+        raise ValueError(f"{what}: {exc}") from None
+
+
+def json_document(doc: dict) -> str:
+    """One JSON document with no NaN/inf: such numbers become null and a warning says so."""
+    found = []
+
+    def clean(x, path):
+        if isinstance(x, dict):
+            return {str(k): clean(v, f"{path}.{k}" if path else str(k)) for k, v in x.items()}
+        if isinstance(x, (list, tuple)):
+            return [clean(v, f"{path}[{i}]") for i, v in enumerate(x)]
+        if hasattr(x, "item") and not isinstance(x, (str, bytes)):  # numpy scalars
+            x = x.item()
+        if isinstance(x, float) and not math.isfinite(x):
+            found.append(path)
+            return None
+        if hasattr(x, "value") and isinstance(x.value, str):  # enums (Mode)
+            return x.value
+        return x
+
+    out = clean(doc, "")
+    if found:
+        out.setdefault("warnings", []).append(
+            "undefined numbers are given as null: " + ", ".join(found[:8]) + (" …" if len(found) > 8 else ""))
+    return json.dumps(out, indent=2, ensure_ascii=False, allow_nan=False)
+
+
+def _num(x, scale=1.0, digits=4):
+    if x is None or not math.isfinite(x):
+        return "—"
+    return f"{x * scale:.{digits}g}"
+
+
+def _ci(ci, scale=1.0, digits=4):
+    if not ci or ci[0] is None or ci[1] is None:
+        return "—"
+    return f"{_num(ci[0], scale, digits)} – {_num(ci[1], scale, digits)}"
+
+
+def format_crosslink_table(table) -> list[str]:
+    """Human table: ν (mol/m³ and 10⁻⁴ mol/cm³), μ_j, M_c (g/mol), N, with the assumption beside each row."""
+    lines = [f"  {'assumption':44s} {'ν mol/m³':>9s} {'95 % interval':>19s} {'ν 10⁻⁴mol/cm³':>14s} "
+             f"{'μ_j mol/m³':>11s} {'M_c g/mol':>10s} {'N':>7s}"]
+    for r in table.rows:
+        lines.append(
+            f"  {r.label[:44]:44s} {_num(r.nu):>9s} {_ci(r.nu_ci):>19s} "
+            f"{_num(r.nu, 1e-2):>14s} {_num(r.junction_density):>11s} {_num(r.Mc, 1e3):>10s} {_num(r.N, 1, 3):>7s}")
+        lines.append(f"  {'':4s}assumes: {r.assumes}" + (f"  ({r.note})" if r.note else ""))
+    for n in table.notes:
+        lines.append(f"  note: {n}")
+    return lines
+
+
+# ------------------------------------------------------------------------------------------------
+def _read(args):
+    from ..testdata import read_curves
+
+    opts = {}
+    if args.mode:
+        opts["mode"] = args.mode
+    if args.temperature:
+        opts["temperature"] = quantity(args.temperature, "temperature", "--temperature", "23C")
+    for key, what in (("gauge_length", "--gauge-length"), ("width", "--width"), ("thickness", "--thickness")):
+        v = getattr(args, key)
+        if v:
+            opts[key] = quantity(v, "length", what, "20mm")
+    curves = []
+    for path in args.files:
+        curves.extend(read_curves(path, **opts))
+    if not curves:
+        raise ValueError("the files hold no test curves")
+    return curves
+
+
+def _format_result(res, table) -> list[str]:
+    out = [f"Model: {res.title}   ({res.n} points, {res.k} fitted parameter(s), {res.residual} residuals)"]
+    out.append(f"  {'parameter':10s} {'value':>11s} {'± std. error':>13s} {'95 % interval':>25s}  unit")
+    for p in res.params.values():
+        scale = p.display_scale if p.display_unit else 1.0
+        unit = p.display_unit or ("—" if p.unit == "1" else p.unit)
+        tag = "  (fixed)" if p.fixed else ""
+        out.append(f"  {(p.symbol or p.name):10s} {_num(p.value, scale):>11s} {_num(p.stderr, scale, 2):>13s} "
+                   f"{_ci(p.ci95, scale):>25s}  {unit}{tag}")
+    out.append(f"  small-strain shear modulus G₀ = {res.small_strain_modulus / 1e6:.4g} MPa")
+    out.append(f"  {'mode':12s} {'n':>4s} {'RMS / MPa':>10s} {'R²':>8s}   tested λ")
+    for m, s in res.modes.items():
+        out.append(f"  {m.value:12s} {s.n:4d} {_num(s.rms, 1e-6, 3):>10s} {_num(s.r2, 1, 5):>8s}   "
+                   f"{s.tested_range[0]:.3g} – {s.tested_range[1]:.3g}")
+    out.append(f"  AIC {res.aic:.1f}   BIC {res.bic:.1f}   (converged after {res.nfev} model evaluations)")
+    if res.warnings:
+        out.append("  Warnings:")
+        out.extend(f"   - {w}" for w in res.warnings)
+    if table is not None:
+        out.append(f"  Network estimate (polymer {table.polymer}, T = {table.T - 273.15:.1f} °C, f = {table.f:g}):")
+        out.extend(format_crosslink_table(table))
+    return out
+
+
+def run(args):
+    names = args.model or ["eight-chain"]
+    models = [get_model(n) for n in names]  # KeyError with the list of models → exit 2
+    curves = _read(args)
+    if not (args.functionality >= 3):
+        raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
+                         f"got {args.functionality:g}")
+    results = fit_many(models, curves, residual="relative" if args.relative else "absolute")
+    tables = {}
+    for name, r in results.items():
+        if isinstance(r, Exception):
+            continue
+        try:
+            tables[name] = from_fit(r, polymer=args.polymer, f=args.functionality)
+        except (ValueError, KeyError) as exc:
+            msg = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)
+            r.warnings.append(f"no crosslink table: {msg}")
+    ok = [n for n, r in results.items() if not isinstance(r, Exception)]
+    notices = [f"{c.name}: {n}" for c in curves for n in c.notices]
+
+    if args.json:
+        doc = {
+            "command": "fit", "files": list(args.files),
+            "curves": [{"name": c.name, "mode": c.mode.value, "n": len(c), "source": c.source,
+                        "temperature_K": c.temperature, "notices": list(c.notices)} for c in curves],
+            "residual": "relative" if args.relative else "absolute",
+            "models": {},
+            "caution": CAUTION,
+        }
+        for name, r in results.items():
+            if isinstance(r, Exception):
+                doc["models"][name] = {"model": name, "error": str(r)}
+            else:
+                d = r.to_dict()
+                d["network"] = tables[name].to_dict() if name in tables else None
+                doc["models"][name] = d
+        if len(ok) > 1:
+            doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)
+        print(json_document(doc))
+    else:
+        modes = {}
+        for c in curves:
+            modes[c.mode.value] = modes.get(c.mode.value, 0) + 1
+        print(f"{len(curves)} curve(s) from {len(args.files)} file(s): "
+              + ", ".join(f"{k} {v}" for k, v in modes.items()))
+        temps = sorted({c.temperature for c in curves if c.temperature is not None})
+        print("test temperature: " + (", ".join(f"{t - 273.15:.1f} °C" for t in temps) if temps
+                                      else "not stated (23 °C assumed for the crosslink table)"))
+        for n in notices:
+            print(f"  file note: {n}")
+        for name, r in results.items():
+            print()
+            if isinstance(r, Exception):
+                print(f"Model: {get_model(name).title}: the fit failed — {r}")
+                continue
+            print("\n".join(_format_result(r, tables.get(name))))
+        if len(ok) > 1:
+            best = min(ok, key=lambda n: results[n].aic)
+            print(f"\nLowest AIC on these curves: {results[best].title} (compare AIC only on the same curves and "
+                  "residual choice; a lower AIC is a better fit per parameter, not proof of the physics)")
+        print()
+        print(CAUTION)
+    if not ok:
+        first = next(iter(results.values()))
+        raise ValueError(f"no model could be fitted: {first}")
+    return 0
