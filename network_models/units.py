@@ -184,12 +184,21 @@ def parse_quantity(text, dimension: str | None = None, *, default_unit: str | No
     if dimension is None:
         ureg = _registry()
         unit = _pint_unit(unit_text, None)
-        q = ureg.Quantity(value, unit)
-        if q.dimensionality == _dimensionality("temperature"):
-            return float(q.to("kelvin").magnitude)
-        return float(q.to_base_units().magnitude)
-    conv = unit_converter(unit_text, dimension)
-    return float(conv(value))
+        try:
+            q = ureg.Quantity(value, unit)
+            if q.dimensionality == _dimensionality("temperature"):
+                out = float(q.to("kelvin").magnitude)
+            else:
+                out = float(q.to_base_units().magnitude)
+        except Exception:  # pint conversion failures on odd unit combinations
+            raise UnitError(
+                f"could not convert {text!r} to SI units; write e.g. '20 mm', '0.55 MPa' or '23 °C'"
+            ) from None
+    else:
+        out = float(unit_converter(unit_text, dimension)(value))
+    if not math.isfinite(out):
+        raise UnitError(f"{text!r} is out of range once converted to SI units")
+    return out
 
 
 _BRACKETS = re.compile(r"^(.*?)[\s,]*[\[(\{]\s*([^\]\)\}]*?)\s*[\]\)\}]\s*(.*)$")

@@ -1,0 +1,171 @@
+"""Unit parsing at the edges (network_models.units) checked against the units' definitions.
+
+Reference values come from scipy.constants (CODATA / NIST SP 811 definitions) or from the unit's
+definition itself (named beside each check), never from this module's own output.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+import scipy.constants as sc
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from network_models.units import UnitError, parse_number, parse_quantity, split_header, unit_converter
+
+# ---- pressure / stress ---------------------------------------------------------------------------
+
+def test_kgf_per_cm2_from_standard_gravity():
+    # 1 kgf = 1 kg × g_n, g_n = 9.80665 m/s² exactly (3rd CGPM 1901; scipy.constants.g), 1 cm² = 1e-4 m²
+    # so 1 kgf/cm² = 98066.5 Pa = 0.0980665 MPa.
+    expected = 1.0 * sc.g / (sc.centi**2)
+    assert expected == pytest.approx(98066.5, rel=1e-15)
+    for text in ("kgf/cm2", "kgf/cm²", "kgf/cm^2", "kg/cm2"):  # "kg/cm²" is the trade's kgf/cm² (common practice)
+        assert unit_converter(text, "pressure").factor == pytest.approx(expected, rel=1e-12), text
+    assert parse_quantity("1 kgf/cm²", "pressure") / 1e6 == pytest.approx(0.0980665, rel=1e-12)
+
+
+def test_psi_against_scipy():
+    # scipy.constants.psi = 6894.757293168361 Pa (lbf/in², NIST SP 811)
+    assert unit_converter("psi", "pressure").factor == pytest.approx(sc.psi, rel=1e-12)
+    assert parse_quantity("1 psi", "pressure") == pytest.approx(6894.757, rel=1e-6)
+    assert unit_converter("lbf/in²", "pressure").factor == pytest.approx(sc.psi, rel=1e-12)
+
+
+@pytest.mark.parametrize("text,pa", [
+    ("MPa", sc.mega),            # SI prefix mega = 1e6 (scipy.constants.mega)
+    ("N/mm²", 1 / sc.milli**2),  # 1 N/mm² = 1e6 Pa by definition
+    ("N/mm2", 1 / sc.milli**2),
+    ("kPa", sc.kilo),
+    ("bar", sc.bar),             # scipy.constants.bar = 1e5 Pa
+    ("ksi", 1e3 * sc.psi),
+])
+def test_pressure_units(text, pa):
+    assert unit_converter(text, "pressure").factor == pytest.approx(pa, rel=1e-12)
+
+
+# ---- force, length, area, fraction -------------------------------------------------------------------
+
+@pytest.mark.parametrize("text,si,dim", [
+    ("N", 1.0, "force"),
+    ("kN", sc.kilo, "force"),
+    ("kgf", sc.g, "force"),           # kilogram-force = g_n newtons (scipy.constants.kgf)
+    ("lbf", sc.pound_force, "force"),  # scipy.constants.pound_force
+    ("mm", sc.milli, "length"),
+    ("in", sc.inch, "length"),        # 1 in = 0.0254 m exactly (scipy.constants.inch)
+    ("mm²", sc.milli**2, "area"),
+    ("mm2", sc.milli**2, "area"),
+    ("%", 0.01, "dimensionless"),     # per cent = 1/100 by definition
+    ("mm/mm", 1.0, "dimensionless"),
+])
+def test_factors_against_definitions(text, si, dim):
+    assert unit_converter(text, dim).factor == pytest.approx(si, rel=1e-12)
+
+
+# ---- temperatures (offset units) ---------------------------------------------------------------------
+
+@pytest.mark.parametrize("text,kelvin", [
+    ("23C", 23 + sc.zero_Celsius),       # scipy.constants.zero_Celsius = 273.15 K
+    ("23 °C", 23 + sc.zero_Celsius),
+    ("23 degC", 23 + sc.zero_Celsius),
+    ("-10 °C", -10 + sc.zero_Celsius),
+    ("296 K", 296.0),
+    ("73F", float(sc.convert_temperature(73, "Fahrenheit", "Kelvin"))),  # (73 − 32)·5/9 + 273.15
+    ("32 °F", sc.zero_Celsius),
+])
+def test_temperatures(text, kelvin):
+    assert parse_quantity(text) == pytest.approx(kelvin, abs=1e-9)
+    assert parse_quantity(text, "temperature") == pytest.approx(kelvin, abs=1e-9)
+
+
+def test_temperature_converter_has_offset():
+    conv = unit_converter("°C", "temperature")
+    assert conv(100.0) == pytest.approx(373.15)  # boiling point of water at 1 atm, ITS-90 ≈ 373.124 K (common practice)
+    assert conv.offset == pytest.approx(sc.zero_Celsius)
+
+
+# ---- quantities as typed on the command line -------------------------------------------------------
+
+def test_cli_style_quantities():
+    assert parse_quantity("20mm", "length") == pytest.approx(0.020)
+    assert parse_quantity("20 mm") == pytest.approx(0.020)
+    assert parse_quantity("0.55MPa", "pressure") == pytest.approx(0.55e6)
+    assert parse_quantity("0,55 MPa", "pressure") == pytest.approx(0.55e6)  # decimal comma
+    assert parse_quantity("8 mm²", "area") == pytest.approx(8e-6)
+    assert parse_quantity("150 %", "dimensionless") == pytest.approx(1.5)
+
+
+def test_bare_number_default_unit():
+    assert parse_quantity("20", "length", default_unit="mm") == pytest.approx(0.02)
+    assert parse_quantity("0.02", "length") == pytest.approx(0.02)  # bare number: already SI
+    assert parse_quantity(296.15, "temperature") == 296.15
+
+
+@pytest.mark.parametrize("text,dim,words", [
+    ("3 MPa", "length", "not a length unit"),
+    ("23 furlongsx", None, "unknown unit"),
+    ("abc", "length", "20 mm"),
+    ("", "pressure", "MPa"),
+    ("inf MPa", "pressure", "could not read"),
+    ("1e400 MPa", "pressure", "finite"),
+    ("1e305 GPa", "pressure", "out of range"),
+    ("12 N", "temperature", "not a temperature"),
+])
+def test_bad_quantities_say_what_to_write(text, dim, words):
+    with pytest.raises(UnitError) as e:
+        parse_quantity(text, dim)
+    assert words in str(e.value)
+
+
+def test_parse_number():
+    assert parse_number("1,5") == 1.5
+    assert parse_number("−2.5") == -2.5  # Unicode minus sign
+    assert parse_number("1e3") == 1000.0
+    with pytest.raises(UnitError):
+        parse_number("1,2,3")
+
+
+# ---- column headers ---------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("header,label,unit", [
+    ("stress (MPa)", "stress", "MPa"),
+    ("Stress [psi]", "Stress", "psi"),
+    ("Force/N", "Force", "N"),
+    ("Force, N", "Force", "N"),
+    ("Standard force in N", "Standard force", "N"),
+    ("Strain %", "Strain", "%"),
+    ("Strain/%", "Strain", "%"),
+    ("Extension mm", "Extension", "mm"),
+    ("Stress N/mm²", "Stress", "N/mm²"),
+    ("Nominal stress, MPa", "Nominal stress", "MPa"),
+    ("Tensile strain", "Tensile strain", None),   # "strain" is not a unit here
+    ("Stress at break", "Stress at break", None),  # nor "at"
+    ("stretch", "stretch", None),
+    ("Extension S2-1 (mm)", "Extension S2-1", "mm"),
+])
+def test_split_header(header, label, unit):
+    assert split_header(header) == (label, unit)
+
+
+# ---- fuzz: anything typed gives a float or a UnitError, nothing else --------------------------------
+
+@settings(max_examples=150, deadline=None)
+@given(st.text(alphabet=st.sampled_from(list("0123456789.,-+eE °CFKkmMNPa%/²^*()[]psixyz ")), max_size=20),
+       st.sampled_from([None, "length", "pressure", "temperature", "force", "area", "dimensionless"]))
+def test_parse_quantity_never_raises_anything_else(text, dim):
+    try:
+        v = parse_quantity(text, dim)
+    except UnitError:
+        return
+    assert isinstance(v, float)
+    assert math.isfinite(v)
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.text(max_size=40))
+def test_split_header_total(text):
+    label, unit = split_header(text)
+    assert isinstance(label, str)
+    assert unit is None or isinstance(unit, str)
