@@ -37,6 +37,9 @@ DEFAULT_TEST_TEMPERATURE = 296.15
 #: two-sided 95 % normal quantile (scipy.stats.norm.ppf(0.975))
 Z95 = 1.959963984540054
 
+#: quantities whose range is not a statistical interval (no overlap verdict)
+NON_STATISTICAL = frozenset({"nu_swelling"})
+
 BASIS = "affine network, entanglement part removed"
 TEMPERATURE_NOTE = ("G ∝ T at a fixed network (entropic elasticity); filled compounds often soften with "
                     "temperature in reality, so treat the service-temperature modulus of a filled compound as "
@@ -337,7 +340,7 @@ class Comparison:
                     continue
                 pct = (q.value - b.value) / abs(b.value) * 100.0
                 overlap = None
-                if q.has_interval and b.has_interval:
+                if q.has_interval and b.has_interval and key not in NON_STATISTICAL:
                     overlap = bool(q.low <= b.high and b.low <= q.high)
                 out.append({"compound": r.name, "baseline": base.name, "key": key, "label": q.label,
                             "value": q.value, "baseline_value": b.value, "unit": q.unit,
@@ -409,6 +412,10 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
         fr = (fitter or _fit)(m, curves)
     except (ValueError, RuntimeError, ModeNotSupportedError, np.linalg.LinAlgError) as exc:
         res.error = f"{compound.name}: the {m.title} fit failed — {exc}"
+        return res
+    except ArithmeticError as exc:  # overflow inside the optimiser: a numerical failure, not the user's
+        res.error = (f"{compound.name}: the {m.title} fit broke down numerically ({type(exc).__name__}: {exc}); "
+                     "try another model or fit fewer modes")
         return res
     res.fit = fr
     res.warnings.extend(f"{compound.name}: {w}" for w in (getattr(fr, "warnings", None) or []))

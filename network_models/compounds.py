@@ -94,9 +94,10 @@ class SwellingTest:
                             "temperature_C") from None
 
     @classmethod
-    def from_record(cls, r) -> SwellingTest:
+    def from_record(cls, r, chi=None) -> SwellingTest:
         """From a :class:`network_models.testdata.SwellingResult` row (masses already in kg)."""
         return cls(dry=r.dry_mass, swollen=r.swollen_mass, solvent=r.solvent or "toluene", extracted=r.extracted_mass,
+                   chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
 
     def estimate(self, polymer="NR", f=4.0, filler_fraction=0.0):
@@ -317,6 +318,8 @@ def _from_sample_manifest(p: Path) -> Manifest:
 
     man = read_manifest(p)
     swell = man.swelling_results()
+    raw_swell = tomllib.loads(p.read_text("utf-8")).get("swelling", {})
+    chi = raw_swell.get("chi") if isinstance(raw_swell, dict) else None
     comps = []
     for c in man.compounds:
         info = dict(c.info)
@@ -330,7 +333,7 @@ def _from_sample_manifest(p: Path) -> Manifest:
             if not cf.path.exists():
                 raise DataError(f"manifest {p.name}: compound {c.key!r} lists {cf.path.name}, which is not there")
             curves.extend(_read(cf.path, mode=cf.mode))
-        tests = [SwellingTest.from_record(r) for r in swell if r.compound in (c.key, c.title)]
+        tests = [SwellingTest.from_record(r, chi=chi) for r in swell if r.compound in (c.key, c.title)]
         comps.append(Compound(name=c.key, curves=curves, swelling=tests, metadata=meta, polymer=c.polymer, f=f,
                               notes=notes, baseline=baseline))
     baseline = man.info.get("baseline") or next((c.name for c in comps if c.baseline), None)
