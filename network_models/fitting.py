@@ -656,14 +656,19 @@ def _fmt(v, unit):
 def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, se_x, corr):
     w = result.warnings
     k = len(free_names)
-    # 1. the locking bound is active
+    # 1. the locking bound is active (or nearly)
     for name, (thr, _side) in locks.items():
         v = values[name]
-        if abs(v - thr) <= 1e-4 * max(abs(thr), 1e-12):
-            top = float(data.lam.max())
+        top = float(data.lam.max())
+        gap = abs(math.log(v / thr)) if v > 0 and thr > 0 else abs(v - thr)
+        if gap <= 1e-4:
             w.append(f"the data reach the locking stretch of the {m.title} model: {name} was held at the "
                      f"limit {_fmt(v, m.params[name].unit)} that keeps the largest stretch (λ = {top:.3g}) inside "
                      f"the lock; the model cannot follow the upturn, so {name} is a bound, not an estimate")
+        elif gap <= 0.05:
+            w.append(f"the fitted {m.title} model locks just beyond the largest tested stretch (λ = {top:.3g}): "
+                     f"{name} = {_fmt(v, m.params[name].unit)} is set by the last few points, and the model "
+                     "cannot predict much past the tested range")
     # 2. declared bounds
     at_bound = set()
     for i, name in enumerate(free_names):
