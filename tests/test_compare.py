@@ -1,0 +1,231 @@
+"""Compound comparison: the numbers it derives from a fit, checked against closed forms from the literature.
+
+Test curves are written from published closed forms here (not through the project's model code), with
+fixed-seed noise, so every check can fail if the fit, the crosslink reading or the comparison is wrong.
+"""
+
+from __future__ import annotations
+
+import math
+import subprocess
+import sys
+import tomllib
+from pathlib import Path
+
+import numpy as np
+import pytest
+from scipy.constants import R  # CODATA gas constant
+
+from network_models.compare import TRADE_MODULI, compare, measured_at
+from network_models.compounds import Compound, SwellingTest, compounds_from_specs, load_manifest, parse_spec
+from network_models.deformation import Mode
+from network_models.testdata import DataError, TestCurve
+
+ROOT = Path(__file__).resolve().parent.parent
+T23 = 296.15
+
+
+def mooney_uniaxial(lam, C1, C2):
+    """Mooney 1940 (J. Appl. Phys. 11:582) / Rivlin 1948: uniaxial nominal stress
+    P = 2(λ − λ⁻²)(C₁ + C₂/λ) (physics.md §2, reduced stress σ* = 2C₁ + 2C₂/λ)."""
+    lam = np.asarray(lam, float)
+    return 2.0 * (lam - lam**-2) * (C1 + C2 / lam)
+
+
+def mooney_planar(lam, C1, C2):
+    """Planar tension (pure shear) for the same W: P = 2(λ − λ⁻³)(C₁ + C₂) (physics.md §2, Treloar 1975)."""
+    lam = np.asarray(lam, float)
+    return 2.0 * (lam - lam**-3) * (C1 + C2)
+
+
+def mr_compound(name, C1, C2, noise=0.0, seed=0, top=4.5, T=T23, planar=True):
+    rng = np.random.default_rng(seed)
+    lam = np.linspace(1.05, top, 60)
+    P = mooney_uniaxial(lam, C1, C2) * (1 + noise * rng.standard_normal(lam.size))
+    curves = [TestCurve("uniaxial", lam, P, name=f"{name} uniaxial", temperature=T, source=f"{name}_u.csv")]
+    if planar:
+        lp = np.linspace(1.05, 3.0, 40)
+        Pp = mooney_planar(lp, C1, C2) * (1 + noise * rng.standard_normal(lp.size))
+        curves.append(TestCurve("planar", lp, Pp, name=f"{name} planar", temperature=T, source=f"{name}_p.csv"))
+    return Compound(name, curves, metadata={"cure": f"{name} (invented)"})
+
+
+@pytest.fixture(scope="module")
+def mr_pair():
+    a = mr_compound("A", 0.20e6, 0.05e6)
+    b = mr_compound("B", 0.24e6, 0.05e6)
+    return compare([a, b], model="mooney-rivlin", baseline="A", service_temperature=353.15)
+
+
+def test_strand_density_is_2C1_over_RT(mr_pair):
+    # Mooney–Rivlin reading used by the comparison: 2C₁ is the crosslink part, ν = 2C₁/(RT) (affine,
+    # G = νRT: Treloar 1975 ch. 4), R from scipy.constants.  Noise-free curves: the fit must return C₁.
+    for r, C1 in ((mr_pair["A"], 0.20e6), (mr_pair["B"], 0.24e6)):
+        assert r.ok, r.error
+        nu = r.quantities["nu"]
+        assert nu.value == pytest.approx(2 * C1 / (R * T23), rel=1e-6)
+        assert r.quantities["mu_j"].value == pytest.approx(nu.value / 2, rel=1e-12)  # μ_j = 2ν/f, f = 4
+        # M_c = ρ/ν with ρ(NR) = 910 kg/m³ from the polymer table (physics.md §4)
+        assert r.quantities["Mc"].value == pytest.approx(910.0 / nu.value, rel=1e-9)
+
+
+def test_small_strain_modulus_and_entanglement_share(mr_pair):
+    # Mooney–Rivlin: G₀ = 2(C₁ + C₂) (physics.md §2); 2C₂ read as the entanglement part -> share C₂/(C₁+C₂)
+    r = mr_pair["A"]
+    assert r.quantities["G0"].value == pytest.approx(2 * (0.20e6 + 0.05e6), rel=1e-6)
+    assert r.quantities["ent_share"].value == pytest.approx(0.05 / 0.25, rel=1e-5)
+
+
+def test_service_temperature_scales_with_absolute_temperature(mr_pair):
+    # Meyer & Ferri 1935 (Helv. Chim. Acta 18:570): at a fixed network the modulus is proportional to T.
+    r = mr_pair["B"]
+    g, gs = r.quantities["G0"], r.quantities["G0_service"]
+    assert gs.value / g.value == pytest.approx(353.15 / T23, rel=1e-12)
+    assert gs.low / g.low == pytest.approx(353.15 / T23, rel=1e-12)
+    assert "soften" in gs.note  # the caution about filled compounds is carried with the number
+
+
+def test_trade_moduli_measured_and_predicted(mr_pair):
+    # M100/M300 = nominal stress at 100 %/300 % elongation, λ = 2 and 4 (physics.md §7, common practice).
+    assert TRADE_MODULI == {"M100": 2.0, "M300": 4.0}
+    r = mr_pair["A"]
+    for key, lam in TRADE_MODULI.items():
+        exact = float(mooney_uniaxial(lam, 0.20e6, 0.05e6))
+        assert r.quantities[f"{key}_predicted"].value == pytest.approx(exact, rel=1e-6)
+        # measured: linear interpolation on a 60-point grid, error well below 1 %
+        assert r.quantities[f"{key}_measured"].value == pytest.approx(exact, rel=5e-3)
+
+
+def test_measured_at_reports_absent_when_data_stop_short():
+    lam = np.linspace(1.0, 3.0, 30)  # reaches M100 (λ = 2) but not M300 (λ = 4)
+    c = TestCurve("uniaxial", lam, mooney_uniaxial(lam, 0.2e6, 0.0))
+    v, n = measured_at([c], Mode.UNIAXIAL, 4.0)
+    assert v is None and n == 0
+    v, n = measured_at([c], Mode.UNIAXIAL, 2.0)
+    assert n == 1 and v == pytest.approx(0.4e6 * 1.75, rel=5e-3)  # neo-Hookean 2C₁(λ − λ⁻²) at λ = 2
+    comp = compare([Compound("short", [c])], model="mooney-rivlin")
+    q = comp["short"].quantities["M300_measured"]
+    assert q.value is None and "do not reach" in q.note  # stated, not a silent NaN
+
+
+def test_differences_against_baseline(mr_pair):
+    # B has 2C₁ 20 % higher: ν differs by +20 %, G₀ by 2·0.04/0.5 = +16 % (arithmetic on the closed form)
+    d = {x["key"]: x for x in mr_pair.differences()}
+    assert d["nu"]["percent"] == pytest.approx(20.0, abs=1e-3)
+    assert d["G0"]["percent"] == pytest.approx(16.0, abs=1e-3)
+    assert d["nu"]["intervals_overlap"] is False
+
+
+def test_same_recipe_with_noise_overlaps():
+    # two specimens sets of the same invented compound with 1 % noise: intervals overlap, difference small
+    a = mr_compound("A", 0.2e6, 0.05e6, noise=0.01, seed=1)
+    b = mr_compound("B", 0.2e6, 0.05e6, noise=0.01, seed=2)
+    c = mr_compound("C", 0.3e6, 0.05e6, noise=0.01, seed=3)
+    cmp = compare([a, b, c], model="mooney-rivlin", baseline="A")
+    d = {(x["compound"], x["key"]): x for x in cmp.differences()}
+    assert d[("B", "nu")]["intervals_overlap"] is True
+    assert abs(d[("B", "nu")]["percent"]) < 3.0
+    assert d[("C", "nu")]["intervals_overlap"] is False
+    assert d[("C", "nu")]["percent"] == pytest.approx(50.0, abs=5.0)
+
+
+def test_swelling_estimate_matches_flory_rehner_table():
+    # physics.md §5 table [derived from Flory & Rehner 1943]: φ = 0.20, χ = 0.39, affine, f = 4,
+    # V₁ = 106.85 cm³/mol -> ν = 1.4562e-4 mol/cm³ = 145.62 mol/m³.  Masses chosen to give φ = 0.20 with
+    # ρ(NR) = 910 kg/m³ and ρ(toluene) = 862.3 kg/m³ (the project's tables): m_s − m_d = 4 (m_d/ρ_p) ρ_s.
+    md = 1.0e-3
+    ms = md + 4.0 * (md / 910.0) * 862.3
+    comp = mr_compound("S", 0.2e6, 0.05e6)
+    comp.swelling = [SwellingTest(dry=md, swollen=ms, solvent="toluene", chi=0.39)]
+    r = compare([comp], model="mooney-rivlin")["S"]
+    q = r.quantities["nu_swelling"]
+    assert q.value == pytest.approx(145.62, rel=2e-4)
+    # χ ± 0.05 band: physics.md gives χ = 0.465 -> 87.711 mol/m³ at φ = 0.2, so χ + 0.05 lies above it
+    assert q.low > 87.711 and q.high > q.value > q.low
+
+
+def test_bad_swelling_masses_are_refused_with_a_sentence():
+    with pytest.raises(DataError, match="must exceed"):
+        SwellingTest(dry=2e-3, swollen=1e-3)
+    with pytest.raises(DataError, match="positive"):
+        SwellingTest(dry=-1, swollen=1e-3)
+
+
+def test_unfittable_compound_keeps_its_place_with_a_sentence():
+    planar_only = Compound("P", [TestCurve("planar", np.linspace(1.05, 2.5, 20),
+                                           mooney_planar(np.linspace(1.05, 2.5, 20), 0.2e6, 0.05e6))])
+    ok = mr_compound("U", 0.2e6, 0.05e6, planar=False)
+    cmp = compare([ok, planar_only], model="slip-tube", baseline="U")  # slip-tube is uniaxial only
+    assert cmp["U"].ok
+    assert not cmp["P"].ok and "choose another model" in cmp["P"].error
+    assert all(d["compound"] != "P" for d in cmp.differences())
+
+
+def test_compare_rejects_bad_requests():
+    a = mr_compound("A", 0.2e6, 0.05e6)
+    with pytest.raises(ValueError, match="baseline"):
+        compare([a], model="mooney-rivlin", baseline="Z")
+    with pytest.raises(ValueError, match="°C"):
+        compare([a], model="mooney-rivlin", service_temperature=80.0)  # 80 K: someone forgot the unit
+    with pytest.raises(ValueError, match="unique"):
+        compare([a, mr_compound("A", 0.3e6, 0.0)], model="mooney-rivlin")
+    with pytest.raises(ValueError, match="no compounds"):
+        compare([], model="mooney-rivlin")
+
+
+def test_compound_specs():
+    assert parse_spec("A=a.csv, b.csv") == ("A", ["a.csv", "b.csv"])
+    for bad in ("A", "=a.csv", "A="):
+        with pytest.raises(DataError, match="NAME=FILE"):
+            parse_spec(bad)
+    with pytest.raises(DataError, match="not found"):
+        compounds_from_specs(["A=/nonexistent/file.csv"])
+
+
+def test_sample_manifest_loads_every_compound_it_lists():
+    path = ROOT / "sample_sets" / "compounds.toml"
+    if not path.exists():
+        pytest.skip("sample set not generated")
+    raw = tomllib.loads(path.read_text("utf-8"))  # reference: the manifest itself
+    man = load_manifest(path)
+    assert [c.name for c in man.compounds] == [c["key"] for c in raw["compound"]]
+    assert man.baseline == raw["scenario"].get("baseline")
+    for c, spec in zip(man.compounds, raw["compound"], strict=True):
+        assert c.curves, c.name
+        files = {str((path.parent / f["path"]).resolve()) if isinstance(f, dict) else f for f in spec["files"]}
+        assert {str(Path(s).resolve()) for s in c.sources} <= files | {s for s in c.sources}
+        assert c.filler_fraction == pytest.approx(spec.get("filler_volume_fraction", 0.0))
+
+
+def test_own_manifest_format(tmp_path):
+    lam = np.linspace(1.05, 3.0, 25)
+    P = mooney_uniaxial(lam, 0.2e6, 0.05e6) / 1e6
+    f = tmp_path / "a.csv"
+    f.write_text("stretch,stress (MPa)\n" + "\n".join(f"{x:.6f},{y:.6f}" for x, y in zip(lam, P, strict=True)),
+                 "utf-8")
+    (tmp_path / "review.toml").write_text(
+        'title = "t"\n[[compound]]\nname = "A"\nfiles = ["a.csv"]\nbaseline = true\ncure_dose = "x"\n'
+        '[[compound.swelling]]\ndry_g = 1.0\nswollen_g = 4.0\n', "utf-8")
+    man = load_manifest(tmp_path / "review.toml", mode="uniaxial")
+    (c,) = man.compounds
+    assert c.name == "A" and c.baseline and man.baseline == "A"
+    assert c.metadata["cure_dose"] == "x"
+    assert c.swelling[0].dry == pytest.approx(1e-3) and c.swelling[0].swollen == pytest.approx(4e-3)
+    np.testing.assert_allclose(c.curves[0].stress, P * 1e6, rtol=0, atol=1.0)  # file holds 1 Pa steps
+    (tmp_path / "broken.toml").write_text("[[compound]\n", "utf-8")
+    with pytest.raises(DataError, match="cannot be parsed"):
+        load_manifest(tmp_path / "broken.toml")
+
+
+def test_core_does_not_import_the_app_stack():
+    code = ("import sys, network_models.compare, network_models.report, network_models.compounds;"
+            "bad=[m for m in sys.modules if m.split('.')[0] in ('panel','holoviews','bokeh')];"
+            "print(bad); sys.exit(1 if bad else 0)")
+    assert subprocess.run([sys.executable, "-c", code], capture_output=True).returncode == 0
+
+
+def test_no_nan_in_rows(mr_pair):
+    for row in mr_pair.rows():
+        for k, v in row.items():
+            if isinstance(v, dict):
+                assert v["value"] is None or math.isfinite(v["value"]), (row["compound"], k)
