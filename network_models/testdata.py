@@ -263,54 +263,71 @@ _META_KEYS = {
     "cycle": "cycle", "compound": "compound", "material": "compound",
     "stretch": "stretch", "clamp stretch": "stretch", "fixed stretch": "stretch",
 }
+# test-mode words machines write that Mode.parse does not know
+_MODE_WORDS = {"tensile": "uniaxial", "tensile test": "uniaxial", "uniaxial tensile": "uniaxial",
+               "biaxial tension": "equibiaxial", "bubble inflation": "equibiaxial", "shear": "planar"}
 _META_DIMENSIONS = {"gauge_length": "length", "width": "length", "thickness": "length", "area": "area",
                     "temperature": "temperature", "stretch": "dimensionless"}
 
 
-def _parse_meta(table: _Table) -> tuple[dict, dict, list[str]]:
-    """(known: canonical key -> SI value or text, extra: other key -> text, comments)."""
+def _parse_meta(table: _Table, lenient: frozenset[int] = frozenset()) -> tuple[dict, dict, list[str]]:
+    """(known: canonical key -> SI value or text, extra: other key -> text, comments).
+
+    Our own '# key: value' lines must be right (a DataError names the line); lines in ``lenient`` (a
+    machine's preamble above the header) that cannot be read are kept as text and noted instead."""
     known, extra, comments = {}, {}, []
     for lineno, text in table.meta:
-        m = re.match(r"^([^:=]+?)\s*[:=]\s*(.*)$", text)
-        if not m:
-            if text:
-                comments.append(text)
-            continue
-        raw_key, value = m.group(1).strip(), m.group(2).strip()
-        label, key_unit = split_header(raw_key)
-        key = " ".join(label.lower().replace("_", " ").split())
-        canon = _META_KEYS.get(key)
-        if canon is None:
-            extra[raw_key] = value
-            continue
-        if canon in _META_DIMENSIONS:
-            dim = _META_DIMENSIONS[canon]
-            try:
-                v = parse_quantity(value, dim, default_unit=key_unit)
-            except UnitError as e:
-                raise DataError(f"{table.filename}, line {lineno}: metadata '{raw_key}: {value}' — {e}") from None
-            if not math.isfinite(v) or (canon != "temperature" and v <= 0):
-                raise DataError(f"{table.filename}, line {lineno}: metadata '{raw_key}' must be a positive "
-                                f"number with a unit; got {value!r}")
-            if canon in ("gauge_length", "width", "thickness", "area") and not key_unit and \
-                    re.fullmatch(r"\s*[-+]?[\d.,eE+-]+\s*", value):
-                raise DataError(f"{table.filename}, line {lineno}: metadata '{raw_key}: {value}' has no unit; "
-                                f"write e.g. '# {key}: {value} mm'")
-            if canon == "temperature" and re.fullmatch(r"\s*[-+]?[\d.,eE+-]+\s*", value) and not key_unit:
-                raise DataError(f"{table.filename}, line {lineno}: temperature {value!r} has no unit; "
-                                f"write e.g. '# temperature: {value} °C' or '... K'")
-            if canon == "temperature" and v <= 0:
-                raise DataError(f"{table.filename}, line {lineno}: temperature {value!r} is at or below "
-                                "absolute zero; check the unit (°C, K or °F)")
-            known[canon] = v
-        elif canon == "mode":
-            try:
-                known[canon] = Mode.parse(value)
-            except ValueError as e:
-                raise DataError(f"{table.filename}, line {lineno}: {e}") from None
-        else:
-            known[canon] = value
+        try:
+            _meta_line(table.filename, lineno, text, known, extra, comments)
+        except DataError as e:
+            if lineno not in lenient:
+                raise
+            extra[text] = ""
+            table.notices.append(f"preamble line {lineno} kept as text only: {e}")
     return known, extra, comments
+
+
+def _meta_line(filename, lineno, text, known, extra, comments):
+    m = re.match(r"^([^:=]+?)\s*[:=]\s*(.*)$", text)
+    if not m:
+        if text:
+            comments.append(text)
+        return
+    raw_key, value = m.group(1).strip(), m.group(2).strip()
+    label, key_unit = split_header(raw_key)
+    key = " ".join(label.lower().replace("_", " ").split())
+    canon = _META_KEYS.get(key)
+    if canon is None:
+        extra[raw_key] = value
+        return
+    number_only = re.fullmatch(r"\s*[-+]?[\d.,eE+-]+\s*", value) is not None
+    if canon in _META_DIMENSIONS:
+        dim = _META_DIMENSIONS[canon]
+        try:
+            v = parse_quantity(value, dim, default_unit=key_unit)
+        except UnitError as e:
+            raise DataError(f"{filename}, line {lineno}: metadata '{raw_key}: {value}' — {e}") from None
+        if not math.isfinite(v) or (canon != "temperature" and v <= 0):
+            raise DataError(f"{filename}, line {lineno}: metadata '{raw_key}' must be a positive "
+                            f"number with a unit; got {value!r}")
+        if canon in ("gauge_length", "width", "thickness", "area") and not key_unit and number_only:
+            raise DataError(f"{filename}, line {lineno}: metadata '{raw_key}: {value}' has no unit; "
+                            f"write e.g. '# {key}: {value} mm'")
+        if canon == "temperature" and number_only and not key_unit:
+            raise DataError(f"{filename}, line {lineno}: temperature {value!r} has no unit; "
+                            f"write e.g. '# temperature: {value} °C' or '... K'")
+        if canon == "temperature" and v <= 0:
+            raise DataError(f"{filename}, line {lineno}: temperature {value!r} is at or below "
+                            "absolute zero; check the unit (°C, K or °F)")
+        known[canon] = v
+    elif canon == "mode":
+        value = _MODE_WORDS.get(value.strip().lower(), value)
+        try:
+            known[canon] = Mode.parse(value)
+        except ValueError as e:
+            raise DataError(f"{filename}, line {lineno}: {e}") from None
+    else:
+        known[canon] = value
 
 
 # ---------------------------------------------------------------------------------------------------
@@ -462,9 +479,40 @@ def _geometry(opts: dict, known: dict, filename: str):
     return gauge, area
 
 
+def _find_header(table: _Table) -> frozenset[int]:
+    """Move a machine's preamble (rows above the header row) into the metadata; return its line numbers.
+
+    The header is the first of the top 50 rows that names a stretch/strain/extension or a stress/force
+    column.  Preamble rows 'Key: value' or 'Key;value;unit' become metadata lines."""
+    header_at = 0
+    for i, row in enumerate(table.rows[:50]):
+        cells = [_cell_text(c) for c in row]
+        if all(_is_number_cell(c) or c == "" for c in row):
+            break  # data before any header: let the caller report the missing header
+        kinds = {_classify(k, h, None).kind for k, h in enumerate(cells) if h}
+        if kinds & set(_X_KINDS + _Y_KINDS) and sum(1 for c in cells if c) >= 2:
+            header_at = i
+            break
+    if header_at == 0:
+        return frozenset()
+    lines = set()
+    for row, lineno in zip(table.rows[:header_at], table.row_numbers[:header_at], strict=True):
+        cells = [_cell_text(c).strip() for c in row if _cell_text(c).strip()]
+        if len(cells) >= 2 and ":" not in cells[0]:
+            text = cells[0].rstrip(":") + ": " + " ".join(cells[1:])
+        else:
+            text = " ".join(cells)
+        table.meta.append((lineno, text))
+        lines.add(lineno)
+    table.notices.append(f"{header_at} line(s) above the header row read as metadata (preamble)")
+    table.rows, table.row_numbers = table.rows[header_at:], table.row_numbers[header_at:]
+    return frozenset(lines)
+
+
 def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve]:
     fn = table.filename
-    known, extra, comments = _parse_meta(table)
+    lenient = _find_header(table)
+    known, extra, comments = _parse_meta(table, lenient)
     rows, numbers = table.rows, table.row_numbers
 
     # header row: the first row holding a non-number

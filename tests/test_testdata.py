@@ -188,6 +188,19 @@ def test_compression_data(tmp_path):
     np.testing.assert_allclose(c.stretch, [1, 0.9, 0.8, 0.7])
 
 
+def test_machine_preamble_above_the_header():
+    # a tensile machine's export: free preamble lines, a header row, a unit row, decimal commas
+    data = ("Test report\nSpecimen;B-7\nTemperature;23;°C\nWidth;4;mm\nThickness;2;mm\nGauge length;20;mm\n"
+            "Test mode;Tensile\nSpeed;500;mm/min\nExtension;Standard force\nmm;N\n0;0\n2;1,5\n4;2,9\n6;4,1\n")
+    (c,) = read_curves_bytes(data.encode("utf-8"), "machine.txt")
+    assert c.specimen == "B-7" and c.mode is Mode.UNIAXIAL
+    assert c.temperature == pytest.approx(23 + sc.zero_Celsius)
+    np.testing.assert_allclose(c.stretch, [1.0, 1.1, 1.2, 1.3])  # λ = 1 + ΔL/20 mm
+    np.testing.assert_allclose(c.stress, np.array([0, 1.5, 2.9, 4.1]) / 8e-6)  # F / (4 mm × 2 mm)
+    assert c.metadata["Speed"] == "500 mm/min"
+    assert any("preamble" in n for n in c.notices)
+
+
 def test_bytes_and_path_read_the_same(tmp_path):
     text = "# mode: planar\nstretch,stress (MPa)\n1,0\n1.5,0.3\n2,0.5\n"
     (a,) = read_curves(write(tmp_path, "n.csv", text))
