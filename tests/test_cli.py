@@ -1,0 +1,170 @@
+"""The fit, crosslinks and swell commands run in-process on files generated in tmp_path.
+
+Curves are made in code from the eight-chain model with known parameters (seeded noise); the checks
+compare what the command prints with those parameters and with the documented relations, never with
+output saved from an earlier run.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from scipy.constants import R
+
+from network_models import get_model
+from network_models.cli import main
+
+TRUE = {"mu": 0.35e6, "N": 15.0}
+
+
+def _no_nan(text):
+    def bad(c):
+        raise AssertionError(f"non-JSON constant {c} in output")
+
+    return json.loads(text, parse_constant=bad)
+
+
+@pytest.fixture
+def lab_files(tmp_path):
+    m = get_model("eight-chain")
+    rng = np.random.default_rng(3)
+    paths = []
+    for mode, top in (("uniaxial", 4.0), ("planar", 3.0)):
+        lam = np.linspace(1.05, top, 25)
+        P = m.nominal_stress(mode, lam, TRUE) + 2e3 * rng.standard_normal(lam.size)
+        p = tmp_path / f"{mode}.csv"
+        lines = [f"# mode: {mode}", "# temperature: 23 °C", "stretch,stress (MPa)"]
+        lines += [f"{a:.6f},{b / 1e6:.7f}" for a, b in zip(lam, P, strict=True)]
+        p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+        paths.append(str(p))
+    return paths
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+# ------------------------------------------------------------------------------------------------
+def test_fit_human_table(capsys, lab_files):
+    code, out, err = run(capsys, "fit", *lab_files, "--model", "eight-chain", "--model", "mooney-rivlin")
+    assert code == 0, err
+    for words in ("Eight-chain", "Mooney–Rivlin", "MPa", "mol/m³", "10⁻⁴mol/cm³", "g/mol", "95 % interval",
+                  "assumes:", "Caution", "Lowest AIC"):
+        assert words in out
+    assert "Traceback" not in out + err
+
+
+def test_fit_json_parameters_and_network(capsys, lab_files):
+    code, out, err = run(capsys, "fit", *lab_files, "--model", "eight-chain", "--json")
+    assert code == 0, err
+    doc = _no_nan(out)
+    res = doc["models"]["eight-chain"]
+    mu, N = res["parameters"]["mu"], res["parameters"]["N"]
+    assert mu["unit"] == "Pa" and N["unit"] == "1"
+    # the known parameters that made the files lie inside (or very near) the reported 95 % intervals
+    assert mu["ci95"][0] < TRUE["mu"] < mu["ci95"][1] or mu["value"] == pytest.approx(TRUE["mu"], rel=0.01)
+    assert N["ci95"][0] < TRUE["N"] < N["ci95"][1] or N["value"] == pytest.approx(TRUE["N"], rel=0.02)
+    assert set(res["statistics"]["per_mode"]) == {"uniaxial", "planar"}
+    rows = {r["key"]: r for r in res["network"]["rows"]}
+    G0 = res["statistics"]["small_strain_modulus_Pa"]
+    assert rows["affine"]["strand_density"] == pytest.approx(G0 / (R * 296.15), rel=1e-9)  # G = νRT at 23 °C
+    assert rows["affine"]["junction_density"] == pytest.approx(rows["affine"]["strand_density"] / 2)
+    assert isinstance(res["warnings"], list)
+
+
+def test_fit_relative_and_unsupported_mode_model(capsys, lab_files):
+    code, out, err = run(capsys, "fit", *lab_files, "--model", "slip-tube", "--relative", "--json")
+    assert code == 0, err
+    res = _no_nan(out)["models"]["slip-tube"]
+    assert res["residual"] == "relative"
+    assert any("left out" in w for w in res["warnings"])
+
+
+@pytest.mark.parametrize("args,words", [
+    (["fit", "missing.csv"], "missing.csv"),
+    (["fit", "{f}", "--model", "no-such-model"], "no model called"),
+    (["fit", "{f}", "--temperature", "23"], "has no unit"),
+    (["fit", "{f}", "--temperature", "23 furlongs"], "--temperature"),
+    (["crosslinks", "--modulus", "0.55"], "has no unit"),
+    (["crosslinks", "--modulus", "0.55MPa", "--polymer", "XYZ"], "unknown polymer"),
+    (["crosslinks", "--modulus", "20mm"], "pressure"),
+    (["crosslinks", "--modulus", "0.5MPa", "--functionality", "2"], "functionality"),
+    (["swell", "--dry", "3g", "--swollen", "1g"], "swollen mass"),
+    (["swell", "--dry", "1", "--swollen", "3g"], "has no unit"),
+    (["swell", "--dry", "1g", "--swollen", "3g", "--polymer", "EPDM"], "give χ yourself"),
+    (["swell", "--dry", "1g", "--swollen", "3g", "--solvent", "water"], "unknown solvent"),
+])
+def test_error_paths_exit_2_with_a_sentence(capsys, lab_files, args, words):
+    args = [a.replace("{f}", lab_files[0]) for a in args]
+    code, out, err = run(capsys, *args)
+    assert code == 2
+    assert words in err
+    assert "Traceback" not in err
+
+
+def test_fit_malformed_file(capsys, tmp_path):
+    p = tmp_path / "broken.csv"
+    p.write_text("stretch,stress (MPa)\n1.1,abc\n1.2,xyz\n", encoding="utf-8")
+    code, out, err = run(capsys, "fit", str(p), "--mode", "uniaxial")
+    assert code == 2 and "broken.csv" in err and "Traceback" not in err
+
+
+def test_fit_flat_curve_cannot_be_fitted(capsys, tmp_path):
+    p = tmp_path / "flat.csv"
+    p.write_text("# mode: uniaxial\nstretch,stress (MPa)\n" + "".join(f"{1 + 0.1 * i:.2f},0\n" for i in range(1, 12)),
+                 encoding="utf-8")
+    code, out, err = run(capsys, "fit", str(p))
+    assert code == 2 and "Traceback" not in err
+    assert err.strip()
+
+
+def test_crosslinks_table_and_json(capsys):
+    code, out, err = run(capsys, "crosslinks", "--modulus", "0.55MPa", "--kind", "G", "--temperature", "23C",
+                         "--polymer", "NR")
+    assert code == 0, err
+    assert "affine" in out and "phantom" in out and "mol/m³" in out and "g/mol" in out and "Caution" in out
+    code, out, err = run(capsys, "crosslinks", "--modulus", "1.75MPa", "--kind", "M100", "--json",
+                         "--range", "1.6MPa", "1.9MPa", "--filler", "0.1", "--mn", "250kg/mol")
+    assert code == 0, err
+    doc = _no_nan(out)
+    rows = {r["key"]: r for r in doc["rows"]}
+    # M100 = 1.75 MPa ⇒ G = 1.75/(2 − 1/4) = 1.0 MPa (neo-Hookean inversion); ν = G/(RT) at 23 °C
+    assert doc["shear_modulus_Pa"] == pytest.approx(1.0e6)
+    assert rows["affine"]["strand_density"] == pytest.approx(1.0e6 / (R * 296.15))
+    assert rows["affine"]["strand_density_ci95"][0] < rows["affine"]["strand_density"]
+    assert "affine-no-filler" in rows and "affine-dangling-ends" in rows
+
+
+def test_crosslinks_json_no_positive_share_gives_null(capsys):
+    # a modulus below the polymer's plateau modulus leaves no crosslink share: null, never NaN
+    code, out, err = run(capsys, "crosslinks", "--modulus", "0.1MPa", "--json")
+    assert code == 0, err
+    rows = {r["key"]: r for r in _no_nan(out)["rows"]}
+    assert rows["affine-no-entanglement"]["strand_density"] is None
+    assert rows["affine-no-entanglement"]["note"]
+
+
+def test_swell_table_and_json(capsys):
+    code, out, err = run(capsys, "swell", "--dry", "1.000g", "--swollen", "3.20g", "--solvent", "toluene",
+                         "--polymer", "NR", "--chi", "0.39", "--temperature", "23C", "--modulus", "0.55MPa")
+    assert code == 0, err
+    assert "φ" in out and "affine" in out and "phantom" in out and "χ" in out and "ratio" in out
+    code, out, err = run(capsys, "swell", "--dry", "1000mg", "--swollen", "3.2g", "--json")
+    assert code == 0, err
+    doc = _no_nan(out)
+    rows = {r["assumption"]: r for r in doc["rows"]}
+    lo, hi = rows["affine"]["strand_density_band"]
+    assert lo > rows["affine"]["strand_density"] > hi
+    assert doc["chi"]["band"] == pytest.approx([0.34, 0.44])
+    assert rows["affine"]["junction_density"] == pytest.approx(rows["affine"]["strand_density"] / 2)
+
+
+def test_bad_choice_is_argparse_exit_2(capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["crosslinks", "--modulus", "1MPa", "--kind", "M200"])
+    assert exc.value.code == 2
+    assert "Traceback" not in capsys.readouterr().err
