@@ -1,0 +1,248 @@
+"""The review report: its numbers are the fit's numbers (read back from HTML, CSV and JSON), the files
+round-trip, and the HTML opens offline in headless Chromium with visible plots and no network request."""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+import shutil
+from html.parser import HTMLParser
+
+import numpy as np
+import pytest
+
+from network_models.cli import main
+from network_models.compare import compare
+from network_models.compounds import Compound
+from network_models.report import CAUTIONS, Report, fmt, nice_ticks, read_csv, svg_line_chart
+from network_models.testdata import TestCurve
+
+T23 = 296.15
+
+
+def gent_uniaxial(lam, G, Jm):
+    """Gent 1996 (Rubber Chem. Technol. 69:59, from memory): W = −(G J_m/2) ln(1 − (I₁ − 3)/J_m), so
+    P = G(λ − λ⁻²) / (1 − (I₁ − 3)/J_m) in uniaxial tension with I₁ = λ² + 2/λ (physics.md §2–3)."""
+    lam = np.asarray(lam, float)
+    I1 = lam**2 + 2 / lam
+    return G * (lam - lam**-2) / (1 - (I1 - 3) / Jm)
+
+
+def gent_planar(lam, G, Jm):
+    """Planar tension: I₁ = λ² + 1 + λ⁻², P = G(λ − λ⁻³)/(1 − (I₁ − 3)/J_m)."""
+    lam = np.asarray(lam, float)
+    I1 = lam**2 + 1 + lam**-2
+    return G * (lam - lam**-3) / (1 - (I1 - 3) / Jm)
+
+
+def compound(name, G, Jm, seed):
+    rng = np.random.default_rng(seed)
+    lu = np.linspace(1.05, 4.5, 50)
+    lp = np.linspace(1.05, 3.0, 30)
+    cs = [TestCurve("uniaxial", lu, gent_uniaxial(lu, G, Jm) * (1 + 0.01 * rng.standard_normal(lu.size)),
+                    name=f"{name}-u", source=f"{name}_uniaxial.csv", temperature=T23, cycle="3rd loading"),
+          TestCurve("planar", lp, gent_planar(lp, G, Jm) * (1 + 0.01 * rng.standard_normal(lp.size)),
+                    name=f"{name}-p", source=f"{name}_planar.csv", temperature=T23)]
+    return Compound(name, cs, metadata={"cure dose": f"{name} (invented)"}, notes="invented for a test")
+
+
+@pytest.fixture(scope="module")
+def report():
+    cmp = compare([compound("A", 0.45e6, 60.0, 1), compound("B", 0.55e6, 50.0, 2)], model="gent",
+                  baseline="A", service_temperature=353.15)
+    assert all(r.ok for r in cmp.results)
+    return Report(cmp, title="Test review (invented data)", purpose="Check the report numbers")
+
+
+class Cells(HTMLParser):
+    """Collect table cells carrying data-key/data-value, with their visible text."""
+
+    def __init__(self):
+        super().__init__()
+        self.cells, self._cur, self.tags = [], None, []
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append((tag, dict(attrs)))
+        a = dict(attrs)
+        if tag == "td" and "data-key" in a:
+            self._cur = {"compound": a["data-compound"], "key": a["data-key"], "value": float(a["data-value"]),
+                         "text": ""}
+
+    def handle_endtag(self, tag):
+        if tag == "td" and self._cur is not None:
+            self.cells.append(self._cur)
+            self._cur = None
+
+    def handle_data(self, data):
+        if self._cur is not None:
+            self._cur["text"] += data
+
+
+def first_number(text):
+    m = re.search(r"[−-]?\d+(?:\.\d+)?(?:e[+-]?\d+)?", text)
+    return float(m.group(0).replace("−", "-"))
+
+
+def test_html_numbers_are_the_fit_results(report):
+    p = Cells()
+    p.feed(report.to_html())
+    params = {(c["compound"], c["key"][6:]): c for c in p.cells if c["key"].startswith("param:")}
+    for r in report.cmp.results:
+        fr = r.fit
+        for name, est in fr.params.items():
+            cell = params[(r.name, name)]
+            assert cell["value"] == est.value  # exact, full precision
+            decl = r.params[[q.name for q in r.params].index(name)]
+            shown = first_number(cell["text"])  # what a reader sees: 4 significant digits, trade unit
+            assert shown == pytest.approx(est.value * decl.display_scale, rel=6e-4)
+        g0 = next(c for c in p.cells if c["compound"] == r.name and c["key"] == "G0")
+        assert g0["value"] == pytest.approx(fr.small_strain_modulus, rel=1e-12)
+        assert first_number(g0["text"]) == pytest.approx(fr.small_strain_modulus / 1e6, rel=6e-4)
+
+
+def test_csv_and_json_hold_the_fit_results_and_round_trip(report, tmp_path):
+    paths = report.write(tmp_path / "review.html")
+    assert set(paths) == {"html", "csv", "json"} and all(p.exists() for p in paths.values())
+    rows = read_csv(paths["csv"])
+    doc = json.loads(paths["json"].read_text("utf-8"))
+    by = {(r["section"], r["compound"], r["key"]): r for r in rows}
+    for r in report.cmp.results:
+        for name, est in r.fit.params.items():
+            row = by[("parameter", r.name, name)]
+            assert row["value"] == est.value  # repr() in the CSV: exact float round trip
+            assert (row["ci95_low"], row["ci95_high"]) == tuple(est.ci95)
+        jc = next(c for c in doc["compounds"] if c["name"] == r.name)
+        for p in jc["parameters"]:
+            assert p["value"] == r.fit.params[p["name"]].value
+        # every quantity of the JSON is in the CSV with the same value and interval
+        for key, q in jc["quantities"].items():
+            row = by[("quantity", r.name, key)]
+            assert row["value"] == q["value"] and row["ci95_low"] == q["ci95_low"]
+            assert row["unit"] == q["unit"]
+    # differences: CSV and JSON agree
+    for d in doc["differences"]:
+        assert by[("difference", d["compound"], d["key"])]["value"] == pytest.approx(d["percent"], rel=1e-15)
+    # the CSV re-written from what was read is identical (round trip of the file itself)
+    assert paths["csv"].read_text("utf-8") == report.to_csv()
+    assert all(v is None or math.isfinite(v) for r in rows for v in (r["value"], r["ci95_low"], r["ci95_high"]))
+
+
+def test_html_is_self_contained_and_has_the_review_sections(report):
+    html = report.to_html()
+    p = Cells()
+    p.feed(html)
+    for tag, attrs in p.tags:
+        assert tag not in ("script", "link", "img", "iframe", "object", "embed")
+        for k in ("src", "href"):
+            assert k not in attrs or attrs[k].startswith("#"), (tag, attrs)
+    urls = set(re.findall(r"https?://[^\s\"'<>]+", html))
+    assert urls <= {"http://www.w3.org/2000/svg"}  # the SVG namespace name, not a request
+    assert "@import" not in html and "url(http" not in html
+    for needed in ("Purpose:", "Data provenance", "Fitted parameters", "Crosslink density under stated",
+                   "Comparison", "Warnings", "Model and references", "Gent 1996", "3rd loading", "A_uniaxial.csv"):
+        assert needed in html, needed
+    for c in CAUTIONS:
+        assert c in html.replace("&#x27;", "'")
+    assert html.count("<svg") >= 4  # uniaxial, planar, crosslink bars, service temperature
+    assert "nan" not in re.sub(r"<[^>]+>", " ", html).lower().split()
+
+
+def test_fmt_significant_digits():
+    # 4 significant digits, plain notation in the usual range (common practice for review tables)
+    assert fmt(0.45123) == "0.4512"
+    assert fmt(1234.5) == "1234"  # half-to-even at the 4th digit is Python's format rule
+    assert fmt(141.18) == "141.2"
+    assert fmt(None) == "—" and fmt(float("nan")) == "—"
+    assert fmt(2.5e-7) == "2.500e-07"
+
+
+@pytest.mark.parametrize("lo,hi", [(0, 1), (1, 4.5), (0, 2.96), (0.2, 0.27), (1, 13.8), (0, 1234.0)])
+def test_nice_ticks_cover_range_with_round_steps(lo, hi):
+    # 1–2–2.5–5 × 10^k steps, ticks covering the data (common practice for axis labelling)
+    t = nice_ticks(lo, hi)
+    assert t[0] <= lo + 1e-12 and t[-1] >= hi - 1e-12
+    steps = np.diff(t)
+    assert np.allclose(steps, steps[0])
+    mant = steps[0] / 10 ** math.floor(math.log10(steps[0]))
+    assert any(math.isclose(mant, m) for m in (1, 2, 2.5, 5))
+    assert 3 <= len(t) <= 12
+
+
+def test_svg_chart_skips_nan_and_labels_axes():
+    svg = svg_line_chart([{"label": "a", "x": [1, 2, 3, 4], "y": [0, 1, float("nan"), 3], "color": "#123456"}],
+                         "stretch λ (1)", "nominal stress P (MPa)", "t")
+    assert "stretch λ (1)" in svg and "nominal stress P (MPa)" in svg and "nan" not in svg.lower()
+
+
+def test_cli_report_writes_three_files(tmp_path, capsys):
+    files = []
+    for name, G in (("A", 0.45e6), ("B", 0.55e6)):
+        lam = np.linspace(1.05, 4.0, 40)
+        f = tmp_path / f"{name}.csv"
+        f.write_text("# test: uniaxial\n# temperature: 23 °C\nstretch,nominal stress (MPa)\n" + "\n".join(
+            f"{x:.5f},{y / 1e6:.6f}" for x, y in zip(lam, gent_uniaxial(lam, G, 60.0), strict=True)), "utf-8")
+        files.append(f"{name}={f}")
+    out = tmp_path / "rev.html"
+    rc = main(["report", "--compound", files[0], "--compound", files[1], "--model", "gent", "--mode", "uniaxial",
+               "--baseline", "A", "--service-temperature", "80C", "--purpose", "test", "-o", str(out)])
+    text = capsys.readouterr().out
+    assert rc == 0, text
+    assert out.exists() and out.with_suffix(".csv").exists() and out.with_suffix(".json").exists()
+    assert "Against A" in text and "ν (mol/m³)" in text
+    doc = json.loads(out.with_suffix(".json").read_text("utf-8"))
+    assert doc["service_temperature_K"] == pytest.approx(353.15)
+    assert doc["report"]["purpose"] == "test"
+
+
+@pytest.mark.parametrize("argv,words", [
+    (["report"], "--compound"),
+    (["report", "--compound", "A"], "NAME=FILE"),
+    (["report", "--compound", "A=/no/such.csv"], "not found"),
+    (["compare", "--compound", "A=/no/such.csv", "--model", "nosuch"], "not found"),
+])
+def test_cli_errors_are_one_sentence_exit_2(argv, words, capsys):
+    assert main(argv) == 2
+    err = capsys.readouterr().err
+    assert words in err and "Traceback" not in err and err.count("\n") == 1
+
+
+# ----- browser -----------------------------------------------------------------------------------
+def _chromium():
+    path = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
+    if not path:
+        if os.environ.get("NETSTRETCH_REQUIRE_BROWSER") == "1":
+            pytest.fail("NETSTRETCH_REQUIRE_BROWSER=1 but no Chromium found (set NETSTRETCH_CHROMIUM)")
+        pytest.skip("no Chromium on this machine (set NETSTRETCH_CHROMIUM or install chromium)")
+    return path
+
+
+@pytest.mark.ui
+def test_report_opens_offline_with_visible_plots(report, tmp_path):
+    exe = _chromium()
+    sync_playwright = pytest.importorskip("playwright.sync_api").sync_playwright
+    html = report.write(tmp_path / "review.html")["html"]
+    requests = []
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=exe, args=[
+            "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+            "--disable-sync", "--no-first-run"])
+        try:
+            page = browser.new_page(viewport={"width": 1200, "height": 900})
+            page.on("request", lambda r: requests.append(r.url))
+            page.goto(html.as_uri())
+            page.wait_for_load_state("load")
+            boxes = page.eval_on_selector_all(
+                "svg.chart", "els => els.map(e => {const r = e.getBoundingClientRect(); "
+                "return [r.width, r.height, e.querySelectorAll('polyline,rect,circle').length]})")
+            title = page.title()
+            os.makedirs("/tmp/shots", exist_ok=True)
+            page.screenshot(path="/tmp/shots/report_ui.png", full_page=True)
+        finally:
+            browser.close()
+    assert requests == [html.as_uri()], requests  # the file itself, nothing else
+    assert title == "Test review (invented data)"
+    assert len(boxes) >= 4
+    for w, h, marks in boxes:
+        assert w > 300 and h > 200 and marks > 3
