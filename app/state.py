@@ -60,6 +60,15 @@ def fmt(value, digits: int = 3, unit: str = "") -> str:
     return f"{text} {unit}".rstrip()
 
 
+def sig(value, digits: int = 4) -> str:
+    """``digits`` significant digits in plain positional notation (no e+03 in tables a compounder reads)."""
+    if value is None or not np.isfinite(value):
+        return "—"
+    if value != 0 and not (1e-4 <= abs(value) < 1e7):
+        return f"{value:.{digits}g}"
+    return np.format_float_positional(value, precision=digits, unique=False, fractional=False, trim="-")
+
+
 def polymer_label(key: str) -> str:
     p = polymers()[key]
     flag = "values from memory — check before relying on them" if p.status == "memory" else "values read in source"
