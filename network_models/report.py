@@ -62,6 +62,11 @@ def fmt(x, digits=4) -> str:
     return f"{x:.{digits - 1}e}"
 
 
+def _signed(x: float, decimals: int) -> str:
+    """+12.3 / −4.5 with a true minus sign."""
+    return f"{x:+.{decimals}f}".replace("-", "−")
+
+
 def _e(text) -> str:
     return html.escape(str(text), quote=True)
 
@@ -102,7 +107,7 @@ def _tick_label(t: float) -> str:
     return s.replace("-", "−")
 
 
-def svg_line_chart(series: list[dict], xlabel: str, ylabel: str, title: str = "", width: int = 640,
+def svg_line_chart(series: list[dict], xlabel: str, ylabel: str, title: str = "", width: int = 860,
                    height: int = 380, x0: float | None = None, y0: float | None = 0.0) -> str:
     """A line/marker chart.  Each series: ``label``, ``x``, ``y``, ``color``, ``style`` in
     {"line", "dashed", "markers"}.  NaN points break lines.  Returns an ``<svg>`` element."""
@@ -117,7 +122,10 @@ def svg_line_chart(series: list[dict], xlabel: str, ylabel: str, title: str = ""
     if finite_x.size == 0:
         finite_x, finite_y = np.array([0.0, 1.0]), np.array([0.0, 1.0])
     xlo = float(finite_x.min()) if x0 is None else min(x0, float(finite_x.min()))
-    ylo = float(finite_y.min()) if y0 is None else min(y0, float(finite_y.min()))
+    ylo = float(finite_y.min())
+    if y0 is not None:  # small excursions below y0 (slack, noise) are clipped rather than widening the axis
+        span = float(finite_y.max()) - y0
+        ylo = y0 if ylo >= y0 - 0.03 * abs(span) else ylo
     xt = nice_ticks(xlo, float(finite_x.max()))
     yt = nice_ticks(ylo, float(finite_y.max()))
     xa, xb, ya, yb = xt[0], xt[-1], yt[0], yt[-1]
@@ -186,7 +194,7 @@ def svg_line_chart(series: list[dict], xlabel: str, ylabel: str, title: str = ""
     return "\n".join(out)
 
 
-def svg_bar_chart(categories: list[str], groups: list[dict], ylabel: str, title: str = "", width: int = 640,
+def svg_bar_chart(categories: list[str], groups: list[dict], ylabel: str, title: str = "", width: int = 860,
                   height: int = 360) -> str:
     """Grouped bars with 95 % error bars.  Each group: ``label``, ``color``, ``values``, ``lows``, ``highs``
     (None where absent)."""
@@ -306,11 +314,12 @@ def service_plot(cmp: Comparison) -> str:
         cs = [c for c in r.compound.curves if c.mode is mode]
         if cs:
             top = max(top, max(float(c.stretch.max()) for c in cs))
-    grid = np.linspace(1.0, top, 160)
     Ts = cmp.service_temperature
     for i, r in enumerate(cmp.results):
         if not r.ok:
             continue
+        own = [float(c.stretch.max()) for c in r.compound.curves if c.mode is mode]
+        grid = np.linspace(1.0, max(own) if own else top, 160)  # each compound over its own tested range
         color = PALETTE[i % len(PALETTE)]
         p = r.param_values()
         series.append({"label": f"{r.name} at {_temp_c(r.test_temperature)}", "x": grid,
@@ -344,6 +353,8 @@ th{background:#eef2f3;font-weight:600}td.num{text-align:right;font-variant-numer
 .chart .lg{font-size:11.5px}.chart .ct{font-size:13px;font-weight:600}
 .eq{font-family:"DejaVu Sans Mono",Consolas,monospace;background:#f3f5f6;padding:6px 10px;display:block}
 small{color:#56656e}
+table.prov{font-size:.82em;width:100%}table.prov td:nth-child(2){white-space:nowrap}
+table.prov td:nth-child(5){min-width:8em}
 @media print{body{background:#fff}main{padding:0}.chart{break-inside:avoid}h2{break-after:avoid}}
 """
 
@@ -461,10 +472,11 @@ class Report:
             f"<b>{_e(m.title)}</b> · baseline: <b>{_e(c.baseline or '—')}</b> · service temperature: "
             f"<b>{_temp_c(c.service_temperature)}</b> · {len(c.results)} compound(s)</p>")
         parts.append(f'<div class="caution"><b>Caution.</b> {_e(CAUTIONS[0])} {_e(CAUTIONS[2])}</div>')
+        parts += self._summary_html()
         parts += self._compounds_html()
-        parts += self._provenance_html()
         parts += self._comparison_html()
         parts += self._plots_html()
+        parts += self._provenance_html()
         parts += self._params_html()
         parts += self._crosslink_html()
         parts += self._swelling_html()
@@ -476,37 +488,73 @@ class Report:
         parts.append("</main></body></html>")
         return "\n".join(parts)
 
+    def _summary_html(self):
+        """Plain-sentence findings: each compound against the baseline on ν, G₀ at service temperature
+        and M100 (measured where the data reach it)."""
+        c = self.cmp
+        diffs = {(d["compound"], d["key"]): d for d in c.differences()}
+        items = []
+        for r in c.results:
+            if r.name == c.baseline:
+                continue
+            if not r.ok:
+                items.append(f"<li class='err'>{_e(r.error)}</li>")
+                continue
+            bits = []
+            for key, what in (("nu", "strand density ν"), ("G0_service", f"G₀ at {_temp_c(c.service_temperature)}"),
+                              ("M100_measured", "measured M100")):
+                d = diffs.get((r.name, key))
+                if d is None:
+                    continue
+                verdict = {True: "within the 95 % intervals of the baseline",
+                           False: "outside the 95 % intervals", None: ""}[d["intervals_overlap"]]
+                bits.append(f"{what} {_signed(d['percent'], 0)} %" + (f" ({verdict})" if verdict else ""))
+            if bits:
+                items.append(f"<li><b>{_e(r.name)}</b> vs {_e(c.baseline)}: {_e('; '.join(bits))}.</li>")
+        if not items:
+            return []
+        return ["<h2>Summary</h2><ul>" + "".join(items) + "</ul><p><small>Intervals cover the fit only, not "
+                "specimen-to-specimen or batch scatter; differences smaller than the usual scatter of the test "
+                "are not decisions.</small></p>"]
+
     def _compounds_html(self):
-        keys = []
-        for r in self.cmp.results:
-            for k in r.compound.metadata:
-                if k not in keys:
-                    keys.append(k)
         out = ["<h2>Compounds</h2><table><tr><th>compound</th><th>polymer</th><th>f</th><th>modes tested</th>"
-               + "".join(f"<th>{_e(k)}</th>" for k in keys) + "<th>notes</th></tr>"]
+               "<th>swelling tests</th><th>recipe and notes (as given)</th></tr>"]
         for r in self.cmp.results:
             c = r.compound
-            base = " (baseline)" if c.name == self.cmp.baseline else ""
+            base = " <small>(baseline)</small>" if c.name == self.cmp.baseline else ""
+            meta = " · ".join(f"<small>{_e(str(k).replace('_', ' '))}:</small> {_e(v)}"
+                              for k, v in c.metadata.items() if not isinstance(v, (dict, list)))
+            notes = f"<div><i>{_e(c.notes)}</i></div>" if c.notes else ""
             out.append(f"<tr><td><b>{_e(c.name)}</b>{base}</td><td>{_e(c.polymer)}</td><td class='num'>{c.f:g}</td>"
-                       f"<td>{_e(', '.join(x.value for x in c.modes))}</td>"
-                       + "".join(f"<td>{_e(c.metadata.get(k, ''))}</td>" for k in keys)
-                       + f"<td>{_e(c.notes)}</td></tr>")
+                       f"<td>{_e(', '.join(x.value for x in c.modes))}</td><td class='num'>{len(c.swelling)}</td>"
+                       f"<td>{meta}{notes}</td></tr>")
         out.append("</table>")
         return out
 
     def _provenance_html(self):
-        out = ["<h2>Data provenance</h2><table><tr><th>compound</th><th>file</th><th>curve</th><th>mode</th>"
-               "<th>specimen</th><th>cycle</th><th>temperature</th><th>points</th><th>stretch range</th>"
-               "<th>reader notices</th></tr>"]
+        from pathlib import Path as _P
+
+        folders = sorted({str(_P(p["source"]).parent) for r in self.cmp.results for p in r.compound.provenance()
+                          if p["source"] and not p["source"].startswith("(")})
+        out = ["<h2>Data provenance</h2>"]
+        if folders:
+            out.append("<p><small>Files read from: " + ", ".join(_e(f) for f in folders) + "</small></p>")
+        out.append("<table class='prov'><tr><th>compound</th><th>file</th><th>mode</th>"
+                   "<th>specimen</th><th>cycle</th><th>temperature</th><th>points</th><th>stretch range</th>"
+                   "<th>reader notices</th></tr>")
         for r in self.cmp.results:
             for p in r.compound.provenance():
+                src = p["source"]
+                name = _P(src).name if src and not src.startswith("(") else src
                 out.append(
-                    f"<tr><td>{_e(r.name)}</td><td>{_e(p['source'])}</td><td>{_e(p['curve'])}</td>"
-                    f"<td>{_e(p['mode'])}</td><td>{_e(p['specimen'] or '—')}</td><td>{_e(p['cycle'] or '—')}</td>"
+                    f"<tr><td>{_e(r.name)}</td><td title='{_e(src)}'>{_e(name)}</td>"
+                    f"<td>{_e(p['mode'])}</td><td>{_e(p['specimen'] or p['curve'])}</td>"
+                    f"<td>{_e(p['cycle'] or '—')}</td>"
                     f"<td class='num'>{_temp_c(p['temperature_K']) if p['temperature_K'] else 'not stated'}</td>"
                     f"<td class='num'>{p['points']}</td>"
                     f"<td class='num'>{fmt(p['stretch_min'])} – {fmt(p['stretch_max'])}</td>"
-                    f"<td>{_e('; '.join(p['notices']) or '—')}</td></tr>")
+                    f"<td><small>{_e('; '.join(p['notices']) or '—')}</small></td></tr>")
         out.append("</table>")
         return out
 
@@ -522,7 +570,7 @@ class Report:
         if diff is not None:
             mark = {True: ("same", "intervals overlap"), False: ("sig", "intervals apart"),
                     None: ("", "")}[diff["intervals_overlap"]]
-            d = (f"<br><span class='diff'>{diff['percent']:+.1f} % "
+            d = (f"<br><span class='diff'>{_signed(diff['percent'], 1)} % "
                  f"<span class='{mark[0]}'>{mark[1]}</span></span>")
         return (f"<td class='num' data-compound='{_e(r.name)}' data-key='{_e(q.key)}' data-value='{q.value!r}'>"
                 f"{fmt(q.shown(q.value))}{ci}{d}</td>")
