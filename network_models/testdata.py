@@ -425,6 +425,10 @@ def _cell_value(c) -> float:
     if not c:
         return math.nan
     try:
+        return float(c)  # the common case, fast
+    except ValueError:
+        pass
+    try:
         return parse_number(c)
     except UnitError:
         return math.nan
@@ -539,12 +543,8 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
     data_numbers = numbers[start:]
     if not data_rows:
         raise DataError(f"{fn}: the table has a header but no rows of numbers below it")
-    values = np.full((len(data_rows), ncols), np.nan)
-    texts = [[""] * ncols for _ in data_rows]
-    for r, cells in enumerate(data_rows):
-        for c, cell in enumerate(cells):
-            values[r, c] = _cell_value(cell)
-            texts[r][c] = _cell_text(cell)
+    values = np.array([[_cell_value(cell) for cell in cells] + [math.nan] * (ncols - len(cells))
+                       for cells in data_rows], dtype=np.float64)
 
     numeric = [c for c in cols if np.isfinite(values[:, c.index]).any()]
     if not numeric:
@@ -619,8 +619,9 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
             all_rows = list(range(len(data_rows)))
             if spec_col is not None:
                 labels: dict[str, list[int]] = {}
+                k = spec_col.index
                 for r in all_rows:
-                    lab = texts[r][spec_col.index].strip()
+                    lab = _cell_text(data_rows[r][k]).strip() if k < len(data_rows[r]) else ""
                     if lab == "" and not (np.isfinite(values[r, x.index]) or np.isfinite(values[r, y.index])):
                         continue
                     labels.setdefault(lab or "(no specimen)", []).append(r)
@@ -761,6 +762,23 @@ def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, noti
     return lam, stress, rows
 
 
+def _is_slack(lam, stress, j, limit, peak) -> bool:
+    """Rows 0..j-1 have stress ≤ limit.  They are slack when their stretch span is more than three times
+    the stretch the early loading slope needs to reach ``limit`` (a clean, densely sampled start is not)."""
+    span = lam[j - 1] - lam[0]
+    m = j
+    while m < lam.size and stress[m] <= 0.1 * peak:
+        m += 1
+    m = max(m, min(j + 3, lam.size))
+    x, yv = lam[j:m], stress[j:m]
+    if x.size < 2 or np.ptp(x) <= 0:
+        return span > 1e-3
+    slope = np.polyfit(x, yv, 1)[0]
+    if not slope > 0:
+        return span > 1e-3
+    return span > 3.0 * limit / slope + 1e-3
+
+
 def _clean(fn, lam, stress, rows, notices, y):
     """Keep the loading branch: drop slack at the start, the return after the extreme stretch, and points
     that do not advance the stretch — each counted in ``notices``."""
@@ -781,8 +799,9 @@ def _clean(fn, lam, stress, rows, notices, y):
             limit = SLACK_FRACTION * peak
             loaded = np.flatnonzero(stress > limit)
             j = int(loaded[0]) if loaded.size else lam.size
-            # keep the last unloaded row (the zero from which loading starts); drop the slack before it
-            if 1 < j < lam.size:
+            # keep the last unloaded row (the zero from which loading starts); drop the slack before it —
+            # but only when the near-zero rows span more stretch than the initial slope explains
+            if 1 < j < lam.size and _is_slack(lam, stress, j, limit, peak):
                 lam0 = lam[j - 1]
                 text = (f"{j - 1} leading row(s) with near-zero or negative stress (≤ {SLACK_FRACTION:.1%} of "
                         f"the peak: slack before loading) dropped; loading starts at line {rows[j - 1]}")

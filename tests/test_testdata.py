@@ -239,6 +239,16 @@ def test_slack_at_start_dropped_and_rezeroed(tmp_path):
     assert any(n.startswith("2 leading row(s)") and "re-zeroed" in n for n in c.notices)
 
 
+def test_clean_dense_start_is_not_called_slack():
+    # a clean neo-Hookean curve P = G(λ − λ⁻²) (physics.md §2) sampled densely near λ = 1: the first rows are
+    # below 0.2 % of the peak but rise as the initial slope says, so nothing is dropped or re-zeroed
+    lam = np.linspace(1.0, 6.0, 5001)
+    text = "stretch,stress (MPa)\n" + "\n".join(f"{a:.6f},{0.5 * (a - a**-2):.8f}" for a in lam)
+    (c,) = read_curves_bytes(text.encode(), "dense.csv")
+    assert len(c) == lam.size
+    assert not any("slack" in n for n in c.notices)
+
+
 def test_repeated_points_dropped_and_counted(tmp_path):
     p = write(tmp_path, "r.csv", "stretch,stress (MPa)\n1,0\n1.5,0.3\n1.5,0.3\n2,0.5\n1.99,0.49\n2.5,0.7\n")
     (c,) = read_curves(p)
