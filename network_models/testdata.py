@@ -265,7 +265,8 @@ _META_KEYS = {
 }
 # test-mode words machines write that Mode.parse does not know
 _MODE_WORDS = {"tensile": "uniaxial", "tensile test": "uniaxial", "uniaxial tensile": "uniaxial",
-               "biaxial tension": "equibiaxial", "bubble inflation": "equibiaxial", "shear": "planar"}
+               "biaxial tension": "equibiaxial", "bubble inflation": "equibiaxial", "equi-biaxial": "equibiaxial",
+               "equi biaxial": "equibiaxial", "shear": "planar", "planar shear": "planar"}
 _META_DIMENSIONS = {"gauge_length": "length", "width": "length", "thickness": "length", "area": "area",
                     "temperature": "temperature", "stretch": "dimensionless"}
 
@@ -334,7 +335,7 @@ def _meta_line(filename, lineno, text, known, extra, comments):
 # Columns
 # ---------------------------------------------------------------------------------------------------
 
-_X_KINDS = ("stretch", "strain", "extension")  # in order of preference
+_X_KINDS = ("stretch", "strain", "true_strain", "extension")  # in order of preference
 _Y_KINDS = ("stress", "true_stress", "force")
 
 _KEYWORDS = [
@@ -342,6 +343,7 @@ _KEYWORDS = [
     ("true_stress", ("true stress", "cauchy stress", "true tensile stress")),
     ("stretch", ("stretch", "lambda", "λ", "extension ratio", "draw ratio")),
     ("stress", ("stress", "σ")),
+    ("true_strain", ("true strain", "logarithmic strain", "log strain", "hencky strain", "natural strain")),
     ("force", ("force", "load", "kraft")),
     ("strain", ("strain", "elongation", "ε", "dehnung")),
     ("extension", ("extension", "displacement", "crosshead", "travel", "deformation", "position", "elong",
@@ -384,7 +386,7 @@ def _classify(index: int, header: str, unit_row_cell: str | None) -> _Column:
             kind = k
             break
     dim = _unit_dimension(unit)
-    if kind == "strain" and dim == "length":
+    if kind in ("strain", "true_strain") and dim == "length":
         kind = "extension"
     elif kind == "extension" and dim == "dimensionless" and unit is not None:
         kind = "strain"
@@ -705,6 +707,17 @@ def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, noti
                                 "fraction means more than 1500 % strain; if it is in percent, name it 'strain (%)'")
             notices.append(f"column {x.header!r} has no unit: read as a fraction (0.5 = 50 %)")
         lam = 1.0 + eps
+    elif x.kind == "true_strain":
+        try:
+            conv = unit_converter(x.unit or "1", "dimensionless")
+        except UnitError as e:
+            raise DataError(f"{fn}: column {x.header!r}: {e}; true strain is a fraction or '%'") from None
+        eps = conv(xv)
+        if np.nanmax(np.abs(eps)) > 4:  # ln 50 ≈ 3.9
+            raise DataError(f"{fn}: column {x.header!r} has values up to {np.nanmax(np.abs(eps)):g}; as a true "
+                            "(logarithmic) strain that is beyond any rubber; if it is in percent, write '(%)'")
+        lam = np.exp(eps)
+        notices.append(f"column {x.header!r} is true (logarithmic) strain: converted with λ = exp(ε)")
     else:  # extension
         if not x.unit:
             raise DataError(f"{fn}: column {x.header!r} has no unit; write it in the header, e.g. 'extension (mm)'")

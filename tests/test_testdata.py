@@ -121,6 +121,15 @@ def test_true_stress_converted_to_nominal(tmp_path):
     assert any("true stress" in n for n in c.notices)
 
 
+def test_true_strain_is_logarithmic(tmp_path):
+    # true (Hencky) strain ε = ln λ, so λ = exp(ε) (definition of logarithmic strain)
+    p = write(tmp_path, "ts.csv", "# mode: equi-biaxial\nTrue strain (%),stress (MPa)\n0,0\n40,1\n80,2\n")
+    (c,) = read_curves(p)
+    assert c.mode is Mode.EQUIBIAXIAL
+    np.testing.assert_allclose(c.stretch, np.exp([0.0, 0.4, 0.8]))
+    assert any("exp" in n for n in c.notices)
+
+
 def test_kgf_per_cm2_header(tmp_path):
     p = write(tmp_path, "g.csv", "Elongation (%),Tensile stress (kgf/cm2)\n0,0\n100,10\n200,25\n")
     (c,) = read_curves(p)
