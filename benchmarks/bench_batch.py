@@ -3,7 +3,7 @@
 What is timed
 -------------
 ``network_models.fitting.fit("eight-chain", curve)`` for each of 1,000 invented uniaxial curves of 50
-points (``datasets.batch_curves``; quick mode: 200 curves), one after another in this process, the
+points (``datasets.batch_curves``; quick mode: 100 curves), one after another in this process, the
 curves already in memory.  Curves per second = curves / wall time of the whole loop.  A fit that raises
 ``FitError`` counts as done (and is counted in ``failed``).
 
@@ -37,7 +37,7 @@ def run(quick: bool = False) -> dict:
     except ImportError as exc:
         return {"batch_curves_per_s": None, "batch_peak_mib": None, "batch_curves": None,
                 "notes": [f"network_models.fitting is not available ({exc}); nothing to time"]}
-    n = 200 if quick else 1000
+    n = 100 if quick else 1000
     curves = batch_curves(n)
     fit("eight-chain", curves[0])  # warm-up
 

@@ -1,0 +1,259 @@
+"""Benchmark 4: the app in a browser — key press on the crosslink-density control to the redrawn plot.
+
+Setup
+-----
+``netstretch serve --port <free port>`` is started here (a subprocess on localhost), the system
+Chromium (``/usr/bin/chromium``, headless, no ``playwright install``) opens the page through
+Playwright's Python API, and the page is instrumented once loaded.
+
+What is timed, exactly
+----------------------
+The slider handle of the strand-density control (css class ``ns-nu-input``) is focused and
+``ArrowRight`` is pressed (one slider step, Δν = 1 mol/m³) ``moves`` times, one press after the previous
+one has been drawn.  For each press:
+
+* start: the ``keydown`` event's ``timeStamp`` (a capture listener on ``window``);
+* the server recomputes the curves and sends the new columns; BokehJS applies them to the uniaxial
+  stress plot's ``ColumnDataSource`` (named ``ns-stress-uniaxial``; its ``change`` signal is recorded);
+* end: the uniaxial plot view's next ``_actual_paint`` after that change returns (BokehJS paints
+  inside a ``requestAnimationFrame`` callback, so the new canvas goes to screen with that frame).
+
+``slider_update_ms_*`` is end − start: browser event, websocket round trip, the server-side Python
+update (curves of every shown model in three modes, Mooney plot, moduli), patch and canvas repaint.
+Each press starts from a quiet page (no document change for 150 ms, so the deferred moduli/limits
+views of the previous press have arrived).  The first two presses are warm-up and not counted.  The
+time to the next animation frame after the paint (frame presented) is reported beside it.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import shutil
+import socket
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+
+CHROMIUM = os.environ.get("NETSTRETCH_CHROMIUM", "/usr/bin/chromium")
+FLAGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+         "--disable-sync", "--no-first-run", "--disable-quic"]
+ROOT = Path(__file__).resolve().parent.parent
+WARMUP = 2
+SETTLE_MS = 150
+
+_INSTRUMENT = """
+() => {
+  const doc = Bokeh.documents[0];
+  const src = doc.get_model_by_name("ns-stress-uniaxial");
+  if (src == null) return "no data source named ns-stress-uniaxial";
+  let fig = null;
+  for (const m of doc.all_models) {
+    if (m.renderers !== undefined && Array.isArray(m.renderers) &&
+        m.renderers.some(r => r.data_source === src)) { fig = m; break; }
+  }
+  if (fig == null) return "no figure draws ns-stress-uniaxial";
+  const view = doc.views_manager.find_one(fig);
+  if (view == null || typeof view._actual_paint !== "function") return "no plot view with _actual_paint";
+  const ns = window.__nsBench = {keys: [], changes: [], paints: [], frames: [], last: performance.now()};
+  doc.on_change(() => { ns.last = performance.now(); });
+  window.addEventListener("keydown", e => ns.keys.push(e.timeStamp), true);
+  src.change.connect(() => ns.changes.push(performance.now()));
+  const orig = view._actual_paint.bind(view);
+  view._actual_paint = function () {
+    const r = orig();
+    const t = performance.now();
+    ns.paints.push(t);
+    requestAnimationFrame(() => ns.frames.push([t, performance.now()]));
+    return r;
+  };
+  return "ok";
+}
+"""
+
+# true once a paint has finished after a data change that followed the last key press
+_DONE = """
+(k) => {
+  const ns = window.__nsBench;
+  if (ns.keys.length < k) return false;
+  const key = ns.keys[k - 1];
+  const ch = ns.changes.find(t => t >= key);
+  if (ch === undefined) return false;
+  const paint = ns.paints.find(t => t >= ch);
+  if (paint === undefined) return false;
+  return ns.frames.some(f => f[0] === paint);
+}
+"""
+
+_RESULT = """
+(k) => {
+  const ns = window.__nsBench;
+  const key = ns.keys[k - 1];
+  const ch = ns.changes.find(t => t >= key);
+  const paint = ns.paints.find(t => t >= ch);
+  const frame = ns.frames.find(f => f[0] === paint)[1];
+  return {key: key, change: ch - key, paint: paint - key, frame: frame - key};
+}
+"""
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def _wait_port(port: int, proc, timeout: float) -> None:
+    """Wait until the server accepts TCP connections.  (Not an HTTP GET of the page: each GET builds a whole
+    app session, and polling with short timeouts would pile sessions up on a busy machine.)"""
+    t_end = time.monotonic() + timeout
+    while time.monotonic() < t_end:
+        if proc.poll() is not None:
+            raise RuntimeError(f"the app server exited with code {proc.returncode} before serving")
+        try:
+            with socket.create_connection(("127.0.0.1", port), timeout=1):
+                return
+        except OSError:
+            time.sleep(0.2)
+    raise RuntimeError(f"the app server did not listen on port {port} within {timeout:.0f} s")
+
+
+@contextlib.contextmanager
+def app_server(timeout: float = 60.0):
+    """Start ``netstretch serve`` on a free localhost port; yields (url, log path); stops it by its pid."""
+    port = _free_port()
+    log = tempfile.NamedTemporaryFile(  # noqa: SIM115 - kept open for the server's lifetime, closed below
+        "w+", prefix="netstretch-bench-server-", suffix=".log", delete=False)
+    code = ("import sys; from network_models.cli import main; "
+            f"sys.exit(main(['serve', '--port', '{port}', '--address', 'localhost']))")
+    env = dict(os.environ, PYTHONUNBUFFERED="1")
+    proc = subprocess.Popen([sys.executable, "-c", code], cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env)
+    try:
+        url = f"http://localhost:{port}/"
+        _wait_port(port, proc, timeout)
+        yield url, log.name
+    finally:
+        proc.terminate()
+        try:
+            proc.wait(timeout=3)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+            proc.wait(timeout=10)
+        log.close()
+        with contextlib.suppress(OSError):
+            os.unlink(log.name)
+
+
+def _unavailable() -> str | None:
+    if not (os.path.exists(CHROMIUM) or shutil.which(CHROMIUM)):
+        return f"no Chromium at {CHROMIUM}: the browser benchmark needs the system Chromium"
+    try:
+        import playwright.sync_api  # noqa: F401
+    except ImportError:
+        return "the Playwright Python package is not installed"
+    try:
+        import app.main  # noqa: F401
+    except Exception as exc:
+        return f"the app cannot be imported ({type(exc).__name__}: {exc})"
+    return None
+
+
+def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as pw:
+        t0 = time.perf_counter()
+        browser = pw.chromium.launch(executable_path=CHROMIUM, args=FLAGS, headless=True)
+        launch_s = time.perf_counter() - t0
+        try:
+            page = browser.new_page(viewport={"width": 1400, "height": 950})
+            t0 = time.perf_counter()
+            page.goto(url, wait_until="load")
+            page.wait_for_selector(".ns-stress-plot canvas", timeout=60000)
+            page.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0 && "
+                                   "Bokeh.documents[0].get_model_by_name('ns-stress-uniaxial') != null",
+                                   timeout=60000)
+            load_s = time.perf_counter() - t0
+            page.wait_for_timeout(1000)  # let the first (slow-view) updates settle
+            status = page.evaluate(_INSTRUMENT)
+            if status != "ok":
+                raise RuntimeError(f"cannot instrument the page: {status}")
+            handle = page.locator(".ns-nu-input .noUi-handle").first
+            handle.focus()
+            before = handle.get_attribute("aria-valuenow")
+            runs = []
+            t0 = time.perf_counter()
+            for k in range(1, moves + WARMUP + 1):
+                page.keyboard.press("ArrowRight")
+                page.wait_for_function(_DONE, arg=k, timeout=timeout_ms, polling="raf")
+                runs.append(page.evaluate(_RESULT, k))
+                # start each press from a quiet page: the deferred views (moduli, limits) update one tick
+                # later; wait until the document has had no change for SETTLE_MS
+                page.wait_for_function(f"() => performance.now() - window.__nsBench.last > {SETTLE_MS}",
+                                       timeout=timeout_ms, polling=50)
+            moves_s = time.perf_counter() - t0
+            after = handle.get_attribute("aria-valuenow")
+        finally:
+            t0 = time.perf_counter()
+            browser.close()
+            close_s = time.perf_counter() - t0
+    return {"runs": runs[WARMUP:], "load_s": load_s, "launch_s": launch_s, "moves_s": moves_s,
+            "close_s": close_s, "nu_before": before, "nu_after": after}
+
+
+def run(quick: bool = False) -> dict:
+    why = _unavailable()
+    if why:
+        return {"slider_update_ms_median": None, "slider_update_ms_p95": None, "notes": [why]}
+    moves = 20 if quick else 60
+    t0 = time.perf_counter()
+    with app_server() as (url, log):
+        t_server = time.perf_counter() - t0
+        try:
+            m = measure(url, moves)
+        except Exception as exc:
+            tail = Path(log).read_text("utf-8", errors="replace").strip().splitlines()[-5:]
+            raise RuntimeError(f"{exc} (server log ends: {' | '.join(tail)})") from None
+        t1 = time.perf_counter()
+    t_stop = time.perf_counter() - t1
+    paint = [r["paint"] for r in m["runs"]]
+    frame = [r["frame"] for r in m["runs"]]
+    change = [r["change"] for r in m["runs"]]
+    notes = []
+    try:
+        moved = float(m["nu_after"]) - float(m["nu_before"])
+    except (TypeError, ValueError):
+        moved = None
+    if moved is None or moved <= 0:
+        notes.append(f"the strand-density slider did not move as expected (before {m['nu_before']}, "
+                     f"after {m['nu_after']})")
+    return {
+        "slider_update_ms_median": statistics.median(paint),
+        "slider_update_ms_p95": float(np.percentile(paint, 95)),
+        "detail": {
+            "moves_timed": len(paint),
+            "warmup_moves": WARMUP,
+            "control": ".ns-nu-input slider handle, ArrowRight (one step, 1 mol/m³)",
+            "nu_before": m["nu_before"],
+            "nu_after": m["nu_after"],
+            "timed": "keydown timeStamp -> end of the uniaxial stress plot's first repaint after its data changed",
+            "to_data_change_ms_median": statistics.median(change),
+            "to_next_frame_ms_median": statistics.median(frame),
+            "to_next_frame_ms_p95": float(np.percentile(frame, 95)),
+            "max_ms": max(paint),
+            "server_start_s": t_server,
+            "browser_launch_s": m["launch_s"],
+            "page_load_s": m["load_s"],
+            "moves_s": m["moves_s"],
+            "browser_close_s": m["close_s"],
+            "server_stop_s": t_stop,
+            "browser": "system Chromium, headless, flags: " + " ".join(FLAGS),
+            "targets": "median <= 150 ms, p95 <= 300 ms",
+        },
+        "notes": notes,
+    }
