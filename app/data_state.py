@@ -374,3 +374,77 @@ def ci_text(ci, scale=1.0, digits=3) -> str:
     if lo is None or hi is None:
         return "—"
     return f"{lo * scale:.{digits}g} … {hi * scale:.{digits}g}"
+
+
+class SwellState(param.Parameterized):
+    """One Flory–Rehner form: masses in grams at the edge, everything else from the core."""
+
+    dry_g = param.Number(default=None, allow_None=True, bounds=(0.0, None), label="Dry mass before swelling (g)")
+    swollen_g = param.Number(default=None, allow_None=True, bounds=(0.0, None), label="Swollen mass (g)")
+    extracted_g = param.Number(default=None, allow_None=True, bounds=(0.0, None),
+                               label="Extracted, re-dried mass (g, optional)")
+    solvent = param.Selector(default="toluene", objects=["toluene"], label="Solvent")
+    polymer = param.Selector(default="NR", objects=list(polymers()), label="Polymer")
+    chi = param.Number(default=None, allow_None=True, bounds=(0.0, 1.5),
+                       label="χ (blank: the solvent table's value)")
+    f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
+    filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ (Kraus correction)")
+    T_C = param.Number(default=23.0, bounds=(-50.0, 200.0), label="Test temperature (°C)")
+    sample_label = param.String(default="")
+
+    def __init__(self, **params):
+        from network_models.swelling import solvents
+
+        super().__init__(**params)
+        self.param.solvent.objects = list(solvents())
+
+    def load_sample(self, compound: str | None = None) -> bool:
+        """Prefill from the bundled sample set's swelling table (the baseline compound's first row)."""
+        td = _testdata()
+        man = td.read_manifest()
+        rows = man.swelling_results()
+        if not rows:
+            return False
+        want = compound or man.info.get("baseline")
+        row = next((r for r in rows if r.compound == want), rows[0])
+        comp = next((c for c in man if c.key == row.compound), None)
+        with param.parameterized.batch_call_watchers(self):
+            self.dry_g, self.swollen_g = row.dry_mass * 1000.0, row.swollen_mass * 1000.0
+            self.extracted_g = None if row.extracted_mass is None else row.extracted_mass * 1000.0
+            if row.solvent and row.solvent in self.param.solvent.objects:
+                self.solvent = row.solvent
+            if comp is not None:
+                self.polymer = comp.polymer
+                self.filler = comp.filler_fraction
+            if row.temperature:
+                self.T_C = row.temperature - 273.15
+            self.sample_label = f"{row.compound} {row.specimen or ''} (invented sample data)".strip()
+        return True
+
+    def default_chi(self):
+        """The table's χ row for this polymer–solvent pair, or None (then the user must give χ)."""
+        from network_models.swelling import default_chi
+
+        try:
+            return default_chi(self.polymer, self.solvent)
+        except KeyError:
+            return None
+
+    def estimate(self):
+        """The swelling estimate (network_models.swelling.SwellingEstimate); ValueError with a sentence."""
+        from network_models.swelling import swelling_estimate
+
+        if self.dry_g is None or self.swollen_g is None:
+            raise ValueError("enter the dry mass and the swollen mass (grams) to get a swelling estimate")
+        if not (self.dry_g > 0 and self.swollen_g > 0):
+            raise ValueError("masses must be positive numbers of grams")
+        if self.swollen_g <= (self.extracted_g or self.dry_g):
+            raise ValueError(f"the swollen mass ({self.swollen_g:g} g) must exceed the dry mass "
+                             f"({(self.extracted_g or self.dry_g):g} g): check that the two were not swapped")
+        if self.chi is None and self.default_chi() is None:
+            raise ValueError(f"the solvent table has no χ for {self.polymer} in {self.solvent}; type a χ from a "
+                             "source you trust")
+        ext = None if self.extracted_g in (None, 0) else self.extracted_g / 1000.0
+        return swelling_estimate(self.dry_g / 1000.0, self.swollen_g / 1000.0, self.solvent, self.polymer,
+                                 chi=self.chi, f=float(self.f), T=self.T_C + 273.15, extracted=ext,
+                                 filler_fraction=float(self.filler))

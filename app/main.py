@@ -38,17 +38,25 @@ def configure_panel():
         pn.extension(inline=False)
 
 
-def _optional_view(module: str, factory: str, **kw):
-    """Build an optional view (e.g. the compare view) if its module exists; None otherwise."""
+def _optional_view(module: str, factory, **kw):
+    """Build an optional view (e.g. the compare view) if its module exists; None otherwise.
+    ``factory`` is a name or a tuple of names tried in turn; keyword arguments it does not take are dropped."""
     try:
         mod = importlib.import_module(module)
     except ImportError as exc:
         log.info("optional view %s not available: %s", module, exc)
         return None
-    fn = getattr(mod, factory, None)
+    names = (factory,) if isinstance(factory, str) else tuple(factory)
+    fn = next((getattr(mod, n) for n in names if callable(getattr(mod, n, None))), None)
     if fn is None:
+        log.warning("optional view %s has none of %s", module, names)
         return None
     try:
+        import inspect
+
+        sig = inspect.signature(fn)
+        if not any(p.kind is p.VAR_KEYWORD for p in sig.parameters.values()):
+            kw = {k: v for k, v in kw.items() if k in sig.parameters}
         return fn(**kw)
     except Exception:
         log.exception("optional view %s failed to build", module)
@@ -74,14 +82,15 @@ def create_app(load_samples: bool = True):
     else:
         tabs.append(("Test data & fits", pn.pane.Alert("Reading and fitting test data is not available yet.",
                                                        alert_type="secondary")))
-    swell_view = _optional_view("app.swell_view", "SwellView", network_state=state, messages=messages)
+    swell_view = _optional_view("app.swell_view", "SwellView", network_state=state, messages=messages,
+                                data_view=data_view)
     if swell_view is not None:
         tabs.append(("Swelling", swell_view))
     else:
         tabs.append(("Swelling", pn.pane.Alert("The swelling (Flory–Rehner) view is not available yet.",
                                                alert_type="secondary")))
-    compare = _optional_view("app.compare_view", "create_compare_view", network_state=state,
-                             data_view=data_view)
+    compare = _optional_view("app.compare_view", ("create_compare_view", "CompareView", "create_view"),
+                             network_state=state, data_view=data_view, messages=messages)
     if compare is not None:
         tabs.append(("Compare", compare))
 
@@ -91,7 +100,7 @@ def create_app(load_samples: bool = True):
         sizing_mode="stretch_width", margin=0)
     caution = html(f"<div class='ns-caution'>{CAUTION}</div>", sizing_mode="stretch_width",
                            css_classes=["ns-caution-pane"])
-    main_tabs = pn.Tabs(*tabs, sizing_mode="stretch_width", css_classes=["ns-tabs"], dynamic=False)
+    main_tabs = pn.Tabs(*tabs, sizing_mode="stretch_width", css_classes=["ns-tabs"], dynamic=True)
     side = pn.Column(controls, width=340, css_classes=["ns-side"], scroll=True, margin=(0, 8, 0, 0))
     body = pn.Row(side, pn.Column(messages, main_tabs, sizing_mode="stretch_width"), sizing_mode="stretch_width")
     page = pn.Column(header, body, caution, sizing_mode="stretch_width", stylesheets=[CSS],
