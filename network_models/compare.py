@@ -18,6 +18,7 @@ A compound whose fit fails keeps its place with the error sentence; the others a
 
 from __future__ import annotations
 
+import logging
 import math
 from dataclasses import dataclass, field
 
@@ -29,6 +30,8 @@ from .deformation import Mode
 from .models import ModeNotSupportedError, get_model
 from .network import get_polymer
 from .testdata import TestCurve
+
+log = logging.getLogger("netstretch")
 
 #: stretches of the trade moduli M100 and M300 (100 % and 300 % elongation; physics.md §7)
 TRADE_MODULI = {"M100": 2.0, "M300": 4.0}
@@ -416,6 +419,11 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
     except ArithmeticError as exc:  # overflow inside the optimiser: a numerical failure, not the user's
         res.error = (f"{compound.name}: the {m.title} fit broke down numerically ({type(exc).__name__}: {exc}); "
                      "try another model or fit fewer modes")
+        return res
+    except Exception as exc:  # a defect, not the user's input: keep the other compounds going, say so
+        log.exception("fit of %s to %s failed unexpectedly", m.name, compound.name)
+        res.error = (f"{compound.name}: the {m.title} fit failed unexpectedly ({type(exc).__name__}); the other "
+                     "compounds are compared without it — please report this with the data files")
         return res
     res.fit = fr
     res.warnings.extend(f"{compound.name}: {w}" for w in (getattr(fr, "warnings", None) or []))

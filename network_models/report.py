@@ -454,6 +454,16 @@ class Report:
         return buf.getvalue()
 
     # ----- HTML -----------------------------------------------------------------------------------
+    SECTIONS = ("summary", "compounds", "comparison", "plots", "provenance", "params", "crosslink", "swelling",
+                "warnings", "model")
+
+    def section_html(self, name: str) -> str:
+        """One section of the report as an HTML fragment (for embedding, e.g. the app's Compare view);
+        ``name`` is one of :attr:`SECTIONS`.  Pair it with :data:`CSS` in a ``<style>`` element."""
+        if name not in self.SECTIONS:
+            raise ValueError(f"no report section {name!r}; sections: {', '.join(self.SECTIONS)}")
+        return "\n".join(getattr(self, f"_{name}_html")())
+
     def to_html(self) -> str:
         c = self.cmp
         m = get_model(c.model)
