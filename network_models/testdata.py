@@ -776,7 +776,7 @@ def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, noti
 
 
 def _is_slack(lam, stress, j, limit, peak) -> bool:
-    """Rows 0..j-1 have stress ≤ limit.  They are slack when their stretch span is more than three times
+    """Rows 0..j-1 have stress ≤ limit.  They are slack when their stretch span is more than twice
     the stretch the early loading slope needs to reach ``limit`` (a clean, densely sampled start is not)."""
     span = lam[j - 1] - lam[0]
     m = j
@@ -789,7 +789,7 @@ def _is_slack(lam, stress, j, limit, peak) -> bool:
     slope = np.polyfit(x, yv, 1)[0]
     if not slope > 0:
         return span > 1e-3
-    return span > 3.0 * limit / slope + 1e-3
+    return span > 2.0 * limit / slope + 1e-3
 
 
 def _clean(fn, lam, stress, rows, notices, y):

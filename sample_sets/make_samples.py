@@ -31,12 +31,17 @@ GENERATOR = get_model("extended-tube")
 T_TEST = 296.15  # 23 °C, the usual laboratory temperature [common practice]
 
 #: The invented compounds: strand density ν (mol/m³) behind the generated data, recipe facts for the manifest.
+#: ``delta_factor`` widens the extended-tube extensibility δ for the filled compound: filler amplifies the
+#: strain the rubber phase sees, so it locks earlier (a generator choice for the invented data).
 COMPOUNDS = {
-    "QM-S1": dict(nu=95.0, sulfur_phr=1.0, filler_phr=0.0, phi=0.0, title="NR gum, low sulfur dose"),
-    "QM-S2": dict(nu=140.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, title="NR gum, mid sulfur dose"),
-    "QM-S3": dict(nu=195.0, sulfur_phr=3.0, filler_phr=0.0, phi=0.0, title="NR gum, high sulfur dose"),
+    "QM-S1": dict(nu=95.0, sulfur_phr=1.0, filler_phr=0.0, phi=0.0, title="NR gum, low sulfur dose",
+                  delta_factor=1.0),
+    "QM-S2": dict(nu=140.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, title="NR gum, mid sulfur dose",
+                  delta_factor=1.0),
+    "QM-S3": dict(nu=195.0, sulfur_phr=3.0, filler_phr=0.0, phi=0.0, title="NR gum, high sulfur dose",
+                  delta_factor=1.0),
     "QM-S2B": dict(nu=140.0, sulfur_phr=2.0, filler_phr=30.0, phi=0.13,
-                   title="NR, mid sulfur dose, 30 phr carbon black"),
+                   title="NR, mid sulfur dose, 30 phr carbon black", delta_factor=1.5),
 }
 
 
@@ -45,9 +50,14 @@ def network(key: str, scale: float = 1.0, T: float = T_TEST) -> Network:
     return Network(polymer="NR", nu=c["nu"] * scale, T=T, filler_fraction=c["phi"])
 
 
+def generator_params(key, scale=1.0):
+    p = dict(network(key, scale).model_params(GENERATOR))
+    p["delta"] *= COMPOUNDS[key]["delta_factor"]
+    return p
+
+
 def nominal(key, mode, lam, scale=1.0):
-    net = network(key, scale)
-    return GENERATOR.nominal_stress(mode, lam, net.model_params(GENERATOR))
+    return GENERATOR.nominal_stress(mode, lam, generator_params(key, scale))
 
 
 def noisy(rng, stress, rel=0.01, offset=3e3):
@@ -73,7 +83,7 @@ def uniaxial_s1(rng) -> str:
         "test piece: dumbbell, 500 mm/min (invented)",
     ]), "specimen,stretch,stress (MPa)\n"]
     for k, scale in enumerate((0.98, 1.0, 1.03), start=1):
-        lam = np.linspace(1.0, 5.5, 56)
+        lam = np.linspace(1.0, 7.5, 60)
         s = noisy(rng, nominal("QM-S1", "uniaxial", lam, scale))
         for a, b in zip(lam, s, strict=True):
             out.append(f"S1-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n")
@@ -85,12 +95,12 @@ def uniaxial_s2(rng) -> str:
     gauge, width, thick = 20.0, 4.0, 2.0  # mm
     cols, n = [], 64
     for scale in (1.01, 0.99):
-        lam = np.linspace(1.0, 5.5, n - 6)
+        lam = np.linspace(1.0, 7.0, n - 6)
         stress = noisy(rng, nominal("QM-S2", "uniaxial", lam, scale))
         force = stress * (width * thick * 1e-6)
-        # slack: the crosshead travels ~0.4 mm before the specimen is taut; the force hovers around zero
-        slack_ext = np.linspace(-0.4, -0.07, 6)
-        ext = np.concatenate([slack_ext, (lam - 1.0) * gauge]) + 0.4
+        # slack: the crosshead travels ~1.2 mm before the specimen is taut; the force hovers around zero
+        slack_ext = np.linspace(-1.2, -0.2, 6)
+        ext = np.concatenate([slack_ext, (lam - 1.0) * gauge]) + 1.2
         f = np.concatenate([rng.normal(0.0, 0.01, 6) - 0.01, force])
         cols.append((ext, f))
     out = [header([
@@ -111,10 +121,10 @@ def uniaxial_s3(rng) -> str:
     ]), "Specimen;Strain (%);Stress [psi]\n"]
     pa_per_psi = 6894.757293168361  # only to invent the file; readers convert with pint
     for k, scale in enumerate((1.0, 0.97, 1.02), start=1):
-        lam_up = np.linspace(1.0, 5.0, 48)
+        lam_up = np.linspace(1.0, 6.5, 52)
         lam = lam_up
         if k == 1:  # unloading branch: the return path lies below the loading path (hysteresis)
-            lam_down = np.linspace(5.0, 1.2, 20)[1:]
+            lam_down = np.linspace(6.5, 1.2, 20)[1:]
             lam = np.concatenate([lam_up, lam_down])
         s = noisy(rng, nominal("QM-S3", "uniaxial", lam, scale))
         if k == 1:
@@ -132,7 +142,7 @@ def planar_s2(rng) -> str:
     out = [header(["compound: QM-S2", "mode: planar", "temperature: 23 °C",
                    "test piece: wide strip, 10:1 width to height (invented)"]), "specimen,stretch,stress (MPa)\n"]
     for k, scale in enumerate((1.0, 1.02), start=1):
-        lam = np.linspace(1.0, 4.0, 40)
+        lam = np.linspace(1.0, 4.5, 40)
         s = noisy(rng, nominal("QM-S2", "planar", lam, scale))
         out += [f"P2-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
     return "".join(out)
@@ -143,7 +153,7 @@ def equibiaxial_s2(rng) -> str:
     out = [header(["compound: QM-S2", "mode: equibiaxial", "temperature: 23 °C",
                    "method: bubble inflation, stress at the pole (invented)"]),
            "specimen,stretch,true stress (N/mm²)\n"]
-    lam = np.linspace(1.0, 3.2, 36)
+    lam = np.linspace(1.0, 3.5, 36)
     s = noisy(rng, nominal("QM-S2", "equibiaxial", lam, 1.0)) * lam  # nominal → true: σ = λP
     out += [f"E2-1,{fmt(a, 4)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
     return "".join(out)
@@ -165,7 +175,7 @@ def uniaxial_s2b_rows(rng) -> tuple[list[list], list[list]]:
     table = [["Strain B-1", "Stress B-1", "Strain B-2", "Stress B-2"], ["%", "N/mm²", "%", "N/mm²"]]
     cols = []
     for scale in (1.0, 0.97):
-        lam = np.linspace(1.0, 4.5, 46)
+        lam = np.linspace(1.0, 5.5, 46)
         s = noisy(rng, nominal("QM-S2B", "uniaxial", lam, scale))
         cols.append((np.round((lam - 1) * 100, 2), np.round(s / 1e6, 5)))
     for i in range(cols[0][0].size):
@@ -273,8 +283,7 @@ def manifest() -> str:
         f"generator = {q(generator)}\n\n",
     ]
     for key, c in COMPOUNDS.items():
-        net = network(key)
-        p = net.model_params(GENERATOR)
+        p = generator_params(key)
         cure = f"{c['sulfur_phr']:.1f} phr sulfur, 10 min at 160 °C (invented)"
         out += [
             "[[compound]]\n",
