@@ -585,6 +585,18 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
             raise DataError(f"{fn}: temperature option {temperature!r} must be in K and above zero")
     else:
         temperature = known.get("temperature")
+    tcol = next((c for c in cols if c.kind == "temperature" and c.unit), None)
+    if temperature is None and tcol is not None:
+        try:
+            tv = unit_converter(tcol.unit, "temperature")(values[:, tcol.index])
+        except UnitError:
+            tv = np.array([np.nan])
+        tv = tv[np.isfinite(tv)]
+        if tv.size and np.all(tv > 0):
+            temperature = float(np.mean(tv))
+            notices0.append(f"test temperature taken as the mean of column {tcol.header!r}: "
+                            f"{temperature - 273.15:.1f} °C (range {tv.min() - 273.15:.1f} to "
+                            f"{tv.max() - 273.15:.1f} °C)")
     gauge, area = _geometry(opts, known, fn)
 
     # groups of (x columns, y columns): a new group starts at an x column that follows a y column
@@ -601,7 +613,9 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
     if not groups:
         raise DataError(f"{fn}: the stress/force column comes before every stretch/strain/extension column; "
                         "put the stretch (or strain, extension) column to the left of its stress (or force) column")
-    ignored = [c.header for c in cols if c.kind not in _X_KINDS + _Y_KINDS + ("specimen",) and c.header]
+    ignored = [c.header for c in cols if c.kind not in _X_KINDS + _Y_KINDS + ("specimen",) and c.header
+               and not (c is tcol and temperature is not None and opts.get("temperature") is None
+                        and "temperature" not in known)]
 
     spec_col = next((c for c in cols if c.kind == "specimen"), None)
     pieces = []  # (x col, y col, row indices, specimen label, notices)

@@ -157,13 +157,16 @@ def parse_number(text) -> float:
         raise UnitError(f"{text!r} is not a number") from None
 
 
-def parse_quantity(text, dimension: str | None = None, *, default_unit: str | None = None) -> float:
+def parse_quantity(text, dimension: str | None = None, *, default_unit: str | None = None,
+                   require_unit: bool = False) -> float:
     """Read "23C", "23 °C", "296 K", "73F", "20mm", "0.55MPa", "150 %" into an SI float.
 
     ``dimension`` (length, area, force, pressure, temperature, dimensionless) checks the unit; without
     it any unit is accepted and converted to SI base units, with a bare C/F read as °C/°F (never as
     coulomb or farad).  A bare number gets ``default_unit`` if given, else it is returned unchanged
-    (taken as already SI).  Raises :class:`UnitError` with a sentence saying what to write.
+    (taken as already SI) unless ``require_unit`` — then a bare number is an error (use it for user input
+    such as '--gauge-length 20', where 20 m is surely not meant).  Raises :class:`UnitError` with a
+    sentence saying what to write.
     """
     if isinstance(text, (int, float)) and not isinstance(text, bool):
         value, unit_text = float(text), ""
@@ -180,6 +183,9 @@ def parse_quantity(text, dimension: str | None = None, *, default_unit: str | No
     if not unit_text:
         unit_text = default_unit or ""
         if not unit_text:
+            if require_unit:
+                example = DIMENSIONS[dimension][1] if dimension in DIMENSIONS else "20 mm"
+                raise UnitError(f"{text!r} has no unit; write it with its unit, e.g. {example!r}")
             return value
     if dimension is None:
         ureg = _registry()

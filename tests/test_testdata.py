@@ -113,6 +113,15 @@ def test_width_thickness_options(tmp_path):
     assert any("fraction" in n for n in c.notices)  # a strain without unit is read as a fraction, and said so
 
 
+def test_temperature_column_gives_the_test_temperature(tmp_path):
+    p = write(tmp_path, "tc.csv", "stretch,stress (MPa),temperature (°C)\n1,0,22\n2,1,23\n3,2,24\n")
+    (c,) = read_curves(p)
+    assert c.temperature == pytest.approx(23 + sc.zero_Celsius)  # mean of 22, 23, 24 °C
+    assert any("mean of column" in n for n in c.notices)
+    (c2,) = read_curves(p, temperature=300.0)  # the option still wins
+    assert c2.temperature == 300.0
+
+
 def test_true_stress_converted_to_nominal(tmp_path):
     # incompressible: true stress σ = λ·P (physics.md §1), so P = σ/λ
     p = write(tmp_path, "f.csv", "# mode: equibiaxial\nstretch,true stress (N/mm²)\n1,0\n2,4\n4,12\n")

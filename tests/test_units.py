@@ -103,6 +103,12 @@ def test_bare_number_default_unit():
     assert parse_quantity(296.15, "temperature") == 296.15
 
 
+def test_require_unit():
+    with pytest.raises(UnitError, match="no unit"):
+        parse_quantity("23", "temperature", require_unit=True)
+    assert parse_quantity("23 C", "temperature", require_unit=True) == pytest.approx(23 + sc.zero_Celsius)
+
+
 @pytest.mark.parametrize("text,dim,words", [
     ("3 MPa", "length", "not a length unit"),
     ("23 furlongsx", None, "unknown unit"),
