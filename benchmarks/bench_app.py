@@ -76,6 +76,30 @@ _INSTRUMENT = """
 }
 """
 
+# Records websocket traffic (time, size) so the latency can be split into server and browser parts.
+_WS_HOOK = """
+(() => {
+  const rec = window.__nsWs = {send: [], recv: []};
+  const Orig = window.WebSocket;
+  const send = Orig.prototype.send;
+  Orig.prototype.send = function (d) {
+    rec.send.push(performance.now());
+    return send.call(this, d);
+  };
+  const Wrapped = function (...args) {
+    const ws = new Orig(...args);
+    ws.addEventListener("message", e => {
+      const n = typeof e.data === "string" ? e.data.length : (e.data.byteLength ?? e.data.size ?? 0);
+      rec.recv.push([performance.now(), n]);
+    });
+    return ws;
+  };
+  Wrapped.prototype = Orig.prototype;
+  Object.assign(Wrapped, {CONNECTING: 0, OPEN: 1, CLOSING: 2, CLOSED: 3});
+  window.WebSocket = Wrapped;
+})();
+"""
+
 # true once a paint has finished after a data change that followed the last key press
 _DONE = """
 (k) => {
@@ -97,7 +121,12 @@ _RESULT = """
   const ch = ns.changes.find(t => t >= key);
   const paint = ns.paints.find(t => t >= ch);
   const frame = ns.frames.find(f => f[0] === paint)[1];
-  return {key: key, change: ch - key, paint: paint - key, frame: frame - key};
+  const ws = window.__nsWs;
+  const sent = ws ? ws.send.find(t => t >= key) : undefined;
+  // the first sizeable message after the send: the document patch carrying the new columns
+  const big = ws && sent !== undefined ? ws.recv.find(r => r[0] >= sent && r[1] > 1000) : undefined;
+  return {key: key, change: ch - key, paint: paint - key, frame: frame - key,
+          sent: sent === undefined ? null : sent - key, patch: big === undefined ? null : big[0] - key};
 }
 """
 
@@ -172,6 +201,7 @@ def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
         launch_s = time.perf_counter() - t0
         try:
             page = browser.new_page(viewport={"width": 1400, "height": 950})
+            page.add_init_script(_WS_HOOK)
             t0 = time.perf_counter()
             page.goto(url, wait_until="load")
             page.wait_for_selector(".ns-stress-plot canvas", timeout=60000)
@@ -224,6 +254,8 @@ def run(quick: bool = False) -> dict:
     paint = [r["paint"] for r in m["runs"]]
     frame = [r["frame"] for r in m["runs"]]
     change = [r["change"] for r in m["runs"]]
+    sent = [r["sent"] for r in m["runs"] if r["sent"] is not None]
+    patch = [r["patch"] for r in m["runs"] if r["patch"] is not None]
     notes = []
     try:
         moved = float(m["nu_after"]) - float(m["nu_before"])
@@ -242,7 +274,14 @@ def run(quick: bool = False) -> dict:
             "nu_before": m["nu_before"],
             "nu_after": m["nu_after"],
             "timed": "keydown timeStamp -> end of the uniaxial stress plot's first repaint after its data changed",
-            "to_data_change_ms_median": statistics.median(change),
+            "breakdown_ms_median": {
+                "key_to_websocket_send": statistics.median(sent) if sent else None,
+                "key_to_patch_received": statistics.median(patch) if patch else None,
+                "key_to_data_source_changed": statistics.median(change),
+                "key_to_repaint_done": statistics.median(paint),
+                "note": "send -> patch received = server-side update + serialisation + transfer; "
+                        "patch -> repaint = BokehJS applying the patch and repainting (browser)",
+            },
             "to_next_frame_ms_median": statistics.median(frame),
             "to_next_frame_ms_p95": float(np.percentile(frame, 95)),
             "max_ms": max(paint),
