@@ -28,9 +28,9 @@ from .deformation import Mode
 from .units import UnitError, parse_number, parse_quantity, split_header, unit_converter
 
 __all__ = [
-    "MAX_FILE_BYTES", "SAMPLE_MANIFEST", "SLACK_FRACTION", "Compound", "DataError", "ForceTemperatureRecord",
-    "Manifest", "SwellingResult", "TestCurve", "read_curves", "read_curves_bytes", "read_force_temperature",
-    "read_manifest", "read_swelling",
+    "MAX_FILE_BYTES", "SAMPLE_MANIFEST", "SLACK_FRACTION", "Compound", "DataError", "FileInfo",
+    "ForceTemperatureRecord", "Manifest", "SwellingResult", "TestCurve", "inspect_bytes", "read_curves",
+    "read_curves_bytes", "read_force_temperature", "read_manifest", "read_swelling",
 ]
 
 #: Files larger than this are refused (bytes; 20 MB).  A tensile export is usually well under 1 MB.
@@ -922,6 +922,65 @@ def _read(data: bytes, filename: str, source: str, opts: dict) -> list[TestCurve
         raise DataError(f"{filename}: the file is empty; it needs a header row and rows of numbers")
     table = _load_table(data, filename, opts.get("sheet"))
     return _curves_from_table(table, source, opts)
+
+
+@dataclass
+class FileInfo:
+    """What a lab file holds before it is turned into curves (for an upload preview and settings form).
+
+    ``columns``: one dict per column (header, kind — stretch, strain, true_strain, extension, stress,
+    true_stress, force, specimen, time, temperature or other — and unit); ``metadata``: the recognised
+    ``# key: value`` lines in SI (mode as a Mode); ``needs``: reader options the file lacks for
+    read_curves to succeed ('gauge_length', 'area' — width × thickness will do); ``preview``: the header
+    and first data rows as text.
+    """
+
+    filename: str
+    columns: list[dict]
+    metadata: dict
+    extra: dict
+    needs: list[str]
+    mode: Mode | None
+    n_rows: int
+    preview: list[list[str]]
+    notices: list[str]
+
+
+def inspect_bytes(data: bytes, filename: str, *, sheet=None, preview_rows: int = 8) -> FileInfo:
+    """Look into a lab file without converting it: columns and their kinds, metadata, what is missing.
+    Raises DataError for a file that cannot be read as a table at all."""
+    fn = Path(str(filename or "upload.csv")).name or "upload.csv"
+
+    def work():
+        if len(data) > MAX_FILE_BYTES:
+            raise DataError(f"{fn}: the file is over the {MAX_FILE_BYTES / 1e6:.0f} MB limit")
+        if not bytes(data).strip():
+            raise DataError(f"{fn}: the file is empty; it needs a header row and rows of numbers")
+        table = _load_table(bytes(data), fn, sheet)
+        lenient = _find_header(table)
+        known, extra, _ = _parse_meta(table, lenient)
+        header = [_cell_text(c) for c in table.rows[0]]
+        unit_row = None
+        if len(table.rows) > 1 and _looks_like_unit_row(table.rows[1]):
+            unit_row = [_cell_text(c) for c in table.rows[1]]
+        cols = [_classify(i, h, unit_row[i] if unit_row and i < len(unit_row) else None)
+                for i, h in enumerate(header)]
+        kinds = {c.kind for c in cols}
+        needs = []
+        if "extension" in kinds and not ({"stretch", "strain", "true_strain"} & kinds) and "gauge_length" not in known:
+            needs.append("gauge_length")
+        has_area = "area" in known or ("width" in known and "thickness" in known)
+        if "force" in kinds and not ({"stress", "true_stress"} & kinds) and not has_area:
+            needs.append("area")
+        start = 2 if unit_row else 1
+        preview = [[_cell_text(c) for c in r] for r in table.rows[: start + preview_rows]]
+        return FileInfo(
+            filename=fn, columns=[{"header": c.header, "kind": c.kind, "unit": c.unit} for c in cols],
+            metadata=known, extra=extra, needs=needs, mode=known.get("mode"),
+            n_rows=max(len(table.rows) - start, 0), preview=preview, notices=list(table.notices),
+        )
+
+    return _guarded(fn, work)
 
 
 # ---------------------------------------------------------------------------------------------------

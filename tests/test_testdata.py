@@ -350,6 +350,21 @@ def test_bad_options():
         read_curves_bytes(data, "x.csv", gauge=0.02)
 
 
+def test_inspect_says_what_is_missing():
+    data = b"# mode: planar\n# width: 4 mm\nextension (mm),force (N),time (s)\n0,0,0\n5,1,1\n10,2,2\n"
+    info = td.inspect_bytes(data, "up.csv")
+    assert [c["kind"] for c in info.columns] == ["extension", "force", "time"]
+    assert info.mode is Mode.PLANAR and info.n_rows == 3
+    assert info.needs == ["gauge_length", "area"]  # thickness alone is missing, so no cross-section yet
+    assert info.preview[0] == ["extension (mm)", "force (N)", "time (s)"]
+    with pytest.raises(DataError):  # and read_curves says the same in a sentence
+        read_curves_bytes(data, "up.csv")
+    (c,) = read_curves_bytes(data, "up.csv", gauge_length=0.01, thickness=0.002)
+    np.testing.assert_allclose(c.stretch, [1.0, 1.5, 2.0])
+    with pytest.raises(DataError, match="empty"):
+        td.inspect_bytes(b"", "e.csv")
+
+
 # ---------------------------------------------------------------------------------------------------
 # force–temperature records and swelling tables
 # ---------------------------------------------------------------------------------------------------
