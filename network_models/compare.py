@@ -270,6 +270,13 @@ def flory_rehner_strand_density(phi: float, chi: float, V1: float, f: float = 4.
 def measured_at(curves: list[TestCurve], mode: Mode, lam: float) -> tuple[float | None, int]:
     """Mean nominal stress at ``lam`` interpolated on every curve of ``mode`` that reaches it (loading
     branch: points up to the curve's maximum stretch), and how many curves reached it."""
+    vals = specimen_values(curves, mode, lam)
+    return (float(np.mean(vals)) if vals else None), len(vals)
+
+
+def specimen_values(curves: list[TestCurve], mode: Mode, lam: float) -> list[float]:
+    """Nominal stress at ``lam`` on each curve of ``mode`` that reaches it (linear interpolation on the
+    loading branch)."""
     vals = []
     for c in curves:
         if c.mode is not mode or len(c) < 2:
@@ -280,7 +287,7 @@ def measured_at(curves: list[TestCurve], mode: Mode, lam: float) -> tuple[float 
         x, y = x[order], y[order]
         if x[0] <= lam <= x[-1]:
             vals.append(float(np.interp(lam, x, y)))
-    return (float(np.mean(vals)) if vals else None), len(vals)
+    return vals
 
 
 def at_temperature(model, values: dict, T_from: float, T_to: float) -> dict:
@@ -532,8 +539,17 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
         meas, n = measured_at(uni, Mode.UNIAXIAL, lam)
         strain = f"{(lam - 1) * 100:.0f} % elongation (λ = {lam:g})"
         if uni:
+            lo = hi = None
+            basis = f"interpolated at {strain}, {n} curve(s)"
+            if n >= 2:  # specimen scatter: t-interval of the mean over the specimens (n − 1 degrees of freedom)
+                vals = specimen_values(uni, Mode.UNIAXIAL, lam)
+                from scipy import stats
+
+                half = float(stats.t.ppf(0.975, n - 1)) * float(np.std(vals, ddof=1)) / math.sqrt(n)
+                lo, hi = meas - half, meas + half
+                basis += "; interval: specimen scatter (t, n − 1)"
             Q[f"{key}_measured"] = Quantity(
-                f"{key}_measured", f"{key} measured", meas, "Pa", basis=f"interpolated at {strain}, {n} curve(s)",
+                f"{key}_measured", f"{key} measured", meas, "Pa", lo, hi, basis=basis,
                 display_unit="MPa", display_scale=1e-6,
                 note="" if meas is not None else "the uniaxial data do not reach this elongation")
         if m.supports("uniaxial"):

@@ -6,6 +6,7 @@ fixed-seed noise, so every check can fail if the fit, the crosslink reading or t
 
 from __future__ import annotations
 
+import json
 import math
 import subprocess
 import sys
@@ -229,3 +230,55 @@ def test_no_nan_in_rows(mr_pair):
         for k, v in row.items():
             if isinstance(v, dict):
                 assert v["value"] is None or math.isfinite(v["value"]), (row["compound"], k)
+
+
+def test_measured_modulus_interval_is_the_specimen_t_interval():
+    # three specimens at 0.97, 1.00, 1.04 × the Mooney–Rivlin curve: the measured M100 is their mean and its
+    # interval the Student-t 95 % interval of the mean (scipy.stats.t.interval as the reference)
+    from scipy import stats
+
+    lam = np.linspace(1.0, 3.0, 81)  # λ = 2 is a grid point: no interpolation error
+    base = mooney_uniaxial(lam, 0.2e6, 0.05e6)
+    factors = (0.97, 1.00, 1.04)
+    comp = Compound("S", [TestCurve("uniaxial", lam, k * base, name=f"s{i}", temperature=T23)
+                          for i, k in enumerate(factors)])
+    q = compare([comp], model="mooney-rivlin")["S"].quantities["M100_measured"]
+    vals = np.array(factors) * float(mooney_uniaxial(2.0, 0.2e6, 0.05e6))
+    lo, hi = stats.t.interval(0.95, len(vals) - 1, loc=vals.mean(), scale=stats.sem(vals))
+    assert q.value == pytest.approx(vals.mean(), rel=1e-12)
+    assert (q.low, q.high) == (pytest.approx(lo, rel=1e-9), pytest.approx(hi, rel=1e-9))
+
+
+def test_load_folder_one_subfolder_per_compound(tmp_path):
+    lam = np.linspace(1.05, 3.0, 20)
+    for name, C1 in (("A", 0.2e6), ("B", 0.3e6)):
+        d = tmp_path / name
+        d.mkdir()
+        (d / "uni.csv").write_text("# test: uniaxial\nstretch,stress (MPa)\n" + "\n".join(
+            f"{x:.5f},{y / 1e6:.6f}" for x, y in zip(lam, mooney_uniaxial(lam, C1, 0.0), strict=True)), "utf-8")
+    from network_models.compounds import load_folder
+
+    comps = load_folder(tmp_path)
+    assert [c.name for c in comps] == ["A", "B"]
+    assert comps[1].curves[0].stress[-1] == pytest.approx(float(mooney_uniaxial(3.0, 0.3e6, 0.0)), abs=1.0)
+    with pytest.raises(DataError, match="sub-folder"):
+        load_folder(tmp_path / "A")
+
+
+def test_app_compare_state_and_download_agree():
+    pytest.importorskip("panel")
+    from app.compare_view import CompareState
+
+    st = CompareState()
+    st._set({"A": mr_compound("A", 0.2e6, 0.05e6), "B": mr_compound("B", 0.24e6, 0.05e6)},
+            chosen=["A", "B"], baseline="A")
+    st.model, st.service_C = "mooney-rivlin", 80.0
+    with pytest.raises(ValueError, match="Compare first"):
+        st.report()
+    cmp = st.run()
+    assert cmp.service_temperature == pytest.approx(353.15)
+    doc = json.loads(st.report().to_json())
+    nu = {c["name"]: c["quantities"]["nu"]["value"] for c in doc["compounds"]}
+    assert nu["B"] / nu["A"] == pytest.approx(1.2, rel=1e-6)  # 2C₁ ratio 0.24/0.20 (closed form above)
+    with pytest.raises(ValueError, match="name"):
+        st.add_uploads("", [("a.csv", b"x")])
