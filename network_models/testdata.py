@@ -394,6 +394,8 @@ def _classify(index: int, header: str, unit_row_cell: str | None) -> _Column:
         kind = "stress"
     elif kind in ("other", "stress") and dim == "force":
         kind = "force"
+    elif kind == "specimen" and dim is not None:  # "specimen width (mm)" is a measurement, not a name
+        kind = "other"
     hint = low
     for _, words in _KEYWORDS:
         for w in words:
@@ -657,8 +659,13 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
             if multi:
                 specimen = f"{specimen or 'specimen'} #{k}"
         notices = notices0 + gnotes
-        lam, stress, kept_rows = _convert(fn, x, y, values, idx, data_numbers, gauge, area, notices)
-        lam, stress, kept_rows = _clean(fn, lam, stress, kept_rows, notices, y)
+        try:
+            lam, stress, kept_rows = _convert(fn, x, y, values, idx, data_numbers, gauge, area, notices)
+            lam, stress, kept_rows = _clean(fn, lam, stress, kept_rows, notices, y)
+        except DataError as e:
+            if multi and specimen:
+                raise DataError(f"{e} (specimen {specimen})") from None
+            raise
         if ignored and k == 1:
             notices.append("columns not used: " + ", ".join(repr(h) for h in ignored))
         compound = known.get("compound")

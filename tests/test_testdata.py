@@ -184,6 +184,18 @@ def test_specimen_column(tmp_path):
     np.testing.assert_allclose(curves[1].stress, [0, 1.1e6, 2.2e6])
 
 
+def test_specimen_width_column_is_not_a_specimen_name(tmp_path):
+    p = write(tmp_path, "sw.csv", "stretch,stress (MPa),specimen width (mm)\n1,0,4\n2,1,4\n3,2,4\n")
+    (c,) = read_curves(p)
+    assert any("specimen width" in n for n in c.notices)  # listed as not used
+
+
+def test_a_bad_specimen_is_named(tmp_path):
+    p = write(tmp_path, "bs.csv", "specimen,stretch,stress (MPa)\nA,1,0\nA,2,1\nA,3,2\nB,1,0\nB,2,1\n")
+    with pytest.raises(DataError, match=r"specimen B"):
+        read_curves(p)
+
+
 def test_repeated_column_pairs_named_by_header(tmp_path):
     p = write(tmp_path, "k.csv", "Extension S-1 (mm),Force S-1 (N),Extension S-2 (mm),Force S-2 (N)\n"
                                  "0,0,0,0\n20,8,20,9\n40,16,40,18\n")
