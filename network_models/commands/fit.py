@@ -20,7 +20,7 @@ CAUTION = ("Caution: model results support design decisions; they do not replace
 
 
 def add_parser(sub):
-    p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 % intervals, crosslink density)",
+    p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 %% intervals, crosslink density)",
                        description="Fit network models to tensile, planar or equibiaxial curves.")
     p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT or .xlsx)")
     p.add_argument("--model", action="append", metavar="NAME",
