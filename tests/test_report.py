@@ -246,3 +246,28 @@ def test_report_opens_offline_with_visible_plots(report, tmp_path):
     assert len(boxes) >= 4
     for w, h, marks in boxes:
         assert w > 300 and h > 200 and marks > 3
+
+
+@pytest.mark.ui
+def test_app_compare_tab_shows_table_and_downloads_the_report(app_page, deep_text_js, tmp_path):
+    # the Compare tab of the served app: the sample set is compared at start; the downloaded report holds
+    # the same strand densities as the core run on the same manifest (one pipeline for app, CLI and Python)
+    from network_models.compounds import load_manifest
+    from network_models.testdata import SAMPLE_MANIFEST
+
+    page = app_page
+    page.locator(".bk-tab", has_text="Compare").first.click()
+    page.wait_for_function(f"() => ({deep_text_js})('.ns-cmp-table').includes('strand density')", timeout=60000)
+    table = page.evaluate(deep_text_js, ".ns-cmp-table")
+    assert "junction (crosslink) density" in table and "(baseline)" in table
+    with page.expect_download(timeout=60000) as dl:
+        page.locator(".ns-cmp-dl-html button, .ns-cmp-dl-html a").first.click()
+    path = tmp_path / "tab_review.html"
+    dl.value.save_as(path)
+    parsed = Cells()
+    parsed.feed(path.read_text("utf-8"))
+    nu_tab = {c["compound"]: c["value"] for c in parsed.cells if c["key"] == "nu"}
+    man = load_manifest(SAMPLE_MANIFEST)
+    core = compare(man.compounds, model="extended-tube", baseline=man.baseline, service_temperature=353.15)
+    for r in core.results:
+        assert nu_tab[r.name] == pytest.approx(r.quantities["nu"].value, rel=1e-9)
