@@ -50,9 +50,12 @@ class DataError(ValueError):
     """A problem with a lab file; the message names the file, row or column and what to do."""
 
 
-@dataclass
+@dataclass(eq=False)
 class TestCurve:
-    """One test curve: stretch λ and nominal stress (Pa) in one mode, with where it came from."""
+    """One test curve: stretch λ and nominal stress (Pa) in one mode, with where it came from.
+
+    Curves compare and hash by identity (``eq=False``): field-wise ``==`` on numpy arrays is ambiguous, and
+    ``curve in list_of_curves`` must work."""
 
     __test__ = False  # not a pytest test class
 

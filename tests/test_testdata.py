@@ -231,6 +231,12 @@ def test_machine_preamble_above_the_header():
     assert any("preamble" in n for n in c.notices)
 
 
+def test_curves_compare_by_identity():
+    # `curve in curves` and sets of curves must work (numpy arrays make field-wise == ambiguous)
+    a, b = read_curves_bytes(b"specimen,stretch,stress (MPa)\nA,1,0\nA,2,1\nA,3,2\nB,1,0\nB,2,1\nB,3,2\n", "id.csv")
+    assert a in [a, b] and b not in [a] and len({a, b}) == 2
+
+
 def test_bytes_and_path_read_the_same(tmp_path):
     text = "# mode: planar\nstretch,stress (MPa)\n1,0\n1.5,0.3\n2,0.5\n"
     (a,) = read_curves(write(tmp_path, "n.csv", text))
