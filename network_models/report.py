@@ -570,7 +570,7 @@ class Report:
 
     def _cell(self, r, q, diff):
         if q is None:
-            return "<td class='num'>—</td>"
+            return "<td class='num'>— <span class='ci'>not available (see Warnings)</span></td>"
         if q.value is None:
             return f"<td class='num' title='{_e(q.note)}'>— <span class='ci'>{_e(q.note)}</span></td>"
         ci = ""
