@@ -97,16 +97,30 @@ class UnitConverter:
         return values * self.factor + self.offset if self.offset else values * self.factor
 
 
+# Units rubber labs write, by their usual spelling.  Only names (pint holds the factors): used to read
+# "Mpa", "MPA", "KN", "N/MM2", "Mm" the way a lab means them rather than as megametre or millipascal.
+_TRADE_UNITS = ("Pa", "kPa", "MPa", "GPa", "psi", "ksi", "bar", "N/mm**2", "N/m**2", "kgf/cm**2", "kgf/mm**2",
+                "lbf/in**2", "N", "kN", "mN", "cN", "daN", "gf", "kgf", "lbf", "mm", "cm", "m", "um", "in",
+                "inch", "mm**2", "cm**2", "m**2", "in**2", "mm/mm", "in/in", "m/m")
+_TRADE_BY_LOWER = {u.lower(): u for u in _TRADE_UNITS}
+
+
 def _pint_unit(text: str, dimension: str | None):
-    """Parse unit text with pint; return (pint Unit, note). Raises UnitError."""
+    """Parse unit text with pint; return a pint Unit.  Raises UnitError."""
     ureg = _registry()
     raw = text.strip()
     low = raw.lower().strip()
-    if dimension in (None, "temperature") and low in _TEMPERATURE_NAMES:
-        return ureg.Unit(_TEMPERATURE_NAMES[low])
+    squeezed = re.sub(r"[\s.]", "", low)
+    if dimension in (None, "temperature"):
+        for key in (low, squeezed):
+            if key in _TEMPERATURE_NAMES:
+                return ureg.Unit(_TEMPERATURE_NAMES[key])
     if low in {"%", "percent", "pct"}:
         return ureg.Unit("percent")
     tidy = _tidy_unit_text(raw)
+    trade = _TRADE_BY_LOWER.get(tidy.lower().replace(" ", ""))
+    if trade is not None:
+        tidy = trade
     try:
         unit = ureg.Unit(tidy)
     except Exception:  # pint raises many kinds on junk text (parse, tokenize, key, type errors)

@@ -46,6 +46,17 @@ def test_pressure_units(text, pa):
     assert unit_converter(text, "pressure").factor == pytest.approx(pa, rel=1e-12)
 
 
+@pytest.mark.parametrize("text,dim,si", [
+    # lab spellings with the wrong case mean the trade unit, never milli-pascal or megametre (common practice)
+    ("Mpa", "pressure", sc.mega), ("mpa", "pressure", sc.mega), ("MPA", "pressure", sc.mega),
+    ("PSI", "pressure", sc.psi), ("N/MM2", "pressure", sc.mega), ("KGF/CM2", "pressure", sc.g / sc.centi**2),
+    ("KN", "force", sc.kilo), ("daN", "force", 10.0), ("LBF", "force", sc.pound_force),
+    ("MM", "length", sc.milli), ("Mm", "length", sc.milli),
+])
+def test_trade_spellings_any_case(text, dim, si):
+    assert unit_converter(text, dim).factor == pytest.approx(si, rel=1e-12)
+
+
 # ---- force, length, area, fraction -------------------------------------------------------------------
 
 @pytest.mark.parametrize("text,si,dim", [
@@ -70,6 +81,7 @@ def test_factors_against_definitions(text, si, dim):
     ("23C", 23 + sc.zero_Celsius),       # scipy.constants.zero_Celsius = 273.15 K
     ("23 °C", 23 + sc.zero_Celsius),
     ("23 degC", 23 + sc.zero_Celsius),
+    ("23 Deg. C", 23 + sc.zero_Celsius),
     ("-10 °C", -10 + sc.zero_Celsius),
     ("296 K", 296.0),
     ("73F", float(sc.convert_temperature(73, "Fahrenheit", "Kelvin"))),  # (73 − 32)·5/9 + 273.15
