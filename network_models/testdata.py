@@ -540,6 +540,15 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
         unit_row = [_cell_text(c) for c in rows[1]]
         start = 2
     ncols = max(len(r) for r in rows)
+    nhead = sum(1 for h in header if h)
+    data_part = rows[start:]
+    wider = [r for r in data_part if sum(1 for c in r if c != "") > max(nhead, 1)]
+    if data_part and nhead and len(wider) > len(data_part) // 2:
+        raise DataError(
+            f"{fn}: most rows have more values than the header has column names ({nhead}); if the numbers use "
+            "decimal commas, separate the columns with semicolons or tabs (or quote the numbers), or name "
+            "every column in the header"
+        )
     header += [""] * (ncols - len(header))
     cols = []
     for i, h in enumerate(header):

@@ -329,6 +329,7 @@ def test_non_numeric_cells_skipped_and_counted(tmp_path):
     ("nounitmeta.csv", b"# width: 4\nstretch,stress (MPa)\n1,0\n2,1\n3,2\n", "has no unit"),
     ("space.txt", b"stretch stress\n1 0\n2 1\n", "separator"),
     ("order.csv", b"stress (MPa),stretch\n0,1\n1,2\n2,3\n", "before every stretch"),
+    ("commas.csv", b"stretch,stress (MPa)\n1,0,0\n1,5,0,3\n2,0,0,5\n2,5,0,7\n", "decimal commas"),
 ])
 def test_bad_files_raise_one_readable_error(tmp_path, name, data, words):
     p = write(tmp_path, name, data)
