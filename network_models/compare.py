@@ -31,7 +31,8 @@ from .models import ModeNotSupportedError, get_model
 from .network import get_polymer
 from .testdata import TestCurve
 
-log = logging.getLogger("netstretch")
+log = logging.getLogger("netstretch.compare")
+log.addHandler(logging.NullHandler())  # no traceback on a CLI user's screen; an app server's handlers still see it
 
 #: stretches of the trade moduli M100 and M300 (100 % and 300 % elongation; physics.md §7)
 TRADE_MODULI = {"M100": 2.0, "M300": 4.0}

@@ -127,6 +127,8 @@ def svg_line_chart(series: list[dict], xlabel: str, ylabel: str, title: str = ""
         span = float(finite_y.max()) - y0
         ylo = y0 if ylo >= y0 - 0.03 * abs(span) else ylo
     xt = nice_ticks(xlo, float(finite_x.max()))
+    if x0 is not None and xt[0] < x0 <= float(finite_x.min()):  # e.g. a stretch axis starts at λ = 1
+        xt = [x0] + [t for t in xt if t > x0 + 0.2 * (xt[1] - xt[0])]
     yt = nice_ticks(ylo, float(finite_y.max()))
     xa, xb, ya, yb = xt[0], xt[-1], yt[0], yt[-1]
 

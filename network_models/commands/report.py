@@ -130,7 +130,7 @@ def summary(cmp) -> str:
         lines.append("")
         lines.append(f"Against {cmp.baseline}:")
         for d in diffs:
-            ov = {True: "95 % intervals overlap", False: "95 % intervals apart", None: "no interval"}[
+            ov = {True: "95 % intervals overlap", False: "95 % intervals apart", None: "no statistical interval"}[
                 d["intervals_overlap"]]
             lines.append(f"  {d['compound']:{width}s} {d['label']:34s} {d['percent']:+7.1f} %   {ov}")
     problems = [r.error for r in cmp.results if r.error] + [w for r in cmp.results for w in r.warnings]
@@ -159,8 +159,9 @@ def run_report(args):
 
     cmp, title, purpose = _compare(args)
     if not any(r.ok for r in cmp.results):
-        raise UserError("no compound could be fitted, so no report was written: "
-                        + " ".join(r.error for r in cmp.results if r.error))
+        errs = [r.error for r in cmp.results if r.error]
+        raise UserError(f"no compound could be fitted, so no report was written ({errs[0]}"
+                        + (f"; and {len(errs) - 1} more like it" if len(errs) > 1 else "") + ")")
     rep = Report(cmp, title=args.title or title or "Compound design review", purpose=args.purpose or purpose)
     try:
         paths = rep.write(args.output)
