@@ -324,6 +324,10 @@ def service_plot(cmp: Comparison) -> str:
         grid = np.linspace(1.0, max(own) if own else top, 160)  # each compound over its own tested range
         color = PALETTE[i % len(PALETTE)]
         p = r.param_values()
+        if abs(Ts - r.test_temperature) < 0.05:  # service = test temperature: one curve, not two on top
+            series.append({"label": f"{r.name} at {_temp_c(Ts)} (test = service)", "x": grid,
+                           "y": m.nominal_stress(mode, grid, p) / 1e6, "color": color, "style": "line"})
+            continue
         series.append({"label": f"{r.name} at {_temp_c(r.test_temperature)}", "x": grid,
                        "y": m.nominal_stress(mode, grid, p) / 1e6, "color": color, "style": "dashed"})
         p_s = at_temperature(m, p, r.test_temperature, Ts)
