@@ -1,0 +1,76 @@
+"""Print the README "Performance" table from ``benchmarks/results/latest.json``:
+``python -m benchmarks.readme_table``."""
+
+from __future__ import annotations
+
+import json
+
+from .__main__ import RESULTS
+
+
+def _get(doc, *path):
+    for p in path:
+        if not isinstance(doc, dict) or p not in doc:
+            return None
+        doc = doc[p]
+    return doc
+
+
+def _f(value, fmt: str) -> str:
+    return "null" if value is None else fmt.format(value)
+
+
+def table(d: dict) -> str:
+    met = d["targets_met"]
+
+    def ok(k):
+        v = met.get(k)
+        return "—" if v is None else ("yes" if v else "**no**")
+
+    lt = ("langevin", "throughput")
+    ours, cohen = _get(d, "details", *lt, "ours_s"), _get(d, "details", *lt, "cohen_s")
+    per = _get(d, "details", "fit", "speedup_per_model") or {}
+    stress_only = _get(d, "details", "models", "core_stress_only_median_ms")
+    rows = [
+        ("L⁻¹ max relative error vs mpmath (10,200 points up to 1 − 1e-12)",
+         _f(d["langevin_max_rel_error"], "{:.1e}"), "≤ 1e-13", "langevin_max_rel_error"),
+        ("L⁻¹ throughput vs Cohen's Padé in numpy, 10⁶ values (t_Cohen / t_ours)",
+         _f(d["langevin_speed_vs_cohen"], "{:.2f}")
+         + (f" ({ours * 1e3:.1f} ms vs {cohen * 1e3:.1f} ms)" if ours and cohen else ""),
+         "≥ 0.25", "langevin_speed_vs_cohen"),
+        ("L⁻¹ speed vs per-point brentq (timed on a subsample, scaled)",
+         _f(d["langevin_speed_vs_brentq"], "{:.0f}×"), "≥ 100×", "langevin_speed_vs_brentq"),
+        ("One ν move: 11 models, 31 curves × 400 stretches, app code path (median)",
+         _f(d["models_eval_ms_median"], "{:.1f} ms")
+         + (f" (stress alone {stress_only:.1f} ms)" if stress_only else ""), "≤ 5 ms", "models_eval_ms_median"),
+        ("Fit eight-chain + extended tube to 60 three-mode points, vs curve_fit + brentq",
+         _f(d["fit_speedup_vs_naive"], "{:.1f}×")
+         + (" (" + ", ".join(f"{k} {v:.1f}×" for k, v in per.items()) + ")" if per else ""),
+         "≥ 20×", "fit_speedup_vs_naive"),
+        ("…both reach the same optimum within 1e-6 relative",
+         _f(d["fit_same_optimum"], "{}").lower(), "true", "fit_same_optimum"),
+        ("Browser: key press on the ν slider → stress plot repainted (median)",
+         _f(d["slider_update_ms_median"], "{:.0f} ms"), "≤ 150 ms", "slider_update_ms_median"),
+        ("…95th percentile", _f(d["slider_update_ms_p95"], "{:.0f} ms"), "≤ 300 ms", "slider_update_ms_p95"),
+        (f"Batch: {_f(d['batch_curves'], '{}')} uniaxial curves × 50 points, eight-chain fits",
+         _f(d["batch_curves_per_s"], "{:.0f} curves/s") + ", peak " + _f(d["batch_peak_mib"], "{:.1f} MiB"),
+         "≥ 100 /s", "batch_curves_per_s"),
+    ]
+    out = ["| figure | measured | target | met |", "|---|---|---|---|"]
+    out += [f"| {a} | {b} | {c} | {ok(k)} |" for a, b, c, k in rows]
+    m = d["machine"]
+    load = m.get("load_average_1min_at_start")
+    out.append("")
+    out.append(f"Machine: {m['cpu_model']}, {m['usable_cores']} cores, numpy {m['numpy']}, scipy {m['scipy']}, "
+               f"Python {m['python']}, BLAS {m['blas']}"
+               + (f"; 1-min load average {load:.1f} at the start" if load is not None else "")
+               + f"; run {d['started_utc']}, {d['elapsed_s']:.0f} s.")
+    return "\n".join(out)
+
+
+def main() -> None:
+    print(table(json.loads(RESULTS.read_text(encoding="utf-8"))))
+
+
+if __name__ == "__main__":
+    main()
