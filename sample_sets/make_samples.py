@@ -3,7 +3,7 @@
 The scenario: "Quillmere Elastomer Works" (an invented maker) compares four invented natural-rubber
 compounds: three sulfur cure doses (QM-S1 low, QM-S2 mid, QM-S3 high) and one carbon-black-filled variant
 of the mid dose (QM-S2B).  The curves are generated from the **extended-tube** model (with each
-compound's parameters from ``network_models.Network``), i.e. from a model other than the ones users
+compound's parameters from ``network_models.Network``, pinned), i.e. from a model other than the ones users
 usually fit (eight-chain, affine, phantom, Mooney–Rivlin), then given realistic faults: ~1 % noise and a
 small force offset, slack at the start of one file, an unloading branch in another, repeated points.
 
@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 from scipy.optimize import brentq
 
-from network_models import Network, get_model
+from network_models import get_model
 from network_models.thermo import force_at_fixed_length
 
 SEED = 20261202
@@ -30,30 +30,28 @@ BANNER = ("INVENTED DATA for demonstration only. Quillmere Elastomer Works is an
 GENERATOR = get_model("extended-tube")
 T_TEST = 296.15  # 23 °C, the usual laboratory temperature [common practice]
 
-#: The invented compounds: strand density ν (mol/m³) behind the generated data, recipe facts for the manifest.
-#: ``delta_factor`` widens the extended-tube extensibility δ for the filled compound: filler amplifies the
-#: strain the rubber phase sees, so it locks earlier (a generator choice for the invented data).
+#: The invented compounds: recipe facts for the manifest and the extended-tube parameters behind the data.
+#: Gc, Ge and delta are what ``Network(polymer="NR", nu=..., T=296.15, filler_fraction=phi)`` gave when the
+#: set was made (4 significant digits), pinned here so that edits to the polymer table do not silently
+#: change the demo data.  For the filled compound delta is widened 1.5× (0.07679 → 0.1152): filler
+#: amplifies the strain the rubber phase sees, so it locks earlier (a generator choice for invented data).
 COMPOUNDS = {
     "QM-S1": dict(nu=95.0, sulfur_phr=1.0, filler_phr=0.0, phi=0.0, title="NR gum, low sulfur dose",
-                  delta_factor=1.0),
+                  Gc=233.9e3, Ge=347.8e3, delta=0.06308),
     "QM-S2": dict(nu=140.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, title="NR gum, mid sulfur dose",
-                  delta_factor=1.0),
+                  Gc=344.7e3, Ge=347.8e3, delta=0.07679),
     "QM-S3": dict(nu=195.0, sulfur_phr=3.0, filler_phr=0.0, phi=0.0, title="NR gum, high sulfur dose",
-                  delta_factor=1.0),
+                  Gc=480.2e3, Ge=347.8e3, delta=0.09095),
     "QM-S2B": dict(nu=140.0, sulfur_phr=2.0, filler_phr=30.0, phi=0.13,
-                   title="NR, mid sulfur dose, 30 phr carbon black", delta_factor=1.5),
+                   title="NR, mid sulfur dose, 30 phr carbon black", Gc=538.9e3, Ge=543.8e3, delta=0.1152),
 }
-
-
-def network(key: str, scale: float = 1.0, T: float = T_TEST) -> Network:
-    c = COMPOUNDS[key]
-    return Network(polymer="NR", nu=c["nu"] * scale, T=T, filler_fraction=c["phi"])
+BETA = 0.2  # extended-tube exponent, the model's typical value
 
 
 def generator_params(key, scale=1.0):
-    p = dict(network(key, scale).model_params(GENERATOR))
-    p["delta"] *= COMPOUNDS[key]["delta_factor"]
-    return p
+    """Extended-tube parameters for one specimen; ``scale`` varies its crosslink density (Gc ∝ ν, δ ∝ √ν)."""
+    c = COMPOUNDS[key]
+    return {"Gc": c["Gc"] * scale, "Ge": c["Ge"], "delta": c["delta"] * np.sqrt(scale), "beta": BETA}
 
 
 def nominal(key, mode, lam, scale=1.0):
@@ -230,11 +228,10 @@ def swelling(rng) -> str:
 
 def force_temperature(rng) -> str:
     """QM-S2 clamped at λ = 2.0, heated from 20 to 80 °C; force from the Gaussian network with expansion."""
-    net = network("QM-S2")
+    c = COMPOUNDS["QM-S2"]
     area = 4e-3 * 2e-3
     T = np.arange(20.0, 81.0, 5.0) + 273.15
-    F = force_at_fixed_length(T, 2.0, net.affine_modulus + net.entanglement_modulus, T_TEST, area,
-                              expansion=6.6e-4)
+    F = force_at_fixed_length(T, 2.0, c["Gc"] + c["Ge"], T_TEST, area, expansion=6.6e-4)
     F = F * (1 + rng.normal(0, 0.004, T.size))
     out = [header(["compound: QM-S2", "stretch: 2.0", "width: 4 mm", "thickness: 2 mm",
                    "note: clamped at stretch 2.0 at 23 °C, relaxed 2 h, then heated in 5 °C steps (invented)"]),
@@ -268,7 +265,7 @@ def manifest() -> str:
     def q(text):
         return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
 
-    generator = (f"make_samples.py, seed {SEED}: extended-tube model from network_models.Network, "
+    generator = (f"make_samples.py, seed {SEED}: extended-tube model (parameters from network_models.Network, pinned), "
                  "~1 % noise plus a small offset")
     out = [
         f"# {BANNER}\n",
