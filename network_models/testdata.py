@@ -1164,6 +1164,8 @@ def read_swelling(path_or_bytes, filename: str | None = None) -> list[SwellingRe
                 if not math.isfinite(v):
                     raise DataError(f"{fn}, line {line}: {where[key][2]!r} = {cell!r} is not a number")
                 vals[key] = convs[key](v)
+            if vals["temperature"] is not None and not vals["temperature"] > 0:
+                raise DataError(f"{fn}, line {line}: temperature at or below absolute zero; check its unit")
             if vals["dry_mass"] is None or vals["swollen_mass"] is None:
                 raise DataError(f"{fn}, line {line}: dry and swollen mass are both needed")
             if vals["dry_mass"] <= 0 or vals["swollen_mass"] <= vals["dry_mass"] * 0.5:

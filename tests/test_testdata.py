@@ -489,3 +489,20 @@ def test_fuzz_xlsx_cells(rows):
     except Exception:  # openpyxl refuses some cell values (control characters): not our reader's problem
         return
     _read_or_error(data, "fuzz.xlsx")
+
+
+@FUZZ
+@given(_meta, st.lists(_header | st.sampled_from(["temperature (°C)", "force (N)", "compound", "dry mass (g)",
+                                                   "swollen mass (g)", "extracted mass (g)", "solvent"]),
+                       min_size=1, max_size=5),
+       st.lists(st.lists(_cell, min_size=0, max_size=5), max_size=8), st.binary(max_size=60))
+def test_fuzz_other_readers(meta, headers, rows, junk):
+    # the swelling, force–temperature and inspect readers obey the same contract: a result or DataError
+    text = meta + ",".join(headers) + "\n" + "\n".join(",".join(r) for r in rows) + "\n"
+    for data in (text.encode("utf-8"), junk):
+        for reader in (lambda d: read_swelling(d, "s.csv"), lambda d: read_force_temperature(d, "f.csv"),
+                       lambda d: td.inspect_bytes(d, "i.csv")):
+            try:
+                reader(data)
+            except DataError as e:
+                assert str(e)
