@@ -29,8 +29,8 @@ from .units import UnitError, parse_number, parse_quantity, split_header, unit_c
 
 __all__ = [
     "MAX_FILE_BYTES", "SAMPLE_MANIFEST", "SLACK_FRACTION", "Compound", "DataError", "FileInfo",
-    "ForceTemperatureRecord", "Manifest", "SwellingResult", "TestCurve", "inspect_bytes", "read_curves",
-    "read_curves_bytes", "read_force_temperature", "read_manifest", "read_swelling",
+    "ForceTemperatureRecord", "Manifest", "SwellingResult", "TestCurve", "curves_to_csv", "inspect_bytes",
+    "read_curves", "read_curves_bytes", "read_force_temperature", "read_manifest", "read_swelling",
 ]
 
 #: Files larger than this are refused (bytes; 20 MB).  A tensile export is usually well under 1 MB.
@@ -941,6 +941,32 @@ def _read(data: bytes, filename: str, source: str, opts: dict) -> list[TestCurve
         raise DataError(f"{filename}: the file is empty; it needs a header row and rows of numbers")
     table = _load_table(data, filename, opts.get("sheet"))
     return _curves_from_table(table, source, opts)
+
+
+def curves_to_csv(curves: list[TestCurve]) -> str:
+    """The curves as one CSV text in the reader's own format (readable back with ``read_curves_bytes``):
+    '# key: value' metadata lines (mode, temperature, cycle, compound — common to all curves), then columns
+    specimen, stretch, stress (MPa).  Curves of different modes or temperatures need separate files."""
+    if not curves:
+        raise ValueError("no curves to write")
+    modes = {c.mode for c in curves}
+    temps = {c.temperature for c in curves}
+    if len(modes) > 1 or len(temps) > 1:
+        raise ValueError("curves of different test modes or temperatures go in separate files")
+    first = curves[0]
+    lines = [f"# mode: {first.mode.value}"]
+    if first.temperature is not None:
+        lines.append(f"# temperature: {first.temperature:.6g} K")
+    for key, value in (("cycle", first.cycle), ("compound", first.metadata.get("compound"))):
+        if value and all((c.cycle if key == "cycle" else c.metadata.get(key)) == value for c in curves):
+            lines.append(f"# {key}: {' '.join(str(value).split())}")
+    lines.append("specimen,stretch,stress (MPa)")
+    for i, c in enumerate(curves, start=1):
+        label = str(c.specimen or c.name or f"curve {i}").replace(",", " ").replace('"', "'").strip() or f"curve {i}"
+        if len(curves) > 1 and sum(1 for d in curves if (d.specimen or d.name) == (c.specimen or c.name)) > 1:
+            label = f"{label} #{i}"
+        lines += [f"{label},{lam!r},{p / 1e6!r}" for lam, p in zip(c.stretch.tolist(), c.stress.tolist(), strict=True)]
+    return "\n".join(lines) + "\n"
 
 
 @dataclass

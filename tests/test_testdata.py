@@ -506,3 +506,26 @@ def test_fuzz_other_readers(meta, headers, rows, junk):
                 reader(data)
             except DataError as e:
                 assert str(e)
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.floats(0.05, 1.5), min_size=3, max_size=25), st.floats(0.1e6, 3e6),
+       st.sampled_from(list(Mode)), st.sampled_from([None, 296.15, 353.15]), st.integers(1, 3))
+def test_csv_round_trip(steps, G, mode, T, n):
+    # neo-Hookean uniaxial-form curves P = G(λ − λ⁻²) (physics.md §2) written and read back unchanged
+    lam = 1.0 + np.cumsum([0.0, *steps])
+    curves = [TestCurve(mode, lam, G * (1 + 0.1 * k) * (lam - lam**-2), name=f"c{k}", specimen=f"S-{k}",
+                        temperature=T) for k in range(n)]
+    back = read_curves_bytes(td.curves_to_csv(curves).encode(), "round.csv")
+    assert [c.specimen for c in back] == [c.specimen for c in curves]
+    for a, b in zip(curves, back, strict=True):
+        assert b.mode is mode and b.temperature == (None if T is None else pytest.approx(T))
+        np.testing.assert_allclose(b.stretch, a.stretch, rtol=1e-12)
+        np.testing.assert_allclose(b.stress, a.stress, rtol=1e-12)
+
+
+def test_csv_writer_refuses_mixed_modes():
+    a = TestCurve("uniaxial", [1, 2, 3], [0, 1, 2])
+    b = TestCurve("planar", [1, 2, 3], [0, 1, 2])
+    with pytest.raises(ValueError, match="separate files"):
+        td.curves_to_csv([a, b])
