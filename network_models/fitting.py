@@ -34,12 +34,14 @@ curves are computed once, then each evaluation calls the model's ``_dW_dI``/``_d
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 from scipy import stats
-from scipy.optimize import least_squares
+from scipy.optimize import brentq, least_squares
 
 from .deformation import MODES, Mode, principal_stretches
 from .models import Model, get_model
@@ -50,7 +52,8 @@ __all__ = ["FitError", "FitResult", "ModeStats", "ParamEstimate", "estimate_modu
 
 _RELATIVE_FLOOR = 0.02  # relative residual denominator floor, fraction of the largest |stress| of a mode
 _SMALL_STRAIN = (0.7, 1.5)  # stretch window for the start modulus
-_LOCK_CANDIDATES = (1.05, 1.3, 2.0, 4.0, 12.0)  # start multiples of the locking threshold
+_LOCK_CANDIDATES = (1.3, 2.5, 8.0)  # start multiples of the locking threshold
+_METHOD = "lm"
 
 
 class FitError(ValueError):
@@ -245,12 +248,22 @@ class _Data:
         self.B = 2.0 * (a1 * (self.I1 - a1) - a3 * (self.I1 - a3)) / l1
         self.l3_over_l1 = l3 / l1
 
+    def extremes(self) -> np.ndarray:
+        """Indices of the smallest and largest stretch of every mode (where a model's domain ends)."""
+        idx = []
+        for mask in self.masks.values():
+            where = np.flatnonzero(mask)
+            lam = self.lam[where]
+            idx += [int(where[np.argmin(lam)]), int(where[np.argmax(lam)])]
+        return np.unique(np.array(idx, dtype=int))
+
     def subset(self, keep: np.ndarray) -> _Data:
         new = object.__new__(_Data)
         new.lam, new.P, new.mode_idx = self.lam[keep], self.P[keep], self.mode_idx[keep]
         new.modes = [m for m in MODES if np.any(new.mode_idx == MODES.index(m))]
         new.masks = {m: new.mode_idx == MODES.index(m) for m in new.modes}
-        new._kinematics()
+        for a in ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1"):
+            setattr(new, a, getattr(self, a)[keep])
         return new
 
 
@@ -301,19 +314,17 @@ def _fast_evaluator(model: Model, data: _Data):
     A, B, r31 = data.A, data.B, data.l3_over_l1
     inv, lamp = model.has_invariant_part, model.has_stretch_part
 
-    def ev(p):
-        with np.errstate(all="ignore"):
-            out = np.zeros_like(l1)
-            if inv:
-                W1, W2 = model._dW_dI(I1, I2, p)
-                out = W1 * A
-                if np.any(W2 != 0):
-                    out = out + W2 * B
+    def ev(p):  # called inside fit's np.errstate(all="ignore")
+        if inv:
+            W1, W2 = model._dW_dI(I1, I2, p)
+            out = W1 * A + W2 * B
             if lamp:
-                out = out + model._dW_dlam(l1, p) - r31 * model._dW_dlam(l3, p)
-            m = model._margin(l1, l2, l3, I1, p)
-            if m is not None:
-                out = np.where(m > 0, out, np.nan)
+                out += model._dW_dlam(l1, p) - r31 * model._dW_dlam(l3, p)
+        else:
+            out = model._dW_dlam(l1, p) - r31 * model._dW_dlam(l3, p)
+        m = model._margin(l1, l2, l3, I1, p)
+        if m is not None:
+            out[~(m > 0)] = np.nan
         return out
 
     return ev
@@ -327,10 +338,20 @@ def _inside(model, data, p) -> np.ndarray:
     return np.asarray(m > 0)
 
 
-class _Transform:
-    """Physical value <-> optimiser coordinate for one parameter."""
+class _Coord:
+    """One free parameter's coordinates.
 
-    def __init__(self, param, start, G0):
+    ``z`` is the natural coordinate (log v for log-scaled parameters, v/scale otherwise): standard errors
+    and intervals are formed in it.  ``x`` is the optimiser's coordinate, with the bounds folded in by the
+    smooth one- and two-sided transforms used by MINUIT and lmfit (z = lo − 1 + √(x² + 1), z = lo + (hi −
+    lo)(sin x + 1)/2), so ``least_squares`` runs unbounded: bounded trf takes many short reflective steps.
+    A linear bound more than ``_FAR`` scale units from the start counts as absent (the result is clipped
+    to the declared bounds and flagged if it gets there).
+    """
+
+    _FAR = math.inf
+
+    def __init__(self, param, start, G0, lo, hi):
         self.log = bool(param.log_scale) and param.bounds[0] > 0
         if self.log:
             self.scale = 1.0
@@ -338,48 +359,281 @@ class _Transform:
             self.scale = G0
         else:
             self.scale = abs(start) if start != 0 else (param.typical[1] - param.typical[0])
+        self.zlo_decl = self.z_of_v(lo) if math.isfinite(lo) and (lo > 0 or not self.log) else -math.inf
+        self.zhi_decl = self.z_of_v(hi) if math.isfinite(hi) else math.inf
+        z0 = self.z_of_v(start)
+        self.zlo = self.zlo_decl if (self.log or abs(self.zlo_decl - z0) <= self._FAR) else -math.inf
+        self.zhi = self.zhi_decl if (self.log or abs(self.zhi_decl - z0) <= self._FAR) else math.inf
+        lo_ok, hi_ok = math.isfinite(self.zlo), math.isfinite(self.zhi)
+        self.kind = "both" if lo_ok and hi_ok else "lower" if lo_ok else "upper" if hi_ok else "none"
 
-    def to_x(self, v):
+    def z_of_v(self, v):
         return math.log(v) if self.log else v / self.scale
 
-    def to_v(self, x):
-        return math.exp(x) if self.log else x * self.scale
+    def v_of_z(self, z):
+        return math.exp(min(z, 700.0)) if self.log else z * self.scale
 
-    def dv_dx(self, v):
+    def dv_dz(self, v):
         return v if self.log else self.scale
+
+    def z_of_x(self, x):
+        if self.kind == "both":
+            return self.zlo + (self.zhi - self.zlo) * (math.sin(x) + 1.0) / 2.0
+        if self.kind == "lower":
+            return self.zlo - 1.0 + math.sqrt(x * x + 1.0)
+        if self.kind == "upper":
+            return self.zhi + 1.0 - math.sqrt(x * x + 1.0)
+        return x
+
+    def dz_dx(self, x):
+        if self.kind == "both":
+            return (self.zhi - self.zlo) * math.cos(x) / 2.0
+        if self.kind == "lower":
+            return x / math.sqrt(x * x + 1.0)
+        if self.kind == "upper":
+            return -x / math.sqrt(x * x + 1.0)
+        return 1.0
+
+    def x_of_v(self, v):
+        """Optimiser coordinate of a start value, nudged off a bound (the transforms are flat there)."""
+        z = self.z_of_v(v)
+        if self.kind == "both":
+            w = self.zhi - self.zlo
+            u = min(max(2.0 * (z - self.zlo) / w - 1.0, -1.0 + 1e-6), 1.0 - 1e-6)
+            return math.asin(u)
+        if self.kind == "lower":
+            return math.sqrt((max(z - self.zlo, 1e-3) + 1.0) ** 2 - 1.0)
+        if self.kind == "upper":
+            return math.sqrt((max(self.zhi - z, 1e-3) + 1.0) ** 2 - 1.0)
+        return z
+
+    def v_of_x(self, x):
+        return self.v_of_z(self.z_of_x(x))
+
+
+class _LinearModuli:
+    """Stress and Jacobian columns dP/dz for the optimiser.
+
+    Every model here is linear in each of its moduli (Pa parameters) with the others held:
+    P = Σ θᵢ hᵢ(λ; other parameters), hᵢ = the stress with θᵢ = 1 and the other moduli 0.  This is checked
+    once per model (numerically, at a start point) and remembered; so is which free non-modulus parameters
+    each hᵢ depends on.  Then P is assembled from cached hᵢ (a tube model's hᵢ never change during a fit;
+    the extended tube's G_e response does not depend on δ), a modulus column of the Jacobian is hᵢ itself,
+    and only the other parameters need a finite difference in z.  Models that fail the check are
+    evaluated directly."""
+
+    def __init__(self, m, ev, free_names, p, co):
+        self.ev = ev
+        self.free = list(free_names)
+        self.co = co
+        self.moduli = [q.name for q in m.params if q.unit == "Pa"]
+        nonlin = [nm for nm in self.free if nm not in self.moduli]
+        self._cache: dict[str, dict] = {nm: {} for nm in self.moduli}
+        self.linear = False
+        self.deps: dict[str, tuple[str, ...]] = {}
+        if self.moduli:
+            key = (type(m).__qualname__, m.name)
+            if key not in _LINEAR_IN_MODULI:
+                _LINEAR_IN_MODULI[key] = self._check(p)
+            self.linear = _LINEAR_IN_MODULI[key]
+        if self.linear:
+            for nm in self.moduli:
+                dk = (type(m).__qualname__, m.name, nm, tuple(nonlin))
+                if dk not in _MODULUS_DEPENDS:
+                    _MODULUS_DEPENDS[dk] = tuple(j for j in nonlin if self._depends(p, nm, j))
+                self.deps[nm] = _MODULUS_DEPENDS[dk]
+
+    def _unit_eval(self, p, name):
+        q = dict(p)
+        for nm in self.moduli:
+            q[nm] = 0.0
+        q[name] = 1.0
+        return self.ev(q)
+
+    def h(self, p, name):
+        """hᵢ at p, cached on the parameters it depends on (a few entries: the base point and its steps)."""
+        key = tuple(p[j] for j in self.deps[name])
+        cache = self._cache[name]
+        out = cache.get(key)
+        if out is None:
+            if len(cache) >= 4:
+                cache.pop(next(iter(cache)))
+            out = cache[key] = self._unit_eval(p, name)
+        return out
+
+    def _check(self, p):
+        P = self.ev(p)
+        tot = sum(p[nm] * self._unit_eval(p, nm) for nm in self.moduli)
+        scale = np.max(np.abs(P)) if P.size else 0.0
+        ok = np.isfinite(P)
+        return bool(scale > 0 and np.all(np.abs(tot[ok] - P[ok]) <= 1e-9 * scale))
+
+    def _depends(self, p, name, j):
+        c = self.co[self.free.index(j)]
+        z = c.z_of_v(p[j])
+        q = dict(p)
+        q[j] = c.v_of_z(z - 0.01 * max(1.0, abs(z)))  # toward the valid side of most locks is not known:
+        a, b = self._unit_eval(p, name), self._unit_eval(q, name)  # any change (also in NaN) = depends
+        return not np.array_equal(a, b, equal_nan=True)
+
+    def stress(self, p):
+        if not self.linear:
+            return self.ev(p)
+        out = None
+        for nm in self.moduli:
+            t = p[nm]
+            if t == 0.0 and self.deps[nm]:
+                continue
+            term = t * self.h(p, nm)
+            out = term if out is None else out + term
+        if out is None:
+            out = 0.0 * self.h(p, self.moduli[0])
+        return out
+
+    def dP_dz(self, p, P, central):
+        k = len(self.free)
+        J = np.empty((P.size, k))
+        for i, nm in enumerate(self.free):
+            c = self.co[i]
+            v = p[nm]
+            if self.linear and nm in self.moduli:
+                J[:, i] = self.h(p, nm) * c.dv_dz(v)
+                continue
+            z = c.z_of_v(v)
+            h = (1e-5 if central else 1e-7) * max(1.0, abs(z))
+            q = dict(p)
+            q[nm] = c.v_of_z(z + h)
+            Pp = self.stress(q)
+            if central:
+                q[nm] = c.v_of_z(z - h)
+                Pm = self.stress(q)
+                if np.all(np.isfinite(Pp)) and np.all(np.isfinite(Pm)):
+                    J[:, i] = (Pp - Pm) / (2 * h)
+                    continue
+            if not np.all(np.isfinite(Pp)):  # a step past a lock: step the other way
+                q[nm] = c.v_of_z(z - h)
+                J[:, i] = (P - self.stress(q)) / h
+            else:
+                J[:, i] = (Pp - P) / h
+        return J
+
+
+def _bounded_lstsq(H, y, lo, hi):
+    """min ‖Hθ − y‖ with lo ≤ θ ≤ hi for a few columns: the unconstrained solution when it is feasible
+    (then it is optimal: convex problem), else the best feasible one over the active sets."""
+    k = H.shape[1]
+    A = H.T @ H
+    b = H.T @ y
+    if k == 1:
+        a = A[0, 0]
+        t = b[0] / a if a > 0 else 0.0
+        return np.array([min(max(t, lo[0]), hi[0])])
+    if k == 2:  # closed form: interior optimum, else the best of the four box edges (convex problem)
+        a11, a12, a22 = float(A[0, 0]), float(A[0, 1]), float(A[1, 1])
+        b1, b2 = float(b[0]), float(b[1])
+        det = a11 * a22 - a12 * a12
+        if det > 1e-14 * a11 * a22:
+            t1, t2 = (a22 * b1 - a12 * b2) / det, (a11 * b2 - a12 * b1) / det
+            if lo[0] <= t1 <= hi[0] and lo[1] <= t2 <= hi[1]:
+                return np.array([t1, t2])
+        best, best_cost = (0.0, 0.0), math.inf
+        for i, edge in ((0, lo[0]), (0, hi[0]), (1, lo[1]), (1, hi[1])):
+            if not math.isfinite(edge):
+                continue
+            if i == 0:
+                t1 = edge
+                t2 = min(max((b2 - a12 * t1) / a22 if a22 > 0 else 0.0, lo[1]), hi[1])
+            else:
+                t2 = edge
+                t1 = min(max((b1 - a12 * t2) / a11 if a11 > 0 else 0.0, lo[0]), hi[0])
+            cost = a11 * t1 * t1 + 2 * a12 * t1 * t2 + a22 * t2 * t2 - 2 * (b1 * t1 + b2 * t2)
+            if cost < best_cost:
+                best, best_cost = (t1, t2), cost
+        return np.array(best)
+    try:
+        t = np.linalg.solve(A, b)
+        if np.all(t >= lo) and np.all(t <= hi) and np.all(np.isfinite(t)):
+            return t
+    except np.linalg.LinAlgError:
+        pass
+    best, best_cost = None, math.inf
+    for states in itertools.product((0, 1, 2), repeat=k):  # 0 free, 1 at lower, 2 at upper bound
+        th = np.zeros(k)
+        free = [i for i in range(k) if states[i] == 0]
+        ok = True
+        for i in range(k):
+            if states[i]:
+                th[i] = lo[i] if states[i] == 1 else hi[i]
+                ok &= math.isfinite(th[i])
+        if not ok:
+            continue
+        if free:
+            fixed = [i for i in range(k) if states[i]]
+            rhs = b[free] - (A[np.ix_(free, fixed)] @ th[fixed] if fixed else 0.0)
+            try:
+                th[free] = np.linalg.solve(A[np.ix_(free, free)], rhs)
+            except np.linalg.LinAlgError:
+                continue
+            if not (np.all(th >= lo - 1e-12 * np.abs(lo)) and np.all(th <= hi)):
+                continue
+        cost = float(th @ A @ th - 2 * b @ th)
+        if cost < best_cost:
+            best, best_cost = th, cost
+    return np.clip(best, lo, hi) if best is not None else np.clip(np.zeros(k), lo, hi)
+
+
+def _exp(x: float) -> float:
+    return math.exp(x) if x < 709.0 else math.inf
+
+
+_LINEAR_IN_MODULI: dict[tuple[str, str], bool] = {}
+_MODULUS_DEPENDS: dict[tuple, tuple[str, ...]] = {}
+
+
+@lru_cache(maxsize=256)
+def _t975(dof: int) -> float:
+    return float(stats.t.ppf(0.975, dof))
 
 
 def _lock_threshold(model, data, p, name, lo, hi):
     """If ``name`` controls the model's domain on these data, (threshold, valid_side) with valid_side
-    'above' or 'below'; else None.  Found by bisection on the model's own domain test."""
+    'above' or 'below'; else None.  The threshold is the root of the smallest domain margin over the data
+    points (the model's own ``_margin``), found with brentq in log or linear coordinates."""
+    if not (math.isfinite(lo) and math.isfinite(hi)):
+        return None
+    use_log = lo > 0
 
-    def ok(v):
+    def v_of(z):
+        return math.exp(z) if use_log else z
+
+    def g(z):
         q = dict(p)
-        q[name] = v
-        return bool(np.all(_inside(model, data, q)))
+        q[name] = v_of(z)
+        mg = model._margin(data.l1, data.l2, data.l3, data.I1, q)
+        if mg is None:
+            return math.inf
+        mn = float(np.min(mg))
+        return mn if math.isfinite(mn) else (-math.inf if np.isnan(mn) else mn)
 
-    lo_f, hi_f = lo, hi
-    if not math.isfinite(lo_f) or not math.isfinite(hi_f):
+    za, zb = (math.log(lo), math.log(hi)) if use_log else (lo, hi)
+    ga, gb = g(za), g(zb)
+    if not (math.isfinite(ga) or math.isfinite(gb)) or (ga > 0) == (gb > 0):
         return None
-    a, b = ok(lo_f), ok(hi_f)
-    if a == b:
-        return None
-    use_log = lo_f > 0
-    x0, x1 = (math.log(lo_f), math.log(hi_f)) if use_log else (lo_f, hi_f)
-    # invariant: ok(x0) == a, ok(x1) == b
-    for _ in range(80):
-        xm = 0.5 * (x0 + x1)
-        vm = math.exp(xm) if use_log else xm
-        if ok(vm) == a:
-            x0 = xm
-        else:
-            x1 = xm
-        if abs(x1 - x0) <= 1e-12 * max(1.0, abs(x0)):
-            break
-    valid_side = "below" if a else "above"
-    edge = x0 if a else x1  # the valid-side end of the bracket
-    thr = math.exp(edge) if use_log else edge
-    return thr, valid_side
+    ok_a = ga > 0
+    if math.isfinite(ga) and math.isfinite(gb):
+        zr = brentq(g, za, zb, xtol=1e-13, rtol=4 * np.finfo(float).eps, maxiter=200)
+    else:  # an end where the margin is not finite: bisection on the sign
+        z0, z1 = za, zb
+        for _ in range(200):
+            zm = 0.5 * (z0 + z1)
+            if (g(zm) > 0) == ok_a:
+                z0 = zm
+            else:
+                z1 = zm
+            if abs(z1 - z0) <= 1e-13 * max(1.0, abs(z0)):
+                break
+        zr = 0.5 * (z0 + z1)
+    return v_of(zr), ("below" if ok_a else "above")
 
 
 def _resolve_names(model, names, what):
@@ -401,6 +655,11 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
     value; ``start``: {name: value} start values replacing the automatic ones.  Raises :class:`FitError`
     (a ValueError) with a sentence when the fit cannot be done or does not converge.
     """
+    with np.errstate(all="ignore"):  # NaN past a lock is expected inside; it never reaches the result
+        return _fit(model, curves, residual=residual, free=free, fixed=fixed, start=start)
+
+
+def _fit(model, curves, *, residual, free, fixed, start) -> FitResult:
     m = get_model(model) if isinstance(model, str) else model
     if isinstance(curves, TestCurve):
         curves = [curves]
@@ -430,14 +689,14 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
         p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
     except ValueError as exc:
         raise FitError(f"start values rejected: {exc}") from None
-    ev = _fast_evaluator(m, data)
 
     lb = {q.name: q.bounds[0] for q in m.params}
     ub = {q.name: q.bounds[1] for q in m.params}
     locks: dict[str, tuple[float, str]] = {}
+    ext = data.subset(data.extremes())  # the domain of every model here is set by the extreme stretches
     for name in free_names:
         q = m.params[name]
-        t = _lock_threshold(m, data, p0, name, q.bounds[0], q.bounds[1])
+        t = _lock_threshold(m, ext, p0, name, q.bounds[0], q.bounds[1])
         if t is None:
             continue
         thr, side = t
@@ -456,9 +715,9 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
                      f"{m.title} model with the fixed parameters and were left out of the fit; free the "
                      "locking parameter or remove those points")
         data = data.subset(inside)
-        ev = _fast_evaluator(m, data)
         if data.lam.size == 0:
             raise FitError("every data point lies beyond the model's locking stretch with the fixed parameters")
+    ev = _fast_evaluator(m, data)
 
     n = data.lam.size
     k = len(free_names)
@@ -472,32 +731,27 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
         weight = 1.0 / np.maximum(np.abs(data.P), np.maximum(floor, 1e-300))
     else:
         weight = np.full(n, 1.0 / G0)
-
-    def cost_of(p):
-        r = (ev(p) - data.P) * weight
-        return float(np.dot(r, r)) if np.all(np.isfinite(r)) else math.inf
+    wd = data.P * weight
+    wd2 = float(np.dot(wd, wd))
 
     moduli = [q.name for q in m.params if q.unit == "Pa"]
-    scale_moduli = moduli and all(name in free_names and name not in start for name in moduli)
+    scale_moduli = bool(moduli) and all(name in free_names and name not in start for name in moduli)
 
-    def rescaled(p):
-        """Common best factor on every modulus (stress is linear in the moduli together)."""
-        if not scale_moduli:
-            return p
-        pm = ev(p)
-        if not np.all(np.isfinite(pm)):
-            return p
-        wm, wd = pm * weight, data.P * weight
-        den = float(np.dot(wm, wm))
-        if den <= 0:
-            return p
-        a = float(np.dot(wm, wd)) / den
-        if not (a > 0 and math.isfinite(a)):
-            return p
-        q = dict(p)
-        for name in moduli:
-            q[name] = min(max(q[name] * a, lb[name]), ub[name])
-        return q
+    def scored(p):
+        """(cost, p) with one common best factor on every modulus (the stress is linear in the moduli
+        together), from a single model evaluation."""
+        wm = ev(p) * weight
+        if not np.all(np.isfinite(wm)):
+            return math.inf, p
+        mm_, md = float(np.dot(wm, wm)), float(np.dot(wm, wd))
+        if scale_moduli and mm_ > 0 and md > 0:
+            a = md / mm_
+            q = dict(p)
+            for name in moduli:
+                q[name] = q[name] * a
+            if all(lb[nm] <= q[nm] <= ub[nm] for nm in moduli):
+                return wd2 - md * md / mm_, q
+        return mm_ - 2 * md + wd2, p
 
     candidates = [p0]
     for name, (thr, side) in locks.items():
@@ -513,79 +767,117 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
     for q in candidates:
         for name in locks:  # keep start values inside the lock bound
             q[name] = min(max(q[name], lb[name]), ub[name])
-        q = rescaled(q)
-        c = cost_of(q)
+        c, q = scored(q)
         if c < best_cost:
             best, best_cost = q, c
     if best is None:
         raise FitError(f"the {m.title} model cannot be evaluated at any start value on these data")
     p_start = best
 
-    tr = {name: _Transform(m.params[name], p_start[name], G0) for name in free_names}
-
-    def x_bounds(name):
-        t = tr[name]
-        lo, hi = lb[name], ub[name]
-        if t.log:
-            return (math.log(lo) if lo > 0 else -np.inf), (math.log(hi) if math.isfinite(hi) else np.inf)
-        return lo / t.scale, hi / t.scale
-
-    xlb = np.array([x_bounds(nm)[0] for nm in free_names])
-    xub = np.array([x_bounds(nm)[1] for nm in free_names])
-    x0 = np.array([tr[nm].to_x(p_start[nm]) for nm in free_names])
-    span = np.where(np.isfinite(xub - xlb), xub - xlb, 1.0)
-    x0 = np.clip(x0, xlb + 1e-9 * span, xub - 1e-9 * span)
-
+    # ---- optimiser coordinates: bounds folded into smooth transforms, so the optimiser runs unbounded ----
+    co = [_Coord(m.params[nm], p_start[nm], G0, lb[nm], ub[nm]) for nm in free_names]
+    lin = _LinearModuli(m, ev, free_names, p_start, co)
     base = dict(p_start)
-    big = 1e3 * max(1.0, float(np.max(np.abs(data.P * weight))))
+    big = 1e3 * max(1.0, float(np.max(np.abs(wd))))
+    cache = {}
+    # Variable projection (Golub & Pereyra 1973): the free moduli enter linearly, so for given other
+    # parameters they are solved exactly (bounded linear least squares); the optimiser only sees the rest.
+    L = [nm for nm in free_names if lin.linear and nm in lin.moduli]
+    NL = [nm for nm in free_names if nm not in L]
+    iNL = [free_names.index(nm) for nm in NL]
+    L_lo = np.array([lb[nm] for nm in L])
+    L_hi = np.array([ub[nm] for nm in L])
+    fixed_moduli = [nm for nm in lin.moduli if nm not in L] if lin.linear else []
 
-    def fun(x):
+    def params_of(x):
         p = base.copy()
-        for i, nm in enumerate(free_names):
-            p[nm] = tr[nm].to_v(x[i])
-        r = (ev(p) - data.P) * weight
+        for j, i in enumerate(iNL):
+            p[free_names[i]] = co[i].v_of_x(x[j])
+        if L:
+            y = wd
+            if fixed_moduli:
+                y = wd - sum(p[nm] * lin.h(p, nm) for nm in fixed_moduli) * weight
+            H = np.column_stack([lin.h(p, nm) for nm in L]) * weight[:, None]
+            theta = _bounded_lstsq(H, y, L_lo, L_hi)
+            for j, nm in enumerate(L):
+                p[nm] = float(theta[j])
+        return p
+
+    def residual_of(x):
+        p = params_of(x)
+        P = lin.stress(p)
+        r = (P - data.P) * weight
         bad = ~np.isfinite(r)
         if bad.any():
             r[bad] = big
+        return p, P, r
+
+    def fun(x):
+        p, P, r = residual_of(x)
+        cache["x"], cache["p"], cache["P"], cache["r"] = x.copy(), p, P, r
         return r
 
-    try:
-        res = least_squares(fun, x0, bounds=(xlb, xub), method="trf", ftol=1e-10, xtol=1e-10, gtol=1e-10,
-                            max_nfev=100 * (k + 1))
-    except (ValueError, FloatingPointError, np.linalg.LinAlgError) as exc:
-        raise FitError(f"the {m.title} fit failed numerically ({exc}); try relative residuals, fix a "
-                       "parameter, or check the data") from None
-    if res.status <= 0 or not np.all(np.isfinite(res.x)):
-        raise FitError(f"the {m.title} fit did not converge ({res.message.rstrip('.')}); try another model, "
-                       "fix a parameter with --fixed/fixed=, or check the data for outliers")
-    r = res.fun
+    def jac(x):
+        if "x" in cache and np.array_equal(cache["x"], x):
+            p, P, r = cache["p"], cache["P"], cache["r"]
+        else:
+            p, P, r = residual_of(x)
+        if not L:  # plain problem: analytic modulus columns, differences for the rest
+            Jz = lin.dP_dz(p, P, central=False)
+            Jz *= weight[:, None]
+            for i, c in enumerate(co):
+                Jz[:, i] *= c.dz_dx(x[i])
+        else:  # reduced (projected) problem: forward differences in x, moduli re-solved each time
+            Jz = np.empty((r.size, x.size))
+            for j in range(x.size):
+                h = 1e-7 * max(1.0, abs(x[j]))
+                x2 = x.copy()
+                x2[j] += h
+                Jz[:, j] = (residual_of(x2)[2] - r) / h
+        Jz[~np.isfinite(Jz)] = 0.0
+        return Jz
+
+    if NL:
+        x0 = np.array([co[i].x_of_v(p_start[free_names[i]]) for i in iNL])
+        try:
+            res = least_squares(fun, x0, jac=jac, method=_METHOD, x_scale=1.0, ftol=1e-10, xtol=1e-10,
+                                gtol=1e-10, max_nfev=100 * (len(NL) + 1))
+        except (ValueError, FloatingPointError, np.linalg.LinAlgError) as exc:
+            raise FitError(f"the {m.title} fit failed numerically ({exc}); try relative residuals, fix a "
+                           "parameter, or check the data") from None
+        if res.status <= 0 or not np.all(np.isfinite(res.x)):
+            raise FitError(f"the {m.title} fit did not converge ({res.message.rstrip('.')}); try another model, "
+                           "fix a parameter (fixed=...), or check the data for outliers")
+        xhat, message, nfev = res.x, str(res.message), int(res.nfev)
+    else:  # every free parameter is a modulus: the projected problem is solved in closed form
+        xhat, message, nfev = np.empty(0), "solved in closed form (the model is linear in its moduli)", 1
+    values, Pm, r = residual_of(xhat)
     if np.any(np.abs(r) >= big):
         raise FitError(f"the {m.title} fit ended with data beyond the model's locking stretch; "
                        "remove the points at the largest stretches or choose a model without a lock")
+    for nm in free_names:  # bounds counted as absent for the optimiser (far away) still hold
+        values[nm] = min(max(values[nm], lb[nm]), ub[nm])
 
-    values = dict(base)
-    for i, nm in enumerate(free_names):
-        values[nm] = tr[nm].to_v(res.x[i])
-    Pm = ev(values)
-
-    # ---- uncertainty -------------------------------------------------------------------------
+    # ---- uncertainty, in the natural coordinates z (log for log-scaled parameters, else scaled) --------
     rss = float(np.dot(r, r))
     dof = n - k
     s2 = rss / dof
-    J = res.jac
-    cov_x = np.full((k, k), np.nan)
-    try:
-        U, sv, Vt = np.linalg.svd(J, full_matrices=False)
-        if sv.size and sv[0] > 0 and sv[-1] > sv[0] * 1e-10:
-            cov_x = (Vt.T / sv**2) @ Vt * s2
-    except np.linalg.LinAlgError:
-        pass
-    se_x = np.sqrt(np.clip(np.diag(cov_x), 0, None)) if np.all(np.isfinite(cov_x)) else np.full(k, np.nan)
+    z = np.array([c.z_of_v(values[nm]) for c, nm in zip(co, free_names, strict=True)])
+    J = lin.dP_dz(values, Pm, central=True) * weight[:, None]  # full Jacobian at the optimum, in z
+    cov_z = np.full((k, k), np.nan)
+    if np.all(np.isfinite(J)):
+        try:
+            _, sv, Vt = np.linalg.svd(J, full_matrices=False)
+            if sv.size and sv[0] > 0 and sv[-1] > sv[0] * 1e-10:
+                cov_z = (Vt.T / sv**2) @ Vt * s2
+        except np.linalg.LinAlgError:
+            pass
+    se_z = np.sqrt(np.clip(np.diag(cov_z), 0, None)) if np.all(np.isfinite(cov_z)) else np.full(k, np.nan)
     with np.errstate(all="ignore"):
-        corr = cov_x / np.outer(se_x, se_x)
-    D = np.array([tr[nm].dv_dx(values[nm]) for nm in free_names])
-    cov = cov_x * np.outer(D, D)
-    tq = float(stats.t.ppf(0.975, dof))
+        corr = cov_z / np.outer(se_z, se_z)
+    D = np.array([c.dv_dz(values[nm]) for c, nm in zip(co, free_names, strict=True)])
+    cov = cov_z * np.outer(D, D)
+    tq = _t975(dof)
 
     params: dict[str, ParamEstimate] = {}
     for q in m.params:
@@ -593,15 +885,15 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
         kw = dict(symbol=q.symbol, display_unit=q.display_unit, display_scale=q.display_scale, meaning=q.meaning)
         if q.name in free_names:
             i = free_names.index(q.name)
-            sx = float(se_x[i])
-            if math.isfinite(sx):
-                t = tr[q.name]
-                if t.log:
-                    ci = (math.exp(res.x[i] - tq * sx), math.exp(res.x[i] + tq * sx))
+            sz = float(se_z[i])
+            if math.isfinite(sz):
+                c = co[i]
+                if c.log:
+                    ci = (_exp(z[i] - tq * sz), _exp(z[i] + tq * sz))
                 else:
-                    ci = (v - tq * sx * t.scale, v + tq * sx * t.scale)
-                params[q.name] = ParamEstimate(q.name, v, float(sx * abs(D[i])), (float(ci[0]), float(ci[1])), q.unit,
-                                               False, **kw)
+                    ci = (v - tq * sz * c.scale, v + tq * sz * c.scale)
+                params[q.name] = ParamEstimate(q.name, v, float(sz * abs(D[i])), (float(ci[0]), float(ci[1])),
+                                               q.unit, False, **kw)
             else:
                 params[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, False, **kw)
         else:
@@ -633,11 +925,11 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
     result = FitResult(
         model=m.name, title=m.title, params=params, free=tuple(free_names), correlation=corr, covariance=cov,
         modes=mode_stats, n=n, k=k, rss=rss_out,
-        aic=aic, bic=bic, residual=residual, converged=True, message=str(res.message), nfev=int(res.nfev),
+        aic=aic, bic=bic, residual=residual, converged=True, message=message, nfev=nfev,
         warnings=warns, curve_names=[c.name for c in curves],
         temperature=temps.pop() if len(temps) == 1 else None,
     )
-    _diagnose(result, m, data, values, locks, lb, ub, res.x, xlb, xub, free_names, se_x, corr)
+    _diagnose(result, m, data, values, locks, lb, ub, co, free_names, se_z, corr)
     return result
 
 
@@ -653,7 +945,7 @@ def _fmt(v, unit):
     return f"{v:.4g}" + ("" if unit in ("1", "") else f" {unit}")
 
 
-def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, se_x, corr):
+def _diagnose(result, m, data, values, locks, lb, ub, co, free_names, se_x, corr):
     w = result.warnings
     k = len(free_names)
     # 1. the locking bound is active (or nearly)
@@ -674,13 +966,13 @@ def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, s
     for i, name in enumerate(free_names):
         if name in locks and abs(values[name] - locks[name][0]) <= 1e-4 * max(abs(locks[name][0]), 1e-12):
             continue
-        span = (xub[i] - xlb[i]) if np.isfinite(xub[i] - xlb[i]) else max(1.0, abs(x[i]))
         q = m.params[name]
-        if np.isfinite(xlb[i]) and x[i] - xlb[i] <= 1e-6 * span:
+        z = co[i].z_of_v(values[name])
+        if z - co[i].zlo_decl <= 1e-5:
             at_bound.add(name)
             w.append(f"{name} ({q.meaning}) ended at its lower bound {_fmt(lb[name], q.unit)}: the data give no "
                      f"evidence for it; consider a model without it or fix it")
-        elif np.isfinite(xub[i]) and xub[i] - x[i] <= 1e-6 * span:
+        elif co[i].zhi_decl - z <= 1e-5:
             at_bound.add(name)
             w.append(f"{name} ({q.meaning}) ended at its upper bound {_fmt(ub[name], q.unit)}: the data do not "
                      "limit it; it is not identifiable from these curves")
@@ -711,14 +1003,12 @@ def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, s
     if m.name == "mooney-rivlin" and values.get("C2", 0.0) < 0:
         w.append("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains and its "
                  "equibiaxial prediction can fall with stretch; do not use it outside the tested range")
-    top = max(3.0, 1.5 * float(data.lam.max()))
+    top = max(3.0, math.ceil(3.0 * float(data.lam.max())) / 2.0)  # 1.5 × the largest stretch, rounded up
+    grid, gdata = _grid(top, tuple(md.value for md in m.modes))
+    P = _fast_evaluator(m, gdata)(values)  # NaN past the lock: those steps are skipped
     for mode in m.modes:
-        lim = _quick_limit(m, mode, values, top)
-        hi = min(top, 0.995 * lim) if lim else top
-        grid = np.linspace(1.0 + 1e-3, hi, 200)
-        with np.errstate(all="ignore"):
-            P = m._nominal_stress(mode, grid, values)
-        dP = np.diff(P)
+        Pm = P[gdata.masks[mode]]
+        dP = np.diff(Pm)
         bad = np.flatnonzero(np.isfinite(dP) & (dP <= 0))
         if bad.size:
             where = grid[bad[0]]
@@ -726,16 +1016,12 @@ def _diagnose(result, m, data, values, locks, lb, ub, x, xlb, xub, free_names, s
                      f"λ ≈ {where:.3g}; do not use its {mode.value} predictions there")
 
 
-def _quick_limit(m, mode, values, top):
-    """Locking stretch in tension below ``top`` (grid search, no root finding), or None."""
-    grid = np.linspace(1.0, top, 400)
-    with np.errstate(all="ignore"):
-        l1, l2, l3, I1, _ = m._state(mode, grid)
-        mg = m._margin(l1, l2, l3, I1, values)
-    if mg is None:
-        return None
-    out = np.flatnonzero(~(mg > 0))
-    return float(grid[out[0]]) if out.size else None
+@lru_cache(maxsize=64)
+def _grid(top: float, modes: tuple[str, ...]):
+    """Stretch grid 1.001…top in each mode, as fitting data (kinematics computed once)."""
+    grid = np.linspace(1.0 + 1e-3, top, 100)
+    curves = [TestCurve(md, grid, np.zeros_like(grid), name="grid") for md in modes]
+    return grid, _Data(curves)
 
 
 def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str, FitResult | FitError]:

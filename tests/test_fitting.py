@@ -149,14 +149,21 @@ def test_fixed_lock_parameter_leaves_out_points_past_the_lock():
 
 
 def test_lock_bound_active_is_reported():
-    # Stress that rises faster than any Langevin chain allows (exponential upturn, invented shape):
-    # N ends on (or right next to) the lock bound set by the largest stretch, and the result says so.
+    # Stress rising faster than the chain model allows (invented shapes): an exponential upturn puts the
+    # lock just past the data; one last point far above the curve pins N on the lock bound itself.
     lam = np.linspace(1.05, 3.0, 30)
-    for a, words in ((5.0, "is a bound, not an estimate"), (2.0, "locks just beyond the largest tested")):
-        P = 0.4e6 * (lam - lam**-2) * np.exp(a * (lam - 1) ** 2)
-        res = fit(EIGHT, [TestCurve("uniaxial", lam, P)])
-        assert np.all(np.isfinite(res.predict("uniaxial", lam)))
-        assert any(words in w for w in res.warnings), res.warnings
+    P = 0.4e6 * (lam - lam**-2) * np.exp(2.0 * (lam - 1) ** 2)
+    res = fit(EIGHT, [TestCurve("uniaxial", lam, P)])
+    assert np.all(np.isfinite(res.predict("uniaxial", lam)))
+    assert any("locks just beyond the largest tested" in w for w in res.warnings), res.warnings
+    lam = np.append(lam, 3.05)
+    P = EIGHT.nominal_stress("uniaxial", lam, {"mu": 0.3e6, "N": 30.0})
+    P[-1] *= 1000.0
+    res = fit(EIGHT, [TestCurve("uniaxial", lam, P)])
+    assert np.all(np.isfinite(res.predict("uniaxial", lam)))
+    # eight-chain lock: I₁ = 3N (Arruda & Boyce 1993) at λ = 3.05 ⇒ N = (3.05² + 2/3.05)/3
+    assert res.params["N"].value == pytest.approx((3.05**2 + 2 / 3.05) / 3, rel=1e-3)
+    assert any("is a bound, not an estimate" in w for w in res.warnings), res.warnings
 
 
 def test_N_not_identifiable_far_from_lock():
