@@ -239,13 +239,10 @@ def _cell_text(c) -> str:
 def _load_table(data: bytes, filename: str, sheet) -> _Table:
     suffix = Path(filename).suffix.lower()
     is_zip = data[:4] == b"PK\x03\x04"
-    if suffix in _EXCEL_SUFFIXES or (is_zip and suffix not in _TEXT_SUFFIXES):
+    if suffix in _EXCEL_SUFFIXES or is_zip:  # a workbook, whatever its name says
         return _excel_table(data, filename, sheet)
-    if suffix == ".xls":
+    if suffix == ".xls" or data[:8] == b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1":
         raise DataError(f"{filename}: the old .xls format is not read; save the workbook as .xlsx or CSV")
-    if is_zip:
-        raise DataError(f"{filename}: this looks like a zip archive or workbook, not a text table; "
-                        "give .xlsx files the .xlsx ending, or export the table as CSV")
     return _text_table(_decode(data, filename), filename)
 
 

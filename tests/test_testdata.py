@@ -159,6 +159,12 @@ def test_xlsx_with_unit_row_metadata_and_pairs():
     assert any("notes" in n for n in a.notices)  # the unread sheet is mentioned
 
 
+def test_xlsx_recognised_by_content():
+    rows = [["stretch", "stress (MPa)"], [1, 0], [2, 1], [3, 2]]
+    (c,) = read_curves_bytes(xlsx_bytes(rows), "export_without_ending")
+    np.testing.assert_allclose(c.stress, [0, 1e6, 2e6])
+
+
 def test_xlsx_sheet_option():
     import openpyxl
 
