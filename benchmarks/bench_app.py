@@ -192,7 +192,11 @@ def _unavailable() -> str | None:
     return None
 
 
-def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
+class BudgetExceeded(RuntimeError):
+    """The quick run's time budget ran out before the required number of slider moves."""
+
+
+def measure(url: str, moves: int, timeout_ms: float = 15000, deadline: float | None = None) -> dict:
     from playwright.sync_api import sync_playwright
 
     with sync_playwright() as pw:
@@ -203,11 +207,12 @@ def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
             page = browser.new_page(viewport={"width": 1400, "height": 950})
             page.add_init_script(_WS_HOOK)
             t0 = time.perf_counter()
-            page.goto(url, wait_until="load")
-            page.wait_for_selector(".ns-stress-plot canvas", timeout=60000)
+            load_ms = 90000.0 if deadline is None else max(1000.0, (deadline - time.monotonic()) * 1000.0)
+            page.goto(url, wait_until="load", timeout=load_ms)
+            page.wait_for_selector(".ns-stress-plot canvas", timeout=load_ms)
             page.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0 && "
                                    "Bokeh.documents[0].get_model_by_name('ns-stress-uniaxial') != null",
-                                   timeout=60000)
+                                   timeout=load_ms)
             load_s = time.perf_counter() - t0
             page.wait_for_timeout(1000)  # let the first (slow-view) updates settle
             status = page.evaluate(_INSTRUMENT)
@@ -219,6 +224,10 @@ def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
             runs = []
             t0 = time.perf_counter()
             for k in range(1, moves + WARMUP + 1):
+                if deadline is not None and time.monotonic() > deadline:
+                    raise BudgetExceeded(f"the quick run's time budget ran out after {max(0, k - 1 - WARMUP)} of "
+                                         f"{moves} timed slider moves (page load took {load_s:.1f} s); run the full "
+                                         "benchmark (make bench) for this figure")
                 page.keyboard.press("ArrowRight")
                 page.wait_for_function(_DONE, arg=k, timeout=timeout_ms, polling="raf")
                 runs.append(page.evaluate(_RESULT, k))
@@ -236,16 +245,20 @@ def measure(url: str, moves: int, timeout_ms: float = 15000) -> dict:
             "close_s": close_s, "nu_before": before, "nu_after": after}
 
 
-def run(quick: bool = False) -> dict:
+def run(quick: bool = False, deadline: float | None = None) -> dict:
+    """``deadline`` (time.monotonic): stop early, reporting null with a note, when it passes."""
     why = _unavailable()
     if why:
         return {"slider_update_ms_median": None, "slider_update_ms_p95": None, "notes": [why]}
     moves = 20 if quick else 60
     t0 = time.perf_counter()
-    with app_server() as (url, log):
+    start_timeout = 90.0 if deadline is None else max(1.0, deadline - time.monotonic())
+    with app_server(timeout=start_timeout) as (url, log):
         t_server = time.perf_counter() - t0
         try:
-            m = measure(url, moves)
+            m = measure(url, moves, deadline=deadline)
+        except BudgetExceeded as exc:
+            return {"slider_update_ms_median": None, "slider_update_ms_p95": None, "notes": [str(exc)]}
         except Exception as exc:
             tail = Path(log).read_text("utf-8", errors="replace").strip().splitlines()[-5:]
             raise RuntimeError(f"{exc} (server log ends: {' | '.join(tail)})") from None

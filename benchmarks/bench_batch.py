@@ -31,7 +31,7 @@ def _maxrss_mib() -> float:
     return r / (1024.0 * 1024.0) if sys.platform == "darwin" else r / 1024.0
 
 
-def run(quick: bool = False) -> dict:
+def run(quick: bool = False, deadline: float | None = None) -> dict:
     try:
         from network_models.fitting import FitError, fit
     except ImportError as exc:

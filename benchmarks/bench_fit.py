@@ -8,7 +8,7 @@ What is timed
          per-point Python stress with a brentq L⁻¹, started from ``model.guess(G₀)`` with G₀ from the
          same small-strain estimate, tolerances 1e-12 so it reaches the true optimum.
 Both on the same ~60 invented points (``datasets.three_mode_curves``), in the same process; medians of
-repeats.  ``fit_speedup_vs_naive`` = total naive time / total fast time over the two models.
+interleaved repeats.  ``fit_speedup_vs_naive`` = total naive time / total fast time over the two models.
 ``fit_same_optimum``: every fitted parameter agrees within 1e-6 relative for both models.
 """
 
@@ -41,26 +41,26 @@ def _naive_inputs(model, curves, estimate_modulus):
     return pairs, guess, bounds
 
 
-def compare(model, curves, repeats_fast=7, repeats_naive=3) -> dict:
+def compare(model, curves, repeats: int = 5) -> dict:
+    """Fast and naive fit of ``model`` to ``curves``, their repeats interleaved (fast, naive, fast, ...) so
+    that other load on the machine hits both alike; medians of the repeats."""
     fit, estimate_modulus = _fit_api()
     fit(model, curves)  # warm-up
-    t_fast = []
-    for _ in range(repeats_fast):
+    pairs, guess, bounds = _naive_inputs(model, curves, estimate_modulus)
+    t_fast, t_naive = [], []
+    for _ in range(repeats):
         t0 = time.perf_counter()
         res = fit(model, curves)
         t_fast.append(time.perf_counter() - t0)
-    pairs, guess, bounds = _naive_inputs(model, curves, estimate_modulus)
-    t_naive = []
-    for _ in range(repeats_naive):
         t0 = time.perf_counter()
         p_naive, cost_naive, calls = naive_fit(model, pairs, guess, bounds)
         t_naive.append(time.perf_counter() - t0)
     fast = res.values
     rel = {k: abs(fast[k] - p_naive[k]) / abs(p_naive[k]) for k in res.free}
-    g0 = estimate_modulus(curves)
     return {
         "fast_s": statistics.median(t_fast),
         "naive_s": statistics.median(t_naive),
+        "repeats": repeats,
         "fast_params": {k: fast[k] for k in res.free},
         "naive_params": {k: p_naive[k] for k in res.free},
         "max_rel_param_diff": max(rel.values()),
@@ -69,11 +69,11 @@ def compare(model, curves, repeats_fast=7, repeats_naive=3) -> dict:
         "fast_nfev": res.nfev,
         "naive_model_evaluations": calls,
         "fast_warnings": list(res.warnings),
-        "G0_Pa": g0,
+        "G0_Pa": estimate_modulus(curves),
     }
 
 
-def run(quick: bool = False) -> dict:
+def run(quick: bool = False, deadline: float | None = None) -> dict:
     try:
         _fit_api()
     except ImportError as exc:
@@ -82,7 +82,7 @@ def run(quick: bool = False) -> dict:
     curves = three_mode_curves()
     per = {}
     for name in MODELS:
-        per[name] = compare(name, curves, repeats_fast=5 if quick else 15, repeats_naive=1 if quick else 3)
+        per[name] = compare(name, curves, repeats=3 if quick else 9)
     fast = sum(v["fast_s"] for v in per.values())
     slow = sum(v["naive_s"] for v in per.values())
     same = all(v["max_rel_param_diff"] <= TOL for v in per.values())

@@ -110,7 +110,7 @@ def throughput(quick: bool) -> dict:
     }
 
 
-def run(quick: bool = False) -> dict:
+def run(quick: bool = False, deadline: float | None = None) -> dict:
     acc = accuracy()
     thr = throughput(quick)
     return {

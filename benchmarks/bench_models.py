@@ -82,7 +82,7 @@ def _profile(fn, nus, top: int = 12) -> list[str]:
     return lines[-top - 1:]
 
 
-def run(quick: bool = False) -> dict:
+def run(quick: bool = False, deadline: float | None = None) -> dict:
     n_moves = 30 if quick else 200
     nus = _nu_values(n_moves)
     lam = np.linspace(1.0, LAM_MAX, N_STRETCH)

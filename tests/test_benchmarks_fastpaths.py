@@ -234,7 +234,7 @@ def test_fast_fit_reaches_the_naive_optimum(model):
     from benchmarks.bench_fit import compare
     from benchmarks.datasets import three_mode_curves
 
-    out = compare(model, three_mode_curves(), repeats_fast=1, repeats_naive=1)
+    out = compare(model, three_mode_curves(), repeats=1)
     assert out["max_rel_param_diff"] <= 1e-6, out
     assert out["fast_rss_Pa2"] == pytest.approx(out["naive_rss_Pa2"], rel=1e-9)
 
