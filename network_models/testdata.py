@@ -1284,7 +1284,8 @@ class Manifest:
 
 def read_manifest(path=None) -> Manifest:
     """Read a sample-set manifest (``compounds.toml``; format in sample_sets/README.md).  File paths in it
-    are relative to the manifest.  Default: the bundled sample set."""
+    are relative to the manifest.  Default: the bundled sample set.  Raises DataError for a missing or
+    malformed manifest (the files it lists are read later, by ``Compound.curves()``)."""
     p = Path(path) if path is not None else SAMPLE_MANIFEST
     try:
         raw = tomllib.loads(p.read_text("utf-8"))
@@ -1292,25 +1293,44 @@ def read_manifest(path=None) -> Manifest:
         raise DataError(f"{p}: cannot open the manifest ({e.strerror or e})") from None
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise DataError(f"{p.name}: not a valid TOML manifest ({e})") from None
+    try:
+        return _manifest_from(raw, p)
+    except DataError:
+        raise
+    except (KeyError, TypeError, AttributeError, ValueError) as e:
+        raise DataError(f"{p.name}: the manifest does not follow the format in sample_sets/README.md "
+                        f"({type(e).__name__}: {e}); every [[compound]] needs a key and files with a path") from None
+
+
+def _manifest_from(raw: dict, p: Path) -> Manifest:
     base = p.parent
     scen = raw.get("scenario", {})
+    if not isinstance(scen, dict):
+        raise DataError(f"{p.name}: [scenario] must be a table")
     compounds = []
     for i, c in enumerate(raw.get("compound", []), start=1):
-        if "key" not in c:
+        if not isinstance(c, dict) or "key" not in c:
             raise DataError(f"{p.name}: compound number {i} has no 'key'")
         files = []
         for f in c.get("files", []):
             if isinstance(f, str):
                 f = {"path": f}
+            if not isinstance(f, dict) or not isinstance(f.get("path"), str):
+                raise DataError(f"{p.name}: compound {c['key']!r}: each file needs a path, e.g. "
+                                '{ path = "A_uniaxial.csv", mode = "uniaxial" }')
             try:
                 mode = Mode.parse(f["mode"]) if f.get("mode") else None
             except ValueError as e:
                 raise DataError(f"{p.name}: compound {c['key']!r}: {e}") from None
-            files.append(CurveFile(base / f["path"], mode, f.get("note", "")))
+            files.append(CurveFile(base / f["path"], mode, str(f.get("note", ""))))
         info = {k: v for k, v in c.items() if k not in ("key", "title", "polymer", "files")}
-        compounds.append(Compound(c["key"], c.get("title", c["key"]), c.get("polymer", "NR"), files, info))
+        compounds.append(Compound(str(c["key"]), str(c.get("title", c["key"])), str(c.get("polymer", "NR")),
+                                  files, info))
+    keys = [c.key for c in compounds]
+    if len(set(keys)) != len(keys):
+        raise DataError(f"{p.name}: compound keys must be unique; got {', '.join(keys)}")
     return Manifest(
-        path=p, title=scen.get("title", p.stem), note=scen.get("note", ""), compounds=compounds,
+        path=p, title=str(scen.get("title", p.stem)), note=str(scen.get("note", "")), compounds=compounds,
         swelling=base / raw["swelling"]["path"] if "swelling" in raw else None,
         force_temperature=[base / r["path"] for r in raw.get("force_temperature", [])],
         info=scen,

@@ -390,6 +390,31 @@ def test_inspect_says_what_is_missing():
         td.inspect_bytes(b"", "e.csv")
 
 
+@pytest.mark.parametrize("text,words", [
+    ("[[compound]]\ntitle = 'x'\n", "no 'key'"),
+    ("[[compound]]\nkey = 'A'\nfiles = [{ mode = 'uniaxial' }]\n", "needs a path"),
+    ("[[compound]]\nkey = 'A'\nfiles = [{ path = 'a.csv', mode = 'twist' }]\n", "unknown test mode"),
+    ("[[compound]]\nkey = 'A'\n[[compound]]\nkey = 'A'\n", "unique"),
+    ("[swelling]\nsolvent = 'toluene'\n", "does not follow"),
+    ("key = = 1\n", "not a valid TOML"),
+])
+def test_bad_manifests(tmp_path, text, words):
+    p = write(tmp_path, "m.toml", text)
+    with pytest.raises(DataError, match=words):
+        td.read_manifest(p)
+
+
+def test_manifest_reads_curves(tmp_path):
+    write(tmp_path, "a.csv", "stretch,stress (MPa)\n1,0\n2,1\n3,2\n")
+    p = write(tmp_path, "m.toml", "[scenario]\ntitle = 'T'\n[[compound]]\nkey = 'A'\nfiller_phr = 30.0\n"
+                                  "files = [{ path = 'a.csv', mode = 'planar' }]\n")
+    m = td.read_manifest(p)
+    (c,) = m["A"].curves()
+    assert c.mode is Mode.PLANAR and m["A"].info["filler_phr"] == 30.0 and m.title == "T"
+    with pytest.raises(KeyError):
+        m["B"]
+
+
 # ---------------------------------------------------------------------------------------------------
 # force–temperature records and swelling tables
 # ---------------------------------------------------------------------------------------------------
