@@ -9,15 +9,23 @@ from __future__ import annotations
 
 import json
 import math
+import sys
+from pathlib import Path
 
 import mpmath as mp
 import numpy as np
 import pytest
 
-from benchmarks import bench_langevin, naive
-from benchmarks.langevin_reference import load_reference, mp_inverse_langevin, reference_points
-from network_models import MODELS, MODES, Network, get_model, inverse_langevin
-from tests.reference import mp_inverse_langevin as mp_inverse_langevin_findroot
+# `benchmarks` is a top-level folder, not an installed package: make it importable under a bare `pytest`
+# too (`python -m pytest`, as `make test` runs it, has the project folder on the path already).
+_ROOT = str(Path(__file__).resolve().parent.parent)
+if _ROOT not in sys.path:
+    sys.path.insert(0, _ROOT)
+
+from benchmarks import bench_langevin, naive  # noqa: E402
+from benchmarks.langevin_reference import load_reference, mp_inverse_langevin, reference_points  # noqa: E402
+from network_models import MODELS, MODES, Network, get_model, inverse_langevin  # noqa: E402
+from tests.reference import mp_inverse_langevin as mp_inverse_langevin_findroot  # noqa: E402
 
 # ----- benchmark 1: the inverse Langevin reference and baselines -----------------------------------------
 
