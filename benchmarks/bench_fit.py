@@ -73,6 +73,36 @@ def compare(model, curves, repeats: int = 5) -> dict:
     }
 
 
+def _profile(curves, repeats: int = 20) -> dict:
+    """Where the fast fit spends its time: cumulative ms per fit of its main stages (cProfile)."""
+    import cProfile
+    import pstats
+
+    fit, _ = _fit_api()
+    stages = {"least_squares": "scipy least_squares (incl. model evaluations)",
+              "approx_derivative": "finite-difference Jacobian (inside least_squares)",
+              "ev": "model evaluations (all)", "_lock_threshold": "lock-bound bisection",
+              "_diagnose": "diagnostics", "estimate_modulus": "start modulus"}
+    out = {}
+    for name in MODELS:
+        fit(name, curves)
+        pr = cProfile.Profile()
+        pr.enable()
+        for _ in range(repeats):
+            fit(name, curves)
+        pr.disable()
+        st = pstats.Stats(pr)
+        rows = {"total_ms_per_fit_profiled": st.total_tt / repeats * 1e3}
+        for (_f, _l, fn), (_cc, nc, _tt, ct, _callers) in st.stats.items():
+            if fn in stages:
+                key = stages[fn]
+                prev = rows.get(key, {"calls_per_fit": 0.0, "ms_per_fit": 0.0})
+                rows[key] = {"calls_per_fit": prev["calls_per_fit"] + nc / repeats,
+                             "ms_per_fit": prev["ms_per_fit"] + ct / repeats * 1e3}
+        out[name] = rows
+    return out
+
+
 def run(quick: bool = False, deadline: float | None = None) -> dict:
     try:
         _fit_api()
@@ -84,6 +114,7 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
     for name in MODELS:
         per[name] = compare(name, curves, repeats=3 if quick else 9)
     fast = sum(v["fast_s"] for v in per.values())
+    profile = _profile(curves) if not quick else None
     slow = sum(v["naive_s"] for v in per.values())
     same = all(v["max_rel_param_diff"] <= TOL for v in per.values())
     notes = []
@@ -102,6 +133,7 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
             "speedup_per_model": {k: v["naive_s"] / v["fast_s"] for k, v in per.items()},
             "tolerance": TOL,
             "target": ">= 20",
+            "fast_fit_profile": profile,
         },
         "notes": notes,
     }

@@ -268,3 +268,23 @@ def test_batch_data_are_inside_the_lock_and_labelled_invented():
         assert "invented" in c.name
         assert np.all(np.isfinite(m.nominal_stress("uniaxial", c.stretch, c.metadata["true"])))
     assert all("invented" in c.name for c in three_mode_curves())
+
+
+def test_browser_benchmark_without_chromium_reports_null_and_why(monkeypatch):
+    from benchmarks import bench_app
+
+    monkeypatch.setattr(bench_app, "CHROMIUM", "/nonexistent/chromium")
+    out = bench_app.run(quick=True)
+    assert out["slider_update_ms_median"] is None and out["slider_update_ms_p95"] is None
+    assert "no Chromium" in out["notes"][0]
+
+
+def test_runner_never_writes_nan_and_says_so(monkeypatch):
+    from benchmarks import __main__ as runner
+    from benchmarks import bench_models
+
+    monkeypatch.setattr(bench_models, "run", lambda quick=False, deadline=None: {"models_eval_ms_median": float("nan")})
+    doc = runner.run(quick=True, only=["models"], log=lambda m: None)
+    json.dumps(doc, allow_nan=False)  # raises on NaN/inf
+    assert doc["models_eval_ms_median"] is None
+    assert any("models_eval_ms_median" in n and "not a finite number" in n for n in doc["notes"])
