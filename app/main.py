@@ -65,6 +65,8 @@ def _optional_view(module: str, factory, **kw):
 
 def create_app(load_samples: bool = True):
     """One browser session's page."""
+    if hasattr(pn.widgets, "FileDropper"):
+        pn.extension("filedropper")  # per session: the upload area's code must be in this page
     messages = Messages()
     state = NetworkState()
     controls = NetworkControls(state)

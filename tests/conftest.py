@@ -1,0 +1,148 @@
+"""Shared fixtures.  Browser fixtures (marker ``ui``): the system Chromium driven by Playwright's Python API
+and one app server per test session on a free local port.
+
+Chromium is found from env ``NETSTRETCH_CHROMIUM`` or ``chromium`` on PATH; never downloaded.  Where it is
+missing the browser tests skip with a reason — unless ``NETSTRETCH_REQUIRE_BROWSER=1`` (CI), which makes
+that a failure.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import shutil
+import socket
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent
+
+CHROMIUM_ARGS = [
+    "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+    "--disable-sync", "--no-first-run", "--disable-quic",
+]
+
+#: JavaScript: the visible text of every element matching a CSS selector, looking inside shadow roots
+#: (Panel/Bokeh render each component in its own shadow DOM); style/script text is left out.
+DEEP_TEXT_JS = """(sel) => {
+  const out = [];
+  const find = (n) => { if (n.matches && n.matches(sel)) out.push(n);
+    if (n.shadowRoot) find(n.shadowRoot); for (const c of n.children || []) find(c); };
+  find(document.body);
+  const text = (n) => { if (n.nodeType === 3) return n.textContent;
+    if (n.nodeType !== 1 && n.nodeType !== 11) return '';
+    if (n.nodeType === 1 && ['STYLE', 'SCRIPT', 'LINK'].includes(n.tagName)) return '';
+    let t = ''; if (n.shadowRoot) t += text(n.shadowRoot);
+    for (const c of n.childNodes) t += text(c);
+    return t + ' '; };
+  return out.map(text).join(' | ').replace(/\\s+/g, ' ');
+}"""
+
+
+def _require_browser() -> bool:
+    return os.environ.get("NETSTRETCH_REQUIRE_BROWSER", "") == "1"
+
+
+def _chromium_path() -> str | None:
+    p = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
+    return p if p and Path(p).exists() else None
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+@pytest.fixture(scope="session")
+def chromium_browser():
+    """A headless system Chromium (Playwright sync API), shared by the session's browser tests."""
+    path = _chromium_path()
+    if path is None:
+        msg = ("no Chromium found (set NETSTRETCH_CHROMIUM or install the 'chromium' package); "
+               "browser tests need the system Chromium")
+        if _require_browser():
+            pytest.fail(msg + " — NETSTRETCH_REQUIRE_BROWSER=1 makes this a failure")
+        pytest.skip(msg)
+    try:
+        from playwright.sync_api import sync_playwright
+    except ImportError:
+        if _require_browser():
+            pytest.fail("the playwright Python package is missing (pip install -e '.[dev]')")
+        pytest.skip("the playwright Python package is missing (pip install -e '.[dev]')")
+    pw = sync_playwright().start()
+    try:
+        browser = pw.chromium.launch(executable_path=path, args=CHROMIUM_ARGS, headless=True)
+    except Exception as exc:
+        pw.stop()
+        if _require_browser():
+            pytest.fail(f"Chromium at {path} did not start: {exc}")
+        pytest.skip(f"Chromium at {path} did not start: {exc}")
+    yield browser
+    browser.close()
+    pw.stop()
+
+
+@pytest.fixture(scope="session")
+def app_server():
+    """``netstretch serve`` in a subprocess on a free port; yields the base URL."""
+    port = _free_port()
+    log_path = Path(tempfile.gettempdir()) / f"netstretch_app_server_{port}.log"
+    log = log_path.open("w")  # the server's output, for when a browser test fails
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "network_models.cli", "serve", "--port", str(port), "--address", "127.0.0.1"],
+        cwd=ROOT, stdout=log, stderr=subprocess.STDOUT,
+    )
+    url = f"http://127.0.0.1:{port}/"
+    deadline = time.monotonic() + 60
+    while True:
+        if proc.poll() is not None:
+            pytest.fail(f"the app server exited with code {proc.returncode} before it answered")
+        try:  # the port answers: the server is up (the first page build itself takes a few seconds)
+            with socket.create_connection(("127.0.0.1", port), timeout=2):
+                break
+        except OSError:
+            pass
+        if time.monotonic() > deadline:
+            proc.terminate()
+            pytest.fail("the app server did not answer within 60 s")
+        time.sleep(0.3)
+    # warm-up: build one session so the tests' first page does not pay the imports
+    with contextlib.suppress(OSError), urllib.request.urlopen(url, timeout=60):
+        pass
+    yield url
+    proc.terminate()
+    try:
+        proc.wait(timeout=10)
+    except subprocess.TimeoutExpired:
+        proc.kill()
+    log.close()
+
+
+@pytest.fixture(scope="session")
+def deep_text_js() -> str:
+    """The DEEP_TEXT_JS snippet (for ``page.evaluate(deep_text_js, selector)``)."""
+    return DEEP_TEXT_JS
+
+
+@pytest.fixture
+def app_page(chromium_browser, app_server):
+    """A fresh browser context (its own session) on the app at 1366×768, with requests and console
+    errors recorded in ``page.ns_requests`` / ``page.ns_errors``."""
+    ctx = chromium_browser.new_context(viewport={"width": 1366, "height": 768})
+    page = ctx.new_page()
+    page.ns_requests = []
+    page.ns_errors = []
+    page.on("request", lambda r: page.ns_requests.append(r.url))
+    page.on("console", lambda m: page.ns_errors.append(m.text) if m.type == "error" else None)
+    page.on("pageerror", lambda e: page.ns_errors.append(str(e)))
+    page.goto(app_server)
+    page.wait_for_selector(".ns-stress-plot canvas", timeout=60000)
+    yield page
+    ctx.close()

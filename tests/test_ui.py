@@ -1,0 +1,136 @@
+"""Browser tests: the app in the system Chromium (headless), driven by Playwright's Python API.
+
+Fixtures in conftest.py start one app server per test session and give each test its own browser context
+(= its own app session).  Skipped where no Chromium exists; mandatory in CI (NETSTRETCH_REQUIRE_BROWSER=1).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from urllib.parse import urlparse
+
+import pytest
+from scipy.constants import R
+
+pytestmark = pytest.mark.ui
+
+SAMPLES = Path(__file__).resolve().parent.parent / "sample_sets"
+LOCAL_HOSTS = {"localhost", "127.0.0.1", "::1", ""}
+
+STRESS_AT = """(i) => { const s = Bokeh.documents[0].get_model_by_name('ns-stress-uniaxial');
+                        return [s.data['lam'][i], s.data['affine'][i]]; }"""
+
+
+DEEP_TEXT_JS = ""  # set from the conftest fixture (shared with other browser tests)
+
+
+@pytest.fixture(autouse=True)
+def _deep_text(deep_text_js):
+    global DEEP_TEXT_JS
+    DEEP_TEXT_JS = deep_text_js
+
+
+def text(page, selector: str) -> str:
+    return page.evaluate(DEEP_TEXT_JS, selector)
+
+
+def open_tab(page, label: str, ready: str):
+    """Click a tab until its content (``ready`` selector) is there: a click sent while the page is still
+    settling can be lost, so it is repeated."""
+    for _ in range(10):
+        page.locator(".bk-tab", has_text=label).first.click()
+        try:
+            page.locator(ready).first.wait_for(state="attached", timeout=4000)
+            return
+        except Exception:
+            continue
+    raise AssertionError(f"the tab {label!r} did not open")
+
+
+def open_data_tab(page):
+    open_tab(page, "Test data", ".ns-upload input[type=file]")
+    page.wait_for_function(f"() => ({DEEP_TEXT_JS})('.ns-fit-summary').includes('Fitted to')", timeout=30000)
+
+
+def wait_text(page, selector: str, needle: str, timeout=30000):
+    page.wait_for_function(
+        f"([sel, n]) => ({DEEP_TEXT_JS})(sel).includes(n)", arg=[selector, needle], timeout=timeout)
+
+
+def test_page_loads_offline_without_console_errors(app_page):
+    page = app_page
+    page.wait_for_timeout(500)
+    hosts = {urlparse(u).hostname or "" for u in page.ns_requests if not u.startswith(("data:", "blob:"))}
+    assert hosts <= LOCAL_HOSTS, f"requests left this machine: {sorted(hosts - LOCAL_HOSTS)}"
+    assert page.ns_errors == [], f"console errors: {page.ns_errors}"
+    # the caution is on the page (design brief), and no traceback anywhere
+    body = text(page, "body")
+    assert "do not replace validation testing" in body
+    assert "Traceback" not in body
+
+
+def test_strand_density_input_changes_plotted_stress(app_page):
+    page = app_page
+    lam0, p0 = page.evaluate(STRESS_AT, 100)
+    box = page.locator(".ns-nu-input input").first
+    box.fill("300")
+    box.press("Enter")
+    page.wait_for_function(f"() => ({STRESS_AT})(100)[1] !== {p0!r}", timeout=15000)
+    lam1, p1 = page.evaluate(STRESS_AT, 100)
+    assert lam1 == pytest.approx(lam0)
+    # Affine (Kuhn–Wall–Flory) network in uniaxial tension: P = νRT(λ − λ⁻²) (Treloar, The Physics of
+    # Rubber Elasticity, 3rd ed. 1975, ch. 4 [memory]); R from scipy.constants; default T = 23 °C.
+    expected = 300.0 * R * 296.15 * (lam1 - lam1**-2) / 1e6
+    assert p1 == pytest.approx(expected, rel=1e-9)
+    # the readout beside the control shows junction density μ_j = 2ν/f = 150 mol/m³ at f = 4 (definition)
+    wait_text(page, ".ns-readout", "150 mol/m³")
+
+
+def test_upload_shows_fit_and_crosslink_density(app_page):
+    page = app_page
+    open_data_tab(page)
+    page.locator(".ns-upload input[type=file]").first.set_input_files(str(SAMPLES / "QM-S3_uniaxial_psi.txt"))
+    wait_text(page, ".ns-fit-summary", "QM-S3_uniaxial_psi")
+    summary = text(page, ".ns-fit-summary")
+    assert "QM-S2" not in summary, "the upload should be fitted on its own"
+    xl = text(page, ".ns-crosslinks")
+    assert "strand density ν" in xl and "junction density" in xl
+    assert "—" not in xl.split("assumes")[1].split("affine")[1][:40]  # first row has numbers
+    assert "nan" not in xl.lower()
+
+
+def test_garbage_upload_gives_message_and_keeps_data(app_page):
+    page = app_page
+    open_data_tab(page)
+    before = text(page, ".ns-fit-summary")
+    page.locator(".ns-upload input[type=file]").first.set_input_files(
+        files=[{"name": "garbage.csv", "mimeType": "text/csv", "buffer": b"\x00\x01\x02\xff not a table\n;;\n"}])
+    wait_text(page, ".ns-messages", "garbage.csv")
+    msg = text(page, ".ns-messages")
+    assert "Traceback" not in msg and "Error" not in msg.split("garbage.csv")[0]
+    assert text(page, ".ns-fit-summary") == before
+    # the app keeps working afterwards: the explorer still answers
+    open_tab(page, "Force", ".ns-nu-input input")
+    box = page.locator(".ns-nu-input input").first
+    box.fill("200")
+    box.press("Enter")
+    wait_text(page, ".ns-readout", "100 mol/m³")  # μ_j = 2ν/f at f = 4
+
+
+def test_two_sessions_do_not_share_uploads(chromium_browser, app_server):
+    ctxs = [chromium_browser.new_context(viewport={"width": 1366, "height": 768}) for _ in range(2)]
+    try:
+        pages = [c.new_page() for c in ctxs]
+        for p in pages:
+            p.goto(app_server)
+            p.wait_for_selector(".ns-stress-plot canvas", timeout=60000)
+            open_data_tab(p)
+        a, b = pages
+        a.locator(".ns-upload input[type=file]").first.set_input_files(str(SAMPLES / "QM-S1_uniaxial.csv"))
+        wait_text(a, ".ns-fit-summary", "QM-S1_uniaxial (2).csv")
+        b.wait_for_timeout(500)
+        assert "QM-S1_uniaxial (2).csv" not in text(b, ".ns-files")
+        assert "QM-S1_uniaxial (2).csv" in text(a, ".ns-files")
+    finally:
+        for c in ctxs:
+            c.close()
