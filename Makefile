@@ -13,7 +13,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 run: $(STAMP)
-	$(VENV)/bin/netstretch demo
+	$(VENV)/bin/netstretch serve --address localhost --port 5006
 
 test: $(STAMP)
 	$(PY) -m ruff check .

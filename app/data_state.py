@@ -24,7 +24,7 @@ from .state import DATA_COLOURS, model_colour, sig
 log = logging.getLogger("netstretch.app")
 
 #: Upload cap, bytes (20 MB): larger files are refused with a message before they are parsed.
-MAX_UPLOAD_BYTES = 20 * 1024 * 1024
+MAX_UPLOAD_BYTES = 20_000_000
 
 DEFAULT_FIT_MODELS = ["eight-chain", "extended-tube", "non-affine-tube", "mooney-rivlin"]
 

@@ -68,7 +68,7 @@ class DataView(pn.viewable.Viewer):
         # upload: drag-and-drop area (served from Panel's bundled files) for several files at once
         if hasattr(pn.widgets, "FileDropper"):
             self.upload = pn.widgets.FileDropper(
-                multiple=True, max_file_size=f"{MAX_UPLOAD_BYTES // (1024 * 1024)}MB", css_classes=["ns-upload"],
+                multiple=True, max_file_size=f"{MAX_UPLOAD_BYTES // 1_000_000}MB", css_classes=["ns-upload"],
                 sizing_mode="stretch_width", height=110, layout="compact")
         else:
             self.upload = pn.widgets.FileInput(multiple=True, css_classes=["ns-upload"], sizing_mode="stretch_width")
@@ -323,7 +323,7 @@ class DataView(pn.viewable.Viewer):
             pn.Row(
                 pn.Column(html("<div class='ns-side-h'>Load test files</div>"), self.upload,
                           html("<div class='ns-small'>Drop or choose CSV, TSV, TXT or .xlsx files (several at once, "
-                               f"up to {MAX_UPLOAD_BYTES // (1024 * 1024)} MB each). Columns: stretch, strain or "
+                               f"up to {MAX_UPLOAD_BYTES // 1_000_000} MB each). Columns: stretch, strain or "
                                "extension, and stress or force, with units in the header.</div>"),
                           html("<div class='ns-side-h'>Files in the fit</div>"), self.selected,
                           sizing_mode="stretch_width"),

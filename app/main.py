@@ -19,10 +19,9 @@ from .ui import CSS, html
 log = logging.getLogger("netstretch.app")
 
 
-#: Cap on one websocket message (uploads travel as one base64 message): 25 MB.  Files above
-#: MAX_UPLOAD_BYTES are refused with a message before they are read.
+#: Cap on one websocket message (a FileInput upload travels as one base64 message): 25 MB.  Files above
+#: app.data_state.MAX_UPLOAD_BYTES (20 MB) are refused with a message before they are read.
 WEBSOCKET_MAX_MESSAGE_SIZE = 25 * 1024 * 1024
-MAX_UPLOAD_BYTES = 20 * 1024 * 1024
 
 
 def configure_panel():
