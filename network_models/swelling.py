@@ -35,14 +35,16 @@ from scipy.optimize import brentq
 from .network import get_polymer
 
 __all__ = [
-    "CHI_BAND", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingEstimate", "chi_values", "compare_with_modulus",
-    "flory_rehner_nu", "from_record", "get_solvent", "kraus_gum_fraction", "polymer_volume_fraction", "solvents",
-    "swelling_estimate", "swollen_fraction",
+    "CHI_BAND", "FILLER_DENSITY_CARBON_BLACK", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingEstimate",
+    "chi_values", "compare_with_modulus", "flory_rehner_nu", "from_record", "get_solvent", "kraus_gum_fraction",
+    "polymer_volume_fraction", "solvents", "swelling_estimate", "swollen_fraction",
 ]
 
 CHI_BAND = 0.05
 #: Kraus filler–rubber constant for reinforcing carbon black, Kraus 1963 [memory]
 KRAUS_C_CARBON_BLACK = 1.17
+#: density of carbon black, kg/m³ [memory: about 1.8 g/cm³]
+FILLER_DENSITY_CARBON_BLACK = 1800.0
 
 
 @dataclass(frozen=True)
@@ -261,8 +263,9 @@ class SwellingEstimate:
 
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
                       chi: float | None = None, f: float = 4.0, T: float | None = None,
-                      extracted: float | None = None, initial: float | None = None, rubber_fraction: float = 1.0,
-                      filler_fraction: float = 0.0, kraus_c: float = KRAUS_C_CARBON_BLACK,
+                      extracted: float | None = None, initial: float | None = None,
+                      rubber_fraction: float | None = None, filler_fraction: float = 0.0,
+                      kraus_c: float = KRAUS_C_CARBON_BLACK, filler_density: float = FILLER_DENSITY_CARBON_BLACK,
                       rho_polymer: float | None = None) -> SwellingEstimate:
     """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
     :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
@@ -270,11 +273,24 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     the soluble fraction (dry − extracted)/dry is reported.  The other convention is accepted too:
     ``dry`` = the re-dried network mass with ``initial`` = the mass before swelling (give one of
     ``extracted``/``initial``, not both).  ``chi`` overrides the table;
-    ``filler_fraction`` (volume fraction of filler in the dry compound) switches the Kraus correction on."""
+    ``filler_fraction`` (volume fraction of filler in the dry compound) switches the Kraus correction on;
+    ``rubber_fraction`` is the rubber mass fraction of the dry compound (default: 1 for a gum, else from
+    the filler volume fraction and ``filler_density``, carbon black 1800 kg/m³ [memory])."""
     poly = get_polymer(polymer)
     sol = get_solvent(solvent)
     rho_p = poly.density if rho_polymer is None else float(rho_polymer)
     notes = []
+    if not (0.0 <= filler_fraction < 0.5):
+        raise ValueError(f"filler volume fraction must be in [0, 0.5); got {filler_fraction!r}")
+    if rubber_fraction is None:
+        if filler_fraction > 0:
+            vr, vf = (1.0 - filler_fraction) * rho_p, filler_fraction * filler_density
+            rubber_fraction = vr / (vr + vf)
+            notes.append(f"rubber mass fraction {rubber_fraction:.3f} of the dry compound from the filler volume "
+                         f"fraction and a filler density of {filler_density:g} kg/m³ (other ingredients ignored; "
+                         "give the rubber fraction from the recipe when you have it)")
+        else:
+            rubber_fraction = 1.0
     if chi is None:
         cv = default_chi(poly.key, sol.key)
         notes.append(f"χ = {cv.chi:g} from the solvent table [{cv.status}]: {cv.source}"

@@ -141,6 +141,11 @@ def test_kraus_correction():
     kraus = swelling_estimate(1.0, 2.5, "toluene", "NR", rubber_fraction=0.7, filler_fraction=0.15)
     assert kraus.nu_affine < plain.nu_affine
     assert kraus.kraus["V_rf"] == pytest.approx(plain.phi)
+    # without a recipe rubber fraction it follows from the filler volume fraction and densities:
+    # w_r = (1 − φ)ρ_p / ((1 − φ)ρ_p + φρ_f), worked by hand for φ = 0.2, ρ_p = 910, ρ_f = 1800 kg/m³: 0.66912
+    est = swelling_estimate(1.0, 2.5, "toluene", "NR", filler_fraction=0.2)
+    rho_s = get_solvent("toluene").density
+    assert est.phi_measured == pytest.approx(polymer_volume_fraction(1.0, 2.5, 910.0, rho_s, 0.669118), rel=1e-5)
 
 
 def test_bad_input_messages():

@@ -28,8 +28,9 @@ def add_parser(sub):
     p.add_argument("--chi", type=float, metavar="CHI", help="polymer–solvent χ (default: the solvent table's value)")
     p.add_argument("--temperature", metavar="T", help="swelling temperature, e.g. 23C (recorded; χ is not rescaled)")
     p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
-    p.add_argument("--rubber-fraction", type=float, default=1.0, metavar="W",
-                   help="rubber mass fraction of the dry compound (filled compounds; default 1)")
+    p.add_argument("--rubber-fraction", type=float, metavar="W",
+                   help="rubber mass fraction of the dry compound from the recipe (default: 1 for a gum, else "
+                        "estimated from --filler with carbon-black density)")
     p.add_argument("--filler", type=float, default=0.0, metavar="PHI",
                    help="filler volume fraction of the dry compound: applies the Kraus correction (default 0)")
     p.add_argument("--modulus", metavar="G", help="shear modulus with unit, e.g. 0.55MPa: show the modulus-based "
