@@ -14,10 +14,10 @@ Method
   overhead; ``trf`` is the fallback when it fails.  (Bounded ``trf`` took several times longer on the
   same fits: reflective steps near a bound are short.)  Parameters live in a scaled space: ``log`` for
   parameters declared ``log_scale`` (N, J_m, ν), ``value / scale`` for the rest (moduli scaled by G₀).
-* Variable projection (Golub & Pereyra 1973): every model here is linear in its moduli (checked
-  numerically once per model), so the free moduli are solved exactly by a small bounded linear least
-  squares for each trial of the other parameters; the optimiser only moves N, J_m, δ, κ … (tube and
-  Mooney–Rivlin fits need no iteration at all).
+* Variable projection (Golub & Pereyra 1973, SIAM J. Numer. Anal. 10:413 [from memory]): every model
+  here is linear in its moduli (checked numerically once per model), so the free moduli are solved
+  exactly by a small bounded linear least squares for each trial of the other parameters; the optimiser
+  only moves N, J_m, δ, κ … (tube and Mooney–Rivlin fits need no iteration at all).
 * Residuals: ``"absolute"`` (default) is ``model − data`` in Pa, so the stiff high-stress points weigh
   most; ``"relative"`` is ``(model − data) / max(|data|, 2 % of the largest |stress| in that mode)``, which
   gives the small-strain region and a soft mode (planar, equibiaxial at low stress) equal say.  Use
@@ -27,8 +27,8 @@ Method
   modulus, and for locking parameters (N, J_m, δ) a few candidates placed relative to the data's largest
   stretch; the best candidate starts the optimiser.
 * Finite extensibility: a locking parameter is bounded so that the largest data stretch stays inside the
-  lock (found by bisection on the model's own domain test), so no prediction is NaN during the fit.  When
-  the optimum sits on that bound the result says so.
+  lock (brentq on the smallest of the model's own domain margins over the extreme data points), so no
+  prediction is NaN during the fit.  When the optimum sits on (or within 5 % of) that bound, a warning says so.
 * Standard errors from the full Jacobian at the optimum (all free parameters, modulus columns analytic,
   the others by forward differences), cov = (JᵀJ)⁻¹ s², s² = RSS/(n − k); 95 % intervals
   with Student's t (n − k degrees of freedom).  For log-scaled parameters the interval is formed on the
