@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import logging
+import time
+
 import numpy as np
 import pandas as pd
 import panel as pn
@@ -33,6 +36,9 @@ def _nanrange(arrays, pad=0.06, floor=None):
         hi = lo + 1.0
     span = hi - lo
     return lo - (pad * span if floor is None else 0.0), hi + pad * span
+
+
+log = logging.getLogger("netstretch.app")
 
 
 def legend_html(shown) -> str:
@@ -152,6 +158,10 @@ class ExplorerViews(pn.viewable.Viewer):
         state.param.watch(lambda e: self._update_slow(), ["clamp_stretch", "expansion"])
         self._data_overlay = {}
         self._slow_pending = False
+        self._mod_nu_key = None
+        # which views are on screen (set by the page from the open tab); hidden ones catch up when opened
+        self.visible = {"mooney": True, "moduli": True}
+        self._dirty: set[str] = set()
         self._update_fast()
         self._update_slow()
 
@@ -174,7 +184,11 @@ class ExplorerViews(pn.viewable.Viewer):
         self._update_fast()
 
     def _on_change(self, *events):
+        if self.state.couple_N and all(e.name == "N_free" for e in events):
+            return  # the coupled N is only being shown in its box; nothing to redraw
+        t0 = time.perf_counter()
         self._update_fast()
+        log.debug("explorer: stress plots updated in %.1f ms", (time.perf_counter() - t0) * 1e3)
         self._schedule_slow()
 
     def _schedule_slow(self):
@@ -214,22 +228,46 @@ class ExplorerViews(pn.viewable.Viewer):
                 p.x_range.start, p.x_range.end = 1.0, float(s.lam_max)
                 p.y_range.start, p.y_range.end = min(lo, 0.0), hi
                 set_visible_models(r, shown, p)
-            mo = s.mooney_curves(net)
-            self.mooney_src.data = mo
-            set_visible_models(self.mooney_r, shown, self.mooney)
+            if self.visible["mooney"]:
+                self._update_mooney(net)
+            else:
+                self._dirty.add("mooney")
             self.controls.set_readout(s.readout(net), s.moduli(net))
             for lg in self.legends:
                 lg.object = legend_html(s.models)
             if s.couple_N:
                 s.N_free = round(float(net.N), 1)
 
+    def _update_mooney(self, net=None):
+        s = self.state
+        self.mooney_src.data = s.mooney_curves(net)
+        set_visible_models(self.mooney_r, set(s.models), self.mooney)
+        self._dirty.discard("mooney")
+
+    def set_visible(self, view: str, visible: bool):
+        """Told by the page which tab is open: hidden views are brought up to date when they open, so a
+        slider move only computes what is on screen."""
+        self.visible[view] = visible
+        if visible and view in self._dirty:
+            if view == "mooney":
+                guarded(self.messages, "network", "Network settings")(self._update_mooney)()
+            else:
+                self._update_slow()
+
     def _update_slow(self):
         s = self.state
+        if not self.visible["moduli"]:
+            self._dirty.add("moduli")
+            return
+        self._dirty.discard("moduli")
         net = s.network()
         shown = set(s.models)
         with pn.io.hold():
-            mn = s.modulus_vs_nu(net)
-            self.mod_nu_src.data = mn
+            key = (s.polymer, s.couple_N, None if s.couple_N else s.N_free, s.T_C, s.f, s.filler,
+                   s.entanglements, tuple(s.models))
+            if key != self._mod_nu_key:  # the sweep over ν does not depend on the current ν
+                self.mod_nu_src.data = s.modulus_vs_nu(net)
+                self._mod_nu_key = key
             g = s.moduli(net)
             self.mod_nu_now.data = {"x": [net.nu] * len(g), "y": [v / 1e6 for v in g.values()],
                                     "color": [model_colour(n) for n in g]}

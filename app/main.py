@@ -102,6 +102,14 @@ def create_app(load_samples: bool = True):
     caution = html(f"<div class='ns-caution'>{CAUTION}</div>", sizing_mode="stretch_width",
                            css_classes=["ns-caution-pane"])
     main_tabs = pn.Tabs(*tabs, sizing_mode="stretch_width", css_classes=["ns-tabs"], dynamic=True)
+
+    def on_tab(event=None):
+        name = tabs[main_tabs.active][0] if 0 <= main_tabs.active < len(tabs) else ""
+        explorer.set_visible("mooney", name == "Mooney plot")
+        explorer.set_visible("moduli", name == "Moduli & limits")
+
+    main_tabs.param.watch(on_tab, "active")
+    on_tab()
     side = pn.Column(controls, width=340, css_classes=["ns-side"], scroll=True, margin=(0, 8, 0, 0))
     body = pn.Row(side, pn.Column(messages, main_tabs, sizing_mode="stretch_width"), sizing_mode="stretch_width")
     page = pn.Column(header, body, caution, sizing_mode="stretch_width", stylesheets=[CSS],
@@ -114,7 +122,14 @@ def create_app(load_samples: bool = True):
 
 
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):
-    """Serve the app (blocking) on ``address:port`` with every asset served locally."""
+    """Serve the app (blocking) on ``address:port`` with every asset served locally.
+    ``NETSTRETCH_DEBUG=1`` logs timings and details of the app's callbacks on stderr."""
+    import os
+
+    handler = logging.StreamHandler()
+    handler.setFormatter(logging.Formatter("%(asctime)s %(name)s %(levelname)s: %(message)s"))
+    log.addHandler(handler)
+    log.setLevel(logging.DEBUG if os.environ.get("NETSTRETCH_DEBUG") == "1" else logging.INFO)
     configure_panel()
     allow = kw.pop("allow_websocket_origin", None) or (
         ["*"] if address in ("0.0.0.0", "::") else [f"{address}:{port}", f"localhost:{port}", f"127.0.0.1:{port}"])

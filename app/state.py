@@ -188,7 +188,7 @@ class NetworkState(param.Parameterized):
             cols[name] = vals
         return cols
 
-    def modulus_vs_T(self, net: Network | None = None, n: int = 40) -> dict:
+    def modulus_vs_T(self, net: Network | None = None, n: int = 23) -> dict:
         """G₀ (MPa) of each model from −60 °C to 160 °C at fixed network (entropic: ∝ T)."""
         net = net or self.network()
         Ts = np.linspace(-60.0, 160.0, n) + _K0
