@@ -502,6 +502,9 @@ class _LinearModuli:
     def stress(self, p):
         if not self.linear:
             return self.ev(p)
+        if len(self.moduli) == 1:
+            nm = self.moduli[0]
+            return p[nm] * self.h(p, nm)
         out = None
         for nm in self.moduli:
             t = p[nm]
@@ -822,19 +825,24 @@ def _fit(model, curves, *, residual, free, fixed, start) -> FitResult:
             y = wd
             if fixed_moduli:
                 y = wd - sum(p[nm] * lin.h(p, nm) for nm in fixed_moduli) * weight
-            H = np.column_stack([lin.h(p, nm) for nm in L]) * weight[:, None]
-            theta = _bounded_lstsq(H, y, L_lo, L_hi)
-            for j, nm in enumerate(L):
-                p[nm] = float(theta[j])
+            if len(L) == 1:  # the common case, in scalars: θ = <h, y>/<h, h>, clipped to its bounds
+                hw = lin.h(p, L[0]) * weight
+                a, b = float(np.dot(hw, hw)), float(np.dot(hw, y))
+                t = b / a if a > 0 else 0.0
+                p[L[0]] = min(max(t, L_lo[0]), L_hi[0]) if math.isfinite(t) else t
+            else:
+                H = np.column_stack([lin.h(p, nm) for nm in L]) * weight[:, None]
+                theta = _bounded_lstsq(H, y, L_lo, L_hi)
+                for j, nm in enumerate(L):
+                    p[nm] = float(theta[j])
         return p
 
     def residual_of(x):
         p = params_of(x)
         P = lin.stress(p)
-        r = (P - data.P) * weight
-        bad = ~np.isfinite(r)
-        if bad.any():
-            r[bad] = big
+        r = P * weight - wd
+        if not np.isfinite(r).all():
+            r[~np.isfinite(r)] = big
         return p, P, r
 
     def fun(x):
