@@ -152,7 +152,7 @@ class ExplorerViews(pn.viewable.Viewer):
                                    for m in MODES),
                                  sizing_mode="stretch_width", css_classes=["ns-stress-plot"])
         self._update_fast = guarded(messages, "network", "Network settings")(self._update_fast)
-        self._update_slow = guarded(messages, "network", "Network settings")(self._update_slow)
+        self._update_slow = guarded(messages, "moduli", "Moduli and limits")(self._update_slow)
         fast = ["polymer", "nu", "couple_N", "N_free", "T_C", "f", "filler", "entanglements", "models", "lam_max"]
         state.param.watch(self._on_change, fast)
         state.param.watch(lambda e: self._update_slow(), ["clamp_stretch", "expansion"])
@@ -240,6 +240,10 @@ class ExplorerViews(pn.viewable.Viewer):
 
     def _update_mooney(self, net=None):
         s = self.state
+        try:
+            net = net or s.network()
+        except ValueError:
+            return  # reported by the stress-plot update
         self.mooney_src.data = s.mooney_curves(net)
         set_visible_models(self.mooney_r, set(s.models), self.mooney)
         self._dirty.discard("mooney")
@@ -250,7 +254,7 @@ class ExplorerViews(pn.viewable.Viewer):
         self.visible[view] = visible
         if visible and view in self._dirty:
             if view == "mooney":
-                guarded(self.messages, "network", "Network settings")(self._update_mooney)()
+                guarded(self.messages, "mooney", "Mooney plot")(self._update_mooney)()
             else:
                 self._update_slow()
 
@@ -260,7 +264,11 @@ class ExplorerViews(pn.viewable.Viewer):
             self._dirty.add("moduli")
             return
         self._dirty.discard("moduli")
-        net = s.network()
+        try:
+            net = s.network()
+        except ValueError:
+            return  # an impossible network is reported once, by the stress-plot update
+
         shown = set(s.models)
         with pn.io.hold():
             key = (s.polymer, s.couple_N, None if s.couple_N else s.N_free, s.T_C, s.f, s.filler,
