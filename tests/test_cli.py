@@ -89,6 +89,7 @@ def test_fit_relative_and_unsupported_mode_model(capsys, lab_files):
     (["fit", "{f}", "--model", "no-such-model"], "no model called"),
     (["fit", "{f}", "--temperature", "23"], "has no unit"),
     (["fit", "{f}", "--temperature", "23 furlongs"], "--temperature"),
+    (["fit", "{f}", "--polymer", "XYZ"], "unknown polymer"),
     (["crosslinks", "--modulus", "0.55"], "has no unit"),
     (["crosslinks", "--modulus", "0.55MPa", "--polymer", "XYZ"], "unknown polymer"),
     (["crosslinks", "--modulus", "20mm"], "pressure"),

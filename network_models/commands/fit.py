@@ -153,8 +153,11 @@ def _format_result(res, table) -> list[str]:
 
 
 def run(args):
+    from ..network import get_polymer
+
     names = args.model or ["eight-chain"]
     models = [get_model(n) for n in names]  # KeyError with the list of models → exit 2
+    get_polymer(args.polymer)  # an unknown polymer is a usage error before any work
     curves = _read(args)
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
