@@ -41,7 +41,7 @@ def _fit_figure(mode: str):
                tools=TOOLS, x_axis_label="stretch λ (1)", y_axis_label="nominal stress P (MPa)",
                x_range=Range1d(1.0, 3.0))
     _style(p)
-    p.scatter("x", "y", source=data, color="color", size=4.5, alpha=0.7)
+    p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.5, size=5.5, alpha=0.85)
     r = {}
     for name in MODELS:
         r[name] = p.line("lam", name, source=src, color=model_colour(name), line_width=2.2)

@@ -104,6 +104,7 @@ class NetworkControls(pn.viewable.Viewer):
             ("affine νRT", fmt(r["affine_MPa"], 3, "MPa"), "crosslink part"),
             ("phantom (1−2/f)νRT", fmt(r["phantom_MPa"], 3, "MPa"), ""),
             ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), "from the plateau modulus, ∝ T"),
+            ("locking stretch, uniaxial", f"λ = {r['lock_uniaxial']:.3g}", "eight-chain: I₁ = 3N"),
         ]
         body = "".join(f"<tr title='{c}'><td>{a}</td><td class='ns-num'>{b}</td></tr>" for a, b, c in rows)
         g0 = "<tr><th colspan='2'>small-strain shear modulus G₀</th></tr>" + "".join(

@@ -78,7 +78,7 @@ def stress_figure(mode: str, legend: bool, width=None, height=330):
     _style(p)
     r = model_lines(p, src, "lam", legend)
     p.segment("x", "y0", "x", "y1", source=locks, color="color", line_dash="dotted", line_width=1.6)
-    p.scatter("x", "y", source=data, color="color", size=5, alpha=0.8, marker="circle")
+    p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
     p.add_tools(HoverTool(tooltips=[("data", "@file"), ("λ", "@x{0.000}"), ("P (MPa)", "@y{0.000}")],
                           renderers=[p.renderers[-1]]))
     return p, src, locks, data, r
@@ -92,7 +92,7 @@ def mooney_figure(height=380):
                x_range=Range1d(0.0, 1.0))
     _style(p)
     r = model_lines(p, src, "inv_lam", legend=False)
-    p.scatter("x", "y", source=data, color="color", size=5, alpha=0.8)
+    p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
     return p, src, data, r
 
 

@@ -22,20 +22,20 @@ from network_models.thermo import force_at_fixed_length, inversion_strain
 
 #: Our own colour per model (fixed, so a model keeps its colour in every plot and every session).
 MODEL_COLOURS = {
-    "affine": "#1b6f8a",
-    "phantom": "#7fb8cc",
+    "affine": "#1f5f8b",
+    "phantom": "#7fb3d9",
     "eight-chain": "#c0392b",
-    "non-affine-tube": "#6a8d2f",
-    "extended-tube": "#b57f14",
-    "slip-tube": "#8e5ea2",
-    "neo-hookean": "#4d4d4d",
-    "mooney-rivlin": "#d2691e",
-    "gent": "#2e8b57",
-    "constrained-junction": "#a0522d",
-    "three-chain": "#e377c2",
+    "non-affine-tube": "#2e8540",
+    "extended-tube": "#e08e0b",
+    "slip-tube": "#7b4fa0",
+    "neo-hookean": "#7a7a7a",
+    "mooney-rivlin": "#d4489a",
+    "gent": "#17a2a2",
+    "constrained-junction": "#8c5a2b",
+    "three-chain": "#9bbb2f",
 }
 #: Colours for uploaded data sets (markers), cycled.
-DATA_COLOURS = ("#111111", "#5b3a8c", "#00796b", "#9c2f5a", "#4a6fa5", "#7a5c00")
+DATA_COLOURS = ("#111111", "#4b5a66", "#0b2545", "#5a4632", "#2f4f4f", "#6b6b6b")
 
 DEFAULT_MODELS = ["affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube"]
 
