@@ -140,7 +140,7 @@ class ExplorerViews(pn.viewable.Viewer):
         self.mooney, self.mooney_src, self.mooney_data, self.mooney_r = mooney_figure()
         self.mod_nu, self.mod_nu_src, self.mod_nu_now, self.mod_nu_r = modulus_nu_figure()
         self.mod_T, self.mod_T_src, self.mod_T_r = modulus_T_figure()
-        self.force, self.force_src, self.force_ref = force_T_figure()
+        self.force, self.force_src, self.force_small = force_T_figure()
         self.legends = [html("", css_classes=["ns-legend"]) for _ in range(3)]
         self.limits = html("", sizing_mode="stretch_width", css_classes=["ns-limits"])
         self.inversion = html("", sizing_mode="stretch_width", css_classes=["ns-inversion"])
@@ -284,11 +284,13 @@ class ExplorerViews(pn.viewable.Viewer):
             self.mod_T_src.data = s.modulus_vs_T(net)
             set_visible_models(self.mod_T_r, shown)
             ft = s.force_vs_T(net)
-            self.force_src.data = {"T": ft["T"], "F": ft["F"]}
-            from network_models.thermo import force_at_fixed_length
-            ref = force_at_fixed_length(ft["T"], float(s.clamp_stretch), net.affine_modulus, net.T, expansion=0.0)
-            self.force_ref.data = {"T": ft["T"], "F": ref / 1e6}
-            lo, hi = _nanrange([ft["F"], ref / 1e6], floor=0.0)
+            self.force_src.data = {"T": ft["T"], "F": ft["F_rel"], "F_ref": ft["F_rel_noexp"],
+                                   "F_small": ft["F_rel_small"]}
+            has_small = ft["eps_small"] is not None
+            self.force_small.visible = has_small
+            for item in self.force.legend[0].items:
+                if self.force_small in item.renderers:
+                    item.visible = has_small
             self.limits.object = self._limits_html(net)
             inv = s.inversion(net)
             if inv is None:
@@ -297,7 +299,9 @@ class ExplorerViews(pn.viewable.Viewer):
             else:
                 txt = (f"With the polymer's volume expansion β = {ft['beta']:.3g} 1/K, the force at fixed length "
                        f"falls with temperature below a clamped strain of about <b>{inv * 100:.2g} %</b> "
-                       f"(thermoelastic inversion at {s.T_C:.0f} °C; small-strain Gaussian estimate ≈ βT/3).")
+                       f"(thermoelastic inversion at {s.T_C:.0f} °C; small-strain Gaussian estimate ≈ βT/3). "
+                       f"The dot-dash line is clamped at {ft['eps_small'] * 100:.2g} % strain: its force falls "
+                       "as the rubber is warmed.")
             self.inversion.object = f"<div class='ns-small'>{txt}</div>"
 
     def _limits_html(self, net) -> str:

@@ -203,7 +203,9 @@ class NetworkState(param.Parameterized):
         return cols
 
     def force_vs_T(self, net: Network | None = None, n: int = 80) -> dict:
-        """Force per reference area (MPa) at the clamped stretch from 0 K to 450 K (Gaussian network).
+        """Force at the clamped stretch from 0 K to 450 K (Gaussian network): ``F`` per reference area (MPa)
+        and, relative to the force at the set temperature, ``F_rel`` (current β), ``F_rel_noexp`` (β = 0)
+        and ``F_rel_small`` at half the inversion strain (NaN with expansion off).
 
         With expansion off the line runs straight through absolute zero (F ∝ T, Meyer & Ferri 1935);
         with expansion on, the polymer's volume expansion coefficient bends it and at small clamped
@@ -211,9 +213,23 @@ class NetworkState(param.Parameterized):
         net = net or self.network()
         beta = net.poly.expansion if self.expansion else 0.0
         T = np.linspace(0.0, 450.0, n)
-        with np.errstate(all="ignore"):
-            F = force_at_fixed_length(T, float(self.clamp_stretch), net.affine_modulus, net.T, expansion=beta)
-        return {"T": T, "F": F / 1e6, "beta": beta}
+        lam = float(self.clamp_stretch)
+        G, T0 = net.affine_modulus, net.T
+
+        def rel(stretch, b):
+            with np.errstate(all="ignore"):
+                F = force_at_fixed_length(T, stretch, G, T0, expansion=b)
+                return F, F / force_at_fixed_length(T0, stretch, G, T0, expansion=b)
+
+        F, F_rel = rel(lam, beta)
+        _, F_rel_noexp = rel(lam, 0.0)
+        F_rel_small = np.full_like(T, np.nan)
+        eps_small = None
+        if beta > 0:
+            eps_small = 0.5 * float(inversion_strain(T0, beta))
+            _, F_rel_small = rel(1.0 + eps_small, beta)
+        return {"T": T, "F": F / 1e6, "F_rel": F_rel, "F_rel_noexp": F_rel_noexp, "F_rel_small": F_rel_small,
+                "eps_small": eps_small, "beta": beta}
 
     def inversion(self, net: Network | None = None) -> float | None:
         """Clamped strain of the thermoelastic inversion at the current T, or None with expansion off."""
