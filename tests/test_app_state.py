@@ -209,3 +209,16 @@ def test_core_and_cli_do_not_import_panel():
             "sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
     assert r.returncode == 0, r.stdout + r.stderr
+
+
+def test_serve_reports_a_busy_port_in_a_sentence():
+    import socket
+
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        s.listen(1)
+        port = s.getsockname()[1]
+        r = subprocess.run([sys.executable, "-m", "network_models.cli", "serve", "--port", str(port),
+                            "--address", "127.0.0.1"], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 2
+    assert "already in use" in r.stderr and "Traceback" not in r.stderr

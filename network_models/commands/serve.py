@@ -28,5 +28,14 @@ def run(args):
         ) from None
     host = "localhost" if args.address in ("0.0.0.0", "::") else args.address
     print(f"netstretch app: http://{host}:{args.port}/  (Ctrl+C stops it)", flush=True)
-    serve(port=args.port, address=args.address, show=args.show)
+    try:
+        serve(port=args.port, address=args.address, show=args.show)
+    except OSError as exc:
+        if exc.errno in (98, 48, 10048):  # address in use (Linux, macOS, Windows)
+            raise UserError(f"port {args.port} on {args.address} is already in use (perhaps the app is already "
+                            "running there); open that address, or choose another port with --port") from None
+        if exc.errno in (99, 49, 10049):
+            raise UserError(f"cannot listen on address {args.address!r}: it is not an address of this machine; "
+                            "use localhost or 0.0.0.0") from None
+        raise
     return 0
