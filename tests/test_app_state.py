@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 import subprocess
 import sys
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -218,7 +219,10 @@ def test_serve_reports_a_busy_port_in_a_sentence():
         s.bind(("127.0.0.1", 0))
         s.listen(1)
         port = s.getsockname()[1]
-        r = subprocess.run([sys.executable, "-m", "network_models.cli", "serve", "--port", str(port),
-                            "--address", "127.0.0.1"], capture_output=True, text=True, timeout=120)
+        script = Path(sys.executable).with_name("netstretch")  # the installed console script, as users run it
+        run_main = "import sys; from network_models.cli import main; sys.exit(main())"
+        cmd = [str(script)] if script.exists() else [sys.executable, "-c", run_main]
+        r = subprocess.run([*cmd, "serve", "--port", str(port), "--address", "127.0.0.1"],
+                           capture_output=True, text=True, timeout=120)
     assert r.returncode == 2
     assert "already in use" in r.stderr and "Traceback" not in r.stderr
