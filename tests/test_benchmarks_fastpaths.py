@@ -288,3 +288,27 @@ def test_runner_never_writes_nan_and_says_so(monkeypatch):
     json.dumps(doc, allow_nan=False)  # raises on NaN/inf
     assert doc["models_eval_ms_median"] is None
     assert any("models_eval_ms_median" in n and "not a finite number" in n for n in doc["notes"])
+
+
+# ----- benchmark 4: the hooks the browser benchmark relies on still exist ----------------------------------
+
+
+@pytest.mark.ui
+@pytest.mark.slow
+def test_browser_benchmark_hooks_find_the_slider_and_the_plot():
+    # Not a timing test: one slider step must move ν by one step and produce the ordered events the
+    # benchmark times (key press, data change, repaint), or the figure would be measuring nothing.
+    import os
+
+    from benchmarks import bench_app
+
+    why = bench_app._unavailable()
+    if why:
+        if os.environ.get("NETSTRETCH_REQUIRE_BROWSER") == "1":
+            pytest.fail(why)
+        pytest.skip(why)
+    with bench_app.app_server() as (url, _log):
+        m = bench_app.measure(url, moves=1)
+    assert float(m["nu_after"]) - float(m["nu_before"]) == pytest.approx(1.0 + bench_app.WARMUP)
+    (r,) = m["runs"]
+    assert 0 <= r["sent"] <= r["change"] <= r["paint"] <= r["frame"]
