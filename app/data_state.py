@@ -339,7 +339,10 @@ class DataState(param.Parameterized):
                 scale = p.display_scale or 1.0
                 unit = p.display_unit or p.unit
                 lo, hi = p.ci95
-                ci = "—" if lo is None or hi is None else f"{sig(lo * scale, 4)} … {sig(hi * scale, 4)}"
+                if lo is None or hi is None or not (np.isfinite(lo) and np.isfinite(hi)):
+                    ci = "not determined"
+                else:
+                    ci = f"{sig(lo * scale, 4)} … {sig(hi * scale, 4)}"
                 rows.append({"model": r.title, "parameter": f"{p.symbol or p.name}",
                              "meaning": p.meaning, "value": sig(p.value * scale, 4),
                              "95 % interval": "held fixed" if p.fixed else ci, "unit": "" if unit == "1" else unit})
