@@ -163,6 +163,8 @@ class ExplorerViews(pn.viewable.Viewer):
         # which views are on screen (set by the page from the open tab); hidden ones catch up when opened
         self.visible = {"mooney": True, "moduli": True}
         self._dirty: set[str] = set()
+        for w in (controls.nu, controls.N, controls.T, controls.f, controls.filler, controls.lam_max):
+            w.param.watch(self._on_throttled, "value_throttled")
         self._update_fast()
         self._update_slow()
 
@@ -184,12 +186,20 @@ class ExplorerViews(pn.viewable.Viewer):
                                  "file": list(np.asarray(u["file"])[keep])}
         self._update_fast()
 
+    #: state parameters set by sliders: their moduli/limits update waits for the slider's value_throttled
+    SLIDER_PARAMS = frozenset({"nu", "N_free", "T_C", "f", "filler", "lam_max"})
+
     def _on_change(self, *events):
         if self.state.couple_N and all(e.name == "N_free" for e in events):
             return  # the coupled N is only being shown in its box; nothing to redraw
         t0 = time.perf_counter()
         self._update_fast()
         log.debug("explorer: stress plots updated in %.1f ms", (time.perf_counter() - t0) * 1e3)
+        if any(e.name not in self.SLIDER_PARAMS for e in events):
+            self._schedule_slow()
+
+    def _on_throttled(self, event):
+        """A slider was released or a value typed: now the heavier views follow."""
         self._schedule_slow()
 
     def _schedule_slow(self):
