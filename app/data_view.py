@@ -101,6 +101,13 @@ class DataView(pn.viewable.Viewer):
                                                        width=170)
         self.table_model = pn.widgets.Select.from_param(s.param.table_model, name="Crosslink table from the fit of",
                                                         width=240)
+        self.network_state = network_state
+        self.to_explorer = pn.widgets.Button(
+            name="Draw this network in the explorer", button_type="primary", width=280,
+            css_classes=["ns-to-explorer"], disabled=network_state is None,
+            description="sets the explorer's polymer, filler and strand density to the 'affine, entanglement "
+                        "share removed' row of the crosslink table")
+        self.to_explorer.on_click(lambda e: self._send_to_explorer())
 
         # results
         self.figs = {m.value: _fit_figure(m.value) for m in MODES}
@@ -115,6 +122,7 @@ class DataView(pn.viewable.Viewer):
         self._remove = guarded(self.messages, "file", "Remove file")(self._remove)
         self._show_file = guarded(self.messages, "file", "Preview")(self._show_file)
         self._table = guarded(self.messages, "table", "Crosslink table")(self._table)
+        self._send_to_explorer = guarded(self.messages, "table", "Explorer")(self._send_to_explorer)
         s.param.watch(lambda e: self._refit(), ["selected", "fit_models", "residual"])
         s.param.watch(lambda e: self._files_changed(), ["files"])
         s.param.watch(lambda e: self._table(), ["table_model", "polymer", "f", "filler"])
@@ -304,6 +312,24 @@ class DataView(pn.viewable.Viewer):
             + _table_html(rows, "ns-xlink-table")
             + f"<ul class='ns-small'>{notes}<li>Brackets: 95 % intervals from the fit.</li></ul>")
 
+    def _send_to_explorer(self):
+        """The explorer shows the fitted compound: its polymer, filler and the strand density of the
+        'affine, entanglement share removed' row (the crosslink part; entanglements are added back by the
+        explorer's tube models)."""
+        t = self.state.crosslink_table()
+        if t is None or self.network_state is None:
+            raise ValueError("no fit yet: load and fit a curve first")
+        row = next((r for r in t.rows if r.key == "affine-no-entanglement"), None)
+        if row is None or row.nu is None or not np.isfinite(row.nu) or row.nu <= 0:
+            raise ValueError("the fit leaves no positive crosslink part after removing the entanglement share, "
+                             "so there is no strand density to draw; try another model")
+        ns = self.network_state
+        ns.param.update(polymer=self.state.polymer, filler=float(self.state.filler), f=float(self.state.f),
+                        entanglements=True, nu=float(row.nu))
+        self.messages.show("table", f"The explorer now draws {self.state.polymer} with strand density "
+                                    f"ν = {sig(row.nu, 4)} mol/m³ (affine, entanglement share removed) from the "
+                                    f"{self.state.results[self.state.table_model].title} fit.", "info")
+
     # ----- layout ---------------------------------------------------------------------------------
     def __panel__(self):
         return self._built
@@ -338,7 +364,8 @@ class DataView(pn.viewable.Viewer):
             pn.Row(pn.Column(html("<div class='ns-small'>Residual</div>"), self.residual), self.polymer, self.f,
                    self.filler, self.table_model),
             pn.Column(self.summary, pn.Row(*fit_rows, sizing_mode="stretch_width"), self.warn_html,
-                      self.xlink_html, html("<h4 class='ns-h4'>Fitted parameters (95 % intervals)</h4>"),
+                      self.xlink_html, self.to_explorer,
+                      html("<h4 class='ns-h4'>Fitted parameters (95 % intervals)</h4>"),
                       self.params_html, css_classes=["ns-fit-results"], sizing_mode="stretch_width"),
             sizing_mode="stretch_width",
         )

@@ -226,3 +226,15 @@ def test_serve_reports_a_busy_port_in_a_sentence():
                            capture_output=True, text=True, timeout=120)
     assert r.returncode == 2
     assert "already in use" in r.stderr and "Traceback" not in r.stderr
+
+
+def test_fitted_network_can_be_drawn_in_the_explorer(two_pages):
+    page = two_pages[0]
+    dv, st = page.ns_data, page.ns_state
+    dv.state.selected = [f.name for f in dv.state.files if f.group == "QM-S2"]
+    dv.state.table_model = "extended-tube"
+    dv._send_to_explorer()
+    row = dv.state.crosslink_table().row("affine-no-entanglement")
+    # the explorer's affine modulus is then νRT of that row (R from scipy.constants)
+    assert st.nu == pytest.approx(row.nu)
+    assert st.network().affine_modulus == pytest.approx(row.nu * R * st.T, rel=1e-12)
