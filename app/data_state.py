@@ -401,15 +401,25 @@ class SwellState(param.Parameterized):
         super().__init__(**params)
         self.param.solvent.objects = list(solvents())
 
-    def load_sample(self, compound: str | None = None) -> bool:
-        """Prefill from the bundled sample set's swelling table (the baseline compound's first row)."""
+    def sample_labels(self) -> list[str]:
+        """One label per row of the bundled sample set's swelling table."""
+        rows = _testdata().read_manifest().swelling_results()
+        return [f"{r.compound} {r.specimen or ''}".strip() for r in rows]
+
+    def load_sample(self, compound: str | None = None, label: str | None = None) -> bool:
+        """Prefill from the bundled sample set's swelling table: the row called ``label``, else the first
+        row of ``compound`` (default: the baseline compound)."""
         td = _testdata()
         man = td.read_manifest()
         rows = man.swelling_results()
         if not rows:
             return False
         want = compound or man.info.get("baseline")
-        row = next((r for r in rows if r.compound == want), rows[0])
+        labels = [f"{r.compound} {r.specimen or ''}".strip() for r in rows]
+        if label in labels:
+            row = rows[labels.index(label)]
+        else:
+            row = next((r for r in rows if r.compound == want), rows[0])
         comp = next((c for c in man if c.key == row.compound), None)
         with param.parameterized.batch_call_watchers(self):
             self.dry_g, self.swollen_g = row.dry_mass * 1000.0, row.swollen_mass * 1000.0

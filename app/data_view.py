@@ -86,7 +86,7 @@ class DataView(pn.viewable.Viewer):
         self.apply = pn.widgets.Button(name="Re-read with these settings", button_type="primary", width=220)
         self.remove = pn.widgets.Button(name="Remove file", button_type="light", width=120)
         self.preview = html("", css_classes=["ns-preview"])
-        self.edit_file.param.watch(lambda e: self._show_file(), "value")
+        self.edit_file.param.watch(lambda *e: self._show_file(), "value")
         self.apply.on_click(lambda e: self._apply())
         self.remove.on_click(lambda e: self._remove())
 
@@ -123,9 +123,9 @@ class DataView(pn.viewable.Viewer):
         self._show_file = guarded(self.messages, "file", "Preview")(self._show_file)
         self._table = guarded(self.messages, "table", "Crosslink table")(self._table)
         self._send_to_explorer = guarded(self.messages, "table", "Explorer")(self._send_to_explorer)
-        s.param.watch(lambda e: self._refit(), ["selected", "fit_models", "residual"])
-        s.param.watch(lambda e: self._files_changed(), ["files"])
-        s.param.watch(lambda e: self._table(), ["table_model", "polymer", "f", "filler"])
+        s.param.watch(lambda *e: self._refit(), ["selected", "fit_models", "residual"])
+        s.param.watch(lambda *e: self._files_changed(), ["files"])
+        s.param.watch(lambda *e: self._table(), ["table_model", "polymer", "f", "filler"])
 
         self._built = self._build()
         if load_samples:

@@ -156,7 +156,7 @@ class ExplorerViews(pn.viewable.Viewer):
         self._update_slow = guarded(messages, "moduli", "Moduli and limits")(self._update_slow)
         fast = ["polymer", "nu", "couple_N", "N_free", "T_C", "f", "filler", "entanglements", "models", "lam_max"]
         state.param.watch(self._on_change, fast)
-        state.param.watch(lambda e: self._update_slow(), ["clamp_stretch", "expansion"])
+        state.param.watch(lambda *e: self._update_slow(), ["clamp_stretch", "expansion"])
         self._data_overlay = {}
         self._slow_pending = False
         self._mod_nu_key = None

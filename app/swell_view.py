@@ -47,15 +47,26 @@ class SwellView(pn.viewable.Viewer):
             pn.widgets.FloatInput.from_param(s.param.filler, name="Filler volume fraction φ", step=0.01, **num),
             pn.widgets.FloatInput.from_param(s.param.T_C, name="Test temperature (°C)", step=1.0, **num),
         ]
+        try:
+            labels = s.sample_labels()
+        except Exception:  # no sample set: no picker
+            labels = []
+        self.sample = pn.widgets.Select(name="Prefill from the sample set (invented)", options=["—", *labels],
+                                        value="—", width=260, css_classes=["ns-swell-sample"])
+        self.sample.param.watch(self._pick_sample, "value")
         self.result = html("", css_classes=["ns-swell-result"])
         self.compare = html("", css_classes=["ns-swell-compare"])
         self.chi_note = html("", css_classes=["ns-chi-note"])
         self._update = guarded(self.messages, "swelling", "Swelling")(self._update)
-        s.param.watch(lambda e: self._update(),
+        s.param.watch(lambda *e: self._update(),
                       ["dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f", "filler", "T_C"])
         if data_view is not None:
-            data_view.state.param.watch(lambda e: self._update(), ["results", "table_model"])
+            data_view.state.param.watch(lambda *e: self._update(), ["results", "table_model"])
         self._update()
+
+    def _pick_sample(self, event):
+        if event.new and event.new != "—":
+            guarded(self.messages, "swelling", "Swelling sample")(self.state.load_sample)(label=event.new)
 
     def _modulus_table(self):
         """The modulus-based crosslink table: from the current fit if there is one, else none."""
@@ -125,5 +136,6 @@ class SwellView(pn.viewable.Viewer):
             html("<div class='ns-small'>Equilibrium swelling in a good solvent: enter the masses of one "
                  "specimen. The result is the strand density ν under affine and phantom assumptions, with the "
                  "band for χ ± 0.05 (χ is the largest uncertainty).</div>"),
-            pn.Row(pn.Column(*self.widgets[:5]), pn.Column(*self.widgets[5:]), self.chi_note),
+            pn.Row(pn.Column(*self.widgets[:5]), pn.Column(*self.widgets[5:]),
+                   pn.Column(self.sample, self.chi_note, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
             self.result, self.compare, sizing_mode="stretch_width", css_classes=["ns-swelling"])

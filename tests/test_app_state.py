@@ -238,3 +238,20 @@ def test_fitted_network_can_be_drawn_in_the_explorer(two_pages):
     # the explorer's affine modulus is then νRT of that row (R from scipy.constants)
     assert st.nu == pytest.approx(row.nu)
     assert st.network().affine_modulus == pytest.approx(row.nu * R * st.T, rel=1e-12)
+
+
+def test_swelling_sample_picker_prefills_the_form():
+    from app.swell_view import SwellView
+
+    v = SwellView()
+    label = v.sample.options[2]
+    v.sample.value = label
+    assert v.messages.texts() == {}
+    assert v.state.sample_label.startswith(label)
+    # grams at the edge: the form holds the table's masses (kg in the reader) × 1000
+    from network_models.testdata import read_manifest
+
+    rows = read_manifest().swelling_results()
+    row = rows[[f"{r.compound} {r.specimen or ''}".strip() for r in rows].index(label)]
+    assert v.state.dry_g == pytest.approx(row.dry_mass * 1000.0)
+    assert "Flory–Rehner result" in v.result.object
