@@ -31,6 +31,8 @@ def configure_panel():
     pn.config.raw_css = []
     pn.config.notifications = False
     pn.config.throttled = False
+    # a callback error that slipped past guarded(): log it on the server, keep it off the page
+    pn.config.exception_handler = lambda exc: log.error("callback error: %s", exc, exc_info=exc)
     try:
         pn.extension(design="native", inline=False)
     except Exception:
@@ -63,7 +65,20 @@ def _optional_view(module: str, factory, **kw):
 
 
 def create_app(load_samples: bool = True):
-    """One browser session's page."""
+    """One browser session's page.  If building it fails, the page says so in a sentence (the details go
+    to the server log), never with a traceback."""
+    try:
+        return _build_page(load_samples)
+    except Exception as exc:
+        log.exception("building the page failed")
+        return pn.Column(
+            html("<div class='ns-header'><span class='ns-brand'>netstretch</span></div>"),
+            pn.pane.Alert(f"This page could not be built ({type(exc).__name__}: {exc}). Reload the page; if it "
+                          "happens again, the server log has the details.", alert_type="danger"),
+            sizing_mode="stretch_width")
+
+
+def _build_page(load_samples: bool = True):
     if hasattr(pn.widgets, "FileDropper"):
         pn.extension("filedropper")  # per session: the upload area's code must be in this page
     messages = Messages()
