@@ -260,6 +260,8 @@ class DataState(param.Parameterized):
         curves = self.selected_curves()
         if not curves:
             self.results, self.failures = {}, {}
+            if not self.files:
+                return []  # nothing loaded yet: nothing to say
             raise ValueError("no test curves selected: tick at least one loaded file under 'Files in the fit'")
         data_modes = {c.mode for c in curves}
         results, failures = {}, {}

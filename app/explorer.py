@@ -219,9 +219,20 @@ class ExplorerViews(pn.viewable.Viewer):
 
         doc.add_next_tick_callback(run)
 
+    def _network(self):
+        """The state's network, with what to do added to the core's sentence when it cannot exist."""
+        try:
+            return self.state.network()
+        except ValueError as exc:
+            hint = ""
+            if "Kuhn segments" in str(exc) and self.state.couple_N:
+                hint = (" — lower the strand density, choose a polymer with a smaller Kuhn molar mass, or untick "
+                        "'N from ν' and set N yourself")
+            raise ValueError(f"{exc}{hint}. The plots still show the last valid network.") from None
+
     def _update_fast(self):
         s = self.state
-        net = s.network()
+        net = self._network()
         res = s.stress_curves(net)
         shown = set(s.models)
         with pn.io.hold():
