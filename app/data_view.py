@@ -175,6 +175,9 @@ class DataView(pn.viewable.Viewer):
         else:
             self.messages.clear("upload")
         if loaded:
+            if self.network_state is not None:  # an upload says nothing of its recipe: start from the explorer's
+                self.state.param.update(polymer=self.network_state.polymer, f=float(self.network_state.f),
+                                        filler=float(self.network_state.filler))
             self.state.accept_uploads(loaded)
             self.edit_file.value = loaded[-1].name
 
