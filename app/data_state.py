@@ -77,10 +77,6 @@ def _digest(data: bytes) -> str:
     return hashlib.sha1(data).hexdigest()[:12]
 
 
-def _finite_or_none(x):
-    return None if x is None or not (isinstance(x, (int, float)) and math.isfinite(x)) else float(x)
-
-
 class DataState(param.Parameterized):
     """Loaded test files, fit choices and results of one session."""
 
@@ -370,15 +366,6 @@ class DataState(param.Parameterized):
         if r is None:
             return None
         return from_fit(r, polymer=self.polymer, f=float(self.f), filler_fraction=float(self.filler))
-
-
-def ci_text(ci, scale=1.0, digits=3) -> str:
-    if not ci or ci[0] is None or ci[1] is None:
-        return "—"
-    lo, hi = _finite_or_none(ci[0]), _finite_or_none(ci[1])
-    if lo is None or hi is None:
-        return "—"
-    return f"{lo * scale:.{digits}g} … {hi * scale:.{digits}g}"
 
 
 class SwellState(param.Parameterized):

@@ -11,7 +11,6 @@ mol/m³ for the strand density ν) and converts once, in :meth:`NetworkState.net
 from __future__ import annotations
 
 import contextlib
-import math
 
 import numpy as np
 import param
@@ -266,10 +265,3 @@ class NetworkState(param.Parameterized):
             "lock_uniaxial": net.locking_stretch(Mode.UNIAXIAL),
         }
 
-
-def safe_number(x) -> float | None:
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        return None
-    return v if math.isfinite(v) else None
