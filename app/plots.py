@@ -65,7 +65,7 @@ def set_visible_models(renderers: dict, shown, legend_figure=None):
                 item.visible = any(r.visible for r in item.renderers)
 
 
-def stress_figure(mode: str, legend: bool, width=None, height=330):
+def stress_figure(mode: str, legend: bool, width=None, height=380):
     """Nominal stress vs stretch in one mode: model lines, lock markers, data points."""
     src = ColumnDataSource(empty_columns("lam"), name=f"ns-stress-{mode}")
     locks = ColumnDataSource({"x": [], "y0": [], "y1": [], "color": [], "model": []}, name=f"ns-locks-{mode}")
