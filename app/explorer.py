@@ -67,7 +67,7 @@ class NetworkControls(pn.viewable.Viewer):
         self.N = pn.widgets.EditableFloatSlider.from_param(
             s.param.N_free, name="Kuhn segments per strand N", step=0.5, format="0.0",
             fixed_start=s.param.N_free.bounds[0], fixed_end=s.param.N_free.bounds[1],
-            disabled=s.couple_N, css_classes=["ns-n-input"], sizing_mode="stretch_width")
+            visible=not s.couple_N, css_classes=["ns-n-input"], sizing_mode="stretch_width")
         self.T = pn.widgets.EditableFloatSlider.from_param(
             s.param.T_C, name="Temperature (°C)", step=1.0, format="0",
             fixed_start=s.param.T_C.bounds[0], fixed_end=s.param.T_C.bounds[1],
@@ -92,7 +92,19 @@ class NetworkControls(pn.viewable.Viewer):
                                     margin=(0, 10))
         self.polymer_note = html("", css_classes=["ns-polymer-note"], sizing_mode="stretch_width",
                                          margin=(0, 10))
-        s.param.watch(lambda e: setattr(self.N, "disabled", e.new), "couple_N")
+        s.param.watch(self._on_couple, "couple_N")
+
+    def _on_couple(self, event):
+        """Coupled: N follows ν (shown in the readout, its box hidden). Freed: the box appears holding the
+        N the coupling gave, so the curves do not jump."""
+        s = self.state
+        if not event.new:
+            try:
+                coupled_N = s.network(N=None).N
+            except ValueError:
+                coupled_N = s.N_free
+            s.N_free = round(float(max(coupled_N, s.param.N_free.bounds[0])), 1)
+        self.N.visible = not event.new
 
     def set_readout(self, r: dict, moduli: dict):
         rows = [
@@ -100,7 +112,8 @@ class NetworkControls(pn.viewable.Viewer):
             ("junction density μ<sub>j</sub> = 2ν/f", f"{r['junction_density']:.4g} mol/m³",
              "crosslinks (junctions)"),
             ("strand molar mass M<sub>c</sub>", f"{r['Mc_g_mol']:.4g} g/mol", "ρ/ν"),
-            ("Kuhn segments N", f"{r['N']:.3g}", r["N_source"]),
+            ("Kuhn segments N (" + ("set by hand" if r["N_source"] == "set directly" else "from ν and M<sub>K</sub>")
+             + ")", f"{r['N']:.3g}", r["N_source"]),
             ("affine νRT", fmt(r["affine_MPa"], 3, "MPa"), "crosslink part"),
             ("phantom (1−2/f)νRT", fmt(r["phantom_MPa"], 3, "MPa"), ""),
             ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), "from the plateau modulus, ∝ T"),
@@ -257,8 +270,6 @@ class ExplorerViews(pn.viewable.Viewer):
             self.controls.set_readout(s.readout(net), s.moduli(net))
             for lg in self.legends:
                 lg.object = legend_html(s.models)
-            if s.couple_N:
-                s.N_free = round(float(net.N), 1)
 
     def _update_mooney(self, net=None):
         s = self.state

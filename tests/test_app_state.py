@@ -204,8 +204,9 @@ def test_swelling_form_matches_the_flory_rehner_balance():
         s.estimate()
 
 
-def test_core_and_cli_do_not_import_panel():
-    code = ("import sys, network_models, network_models.cli, network_models.commands.serve; "
+def test_core_cli_and_app_state_do_not_import_panel():
+    code = ("import sys, network_models, network_models.cli, network_models.commands.serve, app.state, "
+            "app.data_state; "
             "bad = [m for m in ('panel', 'holoviews', 'bokeh') if m in sys.modules]; print(bad); "
             "sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
@@ -255,3 +256,15 @@ def test_swelling_sample_picker_prefills_the_form():
     row = rows[[f"{r.compound} {r.specimen or ''}".strip() for r in rows].index(label)]
     assert v.state.dry_g == pytest.approx(row.dry_mass * 1000.0)
     assert "Flory–Rehner result" in v.result.object
+
+
+def test_freeing_N_keeps_the_coupled_value():
+    from app.main import create_app
+
+    page = create_app(load_samples=False)
+    st = page.ns_state
+    poly = get_polymer(st.polymer)
+    st.couple_N = False
+    # N = M_c/M_K = ρ/(ν M_K) (Rubinstein & Colby 2003, ch. 2 [memory]), shown to one decimal
+    assert st.N_free == pytest.approx(poly.density / st.nu / poly.kuhn_molar_mass, abs=0.051)
+    assert st.network().N_direct
