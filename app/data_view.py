@@ -169,9 +169,14 @@ class DataView(pn.viewable.Viewer):
                 problems.append(f"{name}: the file could not be read ({type(exc).__name__}); check that it is a "
                                 "CSV/TSV/TXT or .xlsx table of stretch (or strain/extension) and stress (or force)")
         if problems:
-            self.messages.show(
-                "upload", "**Upload not used:** " + " · ".join(_esc(p) for p in problems)
-                + " — the data loaded before are kept.", "warning")
+            text = " · ".join(_esc(p) for p in problems)
+            if loaded:
+                names = ", ".join(_esc(f.name) for f in loaded)
+                self.messages.show("upload", f"**Some files were not used:** {text} — {names} loaded and fitted.",
+                                   "warning")
+            else:
+                self.messages.show("upload", f"**Upload not used:** {text} — the data loaded before are kept.",
+                                   "warning")
         else:
             self.messages.clear("upload")
         if loaded:

@@ -268,3 +268,18 @@ def test_freeing_N_keeps_the_coupled_value():
     # N = M_c/M_K = ρ/(ν M_K) (Rubinstein & Colby 2003, ch. 2 [memory]), shown to one decimal
     assert st.N_free == pytest.approx(poly.density / st.nu / poly.kuhn_molar_mass, abs=0.051)
     assert st.network().N_direct
+
+
+def test_mixed_upload_keeps_the_good_file_and_names_the_bad_one():
+    from types import SimpleNamespace
+
+    from app.main import create_app
+
+    page = create_app(load_samples=False)
+    dv = page.ns_data
+    good = b"stretch,stress (MPa)\n1,0\n1.5,0.4\n2,0.7\n2.5,0.9\n"
+    dv._on_upload(SimpleNamespace(new={"good.csv": good, "bad.csv": b"\x00\x01zz"}))
+    msg = page.ns_messages.texts()["upload"]
+    assert "bad.csv" in msg and "good.csv loaded" in msg
+    assert dv.state.selected == ["good.csv"]
+    assert dv.state.results  # the good file was fitted
