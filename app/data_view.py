@@ -16,7 +16,7 @@ from network_models import MODELS, MODES, get_model
 
 from .data_state import MAX_UPLOAD_BYTES, DataState
 from .messages import Messages, guarded
-from .plots import TOOLS, _style, empty_columns, set_visible_models
+from .plots import TOOLS, _style, empty_columns, model_lines, set_visible_models
 from .state import model_colour, sig
 from .ui import html
 
@@ -33,7 +33,7 @@ def _table_html(rows: list[dict], cls: str) -> str:
     return pd.DataFrame(rows).to_html(index=False, classes=f"ns-table {cls}", border=0, escape=True)
 
 
-def _fit_figure(mode: str):
+def _fit_figure(mode: str, initial=()):
     src = ColumnDataSource(empty_columns("lam"), name=f"ns-fit-{mode}")
     data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name=f"ns-fitdata-{mode}")
     res = ColumnDataSource({"x": [], "y": [], "color": [], "model": []}, name=f"ns-resid-{mode}")
@@ -42,9 +42,7 @@ def _fit_figure(mode: str):
                x_range=Range1d(1.0, 3.0))
     _style(p)
     p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.5, size=5.5, alpha=0.85)
-    r = {}
-    for name in MODELS:
-        r[name] = p.line("lam", name, source=src, color=model_colour(name), line_width=2.2)
+    r = model_lines(p, src, "lam", initial)
     q = figure(height=150, sizing_mode="stretch_width", tools=TOOLS, x_range=p.x_range,
                x_axis_label="stretch λ (1)", y_axis_label="model − data (MPa)", title="residuals")
     _style(q)
@@ -110,7 +108,7 @@ class DataView(pn.viewable.Viewer):
         self.to_explorer.on_click(lambda e: self._send_to_explorer())
 
         # results
-        self.figs = {m.value: _fit_figure(m.value) for m in MODES}
+        self.figs = {m.value: _fit_figure(m.value, initial=s.fit_models) for m in MODES}
         self.params_html = html("", css_classes=["ns-param-table"])
         self.xlink_html = html("", css_classes=["ns-crosslinks"])
         self.warn_html = html("", css_classes=["ns-fit-warnings"])

@@ -149,10 +149,10 @@ class ExplorerViews(pn.viewable.Viewer):
         self.state, self.controls, self.messages = state, controls, messages
         self.stress = {}
         for mode in MODES:
-            self.stress[mode.value] = stress_figure(mode.value, legend=False)
-        self.mooney, self.mooney_src, self.mooney_data, self.mooney_r = mooney_figure()
-        self.mod_nu, self.mod_nu_src, self.mod_nu_now, self.mod_nu_r = modulus_nu_figure()
-        self.mod_T, self.mod_T_src, self.mod_T_r = modulus_T_figure()
+            self.stress[mode.value] = stress_figure(mode.value, initial=state.models)
+        self.mooney, self.mooney_src, self.mooney_data, self.mooney_r = mooney_figure(initial=state.models)
+        self.mod_nu, self.mod_nu_src, self.mod_nu_now, self.mod_nu_r = modulus_nu_figure(initial=state.models)
+        self.mod_T, self.mod_T_src, self.mod_T_r = modulus_T_figure(initial=state.models)
         self.force, self.force_src, self.force_small = force_T_figure()
         self.legends = [html("", css_classes=["ns-legend"]) for _ in range(3)]
         self.limits = html("", sizing_mode="stretch_width", css_classes=["ns-limits"])

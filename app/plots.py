@@ -8,10 +8,10 @@ explicit colour (``state.MODEL_COLOURS``) and a legend entry.
 from __future__ import annotations
 
 import numpy as np
-from bokeh.models import ColumnDataSource, FixedTicker, HoverTool, Legend, LegendItem, Range1d
+from bokeh.models import ColumnDataSource, FixedTicker, HoverTool, Range1d
 from bokeh.plotting import figure
 
-from network_models import MODELS, get_model
+from network_models import MODELS
 
 from .state import model_colour
 
@@ -41,31 +41,39 @@ def empty_columns(xname: str, n: int = 2) -> dict:
     return cols
 
 
-def model_lines(p, source, xname: str, legend: bool, line_width=2.2, dash_for=None):
-    """One line per registered model, coloured, with a legend item each (outside, right)."""
-    renderers = {}
-    for name in MODELS:
-        r = p.line(xname, name, source=source, color=model_colour(name), line_width=line_width,
-                   line_dash="dashed" if dash_for and name in dash_for else "solid")
-        renderers[name] = r
-    if legend:
-        items = [LegendItem(label=get_model(n).title, renderers=[renderers[n]]) for n in MODELS]
-        lg = Legend(items=items, location="top_left", click_policy="hide", label_text_font_size="9pt",
-                    spacing=0, padding=4, background_fill_alpha=0.85, glyph_width=22)
-        p.add_layout(lg, "right")
-    return renderers
+class ModelLines(dict):
+    """name -> line renderer of one figure, created on first use: a session only pays for the models it
+    shows (a Bokeh renderer costs milliseconds to build; eleven per figure add up over ten figures)."""
+
+    def __init__(self, p, source, xname: str, line_width=2.2):
+        super().__init__()
+        self.p, self.source, self.xname, self.line_width = p, source, xname, line_width
+
+    def ensure(self, name: str):
+        if name not in self and name in MODELS:
+            self[name] = self.p.line(self.xname, name, source=self.source, color=model_colour(name),
+                                     line_width=self.line_width)
+        return self.get(name)
 
 
-def set_visible_models(renderers: dict, shown, legend_figure=None):
+def model_lines(p, source, xname: str, initial=(), line_width=2.2) -> ModelLines:
+    """Lines for the registered models, each in its own colour; ``initial`` are built now, others when
+    first shown (``set_visible_models``)."""
+    lines = ModelLines(p, source, xname, line_width)
+    for name in initial:
+        lines.ensure(name)
+    return lines
+
+
+def set_visible_models(renderers, shown, legend_figure=None):
+    if isinstance(renderers, ModelLines):
+        for name in shown:
+            renderers.ensure(name)
     for name, r in renderers.items():
         r.visible = name in shown
-    if legend_figure is not None:
-        for lg in legend_figure.legend:
-            for item in lg.items:
-                item.visible = any(r.visible for r in item.renderers)
 
 
-def stress_figure(mode: str, legend: bool, width=None, height=380):
+def stress_figure(mode: str, width=None, height=380, initial=()):
     """Nominal stress vs stretch in one mode: model lines, lock markers, data points."""
     src = ColumnDataSource(empty_columns("lam"), name=f"ns-stress-{mode}")
     locks = ColumnDataSource({"x": [], "y0": [], "y1": [], "color": [], "model": []}, name=f"ns-locks-{mode}")
@@ -76,7 +84,7 @@ def stress_figure(mode: str, legend: bool, width=None, height=380):
     if width:
         p.width = width
     _style(p)
-    r = model_lines(p, src, "lam", legend)
+    r = model_lines(p, src, "lam", initial)
     p.segment("x", "y0", "x", "y1", source=locks, color="color", line_dash="dotted", line_width=1.6)
     p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
     p.add_tools(HoverTool(tooltips=[("data", "@file"), ("λ", "@x{0.000}"), ("P (MPa)", "@y{0.000}")],
@@ -84,19 +92,19 @@ def stress_figure(mode: str, legend: bool, width=None, height=380):
     return p, src, locks, data, r
 
 
-def mooney_figure(height=380):
+def mooney_figure(height=380, initial=()):
     src = ColumnDataSource(empty_columns("inv_lam"), name="ns-mooney")
     data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name="ns-mooney-data")
     p = figure(title="Mooney plot (uniaxial)", height=height, sizing_mode="stretch_width", tools=TOOLS,
                x_axis_label="inverse stretch 1/λ (1)", y_axis_label="reduced stress σ* = P/(λ − λ⁻²) (MPa)",
                x_range=Range1d(0.0, 1.0))
     _style(p)
-    r = model_lines(p, src, "inv_lam", legend=False)
+    r = model_lines(p, src, "inv_lam", initial)
     p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
     return p, src, data, r
 
 
-def modulus_nu_figure(height=330):
+def modulus_nu_figure(height=330, initial=()):
     src = ColumnDataSource(empty_columns("nu"), name="ns-modulus-nu")
     now = ColumnDataSource({"x": [], "y": [], "color": []})
     p = figure(title="Small-strain shear modulus vs strand density", height=height, sizing_mode="stretch_width",
@@ -104,17 +112,17 @@ def modulus_nu_figure(height=330):
                y_axis_label="shear modulus G₀ (MPa)")
     _style(p)
     p.xaxis.ticker = FixedTicker(ticks=[1, 2, 5, 10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000])
-    r = model_lines(p, src, "nu", legend=False)
+    r = model_lines(p, src, "nu", initial)
     p.scatter("x", "y", source=now, color="color", size=8, marker="diamond")
     return p, src, now, r
 
 
-def modulus_T_figure(height=330):
+def modulus_T_figure(height=330, initial=()):
     src = ColumnDataSource(empty_columns("T_C"), name="ns-modulus-T")
     p = figure(title="Small-strain shear modulus vs temperature", height=height, sizing_mode="stretch_width",
                tools=TOOLS, x_axis_label="temperature T (°C)", y_axis_label="shear modulus G₀ (MPa)")
     _style(p)
-    r = model_lines(p, src, "T_C", legend=False)
+    r = model_lines(p, src, "T_C", initial)
     return p, src, r
 
 
