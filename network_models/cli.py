@@ -16,7 +16,7 @@ import sys
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "report", "serve")
 
 
-class UserError(Exception):
+class UserError(ValueError):
     """A problem with the user's input; the message says what is wrong and what to do."""
 
 
@@ -64,4 +64,8 @@ def main(argv=None) -> int:
 
 
 if __name__ == "__main__":
-    sys.exit(main())
+    # run the package's copy of main so that exception classes raised by sub-commands (which import
+    # network_models.cli) are the ones caught here, also under `python -m network_models.cli`
+    from network_models.cli import main as _main
+
+    sys.exit(_main())
