@@ -24,7 +24,7 @@ from .common import machine_info
 RESULTS = Path(__file__).with_name("results") / "latest.json"
 #: The quick run must finish within a minute: benchmarks that can stop early watch this budget (seconds
 #: from the start of the run, leaving room for interpreter start-up and printing).
-QUICK_BUDGET_S = 52.0
+QUICK_BUDGET_S = 48.0
 
 #: name -> (module, keys it reports)
 BENCHES = {
