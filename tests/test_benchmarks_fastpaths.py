@@ -312,3 +312,13 @@ def test_browser_benchmark_hooks_find_the_slider_and_the_plot():
     assert float(m["nu_after"]) - float(m["nu_before"]) == pytest.approx(1.0 + bench_app.WARMUP)
     (r,) = m["runs"]
     assert 0 <= r["sent"] <= r["change"] <= r["paint"] <= r["frame"]
+
+
+def test_browser_benchmark_skips_with_a_note_when_the_quick_budget_is_spent():
+    import time
+
+    from benchmarks import bench_app
+
+    out = bench_app.run(quick=True, deadline=time.monotonic() + 1.0)
+    assert out["slider_update_ms_median"] is None and out["slider_update_ms_p95"] is None
+    assert "budget" in out["notes"][0]
