@@ -248,15 +248,15 @@ def measure(url: str, moves: int, timeout_ms: float = 15000, deadline: float | N
 
 def run(quick: bool = False, deadline: float | None = None) -> dict:
     """``deadline`` (time.monotonic): stop early, reporting null with a note, when it passes."""
-    why = _unavailable()
-    if why:
-        return {"slider_update_ms_median": None, "slider_update_ms_p95": None, "notes": [why]}
-    moves = 20 if quick else 60
     if deadline is not None and deadline - time.monotonic() < MIN_BUDGET_S:
         left = max(0.0, deadline - time.monotonic())
         return {"slider_update_ms_median": None, "slider_update_ms_p95": None,
                 "notes": [f"skipped: only {left:.0f} s of the quick run's time budget were left (needs about "
                           f"{MIN_BUDGET_S:.0f} s); run the full benchmark (make bench) for this figure"]}
+    why = _unavailable()
+    if why:
+        return {"slider_update_ms_median": None, "slider_update_ms_p95": None, "notes": [why]}
+    moves = 20 if quick else 60
     t0 = time.perf_counter()
     start_timeout = 90.0 if deadline is None else max(1.0, deadline - time.monotonic())
     with app_server(timeout=start_timeout) as (url, log):
