@@ -470,14 +470,20 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
     res.crosslink_rows = [] if table is None else [r.to_dict() for r in table.rows]
     if table is not None:
         res.crosslink_notes = list(table.notes)
-        row = next((r for r in table.rows if r.key == "affine-no-entanglement"), None)
+        # like-for-like basis: a filled compound's filler reinforcement is taken out too (Guth–Gold)
+        row = next((r for r in table.rows if r.key == "affine-no-entanglement-no-filler"), None)
+        if row is not None:
+            basis = f"{BASIS}, filler removed (Guth–Gold, φ = {compound.filler_fraction:g})"
+        else:
+            row = next((r for r in table.rows if r.key == "affine-no-entanglement"), None)
+            basis = BASIS
         if row is not None and row.nu is not None and row.nu > 0:
             nu_ci = row.nu_ci or (None, None)
             mj_ci = row.junction_ci or (None, None)
             mc_ci = row.Mc_ci or (None, None)
-            Q["nu"] = Quantity("nu", "strand density ν", row.nu, "mol/m³", *nu_ci, basis=BASIS, note=row.assumes)
+            Q["nu"] = Quantity("nu", "strand density ν", row.nu, "mol/m³", *nu_ci, basis=basis, note=row.assumes)
             Q["mu_j"] = Quantity("mu_j", "junction (crosslink) density μ_j = 2ν/f", row.junction_density, "mol/m³",
-                                 *mj_ci, basis=f"{BASIS}, f = {f:g}")
+                                 *mj_ci, basis=f"{basis}, f = {f:g}")
             Q["Mc"] = Quantity("Mc", "strand molar mass M_c = ρ/ν", row.Mc, "kg/mol", *mc_ci,
                                basis=f"ρ = {poly.density:g} kg/m³ ({poly.key})", display_unit="g/mol",
                                display_scale=1000.0)
@@ -643,8 +649,10 @@ def compare(compounds: list[Compound], model="eight-chain", baseline: str | None
              "method); they cover the fit only, not specimen-to-specimen scatter. Swelling ranges are χ ± 0.05, "
              "not statistical."]
     if any(c.metadata.get("filler_phr") not in (None, 0, "0", "") for c in compounds):
-        notes.append("Filled compounds: the modulus carries filler reinforcement, so ν here is an upper estimate "
-                     "of the rubber's own strand density unless the filler is removed (see the crosslink table).")
+        notes.append("Filled compounds: ν is given with the filler reinforcement taken out by the Guth–Gold factor "
+                     "where the filler volume fraction is known; Guth–Gold holds for well-dispersed, weakly "
+                     "reinforcing filler at modest φ, so for carbon black treat ν as an estimate (see the crosslink "
+                     "table for the other assumptions).")
     return Comparison(model=m.name, results=results, baseline=baseline, service_temperature=float(Ts), notes=notes)
 
 

@@ -191,6 +191,10 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_ci=None, 
         rows.append(_row("affine-no-filler", f"affine, filler removed (φ = {filler_fraction:g})",
                          f"G/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); entanglements counted",
                          G / X, _map_ci(G_ci, lambda g: g / X), 1.0, T, f, rho, MK))
+        rows.append(_row("affine-no-entanglement-no-filler",
+                         f"affine, entanglement share and filler removed (φ = {filler_fraction:g})",
+                         f"(G − G_e)/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); {ge_txt}",
+                         Gc / X, _map_ci(Gc_ci, lambda g: g / X), 1.0, T, f, rho, MK))
     if Mn is not None:
         if not (Mn > 0):
             raise ValueError(f"primary-chain M_n must be positive; got {Mn!r}")

@@ -80,6 +80,11 @@ def test_filler_and_dangling_end_rows():
     t = from_modulus(0.6e6, "G", polymer="NR", T=T, filler_fraction=0.10, Mn=250.0)
     # Guth–Gold 1 + 2.5φ + 14.1φ² = 1.3910 at φ = 0.10 (physics.md §4 [derived])
     assert t.row("affine-no-filler").nu == pytest.approx(0.6e6 / 1.3910 / (R * T), rel=1e-4)
+    # both removed: the gum's crosslink part (G/X − G_e,gum) = νRT, with G_e,gum from the plateau modulus ∝ T
+    poly = get_polymer("NR")
+    Ge_gum = poly.plateau_modulus * T / poly.plateau_temperature
+    assert t.row("affine-no-entanglement-no-filler").nu == pytest.approx(
+        (0.6e6 / 1.3910 - Ge_gum) / (R * T), rel=1e-3)
     # Flory dangling ends: ν(1 − 2M_c/M_n)RT = G with M_c = ρ/ν (physics.md §3 [memory])
     row = t.row("affine-dangling-ends")
     rho = get_polymer("NR").density

@@ -109,7 +109,7 @@ def summary(cmp) -> str:
     lines = [f"Model: {m.title}; baseline {cmp.baseline}; "
              f"service temperature {cmp.service_temperature - 273.15:.1f} °C",
              "ν = strand density, μ_j = junction (crosslink) density = 2ν/f; basis: affine, entanglement part "
-             "removed; [95 % interval]", ""]
+             "removed (and filler, by Guth–Gold, where a filler fraction is given); [95 % interval]", ""]
     cols = (("G0", "G₀ (MPa)"), ("nu", "ν (mol/m³)"), ("mu_j", "μ_j (mol/m³)"), ("Mc", "M_c (g/mol)"),
             ("N", "N"), ("lock", "λ_lock uniaxial"), ("ent_share", "entanglement (%)"),
             ("G0_service", "G₀ at T_s (MPa)"), ("M100_measured", "M100 meas. (MPa)"),
