@@ -13,7 +13,7 @@ import os
 import sys
 
 #: sub-command modules, in the order ``--help`` lists them
-COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "report", "serve")
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "serve")
 
 
 class UserError(ValueError):

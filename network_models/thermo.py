@@ -17,18 +17,22 @@ def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, ex
     """Uniaxial force at a clamped length (Gaussian network), N (or Pa·m² units of ``area_ref``).
 
     ``clamp_stretch`` is the clamped length over the unstretched length at ``T_ref``; ``expansion`` the
-    volume expansion coefficient β (1/K).  With s = 1 + β(T − T_ref): the unstretched length scales as
-    s^(1/3), the stretch is λ = Λ/s^(1/3), the strand density per current volume falls as 1/s and the
-    cross-section grows as s^(2/3), so F = G_ref (T/T_ref) A_ref s^(−1/3) (λ − λ⁻²).  β = 0 gives F ∝ T.
+    volume expansion coefficient β (1/K).  With s = 1 + β(T − T_ref) the unstretched length L_i grows as
+    s^(1/3) and the stretch falls to λ = Λ/s^(1/3).  An ideal network (no energetic part, so the free-chain
+    size ⟨r²⟩₀ does not change with T) gives F = (νkT/V)(⟨r²⟩_i/⟨r²⟩₀)(V/L_i)(λ − λ⁻²) ∝ T·L_i·(λ − λ⁻²)
+    (Flory, Principles of Polymer Chemistry, ch. XI), so F = G_ref (T/T_ref) A_ref s^(1/3) (λ − λ⁻²).
+    β = 0 gives F ∝ T; for β > 0, −T·d ln(F/T)/dT = βT/(λ³ − 1), the constant-pressure term that
+    :func:`energetic_fraction` removes.
     """
     T = np.asarray(T, dtype=np.float64)
     s = 1.0 + expansion * (T - T_ref)
     lam = clamp_stretch / np.cbrt(s)
-    return modulus_ref * (T / T_ref) * area_ref * np.cbrt(s) ** -1 * (lam - lam**-2)
+    return modulus_ref * (T / T_ref) * area_ref * np.cbrt(s) * (lam - lam**-2)
 
 
 def inversion_strain(T, expansion):
-    """Clamped strain at which dF/dT = 0 at temperature T (small-strain Gaussian estimate ≈ βT/3 [derived])."""
+    """Clamped strain at which dF/dT = 0 at temperature T: λ³ − 1 = βT for the ideal network above, so
+    ε ≈ βT/3 at small strain [derived]."""
     from scipy.optimize import brentq
 
     def slope(eps):

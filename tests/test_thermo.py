@@ -45,6 +45,21 @@ def test_energetic_fraction_of_ideal_and_linear_records():
     assert corr.value == pytest.approx(-6.6e-4 * Tm / 7.0, rel=1e-12)
 
 
+def test_ideal_network_with_expansion_has_no_energetic_part():
+    # An ideal network clamped at fixed length and heated at constant pressure: the Flory–Ciferri–Hoeve
+    # correction −βT/(λ³ − 1) must remove exactly what thermal expansion does to F/T, leaving f_e/f = 0
+    # (Flory, Principles of Polymer Chemistry, ch. XI: F ∝ T·L_i·(λ − λ⁻²)).
+    beta = 6.6e-4
+    T = np.linspace(293.15, 298.15, 11)  # a narrow range: the correction is evaluated at the mean T
+    for lam in (1.5, 2.0, 3.0):
+        F = force_at_fixed_length(T, lam, 0.5e6, 295.65, area_ref=8e-6, expansion=beta)
+        ef = energetic_fraction(T, F, stretch=lam, expansion=beta)
+        assert abs(ef.value) < 2e-4
+    # and the inversion condition λ³ − 1 = βT [derived from the same relation]
+    eps = inversion_strain(298.15, beta)
+    assert (1 + eps) ** 3 - 1 == pytest.approx(beta * 298.15, rel=1e-6)
+
+
 def test_energetic_fraction_rejects_bad_records():
     with pytest.raises(ValueError, match="three"):
         energetic_fraction([300, 310], [1, 1], 2.0)
