@@ -14,7 +14,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from network_models import MODELS, MODES, Mode, ModeNotSupportedError, ParameterError, get_model
+from network_models import MODELS, MODES, Mode, Model, ModeNotSupportedError, ParameterError, get_model
 
 CASES = [(name, mode) for name, m in MODELS.items() for mode in m.modes]
 
@@ -166,3 +166,19 @@ def test_property_tension_stress_positive_and_increasing(name, mode, frac, lam):
     else:
         hi = m.stretch_range(mode, p)[1]
         assert lams[np.isnan(P)].min() >= hi * (1 - 1e-9)
+
+
+@pytest.mark.parametrize(("name", "mode"), CASES)
+def test_closed_form_lock_matches_the_numerical_lock(name, mode):
+    """The fast lock (I₁ limit by scalar Newton / closed form, or the largest principal stretch) against
+    bracketing + brentq on the model's own domain test, over the typical parameter range."""
+    m = get_model(name)
+    for frac in (0.0, 0.3, 0.7, 1.0):
+        p = typical_params(m, frac)
+        fast = m.stretch_range(mode, p)
+        if type(m)._margin is Model._margin:  # never locks: nothing numeric to compare
+            assert fast == (0.0, float("inf"))
+            continue
+        slow = m._stretch_range_numeric(Mode(mode), p)
+        assert fast[1] == pytest.approx(slow[1], rel=1e-12)
+        assert fast[0] == pytest.approx(slow[0], rel=1e-10, abs=1e-300)

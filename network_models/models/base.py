@@ -8,6 +8,8 @@ exception, never a warning).
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from scipy.optimize import brentq
 
@@ -17,6 +19,33 @@ from ..params import ParamSet
 
 class ModeNotSupportedError(ValueError):
     """The model has no expression for this test mode (e.g. a uniaxial-only Mooney-plot form)."""
+
+
+def _newton_monotone(f, df, x, tol=1e-15, max_iter=60):
+    """Scalar Newton iteration; the callers start on the side where it converges monotonically."""
+    for _ in range(max_iter):
+        step = f(x) / df(x)
+        x -= step
+        if abs(step) <= tol * abs(x):
+            break
+    return x
+
+
+def _I1_lock_stretches(mode: Mode, c: float) -> tuple[float, float]:
+    """Stretches at which I₁(λ) = c in the mode (c > 3): (lower, upper); the lower one only for uniaxial
+    compression.  Scalar Newton from starts where each branch is convex and the residual positive, so the
+    iteration is monotone (no bracketing needed); planar has a closed form."""
+    if not c > 3.0:
+        return 1.0, 1.0
+    if mode is Mode.UNIAXIAL:  # λ² + 2/λ = c
+        hi = _newton_monotone(lambda x: x * x + 2.0 / x - c, lambda x: 2.0 * x - 2.0 / (x * x), math.sqrt(c))
+        lo = _newton_monotone(lambda x: x * x + 2.0 / x - c, lambda x: 2.0 * x - 2.0 / (x * x), 2.0 / c)
+        return lo, hi
+    if mode is Mode.EQUIBIAXIAL:  # 2λ² + λ⁻⁴ = c
+        hi = _newton_monotone(lambda x: 2.0 * x * x + x**-4 - c, lambda x: 4.0 * x - 4.0 * x**-5, math.sqrt(c / 2.0))
+        return 0.0, hi
+    b = c - 1.0  # planar: λ² + 1 + λ⁻² = c  ⇒  u + 1/u = c − 1 with u = λ²
+    return 0.0, math.sqrt((b + math.sqrt(b * b - 4.0)) / 2.0)
 
 
 class Model:
@@ -160,10 +189,32 @@ class Model:
                 w = w + self._W_lam(l1, l2, l3, p)
         return np.where(valid, w, np.nan)
 
+    def _lock_I1(self, p) -> float | None:
+        """The value of I₁ at which the model locks, for models whose domain is I₁ < limit (eight-chain,
+        Gent, extended tube); None lets :meth:`stretch_range` find the lock numerically."""
+        return None
+
+    def _lock_stretch(self, p) -> float | None:
+        """The principal stretch at which the model locks, for models whose domain is max λᵢ < limit
+        (three-chain); None otherwise."""
+        return None
+
     def stretch_range(self, mode, params: dict | None = None, **kw) -> tuple[float, float]:
         """(lowest, highest) stretch the model allows in this mode; (0, inf) when it never locks."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
+        if type(self)._margin is Model._margin:
+            return 0.0, float("inf")  # the model never locks
+        c = self._lock_I1(p)
+        if c is not None:
+            return _I1_lock_stretches(mode, c)
+        lm = self._lock_stretch(p)
+        if lm is not None:  # locks when the largest principal stretch reaches lm
+            return (1.0 / (lm * lm) if mode is Mode.UNIAXIAL else 0.0), lm
+        return self._stretch_range_numeric(mode, p)
+
+    def _stretch_range_numeric(self, mode, p) -> tuple[float, float]:
+        """The lock found by bracketing and brentq on the model's own domain test (any model)."""
 
         def margin(x):
             l1, l2, l3, I1, _ = self._state(mode, np.array([x]))

@@ -43,6 +43,9 @@ class EightChain(Model):
     def _margin(self, l1, l2, l3, I1, p):
         return 3.0 * p["N"] - I1
 
+    def _lock_I1(self, p):
+        return 3.0 * p["N"]
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
         sn = np.sqrt(p["N"])
@@ -85,6 +88,9 @@ class ThreeChain(Model):
 
     def _margin(self, l1, l2, l3, I1, p):
         return np.sqrt(p["N"]) - np.maximum(np.maximum(l1, l2), l3)
+
+    def _lock_stretch(self, p):
+        return float(np.sqrt(p["N"]))
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)

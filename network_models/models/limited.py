@@ -31,6 +31,9 @@ class Gent(Model):
     def _margin(self, l1, l2, l3, I1, p):
         return p["Jm"] - (I1 - 3.0)
 
+    def _lock_I1(self, p):
+        return p["Jm"] + 3.0
+
     def small_strain_modulus(self, **params):
         return self.resolve(params)["G"]
 

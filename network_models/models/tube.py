@@ -147,6 +147,9 @@ class ExtendedTube(Model):
         d2 = p["delta"] ** 2
         return 1.0 - d2 * (I1 - 3.0)
 
+    def _lock_I1(self, p):
+        return 3.0 + 1.0 / p["delta"] ** 2 if p["delta"] > 0 else None
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
         d2 = p["delta"] ** 2
