@@ -81,7 +81,7 @@ def accuracy() -> dict:
 def throughput(quick: bool) -> dict:
     rng = np.random.default_rng(SEED)
     y = rng.uniform(0.0, 1.0, N_THROUGHPUT)
-    repeats = 7 if quick else 21
+    repeats = 15 if quick else 21
     t = interleaved_times({"ours": lambda: inverse_langevin(y), "cohen": lambda: cohen(y)}, repeats=repeats)
 
     n_sub = 2_000 if quick else 20_000
