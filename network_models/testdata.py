@@ -696,6 +696,18 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
     return curves
 
 
+
+def _column_converter(fn, col, dimension, example):
+    """The SI converter for a column's unit, or a DataError naming the file and column: no unit (with an
+    example header to write) or a unit of the wrong kind."""
+    if not col.unit:
+        raise DataError(f"{fn}: column {col.header!r} has no unit; write it in the header, e.g. {example}")
+    try:
+        return unit_converter(col.unit, dimension)
+    except UnitError as e:
+        raise DataError(f"{fn}: column {col.header!r}: {e}") from None
+
+
 def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, notices):
     """Stretch and nominal stress (Pa) for rows ``idx``; rows missing a number are counted and dropped."""
     xv = values[idx, x.index]
@@ -749,12 +761,7 @@ def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, noti
         lam = np.exp(eps)
         notices.append(f"column {x.header!r} is true (logarithmic) strain: converted with λ = exp(ε)")
     else:  # extension
-        if not x.unit:
-            raise DataError(f"{fn}: column {x.header!r} has no unit; write it in the header, e.g. 'extension (mm)'")
-        try:
-            conv = unit_converter(x.unit, "length")
-        except UnitError as e:
-            raise DataError(f"{fn}: column {x.header!r}: {e}") from None
+        conv = _column_converter(fn, x, "length", "'extension (mm)'")
         if gauge is None:
             raise DataError(f"{fn}: column {x.header!r} is an extension, which needs the gauge length; add a line "
                             "'# gauge length: 20 mm' to the file or give the gauge-length option")
@@ -774,25 +781,14 @@ def _convert(fn, x: _Column, y: _Column, values, idx, numbers, gauge, area, noti
 
     # ---- nominal stress
     if y.kind in ("stress", "true_stress"):
-        if not y.unit:
-            raise DataError(f"{fn}: column {y.header!r} has no unit; write it in the header, e.g. 'stress (MPa)', "
-                            "'stress [psi]' or 'stress (N/mm²)'")
-        try:
-            conv = unit_converter(y.unit, "pressure")
-        except UnitError as e:
-            raise DataError(f"{fn}: column {y.header!r}: {e}") from None
+        conv = _column_converter(fn, y, "pressure", "'stress (MPa)', 'stress [psi]' or 'stress (N/mm²)'")
         stress = conv(yv)
         if y.kind == "true_stress":
             stress = stress / lam
             notices.append(f"column {y.header!r} is true stress: converted to nominal stress P = σ/λ "
                            "(incompressible rubber)")
     else:
-        if not y.unit:
-            raise DataError(f"{fn}: column {y.header!r} has no unit; write it in the header, e.g. 'force (N)'")
-        try:
-            conv = unit_converter(y.unit, "force")
-        except UnitError as e:
-            raise DataError(f"{fn}: column {y.header!r}: {e}") from None
+        conv = _column_converter(fn, y, "force", "'force (N)'")
         if area is None:
             raise DataError(f"{fn}: column {y.header!r} is a force, which needs the specimen's cross-section; add "
                             "lines '# width: 4 mm' and '# thickness: 2 mm' (or '# area: 8 mm²') to the file, or "
