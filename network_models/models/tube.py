@@ -99,8 +99,10 @@ class SlipTube(Model):
 
 
 # Sign before the logarithm in the crosslink part of the extended tube model.  "+1" is the usual print of
-# Kaliske & Heinrich 1999 [memory: not re-read]; with it the small-strain modulus is G_c(1 − 2δ²) + G_e,
-# checked in tests by differentiating W numerically.
+# Kaliske & Heinrich 1999 (Rubber Chem. Technol. 72:602, doi 10.5254/1.3538822) — the paper itself was not
+# re-read here, but the same "+" form is what the open-source FElupe library documents for that reference.
+# With it the small-strain modulus of this W is exactly G_c(1 − 2δ²) + G_e (often quoted as G_c + G_e,
+# which holds to O(δ²)); tests check it by differentiating W numerically.
 EXTENDED_TUBE_LOG_SIGN = +1.0
 
 
@@ -120,7 +122,8 @@ class ExtendedTube(Model):
     ))
     equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
                 "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
-    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [memory: sign of the log term not re-read]",)
+    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (sign of the log term as usually printed; "
+                  "paper not re-read)",)
     assumption = "G_c crosslinks, G_e entanglements; δ sets the extensibility of crosslink strands"
 
     def _dW_dI(self, I1, I2, p):
