@@ -18,6 +18,7 @@ import io
 import math
 import re
 import tomllib
+import unicodedata
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -561,7 +562,11 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
 
     numeric = [c for c in cols if np.isfinite(values[:, c.index]).any()]
     if not numeric:
-        raise DataError(f"{fn}: no column holds numbers (headers: {', '.join(h for h in header if h) or 'none'}); "
+        shown = ", ".join(h for h in header if h)
+        if _looks_garbled(shown):
+            raise DataError(f"{fn}: this does not look like a text table (binary data, or a text encoding other "
+                            "than UTF-8/Latin-1); export the data from the test machine as CSV, TSV or .xlsx")
+        raise DataError(f"{fn}: no column holds numbers (headers: {shown or 'none'}); "
                         "the table needs a stretch/strain/extension column and a stress/force column")
     xs = [c for c in cols if c.kind in _X_KINDS]
     ys = [c for c in cols if c.kind in _Y_KINDS]
@@ -695,6 +700,18 @@ def _curves_from_table(table: _Table, source: str, opts: dict) -> list[TestCurve
         ))
     return curves
 
+
+
+
+def _looks_garbled(text: str) -> bool:
+    """True when more than a fifth of the characters are control characters or odd Latin-1 symbols — what
+    binary bytes look like after decoding — so a message does not echo them back."""
+    if not text:
+        return False
+    ok_extra = set("°²³µμλ·–—±×’‘“”€")
+    odd = sum(1 for ch in text
+              if (unicodedata.category(ch)[0] == "C") or (0x80 <= ord(ch) <= 0x2FF and ch not in ok_extra))
+    return odd > 0.2 * len(text)
 
 
 def _column_converter(fn, col, dimension, example):

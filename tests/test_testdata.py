@@ -560,3 +560,16 @@ def test_csv_writer_refuses_mixed_modes():
     b = TestCurve("planar", [1, 2, 3], [0, 1, 2])
     with pytest.raises(ValueError, match="separate files"):
         td.curves_to_csv([a, b])
+
+
+def test_binary_bytes_are_not_echoed_back(tmp_path):
+    # a binary file (here: a PNG signature and random bytes) gets a sentence, not its bytes in the message
+    rng = np.random.default_rng(3)
+    f = tmp_path / "scan.csv"
+    f.write_bytes(b"\x89PNG\r\n\x1a\n" + rng.integers(0, 256, 400, dtype=np.uint8).tobytes())
+    with pytest.raises(DataError) as exc:
+        read_curves(f)
+    msg = str(exc.value)
+    assert "scan.csv" in msg
+    assert "does not look like a text table" in msg or "binary" in msg or "encoding" in msg
+    assert "\x1a" not in msg
