@@ -341,14 +341,14 @@ _Y_KINDS = ("stress", "true_stress", "force")
 
 _KEYWORDS = [
     ("specimen", ("specimen", "sample", "test piece", "piece", "probe")),
-    ("true_stress", ("true stress", "cauchy stress", "true tensile stress")),
+    ("true_stress", ("true stress", "cauchy stress", "true tensile stress", "wahre spannung")),
     ("stretch", ("stretch", "lambda", "λ", "extension ratio", "draw ratio")),
-    ("stress", ("stress", "σ")),
+    ("stress", ("stress", "σ", "spannung")),
     ("true_strain", ("true strain", "logarithmic strain", "log strain", "hencky strain", "natural strain")),
     ("force", ("force", "load", "kraft")),
     ("strain", ("strain", "elongation", "ε", "dehnung")),
     ("extension", ("extension", "displacement", "crosshead", "travel", "deformation", "position", "elong",
-                   "distance")),
+                   "distance", "traverse", "weg")),
     ("time", ("time", "zeit")),
     ("temperature", ("temperature", "temp")),
 ]

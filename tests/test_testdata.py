@@ -573,3 +573,19 @@ def test_binary_bytes_are_not_echoed_back(tmp_path):
     assert "scan.csv" in msg
     assert "does not look like a text table" in msg or "binary" in msg or "encoding" in msg
     assert "\x1a" not in msg
+
+
+def test_german_machine_headers(tmp_path):
+    # German test-machine exports (decimal comma, semicolons): Dehnung = strain, Spannung = stress,
+    # Standardkraft = force, Traversenweg = crosshead travel [common practice in German-language labs]
+    f = tmp_path / "zugversuch.csv"
+    f.write_text("Dehnung (%);Spannung (MPa)\n0;0\n50;0,40\n100;0,65\n200;1,05\n", encoding="utf-8")
+    (c,) = read_curves(f)
+    np.testing.assert_allclose(c.stretch, [1.0, 1.5, 2.0, 3.0])
+    np.testing.assert_allclose(c.stress, [0.0, 0.40e6, 0.65e6, 1.05e6])
+    g = tmp_path / "kraft.csv"
+    g.write_text("# gauge length: 20 mm\n# width: 4 mm\n# thickness: 2 mm\n"
+                 "Traversenweg (mm);Standardkraft (N)\n0;0\n10;3,2\n20;5,2\n", encoding="utf-8")
+    (d,) = read_curves(g)
+    np.testing.assert_allclose(d.stretch, [1.0, 1.5, 2.0])
+    np.testing.assert_allclose(d.stress, [0.0, 3.2 / 8e-6, 5.2 / 8e-6])
