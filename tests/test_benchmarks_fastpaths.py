@@ -97,23 +97,25 @@ def test_cohen_baseline_is_cohens_pade():
 # ----- the naive per-point stress (slow reference for benchmarks 3 and 5) -------------------------------
 
 
+def _mp_stretches(mode, s):
+    """Principal stretches of the incompressible test modes (physics.md §2), in mpmath."""
+    if mode == "uniaxial":
+        return [s, 1 / mp.sqrt(s), 1 / mp.sqrt(s)]
+    if mode == "equibiaxial":
+        return [s, s, 1 / s**2]
+    return [s, mp.mpf(1), 1 / s]
+
+
 def _mp_energy_eight_chain(mode, lam, mu, N):
     """Arruda & Boyce 1993 (J. Mech. Phys. Solids 41:389) eight-chain energy, evaluated in mpmath."""
-    l1, l2, l3 = naive.stretches(mode, lam)  # plain floats are fine here: mpmath differentiates via lam
 
     def W(s):
-        if mode == "uniaxial":
-            a = [s, 1 / mp.sqrt(s), 1 / mp.sqrt(s)]
-        elif mode == "equibiaxial":
-            a = [s, s, 1 / s**2]
-        else:
-            a = [s, mp.mpf(1), 1 / s]
+        a = _mp_stretches(mode, s)
         I1 = sum(v * v for v in a)
         r = mp.sqrt(I1 / 3) / mp.sqrt(N)
         beta = mp.findroot(lambda b: mp.coth(b) - 1 / b - r, 3 * r / (1 - r * r))
         return mu * N * (r * beta + mp.log(beta / mp.sinh(beta)))
 
-    del l1, l2, l3
     return W
 
 
@@ -136,12 +138,7 @@ def test_naive_extended_tube_is_the_derivative_of_the_published_energy(mode):
     k = 2 if mode == "equibiaxial" else 1
 
     def W(s):
-        if mode == "uniaxial":
-            a = [s, 1 / mp.sqrt(s), 1 / mp.sqrt(s)]
-        elif mode == "equibiaxial":
-            a = [s, s, 1 / s**2]
-        else:
-            a = [s, mp.mpf(1), 1 / s]
+        a = _mp_stretches(mode, s)
         x = sum(v * v for v in a) - 3
         u = 1 - d**2 * x
         return Gc / 2 * ((1 - d**2) * x / u + mp.log(u)) + 2 * Ge / b**2 * sum(v**-b - 1 for v in a)
