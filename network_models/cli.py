@@ -12,12 +12,10 @@ import importlib
 import os
 import sys
 
+from .errors import UserError
+
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "serve")
-
-
-class UserError(ValueError):
-    """A problem with the user's input; the message says what is wrong and what to do."""
 
 
 def build_parser() -> argparse.ArgumentParser:

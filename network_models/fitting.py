@@ -52,6 +52,7 @@ from scipy import stats
 from scipy.optimize import brentq, least_squares
 
 from .deformation import MODES, Mode, principal_stretches
+from .errors import FitError
 from .models import Model, get_model
 from .models.base import Model as _BaseModel
 from .testdata import TestCurve
@@ -64,8 +65,6 @@ _LOCK_CANDIDATES = (1.3, 2.5, 8.0)  # start multiples of the locking threshold (
 _METHODS = ("lm", "trf")  # MINPACK Levenberg–Marquardt first (least overhead); trf if it fails
 
 
-class FitError(ValueError):
-    """The fit could not be done or did not converge; the message says why and what to try."""
 
 
 @dataclass(frozen=True)

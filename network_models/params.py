@@ -9,6 +9,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from .errors import ParameterError
+
 
 @dataclass(frozen=True)
 class Param:
@@ -58,8 +60,6 @@ class Param:
         return v
 
 
-class ParameterError(ValueError):
-    """A parameter value outside its declared domain; the message names parameter, value and range."""
 
 
 @dataclass(frozen=True)

@@ -26,6 +26,7 @@ from pathlib import Path
 import numpy as np
 
 from .deformation import Mode
+from .errors import DataError
 from .units import UnitError, parse_number, parse_quantity, split_header, unit_converter
 
 __all__ = [
@@ -47,8 +48,6 @@ _TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".dat", ".asc", ""}
 _EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
 
 
-class DataError(ValueError):
-    """A problem with a lab file; the message names the file, row or column and what to do."""
 
 
 @dataclass(eq=False)

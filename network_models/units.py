@@ -25,14 +25,14 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
+from .errors import UnitError
+
 __all__ = [
     "DIMENSIONS", "UnitError", "UnitConverter", "parse_quantity", "parse_number", "split_header",
     "unit_converter", "format_si",
 ]
 
 
-class UnitError(ValueError):
-    """A unit or quantity that cannot be read, or has the wrong dimension; the message says what to write."""
 
 
 #: dimension name -> (SI target unit for pint, example a user could write)

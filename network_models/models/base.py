@@ -14,11 +14,8 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..deformation import MODES, Mode, principal_stretches
+from ..errors import ModeNotSupportedError
 from ..params import ParamSet
-
-
-class ModeNotSupportedError(ValueError):
-    """The model has no expression for this test mode (e.g. a uniaxial-only Mooney-plot form)."""
 
 
 def _newton_monotone(f, df, x, tol=1e-15, max_iter=60):

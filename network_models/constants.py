@@ -1,0 +1,39 @@
+"""Physical constants and small statistical helpers used across the core — one definition of each.
+
+R and the Celsius offset come from ``scipy.constants`` (CODATA); nothing else in the core writes 273.15
+or 8.314 by hand.
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+from scipy import constants as _c
+
+#: molar gas constant, J/(mol·K) (scipy.constants, CODATA)
+R: float = _c.R
+#: 0 °C in kelvin (scipy.constants.zero_Celsius)
+ZERO_CELSIUS: float = _c.zero_Celsius
+#: the reference temperature a curve without one is assumed at: 23 °C (standard laboratory temperature,
+#: common practice)
+LAB_TEMPERATURE: float = ZERO_CELSIUS + 23.0
+
+
+def celsius(T_kelvin: float) -> float:
+    return T_kelvin - ZERO_CELSIUS
+
+
+def kelvin(T_celsius: float) -> float:
+    return T_celsius + ZERO_CELSIUS
+
+
+@lru_cache(maxsize=256)
+def t_quantile(dof: int, level: float = 0.95) -> float:
+    """Two-sided Student-t quantile for a ``level`` interval with ``dof`` degrees of freedom
+    (scipy.stats.t.ppf((1 + level)/2, dof)); dof < 1 is clipped to 1."""
+    from scipy import stats
+
+    return float(stats.t.ppf(0.5 + level / 2.0, max(int(dof), 1)))
+
+
+__all__ = ["R", "ZERO_CELSIUS", "LAB_TEMPERATURE", "celsius", "kelvin", "t_quantile"]
