@@ -20,19 +20,7 @@ from network_models.params import FUNCTIONALITY, STRAND_DENSITY, TEMPERATURE, ku
 from network_models.thermo import force_at_fixed_length, inversion_strain
 
 #: Our own colour per model (fixed, so a model keeps its colour in every plot and every session).
-MODEL_COLOURS = {
-    "affine": "#1f5f8b",
-    "phantom": "#7fb3d9",
-    "eight-chain": "#c0392b",
-    "non-affine-tube": "#2e8540",
-    "extended-tube": "#e08e0b",
-    "slip-tube": "#7b4fa0",
-    "neo-hookean": "#7a7a7a",
-    "mooney-rivlin": "#d4489a",
-    "gent": "#17a2a2",
-    "constrained-junction": "#8c5a2b",
-    "three-chain": "#9bbb2f",
-}
+MODEL_COLOURS = {m.name: m.colour for m in MODELS.values()}
 #: Colours for uploaded data sets (markers), cycled.
 DATA_COLOURS = ("#111111", "#4b5a66", "#0b2545", "#5a4632", "#2f4f4f", "#6b6b6b")
 

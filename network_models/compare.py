@@ -28,7 +28,7 @@ from scipy.constants import R
 from .compounds import Compound
 from .deformation import Mode
 from .models import ModeNotSupportedError, get_model
-from .network import get_polymer
+from .network import get_polymer, lock_from_N
 from .testdata import TestCurve
 
 log = logging.getLogger("netstretch.compare")
@@ -242,16 +242,10 @@ def split_modulus(model, values: dict, polymer: str, T: float) -> tuple[float, f
     Tube models and Mooney–Rivlin fit the entanglement part themselves (G_e, 2C₂); the others carry it
     inside their modulus, and the polymer table's plateau modulus (∝ T) is subtracted.
     """
-    name = model.name
-    G0 = model.small_strain_modulus(**values)
-    if "Gc" in values and "Ge" in values:
-        return values["Gc"], values["Ge"], "G_c and G_e fitted by the tube model"
-    if name == "mooney-rivlin":
-        return 2 * values["C1"], 2 * values["C2"], "2C₁ crosslink part, 2C₂ read as entanglement part"
-    if name == "phantom":
-        return G0, 0.0, "phantom modulus taken as crosslink part"
-    if name == "constrained-junction":
-        return G0, 0.0, "constrained-junction modulus taken as crosslink part"
+    split = model.modulus_split(values)
+    if split.separable:
+        return split.crosslink, split.entanglement, split.basis
+    G0 = split.total
     Ge = entanglement_modulus_table(polymer, T)
     return G0 - Ge, Ge, f"G_e = plateau modulus of {get_polymer(polymer).key} (polymer table, ∝ T) subtracted"
 
@@ -521,15 +515,14 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
     if lock is not None:
         Q["lock"] = Quantity("lock", "uniaxial locking stretch λ_lock", lock, "1", basis=f"{m.title} fit")
     elif "N" in Q:
-        em = get_model("eight-chain")
-        lock = em.stretch_limit("uniaxial", mu=1.0, N=max(Q["N"].value, 1.0 + 1e-6))
+        lock = lock_from_N(max(Q["N"].value, 1.0 + 1e-6), Mode.UNIAXIAL)
         Q["lock"] = Quantity("lock", "uniaxial locking stretch λ_lock", lock, "1",
                              basis="eight-chain locking with N above (the fitted model does not lock)")
     # entanglement share
     if G0 > 0:
         share = Ge / G0
         se_share = _propagate(lambda p: split_modulus(m, p, poly.key, T)[1] / m.small_strain_modulus(**p),
-                              res.params, cov) if "Ge" in values or m.name == "mooney-rivlin" else None
+                              res.params, cov) if m.modulus_split(values).separable else None
         lo, hi = _iv(share, se_share)
         Q["ent_share"] = Quantity("ent_share", "entanglement share G_e/G₀", share, "1", lo, hi, basis=how,
                                   display_unit="%", display_scale=100.0)

@@ -1039,9 +1039,7 @@ def _diagnose(result, m, data, values, locks, lb, ub, co, free_names, se_x, corr
         if mode not in result.modes:
             w.append(f"no {mode.value} data were fitted: {mode.value} predictions are extrapolations")
     # 5. stability: stress must rise with stretch in every supported mode
-    if m.name == "mooney-rivlin" and values.get("C2", 0.0) < 0:
-        w.append("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains and its "
-                 "equibiaxial prediction can fall with stretch; do not use it outside the tested range")
+    w.extend(m.stability_notes(values))
     top = max(3.0, math.ceil(3.0 * float(data.lam.max())) / 2.0)  # 1.5 × the largest stretch, rounded up
     grid, gdata = _grid(top, tuple(md.value for md in m.modes))
     P = _fast_evaluator(m, gdata)(values)  # NaN past the lock: those steps are skipped

@@ -209,11 +209,8 @@ class Network:
 
     # ----- extensibility ------------------------------------------------------------------------
     def locking_stretch(self, mode) -> float:
-        """Eight-chain locking stretch in tension: I₁(λ) = 3N."""
-        from .models import get_model
-
-        m = get_model("eight-chain")
-        return m.stretch_limit(mode, mu=1.0, N=self.N)
+        """Locking stretch in tension of a network with N Kuhn segments per strand (:func:`lock_from_N`)."""
+        return lock_from_N(self.N, mode)
 
     # ----- to models -----------------------------------------------------------------------------
     def model_params(self, model) -> dict[str, float]:
@@ -243,4 +240,12 @@ class Network:
         }
 
 
-__all__ = ["Network", "Polymer", "polymers", "get_polymer", "guth_gold", "BULK_MODULUS_TYPICAL", "Mode"]
+def lock_from_N(N: float, mode) -> float:
+    """The one place a network's locking stretch in tension comes from its N: the chain reaches full
+    extension when the eight-chain stretch √(I₁/3) equals √N, i.e. I₁(λ) = 3N (Arruda & Boyce 1993)."""
+    from .models import get_model
+
+    return get_model("eight-chain").stretch_limit(mode, mu=1.0, N=N)
+
+
+__all__ = ["lock_from_N", "Network", "Polymer", "polymers", "get_polymer", "guth_gold", "BULK_MODULUS_TYPICAL", "Mode"]

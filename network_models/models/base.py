@@ -9,6 +9,7 @@ exception, never a warning).
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 from scipy.optimize import brentq
@@ -16,6 +17,24 @@ from scipy.optimize import brentq
 from ..deformation import MODES, Mode, principal_stretches
 from ..errors import ModeNotSupportedError
 from ..params import ParamSet
+
+
+@dataclass(frozen=True)
+class ModulusSplit:
+    """How a model's fitted parameters read as network numbers (all moduli in Pa, at the fit's T).
+
+    ``total`` is the small-strain shear modulus G₀.  When the model itself separates a crosslink part
+    from an entanglement part (tube models: G_c and G_e; Mooney–Rivlin: 2C₁ and 2C₂ when C₂ ≥ 0),
+    ``separable`` is True and ``crosslink`` + ``entanglement`` = ``total``.  Otherwise both are None and
+    callers apply the one entanglement policy (:mod:`network_models.network`) to ``total``.
+    ``basis`` says in words how the split was made (shown to the user beside the number).
+    """
+
+    total: float
+    crosslink: float | None = None
+    entanglement: float | None = None
+    separable: bool = False
+    basis: str = ""
 
 
 def _newton_monotone(f, df, x, tol=1e-15, max_iter=60):
@@ -66,6 +85,8 @@ class Model:
     assumption: str = ""  # how the model's modulus maps to a network (read by crosslinks)
     has_invariant_part = True
     has_stretch_part = False
+    #: display colour (hex), the same in every plot and report; each registered model declares its own
+    colour: str = "#777777"
 
     # ----- parameters -------------------------------------------------------------------------
     def resolve(self, params: dict | None = None, **kw) -> dict[str, float]:
@@ -125,6 +146,18 @@ class Model:
     def guess(self, modulus: float) -> dict[str, float]:
         """Start values for a fit, from the data's small-strain shear modulus estimate (Pa)."""
         raise NotImplementedError
+
+    # ----- how fitted parameters read as network numbers ---------------------------------------
+    def modulus_split(self, values: dict) -> ModulusSplit:
+        """Crosslink and entanglement parts of the small-strain modulus, as far as the model separates
+        them (see :class:`ModulusSplit`).  The default: the model does not separate them."""
+        return ModulusSplit(total=float(self.small_strain_modulus(**values)), separable=False,
+                            basis=f"the {self.title} model does not separate crosslinks from entanglements")
+
+    def stability_notes(self, values: dict) -> list:
+        """Sentences (``errors.Notice`` of kind ``"unstable"``) when these parameter values make the model
+        unstable or unphysical somewhere (e.g. a negative Mooney–Rivlin C₂); empty when none."""
+        return []
 
     # ----- generic answers --------------------------------------------------------------------
     def _state(self, mode, lam):

@@ -12,6 +12,7 @@ from .base import Model
 
 class EightChain(Model):
     name = "eight-chain"
+    colour = "#c0392b"
     title = "Eight-chain (Arruda–Boyce)"
     family = "network (Langevin chains)"
     params = ParamSet((
@@ -60,6 +61,7 @@ class EightChain(Model):
 
 class ThreeChain(Model):
     name = "three-chain"
+    colour = "#9bbb2f"
     title = "Three-chain (Wang–Guth)"
     family = "network (Langevin chains)"
     has_invariant_part = False

@@ -5,12 +5,14 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..errors import Notice
 from ..params import FUNCTIONALITY, Param, ParamSet, shear_modulus_param
-from .base import Model
+from .base import Model, ModulusSplit
 
 
 class NeoHookean(Model):
     name = "neo-hookean"
+    colour = "#7a7a7a"
     title = "Neo-Hookean"
     family = "phenomenological"
     params = ParamSet((shear_modulus_param(),))
@@ -36,6 +38,7 @@ class NeoHookean(Model):
 
 class Affine(NeoHookean):
     name = "affine"
+    colour = "#1f5f8b"
     title = "Affine network"
     family = "network (Gaussian)"
     params = ParamSet((shear_modulus_param(meaning="affine network modulus νRT"),))
@@ -49,6 +52,7 @@ class Affine(NeoHookean):
 
 class Phantom(NeoHookean):
     name = "phantom"
+    colour = "#7fb3d9"
     title = "Phantom network"
     family = "network (Gaussian)"
     params = ParamSet((shear_modulus_param(meaning="phantom network modulus (1 − 2/f)νRT"),))
@@ -56,12 +60,18 @@ class Phantom(NeoHookean):
     references = ("James & Guth 1943, J. Chem. Phys. 11:455 — phantom network",)
     assumption = "junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j)"
 
+    def modulus_split(self, values):
+        G0 = float(self.small_strain_modulus(**values))
+        return ModulusSplit(total=G0, crosslink=G0, entanglement=0.0, separable=True,
+                            basis="phantom modulus taken as crosslink part (no entanglement term)")
+
     def from_network(self, network):
         return {"G": network.phantom_modulus}
 
 
 class MooneyRivlin(Model):
     name = "mooney-rivlin"
+    colour = "#d4489a"
     title = "Mooney–Rivlin"
     family = "phenomenological"
     params = ParamSet((
@@ -80,6 +90,22 @@ class MooneyRivlin(Model):
     def _W_inv(self, I1, I2, p):
         return p["C1"] * (I1 - 3.0) + p["C2"] * (I2 - 3.0)
 
+    def modulus_split(self, values):
+        G0 = float(self.small_strain_modulus(**values))
+        if values["C2"] < 0:
+            return ModulusSplit(total=G0, separable=False,
+                                basis="2C₂ is negative, so it cannot be read as an entanglement part")
+        return ModulusSplit(total=G0, crosslink=2.0 * values["C1"], entanglement=2.0 * values["C2"],
+                            separable=True, basis="2C₁ read as crosslink part, 2C₂ as entanglement part "
+                            "(the trade's reading of the Mooney plot)")
+
+    def stability_notes(self, values):
+        if values.get("C2", 0.0) < 0:
+            return [Notice("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains "
+                           "and its equibiaxial prediction can fall with stretch; do not use it outside the "
+                           "tested range", "unstable", self.name)]
+        return []
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
         return 2.0 * (p["C1"] + p["C2"])
@@ -93,6 +119,7 @@ class MooneyRivlin(Model):
 
 class ConstrainedJunction(Model):
     name = "constrained-junction"
+    colour = "#8c5a2b"
     title = "Constrained junction (Flory–Erman)"
     family = "network (Gaussian)"
     has_stretch_part = True
@@ -148,6 +175,11 @@ class ConstrainedJunction(Model):
         k = p["kappa"]
         # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴  [derived from the strain energy above]
         return p["G_ph"] + self._mu_j(p) * k * k * (k * k + 1.0) / (1.0 + k) ** 4
+
+    def modulus_split(self, values):
+        G0 = float(self.small_strain_modulus(**values))
+        return ModulusSplit(total=G0, crosslink=G0, entanglement=0.0, separable=True,
+                            basis="constrained-junction modulus taken as crosslink part (no entanglement term)")
 
     def from_network(self, network):
         return {"G_ph": network.phantom_modulus, "kappa": self.params["kappa"].default, "f": network.f}

@@ -10,6 +10,7 @@ from .base import Model
 
 class Gent(Model):
     name = "gent"
+    colour = "#17a2a2"
     title = "Gent"
     family = "phenomenological"
     params = ParamSet((

@@ -10,14 +10,23 @@ import numpy as np
 
 from ..deformation import Mode
 from ..params import Param, ParamSet, shear_modulus_param
-from .base import Model
+from .base import Model, ModulusSplit
 
 _GC = shear_modulus_param("Gc", "G_c", "crosslink modulus", 0.3e6)
 _GE = shear_modulus_param("Ge", "G_e", "entanglement (tube) modulus", 0.2e6)
 
 
+def _tube_split(model, values) -> ModulusSplit:
+    """Tube models fit the entanglement part themselves: G_e as fitted, the rest of G₀ is crosslinks."""
+    G0 = float(model.small_strain_modulus(**values))
+    Ge = float(values["Ge"])
+    return ModulusSplit(total=G0, crosslink=G0 - Ge, entanglement=Ge, separable=True,
+                        basis=f"G_e fitted by the {model.title} model; crosslink part = G₀ − G_e")
+
+
 class NonAffineTube(Model):
     name = "non-affine-tube"
+    colour = "#2e8540"
     title = "Non-affine tube"
     family = "tube"
     has_stretch_part = True
@@ -38,6 +47,9 @@ class NonAffineTube(Model):
     def _W_lam(self, l1, l2, l3, p):
         return p["Ge"] * (l1 + 1.0 / l1 + l2 + 1.0 / l2 + l3 + 1.0 / l3 - 6.0)
 
+    def modulus_split(self, values):
+        return _tube_split(self, values)
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]
@@ -55,6 +67,7 @@ _GL_X, _GL_W = np.polynomial.legendre.leggauss(48)
 
 class SlipTube(Model):
     name = "slip-tube"
+    colour = "#7b4fa0"
     title = "Slip-tube (Mooney-plot form)"
     family = "tube"
     params = ParamSet((_GC, _GE))
@@ -87,6 +100,9 @@ class SlipTube(Model):
             out = gc + ge
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
+    def modulus_split(self, values):
+        return _tube_split(self, values)
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]  # den(1) = 1
@@ -108,6 +124,7 @@ EXTENDED_TUBE_LOG_SIGN = +1.0
 
 class ExtendedTube(Model):
     name = "extended-tube"
+    colour = "#e08e0b"
     title = "Extended tube (Kaliske–Heinrich)"
     family = "tube"
     has_stretch_part = True
@@ -152,6 +169,9 @@ class ExtendedTube(Model):
 
     def _lock_I1(self, p):
         return 3.0 + 1.0 / p["delta"] ** 2 if p["delta"] > 0 else None
+
+    def modulus_split(self, values):
+        return _tube_split(self, values)
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
