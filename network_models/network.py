@@ -12,59 +12,15 @@ Both are called "crosslink density" in papers; every number this module reports 
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field, replace
-from functools import lru_cache
-from importlib import resources
 
 from scipy.constants import R
 
 from .deformation import MODES, Mode
+from .materials import Polymer, get_polymer, polymers  # the polymer table lives in materials.py
 
 #: Typical bulk modulus of an unfilled rubber, Pa [common practice: ~2 GPa for natural rubber gum].
 BULK_MODULUS_TYPICAL = 2.0e9
-
-
-@dataclass(frozen=True)
-class Polymer:
-    key: str
-    title: str
-    density: float  # kg/m³
-    monomer_molar_mass: float  # kg/mol
-    kuhn_molar_mass: float  # kg/mol
-    c_inf: float
-    kuhn_length: float  # m
-    plateau_modulus: float  # Pa, at plateau_temperature
-    plateau_temperature: float  # K
-    entanglement_molar_mass: float  # kg/mol
-    expansion: float  # 1/K, volume expansion coefficient
-    source: str
-    status: str  # "read" | "memory"
-
-
-@lru_cache(maxsize=1)
-def polymers() -> dict[str, Polymer]:
-    """The polymer table (``polymers.toml``), converted to SI."""
-    raw = tomllib.loads(resources.files(__package__).joinpath("polymers.toml").read_text("utf-8"))
-    out = {}
-    for key, r in raw.items():
-        out[key] = Polymer(
-            key=key, title=r["title"], density=r["density_kg_m3"],
-            monomer_molar_mass=r["monomer_g_mol"] / 1000.0, kuhn_molar_mass=r["kuhn_g_mol"] / 1000.0,
-            c_inf=r["c_inf"], kuhn_length=r["kuhn_length_nm"] * 1e-9,
-            plateau_modulus=r["plateau_MPa"] * 1e6, plateau_temperature=r["plateau_T_K"],
-            entanglement_molar_mass=r["entanglement_g_mol"] / 1000.0, expansion=r["expansion_1_K"],
-            source=r["source"], status=r["status"],
-        )
-    return out
-
-
-def get_polymer(key: str) -> Polymer:
-    table = polymers()
-    k = str(key).strip().upper()
-    if k not in table:
-        raise KeyError(f"unknown polymer {key!r}; the table has {', '.join(table)}")
-    return table[k]
 
 
 def guth_gold(phi: float) -> float:

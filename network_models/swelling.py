@@ -32,12 +32,15 @@ from importlib import resources
 
 from scipy.optimize import brentq
 
-from .network import get_polymer
+from .constants import LAB_TEMPERATURE, ZERO_CELSIUS, kelvin
+from .errors import Notice
+from .materials import get_polymer, user_chi_rows
 
 __all__ = [
-    "CHI_BAND", "FILLER_DENSITY_CARBON_BLACK", "KRAUS_C_CARBON_BLACK", "ChiValue", "Solvent", "SwellingEstimate",
-    "chi_values", "compare_with_modulus", "flory_rehner_nu", "from_record", "get_solvent", "kraus_gum_fraction",
-    "polymer_volume_fraction", "solvents", "swelling_estimate", "swollen_fraction",
+    "CHI_BAND", "CHI_STATUS_RANK", "CHI_TEMPERATURE_WINDOW", "FILLER_DENSITY_CARBON_BLACK", "KRAUS_C_CARBON_BLACK",
+    "ChiValue", "Solvent", "SwellingEstimate", "chi_values", "compare_with_modulus", "default_chi", "flory_rehner_nu",
+    "from_record", "get_solvent", "kraus_gum_fraction", "kraus_roots", "polymer_volume_fraction", "solvents",
+    "swelling_estimate", "swollen_fraction",
 ]
 
 CHI_BAND = 0.05
@@ -98,29 +101,45 @@ def get_solvent(key: str) -> Solvent:
 
 
 def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[ChiValue]:
-    """χ rows of the table, optionally for one polymer and/or solvent."""
+    """χ rows of the table (built-in rows, then any ``[[chi]]`` rows of the active user polymer table,
+    :mod:`network_models.materials`), optionally for one polymer and/or solvent."""
     rows = []
-    for r in _table()["chi"]:
+    for r in list(_table()["chi"]) + user_chi_rows():
         if polymer is not None and r["polymer"] != str(polymer).strip().upper():
             continue
-        if solvent is not None and r["solvent"] != get_solvent(solvent).key:
+        if solvent is not None and get_solvent(r["solvent"]).key != get_solvent(solvent).key:
             continue
-        rows.append(ChiValue(r["polymer"], r["solvent"], float(r["chi"]), r["temperature_C"] + 273.15,
-                             bool(r["default"]), r["status"], r["source"], r.get("note", "")))
+        rows.append(ChiValue(r["polymer"], get_solvent(r["solvent"]).key, float(r["chi"]),
+                             kelvin(r["temperature_C"]), bool(r["default"]), r["status"], r["source"],
+                             r.get("note", "")))
     return rows
 
 
-def default_chi(polymer: str, solvent: str) -> ChiValue:
+#: which χ row wins when the user gives none: rows measured within :data:`CHI_TEMPERATURE_WINDOW` of the
+#: swelling temperature first; among those the user's own rows, then rows read in a handbook or paper, then
+#: recalled ones, then solubility-parameter estimates; ``default = true`` only breaks ties within one rank.
+CHI_STATUS_RANK = {"user": 0, "handbook": 1, "read": 1, "memory": 2, "estimate": 3}
+CHI_TEMPERATURE_WINDOW = 30.0  # K
+
+
+def default_chi(polymer: str, solvent: str, T: float | None = None) -> ChiValue:
+    """The χ row used when the user gives none (rule: :data:`CHI_STATUS_RANK`): a sourced value beats a
+    recalled one, a recalled one beats an estimate, but a row measured far from the swelling temperature
+    ``T`` (K; default the lab's 23 °C) only serves when no row near it exists."""
     rows = chi_values(polymer, solvent)
     if not rows:
         raise KeyError(
             f"the solvent table has no χ for {polymer}–{get_solvent(solvent).key}; give χ yourself "
             "(--chi 0.4, or chi=0.4 from Python) from a source you trust"
         )
-    for r in rows:
-        if r.default:
-            return r
-    return rows[0]
+    T = LAB_TEMPERATURE if T is None else T
+
+    def rank(ir):
+        i, r = ir
+        far = not (abs(r.temperature - T) <= CHI_TEMPERATURE_WINDOW)
+        return (far, CHI_STATUS_RANK.get(r.status, 4), not r.default, i)
+
+    return min(enumerate(rows), key=rank)[1]
 
 
 # ------------------------------------------------------------------------------------------------
@@ -183,22 +202,56 @@ def swollen_fraction(nu: float, chi: float, V1: float, f: float = 4.0, network: 
     return brentq(g, lo, hi, xtol=1e-15, rtol=1e-14)
 
 
+def _kraus_residual(vr0, v_rf, q, c):
+    m = 3.0 * c * (1.0 - vr0 ** (1.0 / 3.0)) + vr0 - 1.0
+    return vr0 - v_rf * (1.0 - m * q)
+
+
+def kraus_roots(v_rf: float, filler_fraction: float, c: float = KRAUS_C_CARBON_BLACK) -> list[float]:
+    """Every root V_r0 in (0, 1) of Kraus's relation (see module doc), smallest first.
+
+    g(V_r0) = V_r0 − V_rf[1 − m(V_r0)·φ/(1 − φ)] is convex in V_r0 (g'' = (2/3)c·V_rf·q·V_r0^(−5/3) > 0 with
+    q = φ/(1 − φ)) [derived], so it has at most two roots, on either side of its minimum
+    V* = [c·V_rf·q/(1 + V_rf·q)]^(3/2) (from g' = 1 + V_rf·q(1 − c·V_r0^(−2/3)) = 0).  At φ ≥ 1/(3c) (≈ 0.285 for
+    c = 1.17) both ends of (0, 1) are positive and an end-point bracket finds nothing although a root may exist:
+    bracketing each side of the minimum finds both."""
+    q = filler_fraction / (1.0 - filler_fraction)
+    lo, hi = 1e-12, 1.0 - 1e-12
+    vq = v_rf * q
+    x_min = min(max((c * vq / (1.0 + vq)) ** 1.5, lo), hi)
+    g_min = _kraus_residual(x_min, v_rf, q, c)
+    roots = []
+    for a, b in ((lo, x_min), (x_min, hi)):
+        ga, gb = _kraus_residual(a, v_rf, q, c), _kraus_residual(b, v_rf, q, c)
+        if g_min == 0.0 and (a == x_min or b == x_min):
+            roots.append(x_min)
+        elif ga * gb < 0:
+            roots.append(brentq(_kraus_residual, a, b, args=(v_rf, q, c), xtol=1e-15, rtol=1e-14))
+    return sorted(set(roots))
+
+
 def kraus_gum_fraction(v_rf: float, filler_fraction: float, c: float = KRAUS_C_CARBON_BLACK) -> float:
-    """Kraus 1963 [memory]: the gum-equivalent rubber fraction V_r0 from the filled V_rf (see module doc)."""
+    """Kraus 1963 [memory]: the gum-equivalent rubber fraction V_r0 from the filled V_rf (see module doc).
+
+    Of the (at most two) roots of Kraus's relation the physical one is the one nearest the measured V_rf
+    (the other lies near V_r0 → 0, a gum that would dissolve); it is returned.  No root at all means the
+    measured swelling is too large for adhering filler at this loading and c: refused with a sentence."""
     if not (0 <= filler_fraction < 0.5):
         raise ValueError(f"filler volume fraction must be in [0, 0.5); got {filler_fraction!r}")
+    if not (0 < v_rf < 1):
+        raise ValueError(f"rubber volume fraction in the swollen gel must lie between 0 and 1; got {v_rf!r}")
+    if not (c > 0 and math.isfinite(c)):
+        raise ValueError(f"the Kraus filler–rubber constant c must be positive; got {c!r}")
     if filler_fraction == 0:
         return v_rf
-    q = filler_fraction / (1.0 - filler_fraction)
-
-    def g(vr0):
-        m = 3.0 * c * (1.0 - vr0 ** (1.0 / 3.0)) + vr0 - 1.0
-        return vr0 - v_rf * (1.0 - m * q)
-
-    lo, hi = 1e-9, 1.0 - 1e-12
-    if g(lo) * g(hi) > 0:
-        raise ValueError("the Kraus correction has no solution for these values; check the filler fraction and c")
-    return brentq(g, lo, hi, xtol=1e-15, rtol=1e-14)
+    roots = kraus_roots(v_rf, filler_fraction, c)
+    if not roots:
+        raise ValueError(
+            f"the Kraus correction has no solution for V_rf = {v_rf:.3f} at filler volume fraction "
+            f"{filler_fraction:g} with c = {c:g}: the filled sample swelled more than adhering filler allows. "
+            "Check the filler fraction (volume, not phr or mass) and c, or leave the filler out (no correction)"
+        )
+    return min(roots, key=lambda r: abs(r - v_rf))
 
 
 # ------------------------------------------------------------------------------------------------
@@ -292,9 +345,21 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         else:
             rubber_fraction = 1.0
     if chi is None:
-        cv = default_chi(poly.key, sol.key)
+        cv = default_chi(poly.key, sol.key, T)
         notes.append(f"χ = {cv.chi:g} from the solvent table [{cv.status}]: {cv.source}"
                      + (f" ({cv.note})" if cv.note else ""))
+        T_test = LAB_TEMPERATURE if T is None else T
+        if abs(cv.temperature - T_test) > CHI_TEMPERATURE_WINDOW:
+            notes.append(Notice(
+                f"the table's χ for {poly.key}–{sol.key} was measured at {cv.temperature - ZERO_CELSIUS:.0f} °C, "
+                f"far from the swelling test at {T_test - ZERO_CELSIUS:.0f} °C: χ changes with temperature, so give "
+                "χ for your temperature when you have it", kind="chi-temperature", subject=f"{poly.key}–{sol.key}"))
+        if cv.status in ("memory", "estimate"):
+            notes.append(Notice(
+                f"χ for {poly.key}–{sol.key} is "
+                + ("recalled, not re-read" if cv.status == "memory" else "a solubility-parameter estimate")
+                + ": the strand density is only as good as χ — check it before a decision rests on it",
+                kind="chi-unsourced", subject=f"{poly.key}–{sol.key}"))
     else:
         if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
             raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")

@@ -8,9 +8,24 @@ the force falls with temperature: the thermoelastic inversion.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
+
+from .errors import Notice
+
+
+def _check_temperatures(T, T_ref, allow_zero=True):
+    """Absolute temperatures: T ≥ 0 K (0 K allowed where the force line is drawn down to absolute zero,
+    ``allow_zero``), the reference T_ref > 0 K."""
+    bad = (T < 0) if allow_zero else (T <= 0)
+    if not np.all(np.isfinite(T)) or np.any(bad):
+        raise ValueError("temperatures must be absolute, in kelvin " + ("≥ 0 K" if allow_zero else "above 0 K")
+                         + "; convert °C by adding 273.15")
+    if not (math.isfinite(T_ref) and T_ref > 0):
+        raise ValueError(f"the reference temperature must be absolute, in kelvin above 0 K; got {T_ref!r} "
+                         "(a reference of 0 would divide by zero: give e.g. 296.15 for 23 °C)")
 
 
 def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, expansion=0.0):
@@ -25,6 +40,9 @@ def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, ex
     :func:`energetic_fraction` removes.
     """
     T = np.asarray(T, dtype=np.float64)
+    _check_temperatures(T, T_ref)
+    if not (np.isfinite(clamp_stretch) and clamp_stretch > 0):
+        raise ValueError(f"clamped stretch must be a positive number; got {clamp_stretch!r}")
     s = 1.0 + expansion * (T - T_ref)
     lam = clamp_stretch / np.cbrt(s)
     return modulus_ref * (T / T_ref) * area_ref * np.cbrt(s) * (lam - lam**-2)
@@ -40,9 +58,23 @@ def inversion_strain(T, expansion):
         f = force_at_fixed_length
         return f(T + h, 1 + eps, 1.0, T, expansion=expansion) - f(T - h, 1 + eps, 1.0, T, expansion=expansion)
 
-    if expansion <= 0:
+    _check_temperatures(np.asarray(T, dtype=np.float64), T, allow_zero=False)
+    if not (math.isfinite(expansion) and 0 <= expansion < 0.01):
+        raise ValueError(f"volume expansion coefficient β = {expansion!r} 1/K is implausible; rubbers have about "
+                         "6e-4 1/K")
+    if expansion == 0:
         return 0.0
     return brentq(slope, 1e-6, 1.0)
+
+
+#: below this λ³ − 1 the thermal-expansion correction βT/(λ³ − 1) dominates the energetic fraction
+#: (at λ³ − 1 = 0.5 it is ≈ 0.4 for β = 6.6e-4 1/K at 300 K, larger than f_e/f itself) [derived]
+CORRECTION_DOMINATES_BELOW = 0.5
+
+METHOD_CONSTANT_PRESSURE = ("measured at constant pressure and length, no thermal-expansion correction: "
+                            "−T·∂ln(F/T)/∂T at p, L (not the constant-volume energetic fraction)")
+METHOD_CONSTANT_VOLUME = ("constant-volume energetic fraction: the constant-pressure value minus βT/(λ³ − 1) "
+                          "(Flory, Ciferri & Hoeve 1960 [memory])")
 
 
 @dataclass(frozen=True)
@@ -53,25 +85,50 @@ class EnergeticFraction:
     stretch: float
     method: str
     n_points: int
+    basis: str = "constant pressure"  # "constant pressure" (uncorrected) or "constant volume" (corrected)
+    correction: float = 0.0  # βT/(λ³ − 1) subtracted from the constant-pressure value
+    notices: tuple = ()
 
     def as_dict(self):
-        return dict(self.__dict__)
+        d = dict(self.__dict__)
+        d["notices"] = list(self.notices)
+        return d
 
 
-def energetic_fraction(T, force, stretch, expansion=0.0):
-    """f_e/f from a force–temperature record at constant length and pressure.
+def _check_record(T, F, stretch, expansion):
+    if T.shape != F.shape or T.ndim != 1 or T.size < 3:
+        raise ValueError("need at least three (temperature, force) pairs of equal length")
+    if not (np.all(np.isfinite(T)) and np.all(np.isfinite(F))):
+        raise ValueError("the record has missing or non-numeric temperatures or forces; remove those rows")
+    if np.any(T <= 0):
+        raise ValueError(f"temperatures must be absolute (K, > 0); the record has {T.min():g} K — convert °C to "
+                         "kelvin (add 273.15)")
+    if np.any(F <= 0):
+        raise ValueError("forces must be positive (tension) for the force–temperature analysis")
+    if np.ptp(T) == 0:
+        raise ValueError("all temperatures are equal: the record needs a temperature range")
+    if not (isinstance(stretch, (int, float, np.floating)) and math.isfinite(stretch) and stretch > 1.0):
+        raise ValueError(f"the force–temperature analysis needs a stretched sample (λ > 1); got λ = {stretch!r}")
+    if not (isinstance(expansion, (int, float, np.floating)) and math.isfinite(expansion) and 0 <= expansion < 0.01):
+        raise ValueError(f"volume expansion coefficient β = {expansion!r} 1/K is implausible; rubbers have about "
+                         "6e-4 1/K (give 0 for no correction)")
 
-    f_e/f = −T·d ln(F/T)/dT − βT/(λ³ − 1)  (Flory, Ciferri & Hoeve 1960 [memory]), evaluated at the mean
-    temperature; the slope comes from a straight-line fit of ln(F/T) on T, with its standard error.
+
+def energetic_fraction(T, force, stretch, expansion=None):
+    """f_e/f from a force–temperature record at constant length and (atmospheric) pressure.
+
+    The record gives −T·∂ln(F/T)/∂T at constant **pressure** and length (evaluated at the mean temperature
+    from a straight-line fit of ln(F/T) on T, with its standard error).  With the volume expansion
+    coefficient β the **constant-volume** energetic fraction — the one that measures the energetic part of
+    the chains — follows as f_e/f = −T·∂ln(F/T)/∂T|_{p,L} − βT/(λ³ − 1) (Flory, Ciferri & Hoeve 1960
+    [memory]; physics.md §8).  ``expansion=None`` returns the uncorrected constant-pressure value.
+
+    For an ideal network with thermal expansion the constant-pressure value is βT/(λ³ − 1) and the
+    constant-volume value ≈ 0.  When λ³ − 1 < 0.5 the correction dominates the result: a notice says so.
     """
     T = np.asarray(T, dtype=np.float64)
     F = np.asarray(force, dtype=np.float64)
-    if T.shape != F.shape or T.size < 3:
-        raise ValueError("need at least three (temperature, force) pairs of equal length")
-    if np.any(T <= 0) or np.any(F <= 0):
-        raise ValueError("temperatures must be absolute (K, > 0) and forces positive (tension)")
-    if not stretch > 1.0:
-        raise ValueError("the force–temperature analysis needs a stretched sample (λ > 1)")
+    _check_record(T, F, stretch, 0.0 if expansion is None else expansion)
     y = np.log(F / T)
     A = np.vstack([T - T.mean(), np.ones_like(T)]).T
     coef, res, *_ = np.linalg.lstsq(A, y, rcond=None)
@@ -81,8 +138,17 @@ def energetic_fraction(T, force, stretch, expansion=0.0):
     s2 = float(resid @ resid) / dof
     se = np.sqrt(s2 / np.sum((T - T.mean()) ** 2))
     Tm = T.mean()
-    corr = expansion * Tm / (stretch**3 - 1.0)
+    notices = []
+    if expansion is None:
+        corr, basis, method = 0.0, "constant pressure", METHOD_CONSTANT_PRESSURE
+    else:
+        corr, basis, method = expansion * Tm / (stretch**3 - 1.0), "constant volume", METHOD_CONSTANT_VOLUME
+        if stretch**3 - 1.0 < CORRECTION_DOMINATES_BELOW:
+            notices.append(Notice(
+                f"clamped at λ = {stretch:g} (λ³ − 1 = {stretch**3 - 1:.3f} < {CORRECTION_DOMINATES_BELOW:g}): the "
+                f"thermal-expansion correction βT/(λ³ − 1) = {corr:.3f} dominates the result, so β and λ decide "
+                "it more than the forces do; measure at a larger stretch (λ ≥ 1.15)",
+                kind="correction-dominates", subject="thermo"))
     value = -Tm * slope - corr
-    return EnergeticFraction(float(value), float(Tm * se), float(slope), float(stretch),
-                             "constant pressure, Flory–Ciferri–Hoeve correction" if expansion else
-                             "constant volume (no expansion correction)", int(T.size))
+    return EnergeticFraction(float(value), float(Tm * se), float(slope), float(stretch), method, int(T.size),
+                             basis, float(corr), tuple(notices))

@@ -160,7 +160,8 @@ def test_swell_table_and_json(capsys):
     rows = {r["assumption"]: r for r in doc["rows"]}
     lo, hi = rows["affine"]["strand_density_band"]
     assert lo > rows["affine"]["strand_density"] > hi
-    assert doc["chi"]["band"] == pytest.approx([0.34, 0.44])
+    # default NR–toluene χ: the handbook row 0.36 (Orwoll & Arnold, Table 14.1) beats the recalled 0.39
+    assert doc["chi"]["band"] == pytest.approx([0.31, 0.41])
     assert rows["affine"]["junction_density"] == pytest.approx(rows["affine"]["strand_density"] / 2)
 
 

@@ -88,7 +88,8 @@ def test_every_model_maps_from_a_network():
 def test_polymer_table_rows_name_their_source():
     for key, p in polymers().items():
         assert p.source and p.status in {"read", "memory"}, key
-        assert 800 < p.density < 1300 and p.kuhn_molar_mass > p.monomer_molar_mass * 0.5
+        # fluoroelastomers reach ~1.9 g/cm³ [common practice]
+        assert 800 < p.density < 2200 and p.kuhn_molar_mass > p.monomer_molar_mass * 0.5
 
 
 def test_bad_network_inputs_are_sentences():

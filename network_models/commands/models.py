@@ -1,19 +1,43 @@
-"""``netstretch models``: the model registry with each model's declared parameters."""
+"""``netstretch models``: the model registry with each model's declared parameters; with
+``--list-polymers`` the polymer table in force (built-in rows plus any ``--polymers FILE``) with the source
+of every value."""
 
 from __future__ import annotations
 
 import json
 
+from ..materials import FIELDS, add_polymers_option, apply_polymers_option, polymer_listing
 from ..models import MODELS
 
 
 def add_parser(sub):
-    p = sub.add_parser("models", help="list the network models and their parameters")
+    p = sub.add_parser("models", help="list the network models and their parameters (or the polymer table)")
+    p.add_argument("--list-polymers", action="store_true",
+                   help="list the polymer table instead: every value with its unit and source")
+    add_polymers_option(p)
     p.add_argument("--json", action="store_true", help="print one JSON document")
     p.set_defaults(run=run)
 
 
+def _print_polymers():
+    for row in polymer_listing():
+        flag = {"read": "values read in the named sources", "user": f"your table {row['origin']}"}.get(
+            row["status"], "some values recalled or estimated: check before a design decision rests on them")
+        print(f"{row['key']:8s} {row['title']}  [{row['status']}: {flag}]")
+        for name, v in row["values"].items():
+            print(f"{'':10s}{name:19s} {v['value']:<10.4g} {FIELDS[name].unit:6s} {v['source']}")
+        if row["note"]:
+            print(f"{'':10s}note: {row['note']}")
+
+
 def run(args):
+    apply_polymers_option(args)
+    if args.list_polymers:
+        if args.json:
+            print(json.dumps({"polymers": polymer_listing()}, indent=2, ensure_ascii=False))
+        else:
+            _print_polymers()
+        return 0
     if args.json:
         print(json.dumps([m.describe() for m in MODELS.values()], indent=2, ensure_ascii=False))
         return 0

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import re
 
+from ..materials import add_polymers_option, apply_polymers_option
 from ..swelling import CHI_BAND, compare_with_modulus, solvents, swelling_estimate
 from .fit import CAUTION, json_document, quantity
 
@@ -35,6 +36,7 @@ def add_parser(sub):
                    help="filler volume fraction of the dry compound: applies the Kraus correction (default 0)")
     p.add_argument("--modulus", metavar="G", help="shear modulus with unit, e.g. 0.55MPa: show the modulus-based "
                                                  "strand density beside the swelling one")
+    add_polymers_option(p)
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
     p.set_defaults(run=run)
 
@@ -60,6 +62,7 @@ def _n(x, scale=1.0):
 
 
 def run(args):
+    apply_polymers_option(args)
     dry = _mass(args.dry, "--dry")
     swollen = _mass(args.swollen, "--swollen")
     extracted = _mass(args.extracted, "--extracted") if args.extracted else None

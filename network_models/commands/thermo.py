@@ -1,9 +1,10 @@
 """``netstretch thermo``: a force–temperature record at fixed length → how entropic the force is.
 
-For an ideal entropic network the force at fixed length is proportional to absolute temperature: the
-straight line through the points passes through zero kelvin.  The energetic fraction f_e/f says how far the
-record departs from that (constant volume), with the usual constant-pressure correction for thermal
-expansion when β is known.
+For an ideal entropic network the force at fixed length *and volume* is proportional to absolute
+temperature.  A lab record is taken at constant (atmospheric) pressure: the rubber expands on heating, so
+−T·∂ln(F/T)/∂T of the record is the constant-pressure value.  With the volume expansion coefficient β the
+Flory–Ciferri–Hoeve correction −βT/(λ³ − 1) gives the constant-volume energetic fraction f_e/f, which is
+≈ 0 for an ideal network.
 """
 
 from __future__ import annotations
@@ -12,7 +13,8 @@ import json
 
 import numpy as np
 
-from ..network import get_polymer
+from ..constants import celsius
+from ..materials import add_polymers_option, apply_polymers_option, get_polymer
 from ..testdata import read_force_temperature
 from ..thermo import energetic_fraction
 
@@ -25,6 +27,7 @@ def add_parser(sub):
                    help="take the volume expansion coefficient β from this polymer's table row")
     p.add_argument("--expansion", type=float, default=None,
                    help="volume expansion coefficient β in 1/K (wins over --polymer)")
+    add_polymers_option(p)
     p.add_argument("--json", action="store_true", help="print one JSON document")
     p.set_defaults(run=run)
 
@@ -32,8 +35,8 @@ def add_parser(sub):
 def analyse(rec, expansion):
     T, F = rec.temperature, rec.force
     slope, intercept = np.polyfit(T, F, 1)
-    ev = energetic_fraction(T, F, rec.stretch)
-    ep = energetic_fraction(T, F, rec.stretch, expansion=expansion) if expansion else None
+    ep = energetic_fraction(T, F, rec.stretch)
+    ev = energetic_fraction(T, F, rec.stretch, expansion=expansion) if expansion is not None else None
     return {
         "file": rec.source or rec.name,
         "stretch": rec.stretch,
@@ -41,15 +44,16 @@ def analyse(rec, expansion):
         "temperature_range_K": [float(T.min()), float(T.max())],
         "force_line": {"slope_N_per_K": float(slope), "intercept_at_0K_N": float(intercept),
                        "intercept_share_of_mean_force": float(intercept / F.mean())},
-        "energetic_fraction_constant_volume": {"value": ev.value, "stderr": ev.stderr,
-                                               "method": ev.method},
-        "energetic_fraction_constant_pressure": None if ep is None else
-        {"value": ep.value, "stderr": ep.stderr, "expansion_1_K": expansion, "method": ep.method},
-        "notices": list(rec.notices),
+        "energetic_fraction_constant_pressure": {"value": ep.value, "stderr": ep.stderr, "method": ep.method},
+        "energetic_fraction_constant_volume": None if ev is None else
+        {"value": ev.value, "stderr": ev.stderr, "expansion_1_K": expansion, "correction": ev.correction,
+         "method": ev.method},
+        "notices": list(rec.notices) + ([] if ev is None else list(ev.notices)),
     }
 
 
 def run(args):
+    apply_polymers_option(args)
     rec = read_force_temperature(args.file, stretch=args.stretch)
     beta = args.expansion
     if beta is None and args.polymer:
@@ -61,20 +65,22 @@ def run(args):
         print(json.dumps(out, indent=2, ensure_ascii=False))
         return 0
     fl = out["force_line"]
-    lo, hi = (t - 273.15 for t in out["temperature_range_K"])
+    lo, hi = (celsius(t) for t in out["temperature_range_K"])
     print(f"{out['file']}: {out['n_points']} points, {lo:.1f} … {hi:.1f} °C, clamped at λ = {rec.stretch:g}")
     print(f"  straight line F = a + bT: b = {fl['slope_N_per_K'] * 1000:.3f} mN/K, "
           f"a (force at 0 K) = {fl['intercept_at_0K_N']:.3f} N = {fl['intercept_share_of_mean_force'] * 100:.1f} % "
-          "of the mean force (0 % for a purely entropic network)")
-    ev = out["energetic_fraction_constant_volume"]
-    print(f"  energetic fraction f_e/f = {ev['value']:.3f} ± {ev['stderr']:.3f}  "
-          "(−T·d ln(F/T)/dT, no thermal-expansion correction)")
+          "of the mean force")
     ep = out["energetic_fraction_constant_pressure"]
-    if ep:
-        print(f"  corrected for constant pressure (β = {ep['expansion_1_K']:.3g} 1/K): f_e/f = {ep['value']:.3f} "
-              f"± {ep['stderr']:.3f}  (Flory–Ciferri–Hoeve correction −βT/(λ³ − 1) [from memory])")
+    print(f"  at constant pressure (as measured, uncorrected): −T·∂ln(F/T)/∂T = {ep['value']:.3f} ± "
+          f"{ep['stderr']:.3f}  (includes thermal expansion; not the energetic fraction of the chains)")
+    ev = out["energetic_fraction_constant_volume"]
+    if ev:
+        print(f"  energetic fraction at constant volume f_e/f = {ev['value']:.3f} ± {ev['stderr']:.3f}  "
+              f"(β = {ev['expansion_1_K']:.3g} 1/K; Flory–Ciferri–Hoeve correction −βT/(λ³ − 1) = "
+              f"−{ev['correction']:.3f} [from memory]; ≈ 0 for an ideal entropic network)")
     else:
-        print("  give --polymer or --expansion to apply the constant-pressure correction for thermal expansion")
+        print("  give --polymer or --expansion for the constant-volume energetic fraction (thermal-expansion "
+              "correction)")
     for n in out["notices"]:
         print(f"  note: {n}")
     print("Caution: model results support design decisions; they do not replace validation testing of parts.")

@@ -1,0 +1,313 @@
+"""The polymer table: chain constants per polymer, each value with its source — as data, not code.
+
+The built-in table is ``polymers.toml`` beside this module.  A compounder's own constants live in a TOML
+file with the same schema; its rows override (field by field) or extend the built-in rows:
+
+    >>> from network_models.materials import use_polymer_table, get_polymer
+    >>> use_polymer_table("our_polymers.toml")        # or NETSTRETCH_POLYMERS=our_polymers.toml
+    >>> get_polymer("NBR-33").plateau_modulus          # Pa
+
+A user file looks like the built-in one (units in the key names)::
+
+    [NBR-33]                      # override: only the fields given change; source is required
+    plateau_MPa = 0.62
+    source = "in-house relaxation test, report 2024-17"
+
+    [OURFKM]                      # a new row: every numeric field, title and source are required
+    title = "peroxide-cure FKM, 70 % F"
+    density_kg_m3 = 1890.0
+    ...
+
+    [[chi]]                       # optional in-house χ rows for swelling (network_models.swelling)
+    polymer = "OURFKM"
+    solvent = "2-butanone"
+    chi = 0.30
+    temperature_C = 23.0
+    source = "in-house swelling series"
+
+A mistake in the file is refused with a sentence naming the file, the row and the field.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import tomllib
+from dataclasses import dataclass, field
+from functools import lru_cache
+from importlib import resources
+from pathlib import Path
+
+from .errors import DataError
+
+__all__ = [
+    "ENV_VAR", "FIELDS", "Polymer", "UserTable", "active_polymer_table", "add_polymers_option",
+    "apply_polymers_option", "builtin_polymers", "get_polymer", "load_polymer_table", "polymer_listing",
+    "polymers", "use_polymer_table", "user_chi_rows",
+]
+
+#: environment variable naming a user polymer table (used when :func:`use_polymer_table` was not called)
+ENV_VAR = "NETSTRETCH_POLYMERS"
+
+
+@dataclass(frozen=True)
+class _Field:
+    attr: str  # attribute of Polymer
+    scale: float  # TOML value × scale = SI value
+    low: float  # sane range in the TOML unit [common practice: the span of rubbers and their solvents]
+    high: float
+    unit: str
+    meaning: str
+
+
+#: numeric columns of the table: TOML key → attribute, SI factor, sane range (TOML unit) and meaning.
+#: The ranges are sanity limits for rubbers [common practice], not physical laws: a value outside is
+#: almost always a unit slip (g/cm³ for kg/m³, kg/mol for g/mol, linear for volume expansion …).
+FIELDS: dict[str, _Field] = {
+    "density_kg_m3": _Field("density", 1.0, 800.0, 2200.0, "kg/m³", "density of the gum polymer near 25 °C"),
+    "monomer_g_mol": _Field("monomer_molar_mass", 1e-3, 10.0, 1000.0, "g/mol", "repeat-unit molar mass"),
+    "kuhn_g_mol": _Field("kuhn_molar_mass", 1e-3, 20.0, 5000.0, "g/mol", "molar mass of one Kuhn segment M_K"),
+    "c_inf": _Field("c_inf", 1.0, 1.5, 30.0, "1", "characteristic ratio C∞"),
+    "kuhn_length_nm": _Field("kuhn_length", 1e-9, 0.1, 5.0, "nm", "Kuhn length b"),
+    "plateau_MPa": _Field("plateau_modulus", 1e6, 0.01, 10.0, "MPa", "plateau modulus G_N⁰ of the melt"),
+    "plateau_T_K": _Field("plateau_temperature", 1.0, 150.0, 600.0, "K", "temperature of the plateau modulus"),
+    "entanglement_g_mol": _Field("entanglement_molar_mass", 1e-3, 200.0, 1e5, "g/mol",
+                                 "entanglement molar mass M_e"),
+    "expansion_1_K": _Field("expansion", 1.0, 1e-4, 2e-3, "1/K", "volume expansion coefficient β"),
+}
+_TEXT = {"title", "source", "status", "note", "sources"}
+_STATUS = {"read", "memory", "user"}
+
+
+@dataclass(frozen=True)
+class Polymer:
+    key: str
+    title: str
+    density: float  # kg/m³
+    monomer_molar_mass: float  # kg/mol
+    kuhn_molar_mass: float  # kg/mol
+    c_inf: float
+    kuhn_length: float  # m
+    plateau_modulus: float  # Pa, at plateau_temperature
+    plateau_temperature: float  # K
+    entanglement_molar_mass: float  # kg/mol
+    expansion: float  # 1/K, volume expansion coefficient
+    source: str
+    status: str  # "read" (every value read in the source) | "memory" (some recalled) | "user" (user table)
+    #: per-value sources, (TOML key, "citation [read|memory|derived|estimate]") pairs
+    sources: tuple[tuple[str, str], ...] = ()
+    note: str = ""
+    origin: str = "built-in"  # "built-in" or the user table's path
+
+    def value_source(self, key: str) -> str:
+        """Where the value of TOML column ``key`` (e.g. ``"plateau_MPa"``) comes from."""
+        return dict(self.sources).get(key, self.source)
+
+
+# ---- reading and checking rows ------------------------------------------------------------------
+def _fail(origin: str, msg: str, row: str | None = None, fld: str | None = None, fix: str | None = None):
+    where = f"polymer table {origin}" + (f", row [{row}]" if row else "") + (f", field '{fld}'" if fld else "")
+    raise DataError(f"{where}: {msg}", file=origin, column=fld, fix=fix, kind="polymer-table", row=row)
+
+
+def _number(origin, key, name, v):
+    spec = FIELDS[name]
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+        _fail(origin, f"{v!r} is not a number; write it in {spec.unit} ({spec.meaning})", key, name)
+    if not (spec.low <= v <= spec.high):
+        _fail(origin, f"{v:g} {spec.unit} is outside the sane range {spec.low:g}–{spec.high:g} {spec.unit} for "
+                      f"{spec.meaning}; check the unit", key, name)
+    return float(v)
+
+
+def _row(key: str, r, origin: str, base: Polymer | None) -> Polymer:
+    if not isinstance(r, dict):
+        _fail(origin, "is not a table; write it as [KEY] followed by 'name = value' lines", key)
+    unknown = sorted(set(r) - set(FIELDS) - _TEXT)
+    if unknown:
+        known = ", ".join(list(FIELDS) + sorted(_TEXT))
+        _fail(origin, f"unknown field(s) {', '.join(unknown)}; the fields are {known}", key, unknown[0])
+    for t in ("title", "source", "status", "note"):
+        if t in r and not (isinstance(r[t], str) and (r[t].strip() or t == "note")):
+            _fail(origin, "must be non-empty text in quotes", key, t)
+    if not r.get("source"):
+        _fail(origin, "every row must name its source (source = \"…\"): where the values come from", key, "source")
+    status = r.get("status", "user" if origin != "built-in" else None)
+    if status not in _STATUS:
+        _fail(origin, f"status must be one of {', '.join(sorted(_STATUS))}; got {status!r}", key, "status")
+    srcs = r.get("sources", {})
+    if not isinstance(srcs, dict) or any(k not in FIELDS or not isinstance(v, str) for k, v in srcs.items()):
+        _fail(origin, "must map numeric field names to source text, e.g. sources.plateau_MPa = \"…\"", key, "sources")
+    values = {}
+    for name, spec in FIELDS.items():
+        if name in r:
+            values[spec.attr] = _number(origin, key, name, r[name]) * spec.scale
+        elif base is not None:
+            values[spec.attr] = getattr(base, spec.attr)
+        else:
+            _fail(origin, f"is missing ({spec.meaning}, {spec.unit}); a new polymer needs every numeric field",
+                  key, name)
+    if base is None and not r.get("title"):
+        _fail(origin, "a new polymer needs a title", key, "title")
+    if base is not None:  # inherited values keep their built-in sources; given ones take this row's source
+        merged = {k: base.value_source(k) for k in FIELDS if k not in r}
+        merged.update({k: r["source"] for k in FIELDS if k in r})
+        merged.update(srcs)
+        srcs = merged
+    return Polymer(key=key, title=r.get("title", base.title if base else ""), source=r["source"], status=status,
+                   sources=tuple(sorted(srcs.items())), note=r.get("note", ""), origin=origin, **values)
+
+
+def _parse(text: str, origin: str) -> dict:
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise DataError(f"polymer table {origin} is not valid TOML ({exc}); rows look like [KEY] followed by "
+                        "'density_kg_m3 = 910.0' lines", file=origin, kind="polymer-table") from None
+
+
+def _key(k) -> str:
+    return str(k).strip().upper()
+
+
+@lru_cache(maxsize=1)
+def builtin_polymers() -> dict[str, Polymer]:
+    """The built-in table (``polymers.toml``), converted to SI."""
+    raw = _parse(resources.files(__package__).joinpath("polymers.toml").read_text("utf-8"), "built-in")
+    return {_key(k): _row(_key(k), r, "built-in", None) for k, r in raw.items()}
+
+
+# ---- user tables ----------------------------------------------------------------------------------
+@dataclass(frozen=True)
+class UserTable:
+    path: str
+    polymers: dict[str, Polymer]
+    chi: list[dict] = field(default_factory=list)  # raw χ rows, checked, status "user" unless given
+
+
+def _chi_rows(rows, origin: str) -> list[dict]:
+    if not isinstance(rows, list):
+        _fail(origin, "χ rows must be written as [[chi]] blocks", "chi")
+    out = []
+    for i, r in enumerate(rows, start=1):
+        tag = f"chi #{i}"
+        if not isinstance(r, dict):
+            _fail(origin, "must be a [[chi]] block", tag)
+        for t in ("polymer", "solvent", "source"):
+            if not (isinstance(r.get(t), str) and r[t].strip()):
+                _fail(origin, "is missing (text in quotes)", tag, t)
+        chi = r.get("chi")
+        if isinstance(chi, bool) or not isinstance(chi, (int, float)) or not (0.0 <= chi < 1.5):
+            _fail(origin, f"χ must be a number between 0 and 1.5; got {chi!r}", tag, "chi")
+        t = r.get("temperature_C", 25.0)
+        if isinstance(t, bool) or not isinstance(t, (int, float)) or not (-100 <= t <= 300):
+            _fail(origin, f"temperature must be in °C between −100 and 300; got {t!r}", tag, "temperature_C")
+        out.append({"polymer": _key(r["polymer"]), "solvent": r["solvent"].strip(), "chi": float(chi),
+                    "temperature_C": float(t), "default": bool(r.get("default", True)),
+                    "status": r.get("status", "user"), "source": r["source"], "note": r.get("note", "")})
+    return out
+
+
+def load_polymer_table(path) -> UserTable:
+    """Read and check a user polymer table (TOML, same schema as the built-in one).  Rows whose key is in
+    the built-in table override it field by field; new keys need every field.  Raises :class:`DataError`
+    naming the file, row and field for anything wrong."""
+    p = Path(path)
+    origin = str(p)
+    try:
+        text = p.read_text("utf-8")
+    except FileNotFoundError:
+        raise DataError(f"polymer table {origin} not found; check the path given with --polymers or "
+                        f"{ENV_VAR}", file=origin, kind="polymer-table") from None
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DataError(f"polymer table {origin} cannot be read as UTF-8 text ({exc})", file=origin,
+                        kind="polymer-table") from None
+    raw = _parse(text, origin)
+    chi = _chi_rows(raw.pop("chi"), origin) if "chi" in raw else []
+    base = builtin_polymers()
+    rows = {_key(k): _row(_key(k), r, origin, base.get(_key(k))) for k, r in raw.items()}
+    from .swelling import get_solvent  # here, not at the top: swelling imports this module
+
+    for i, r in enumerate(chi, start=1):
+        if r["polymer"] not in rows and r["polymer"] not in base:
+            _fail(origin, f"polymer {r['polymer']!r} is neither in this file nor in the built-in table", f"chi #{i}",
+                  "polymer")
+        try:
+            get_solvent(r["solvent"])
+        except KeyError as exc:
+            _fail(origin, str(exc.args[0]), f"chi #{i}", "solvent")
+    return UserTable(origin, rows, chi)
+
+
+_UNSET = object()
+_active: object = _UNSET
+
+
+def use_polymer_table(path) -> UserTable | None:
+    """Make a user table active for this process (``None``: built-in table only, ignoring the environment
+    variable).  The file is checked at once; a bad file leaves the previous table active."""
+    global _active
+    table = None if path is None else load_polymer_table(path)
+    _active = table
+    polymers.cache_clear()
+    return table
+
+
+def active_polymer_table() -> UserTable | None:
+    """The user table in force: the one given to :func:`use_polymer_table`, else ``$NETSTRETCH_POLYMERS``."""
+    global _active
+    if _active is _UNSET:
+        env = os.environ.get(ENV_VAR, "").strip()
+        _active = load_polymer_table(env) if env else None
+    return _active
+
+
+@lru_cache(maxsize=1)
+def polymers() -> dict[str, Polymer]:
+    """The polymer table in force (built-in rows, overridden and extended by the active user table), SI."""
+    out = dict(builtin_polymers())
+    user = active_polymer_table()
+    if user is not None:
+        out.update(user.polymers)
+    return out
+
+
+def get_polymer(key: str) -> Polymer:
+    table = polymers()
+    k = _key(key)
+    if k not in table:
+        raise KeyError(f"unknown polymer {key!r}; the table has {', '.join(table)} "
+                       f"(add your own with --polymers FILE or {ENV_VAR})")
+    return table[k]
+
+
+def user_chi_rows() -> list[dict]:
+    """χ rows of the active user table (empty without one)."""
+    user = active_polymer_table()
+    return [] if user is None else list(user.chi)
+
+
+def polymer_listing() -> list[dict]:
+    """Every row of the table in force with each value in table units and its source (for listings)."""
+    out = []
+    for p in polymers().values():
+        vals = {name: {"value": getattr(p, spec.attr) / spec.scale, "unit": spec.unit, "meaning": spec.meaning,
+                       "source": p.value_source(name)} for name, spec in FIELDS.items()}
+        out.append({"key": p.key, "title": p.title, "status": p.status, "source": p.source, "note": p.note,
+                    "origin": p.origin, "values": vals})
+    return out
+
+
+# ---- command-line helpers -------------------------------------------------------------------------
+def add_polymers_option(parser) -> None:
+    """Add ``--polymers FILE`` to an argparse (sub)parser; call :func:`apply_polymers_option` in its run."""
+    parser.add_argument("--polymers", metavar="FILE", default=None,
+                        help=f"your own polymer table (TOML, same fields as the built-in one; its rows override "
+                             f"or extend the built-in rows; also ${ENV_VAR})")
+
+
+def apply_polymers_option(args) -> None:
+    """Activate the table given with ``--polymers`` (no-op without the option)."""
+    path = getattr(args, "polymers", None)
+    if path:
+        use_polymer_table(path)
