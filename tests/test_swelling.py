@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import mpmath as mp
 import pytest
 
 from network_models.network import get_polymer
@@ -11,6 +12,7 @@ from network_models.swelling import (
     flory_rehner_nu,
     get_solvent,
     kraus_gum_fraction,
+    kraus_roots,
     polymer_volume_fraction,
     solvents,
     swelling_estimate,
@@ -110,7 +112,9 @@ def test_swelling_estimate_and_band():
     phi = (0.96e-3 / rho_p) / (0.96e-3 / rho_p + (3.2e-3 - 0.96e-3) / rho_s)
     assert r.phi == pytest.approx(phi)
     assert r.soluble_fraction == pytest.approx(0.04)
-    assert r.chi.chi == 0.39 and r.chi.status == "memory"
+    # default χ: the handbook row (Orwoll & Arnold, Table 14.1: cis-polyisoprene–toluene 0.36 at 25 °C)
+    # is preferred over the recalled 0.39
+    assert r.chi.chi == 0.36 and r.chi.status == "handbook"
     lo, hi = r.nu_band("affine")
     assert lo > r.nu_affine > hi  # better solvent (lower χ) needs more strands for the same swelling
     assert r.junction_density() == pytest.approx(r.nu_affine / 2)  # μ_j = 2ν/f, f = 4
@@ -127,16 +131,70 @@ def test_user_chi_and_missing_pair():
         swelling_estimate(1.0, 3.0, "toluene", "EPDM")
 
 
-def test_kraus_correction():
-    # Kraus 1963 (J. Appl. Polym. Sci. 7:861) [memory]: V_r0/V_rf = 1 − mφ/(1 − φ),
-    # m = 3c(1 − V_r0^⅓) + V_r0 − 1.  The solution must satisfy that relation, and adhering filler
-    # restricts swelling, so the gum-equivalent fraction is smaller (fewer strands than uncorrected).
-    vrf, phi_f, c = 0.30, 0.15, 1.17
-    vr0 = kraus_gum_fraction(vrf, phi_f, c)
-    m = 3 * c * (1 - vr0 ** (1 / 3)) + vr0 - 1
-    assert vr0 / vrf == pytest.approx(1 - m * phi_f / (1 - phi_f), rel=1e-10)
-    assert vr0 < vrf
-    assert kraus_gum_fraction(vrf, 0.0) == vrf
+def _kraus_mp(vr0, v_rf, phi, c):
+    # Kraus 1963 (J. Appl. Polym. Sci. 7:861) [from memory]: V_r0/V_rf = 1 − m·φ/(1 − φ),
+    # m = 3c(1 − V_r0^⅓) + V_r0 − 1, written here with mpmath
+    m = 3 * c * (1 - mp.cbrt(vr0)) + vr0 - 1
+    return vr0 / v_rf - (1 - m * phi / (1 - phi))
+
+
+def _kraus_reference(v_rf, phi, c=1.17):
+    """All roots on (0, 1) by mpmath: sign changes on a fine grid refined with findroot (bisection-free),
+    and the physical one, nearest V_rf.  None when the relation has no root."""
+    v_rf, phi, c = mp.mpf(v_rf), mp.mpf(phi), mp.mpf(c)
+    xs = [mp.mpf(10) ** (k / 4 - 12) for k in range(36)] + [mp.mpf(i) / 1000 for i in range(1, 1000)]
+    roots = []
+    for a, b in zip(xs[:-1], xs[1:], strict=True):
+        fa, fb = _kraus_mp(a, v_rf, phi, c), _kraus_mp(b, v_rf, phi, c)
+        if fa == 0 or fa * fb < 0:
+            roots.append(mp.findroot(lambda x: _kraus_mp(x, v_rf, phi, c), (a, b), solver="anderson"))
+    if not roots:
+        return None, roots
+    return min(roots, key=lambda r: abs(r - v_rf)), roots
+
+
+@pytest.mark.parametrize("phi_f", [0.0, 0.05, 0.10, 0.15, 0.20, 0.25, 0.28, 0.29, 0.30, 0.33, 0.35, 0.38, 0.40])
+@pytest.mark.parametrize("v_rf", [0.25, 0.35, 0.45, 0.55])
+def test_kraus_root_against_mpmath(phi_f, v_rf):
+    # Kraus correction over the carbon-black range φ_f ≤ 0.40 (issue 10 item 2), c = 1.17 for reinforcing
+    # black [from memory, Kraus 1963].  No published worked example with numbers was found with the search
+    # tool, so the check is an independent root search of Kraus's relation written above.
+    if phi_f == 0.0:
+        assert kraus_gum_fraction(v_rf, 0.0) == v_rf
+        return
+    ref, roots = _kraus_reference(v_rf, phi_f)
+    if ref is None:
+        with pytest.raises(ValueError, match="no solution"):
+            kraus_gum_fraction(v_rf, phi_f)
+        return
+    got = kraus_gum_fraction(v_rf, phi_f)
+    assert got == pytest.approx(float(ref), rel=1e-9)
+    assert got < v_rf  # adhering filler restricts swelling: the gum swells more (Kraus 1963 [from memory])
+    assert kraus_roots(v_rf, phi_f) == pytest.approx([float(x) for x in roots], rel=1e-9)
+
+
+def test_kraus_past_the_end_point_bracket():
+    # At φ_f ≥ 1/(3c) ≈ 0.285 both ends of (0, 1) give the same sign [derived], which is where the old
+    # end-point bracket answered "no solution" although the physical root exists (issue 10 item 2).
+    v_rf, phi_f, c = 0.45, 0.35, 1.17
+    assert _kraus_mp(mp.mpf("1e-12"), v_rf, phi_f, c) * _kraus_mp(mp.mpf(1) - mp.mpf("1e-12"), v_rf, phi_f, c) > 0
+    ref, roots = _kraus_reference(v_rf, phi_f, c)
+    assert len(roots) == 2 and ref is not None
+    assert kraus_gum_fraction(v_rf, phi_f, c) == pytest.approx(float(ref), rel=1e-9)
+    # and through the whole estimate (about 95 phr carbon black in a gum of density 910 kg/m³)
+    est = swelling_estimate(1.0, 1.9, "toluene", "NR", filler_fraction=0.35)
+    assert est.kraus["V_r0"] < est.phi_measured and est.nu_affine > 0
+
+
+def test_kraus_without_a_root_is_a_sentence():
+    # φ_f = 0.40 with a very swollen gel (V_rf = 0.2): mpmath finds no root either
+    ref, roots = _kraus_reference(0.2, 0.40)
+    assert ref is None and roots == []
+    with pytest.raises(ValueError, match="filler fraction \\(volume, not phr"):
+        kraus_gum_fraction(0.2, 0.40)
+
+
+def test_kraus_in_the_swelling_estimate():
     plain = swelling_estimate(1.0, 2.5, "toluene", "NR", rubber_fraction=0.7)
     kraus = swelling_estimate(1.0, 2.5, "toluene", "NR", rubber_fraction=0.7, filler_fraction=0.15)
     assert kraus.nu_affine < plain.nu_affine
