@@ -16,7 +16,11 @@ Formulas used (SI inside; V₁ in m³/mol, ν in mol/m³):
   V_r0/V_rf = 1 − m·φ_f/(1 − φ_f),  m = 3c(1 − V_r0^⅓) + V_r0 − 1, with V_rf the rubber volume fraction
   measured in the swollen filled gel, V_r0 the value the unfilled network would show, φ_f the filler
   volume fraction of the dry compound and c the filler–rubber constant (c ≈ 1.17 for reinforcing carbon
-  black [memory]).  V_r0 is solved from this implicit relation and used in Flory–Rehner.
+  black [memory]).  V_r0 is solved from this implicit relation (it can have two roots; the one nearest V_rf
+  is the physical one, see :func:`kraus_roots`) and used in Flory–Rehner.
+
+χ comes from the table (:func:`default_chi` says which row wins: near the test temperature, then your own
+rows, then handbook, recalled, estimated) or from the caller; recalled or estimated values carry a notice.
 
 ν is the **strand** density; the junction (crosslink) density is μ_j = 2ν/f.  χ depends on temperature,
 concentration and crosslink density, so every result carries ν at χ ± 0.05.
