@@ -291,8 +291,8 @@ def polymer_listing() -> list[dict]:
     """Every row of the table in force with each value in table units and its source (for listings)."""
     out = []
     for p in polymers().values():
-        vals = {name: {"value": getattr(p, spec.attr) / spec.scale, "unit": spec.unit, "meaning": spec.meaning,
-                       "source": p.value_source(name)} for name, spec in FIELDS.items()}
+        vals = {name: {"value": float(f"{getattr(p, spec.attr) / spec.scale:.12g}"), "unit": spec.unit,
+                       "meaning": spec.meaning, "source": p.value_source(name)} for name, spec in FIELDS.items()}
         out.append({"key": p.key, "title": p.title, "status": p.status, "source": p.source, "note": p.note,
                     "origin": p.origin, "values": vals})
     return out
