@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from .design import _binding
 from .errors import UserError
 
-__all__ = ["Advice", "advise"]
+__all__ = ["Advice", "advise", "compound_from_fit", "nu_for_modulus"]
 
 
 @dataclass
@@ -92,7 +92,7 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
     limit = None if far_open else far / nu - 1.0
     verb = "raise" if raise_ else "lower"
     s = (f"{verb.capitalize()} ν by {_pct_range(*rng)} ({' and '.join(bind)} is binding; "
-         f"{_pct(change)} from the nominal ν = {nu:.4g} mol/m³{interval_txt})")
+         f"{_pct(change)} from the nominal ν = {nu:.4g} mol/m³{interval_txt.replace(' (', ', ').rstrip(')')})")
     if limit is not None:
         s += f"; {verb} by no more than {_pct(limit)} or {' and '.join(far_bind)} is missed"
     if centre is not None:
@@ -110,3 +110,45 @@ def _advise_infeasible(self, nu, ci, a, b) -> Advice:
     s = (f"No window exists for these targets (see why); toward the closest compromise ν = {c:.4g} mol/m³: "
          f"{verb} ν by {_pct_range(*rng)} ({_pct(change)} from the nominal ν = {nu:.4g} mol/m³).")
     return Advice(nu, ci, "none", change, rng, [], None, None, [], s)
+
+
+def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
+    """The strand density whose network, under the design model (``setup``: a
+    :class:`~network_models.design.DesignSetup`), has small-strain shear modulus ``G`` (Pa) at ``T`` (K)."""
+    from scipy.optimize import brentq
+
+    from .models import get_model
+
+    m = get_model(setup.model)
+    T = setup.T if T is None else T
+
+    def h(x):
+        net = setup.network(math.exp(x), T)
+        return math.log(m.small_strain_modulus(**net.model_params(m)) / G)
+
+    a, b = (math.log(v) for v in setup.nu_range)
+    try:
+        ha, hb = h(a), h(b)
+    except ValueError as exc:
+        raise UserError(f"the compound's modulus cannot be read as a network here: {exc}.") from None
+    if not (ha <= 0 <= hb):
+        raise UserError(f"a shear modulus of {G / 1e6:.4g} MPa is outside what the {m.title} model gives for "
+                        f"ν {setup.nu_range[0]:g}–{setup.nu_range[1]:.4g} mol/m³ with these settings (the "
+                        "entanglement share alone may exceed it); check the model and the polymer.")
+    return math.exp(brentq(h, a, b, xtol=1e-12, rtol=1e-12))
+
+
+def compound_from_fit(result, fit) -> tuple[float, tuple[float, float] | None]:
+    """A measured compound's strand density and 95 % interval **under the design model**: the fitted
+    small-strain modulus G₀ and its interval (from :func:`network_models.crosslinks.from_fit`, delta method)
+    are each turned into the ν whose network gives that G₀ with the design's model, polymer, filler and f, at
+    the fit's temperature.  This keeps the compound and the window on the same reading of ν."""
+    from .crosslinks import from_fit
+
+    s = result.setup
+    table = from_fit(fit, polymer=s.polymer, f=s.f, filler_fraction=s.filler)
+    nu = nu_for_modulus(s, table.G, table.T)
+    ci = None
+    if table.G_ci is not None and table.G_ci[0] is not None and table.G_ci[0] > 0:
+        ci = (nu_for_modulus(s, table.G_ci[0], table.T), nu_for_modulus(s, table.G_ci[1], table.T))
+    return nu, ci
