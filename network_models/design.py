@@ -262,8 +262,35 @@ def _reason_at(ev: _Evaluator, t: Target, nu: float) -> str:
     return got[0] if got else ""
 
 
+def _straddled(ev: _Evaluator, t: Target, grid: np.ndarray, vals: np.ndarray):
+    """A narrow two-sided target can lie between two grid points (one value below it, the next above):
+    add the point where the quantity crosses the middle of the interval, so that no window is stepped over."""
+    if t.lo is None or t.hi is None:
+        return grid, vals
+    mid = 0.5 * (t.lo + t.hi)
+    extra = []
+    for k in range(len(grid) - 1):
+        a, b = vals[k], vals[k + 1]
+        if math.isfinite(a) and math.isfinite(b) and (a - t.hi) * (b - t.lo) < 0 and (a - t.lo) * (b - t.hi) < 0:
+
+            def h(x):
+                v = ev.value(t, math.exp(x))
+                return (v - mid) if math.isfinite(v) else math.nan
+
+            try:
+                x = brentq(h, math.log(grid[k]), math.log(grid[k + 1]), xtol=1e-12)
+            except ValueError:
+                continue
+            extra.append(math.exp(x))
+    if not extra:
+        return grid, vals
+    g = np.sort(np.concatenate([grid, extra]))
+    return g, np.array([ev.value(t, nu) for nu in g])
+
+
 def _outcome(ev: _Evaluator, t: Target, grid: np.ndarray) -> TargetOutcome:
     vals = np.array([ev.value(t, nu) for nu in grid])
+    grid, vals = _straddled(ev, t, grid, vals)
     inside = np.array([t.margin(v) >= 0 for v in vals])
     n = len(grid)
     intervals = []
@@ -462,6 +489,13 @@ def _setup(polymer, temperature, model, filler, f, N, entanglements) -> DesignSe
 def _check_modes(setup: DesignSetup, targets: list[Target]):
     m = get_model(setup.model)
     for t in targets:
+        if t.kind == "Q":
+            try:
+                get_solvent(t.solvent)
+            except KeyError as exc:
+                raise TargetError(f"target {t.text!r}: {exc.args[0]}; write it like 'Q(toluene)<=3.5'.",
+                                  kind="design-target") from None
+            _Evaluator(setup).chi(t)
         if t.mode is not None and not m.supports(t.mode):
             raise UserError(f"target {t.text!r} needs {t.mode.value} tension, which the {m.title} model does not "
                             f"cover; choose a model defined for {t.mode.value} (see `netstretch models`).")
@@ -508,7 +542,7 @@ def _why(setup, outcomes, window, windows, conflicts, unreachable, compromise, s
     if compromise is not None:
         misses = sorted(((v, k) for k, v in compromise["misses"].items() if v > 0), reverse=True)[:3]
         miss_txt = ", ".join(("cannot read " + k) if not math.isfinite(v) else f"{k} by {100 * v:.3g} %"
-                             for v, k in misses)
+                             for v, k in misses) or "nothing (it meets every target at that single point)"
         s += (f". The closest compromise (smallest largest relative miss), ν = {compromise['strand_density']:.4g} "
               f"mol/m³, misses {miss_txt}")
     return s + "."
