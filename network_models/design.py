@@ -453,12 +453,13 @@ class DesignResult:
         })
         return doc
 
-    def to_html(self, map="auto") -> str:
+    def to_html(self, map="auto", current: float | None = None) -> str:
         """A self-contained HTML section (inline SVG: ν strip per target and, unless ``map=None``, the
-        feasibility map over ν and filler fraction) for the review report."""
-        from .design_report import result_html
+        feasibility map over ν and filler fraction, or the given :class:`~network_models.design_map.DesignMap`)
+        for the review report; ``current`` marks a compound's ν."""
+        from .design_map import result_html
 
-        return result_html(self, map)
+        return result_html(self, map, current)
 
 
 # ------------------------------------------------------------------------------------------------
