@@ -135,7 +135,12 @@ class _Evaluator:
         if key not in self._params:
             try:
                 net = self.setup.network(nu, T)
-                self._params[key] = (net, net.model_params(self.model))
+                p = net.model_params(self.model)
+                G0 = self.model.small_strain_modulus(**p)
+                if not G0 > 0:  # e.g. a lock parameter mapped from a very small N: not a usable network
+                    raise ValueError(f"the {self.model.title} model gives no positive small-strain modulus for "
+                                     f"N = {net.N:.3g} (outside its stable range)")
+                self._params[key] = (net, p)
             except ValueError as exc:
                 self._params[key] = exc
         return self._params[key]
@@ -648,6 +653,15 @@ class ModelWindows:
             s = f"All {len(self.results)} models agree on ν {w.lo:.4g}–{w.hi:.4g} mol/m³"
         elif no:
             s = f"No common window: {', '.join(no)} find{'s' if len(no) == 1 else ''} no ν at all"
+            common = None
+            for n in ok:
+                ws = self.results[n].windows
+                common = list(ws) if common is None else _intersect(common, ws)
+            if common:
+                w = max(common, key=lambda iv: iv.hi / iv.lo)
+                s += f"; the other {len(ok)} models agree on ν {w.lo:.4g}–{w.hi:.4g} mol/m³"
+            elif len(ok) > 1:
+                s += f"; the windows of the other {len(ok)} models do not overlap either"
         else:
             s = f"Each of {', '.join(ok)} has a window, but they do not overlap: the choice of model decides"
         return s + "."

@@ -114,7 +114,9 @@ def _advise_infeasible(self, nu, ci, a, b) -> Advice:
 
 def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
     """The strand density whose network, under the design model (``setup``: a
-    :class:`~network_models.design.DesignSetup`), has small-strain shear modulus ``G`` (Pa) at ``T`` (K)."""
+    :class:`~network_models.design.DesignSetup`), has small-strain shear modulus ``G`` (Pa) at ``T`` (K): the
+    lowest ν on the scan where the model's modulus crosses G, refined with brentq (not assumed monotone)."""
+    import numpy as np
     from scipy.optimize import brentq
 
     from .models import get_model
@@ -122,20 +124,24 @@ def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
     m = get_model(setup.model)
     T = setup.T if T is None else T
 
-    def h(x):
-        net = setup.network(math.exp(x), T)
-        return math.log(m.small_strain_modulus(**net.model_params(m)) / G)
+    def g0(nu):
+        try:
+            v = float(m.small_strain_modulus(**setup.network(nu, T).model_params(m)))
+        except ValueError:
+            return math.nan
+        return v if v > 0 else math.nan
 
-    a, b = (math.log(v) for v in setup.nu_range)
-    try:
-        ha, hb = h(a), h(b)
-    except ValueError as exc:
-        raise UserError(f"the compound's modulus cannot be read as a network here: {exc}.") from None
-    if not (ha <= 0 <= hb):
-        raise UserError(f"a shear modulus of {G / 1e6:.4g} MPa is outside what the {m.title} model gives for "
-                        f"ν {setup.nu_range[0]:g}–{setup.nu_range[1]:.4g} mol/m³ with these settings (the "
-                        "entanglement share alone may exceed it); check the model and the polymer.")
-    return math.exp(brentq(h, a, b, xtol=1e-12, rtol=1e-12))
+    grid = np.geomspace(*setup.nu_range, 97)
+    vals = [g0(v) for v in grid]
+    for k in range(len(grid) - 1):
+        a, b = vals[k], vals[k + 1]
+        if math.isfinite(a) and math.isfinite(b) and (a - G) * (b - G) <= 0:
+            x = brentq(lambda x: math.log(g0(math.exp(x)) / G), math.log(grid[k]), math.log(grid[k + 1]),
+                       xtol=1e-12, rtol=1e-12)
+            return math.exp(x)
+    raise UserError(f"a shear modulus of {G / 1e6:.4g} MPa is outside what the {m.title} model gives for "
+                    f"ν {setup.nu_range[0]:g}–{setup.nu_range[1]:.4g} mol/m³ with these settings (the "
+                    "entanglement share alone may exceed it); check the model and the polymer.")
 
 
 def compound_from_fit(result, fit) -> tuple[float, tuple[float, float] | None]:
