@@ -246,3 +246,10 @@ def test_mode_the_model_does_not_cover_is_a_sentence():
 def test_temperature_needs_a_unit():
     with pytest.raises(ValueError, match="unit"):
         design(["G>=1MPa"], temperature="23")
+
+
+def test_a_network_the_model_cannot_represent_is_not_a_window():
+    # the extended tube's δ = 1/√(3(N − 1)) grows without bound as N → 1; where its small-strain modulus is no
+    # longer positive the network is unusable, so "G<=0.5MPa" must not be met there (a false second window)
+    r = design(["G<=0.5MPa"], model="extended-tube")
+    assert len(r.windows) == 1 and r.window.lo_open and r.window.hi < 1000.0
