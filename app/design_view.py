@@ -22,7 +22,7 @@ import logging
 import numpy as np
 import panel as pn
 from bokeh.events import Tap
-from bokeh.models import ColumnDataSource
+from bokeh.models import ColumnDataSource, LogTicker
 from bokeh.plotting import figure
 
 from network_models.design_map import FEASIBLE_COLOUR, TARGET_COLOURS, strip_svg
@@ -48,6 +48,9 @@ def map_figure(dmap, current=None, compound=None, height=360):
                tools="pan,wheel_zoom,box_zoom,reset,save,tap", x_range=(xe[0], xe[-1]), y_range=(ye[0], ye[-1]),
                title="Feasibility map (click a point to move the explorer there)")
     p.toolbar.logo = None
+    p.xaxis.ticker = LogTicker(mantissas=[1, 2, 5])
+    if ylog:
+        p.yaxis.ticker = LogTicker(mantissas=[1, 2, 5])
 
     def quads(mask):
         i, j = np.nonzero(mask)

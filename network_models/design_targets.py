@@ -23,8 +23,10 @@ Quantities (evaluated by :mod:`network_models.design` for a network of strand de
   affine, with the solvent table's χ unless given).
 
 Operators: ``=`` needs a tolerance (``±5%``, ``±0.1MPa``) or a range (``1.7..1.9MPa``); ``>=``, ``<=`` (also
-``≥``, ``≤``, ``>``, ``<``) are bounds.  Stresses and moduli must carry a unit (MPa, kPa, psi, kgf/cm², N/mm²),
-read by :func:`network_models.units.parse_quantity`; lock and Q are plain numbers; reserve is in %.
+``≥``, ``≤``, ``>``, ``<``) are bounds.  A ``±x%`` tolerance is relative to the value, except for ``reserve``
+(itself in %), where it is in percentage points (``reserve=400%±50%`` is 350–450 %).  Stresses and moduli
+must carry a unit (MPa, kPa, psi, kgf/cm², N/mm²), read by :func:`network_models.units.parse_quantity`;
+lock and Q are plain numbers; reserve is in %.
 """
 
 from __future__ import annotations
