@@ -19,7 +19,8 @@ from .design import DesignSetup, _check_modes, _Evaluator, _setup
 from .design_targets import parse_targets
 from .network import get_polymer
 
-__all__ = ["DesignMap", "TARGET_COLOURS", "feasibility_map", "map_svg", "nu_span", "result_html", "strip_svg"]
+__all__ = ["DesignMap", "TARGET_COLOURS", "feasibility_map", "map_svg", "nu_span", "result_html", "strip_svg",
+           "window_over"]
 
 #: one colour per target row (cycled), the same in the SVG and in the app's map
 TARGET_COLOURS = ("#1f77b4", "#d62728", "#9467bd", "#8c564b", "#e377c2", "#17becf", "#bcbd22", "#ff7f0e")
@@ -298,3 +299,25 @@ def result_html(result, map="auto", current: float | None = None) -> str:
         + "<p class='ns-caution'>Model results support design decisions; they do not replace validation testing "
           "of parts. Safety-relevant parts follow the applicable standards and licensed engineering practice.</p>"
         "</section>")
+
+
+def window_over(targets, axis: str = "filler", values=None, **kw) -> list[dict]:
+    """The refined ν window (:func:`~network_models.design.design`) at each value of a second design variable:
+    ``axis`` "filler" (φ, default 0–0.3 in steps of 0.025) or "N" (decoupled, default 5–200, log).  Rows:
+    ``{"filler"|"N": value, "feasible", "low", "high", "binding_low", "binding_high"}`` (ν in mol/m³)."""
+    from .design import design
+
+    if axis not in ("filler", "N"):
+        raise ValueError(f"the second design variable must be 'filler' or 'N', not {axis!r}")
+    if values is None:
+        values = np.linspace(0.0, 0.3, 13) if axis == "filler" else np.geomspace(5.0, 200.0, 12)
+    kw.pop(axis, None)
+    rows = []
+    for v in values:
+        r = design(targets, **{axis: float(v)}, **kw)
+        w = r.window
+        rows.append({axis: float(v), "feasible": r.feasible, "low": None if w is None else w.lo,
+                     "high": None if w is None else w.hi,
+                     "binding_low": " and ".join(r.binding["low"]) or None,
+                     "binding_high": " and ".join(r.binding["high"]) or None})
+    return rows

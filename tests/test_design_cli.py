@@ -113,3 +113,13 @@ def test_error_paths_exit_2_with_a_sentence(capsys, args, words):
     assert out == ""
     assert words in err and "Traceback" not in err
     assert len(err.strip().splitlines()) == 1
+
+
+def test_window_over_filler(capsys):
+    code, out, _ = run(capsys, "design", *SEAL, "--over", "filler", "--json")
+    d = _doc(out)
+    rows = d["window_over"]["rows"]
+    assert rows[0]["filler"] == 0.0 and rows[0]["low"] == pytest.approx(d["strand_density"]["low"], rel=1e-9)
+    # Guth–Gold amplification 1 + 2.5φ + 14.1φ² stiffens the network, so the window moves to lower ν
+    lows = [r["low"] for r in rows if r["feasible"]]
+    assert all(b <= a for a, b in zip(lows, lows[1:], strict=False))

@@ -47,6 +47,8 @@ def add_parser(sub):
     p.add_argument("--no-entanglements", action="store_true", help="leave out the entanglement contribution")
     p.add_argument("--compare-models", action="store_true",
                    help="also the window of every model that covers the targets' modes, and where they agree")
+    p.add_argument("--over", choices=("filler", "N"),
+                   help="also the ν window at each filler fraction 0–0.3 (or at each N 5–200, decoupled from ν)")
     p.add_argument("--current-nu", type=float, metavar="NU",
                    help="today's compound: its strand density ν in mol/m³ (under the same model)")
     p.add_argument("--current-ci", metavar="LO..HI", help="95 %% interval of --current-nu, e.g. 235..265")
@@ -137,12 +139,19 @@ def run(args):
     if cur is not None:
         advice = r.advise(cur[0], cur[1])
     models = compare_models(r.targets, **kw) if args.compare_models else None
+    over = None
+    if args.over:
+        from ..design_map import window_over
+
+        over = window_over(r.targets, args.over, model=args.model, **kw)
     if args.json:
         doc = {"command": "design", **r.to_dict()}
         if advice is not None:
             doc["current"] = {**advice.to_dict(), "source": cur[2]}
         if models is not None:
             doc["model_comparison"] = models.to_dict()
+        if over is not None:
+            doc["window_over"] = {"variable": args.over, "rows": over}
         print(dumps(doc))
         return 0
     lines = _table(r)
@@ -161,6 +170,16 @@ def run(args):
         for name, why in models.left_out.items():
             lines.append(f"  {name:22s} left out: {why}")
         lines.append("  " + models.sentence)
+    if over is not None:
+        name = "filler φ" if args.over == "filler" else "N (set)"
+        lines += ["", f"Window of ν at each {name}:",
+                  f"  {name:10s} {'ν low':>9s} {'ν high':>9s}  binding (low / high)"]
+        for row in over:
+            bind = f"{row['binding_low'] or '—'} / {row['binding_high'] or '—'}" if row["feasible"] else "no window"
+            lines.append(f"  {row[args.over]:<10.4g} {_n(row['low']):>9s} {_n(row['high']):>9s}  {bind}")
+        ok = [row[args.over] for row in over if row["feasible"]]
+        lines.append(f"  some ν meets every target for {name} {min(ok):.4g}–{max(ok):.4g} (on this grid)" if ok
+                     else f"  no {name} on this grid has a window")
     lines += ["", CAUTION]
     print("\n".join(lines))
     return 0
