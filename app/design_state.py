@@ -33,6 +33,8 @@ class DesignState(param.Parameterized):
                                label="Today's compound ν (mol/m³, same model)")
     compound_ci = param.String(default="", label="its 95 % interval (e.g. 235..265)")
     with_models = param.Boolean(default=False, label="Window of every model too")
+    compounds = param.Dict(default={}, doc="measured compounds: name -> (ν, (lo, hi) | None) or a FitResult")
+    compound_advice = param.Dict(default={}, doc="name -> (ν, interval, advice sentence) after compute()")
     result = param.Parameter(default=None)
     map = param.Parameter(default=None)
     advice = param.Parameter(default=None)
@@ -76,9 +78,22 @@ class DesignState(param.Parameterized):
         if self.compound_nu is not None:
             advice = res.advise(self.compound_nu, self._ci())
         models = compare_models(res.targets, **kw) if self.with_models else None
+        per = {name: self._compound(res, src) for name, src in self.compounds.items()}
         with param.parameterized.batch_call_watchers(self):
             self.result, self.map, self.advice, self.models = res, dmap, advice, models
+            self.compound_advice = per
         return res
+
+    @staticmethod
+    def _compound(res, src):
+        """(ν, interval, sentence) for one measured compound; a compound that cannot be read gets its reason."""
+        from network_models.design_advice import compound_from_fit
+
+        try:
+            nu, ci = compound_from_fit(res, src) if hasattr(src, "params") else (float(src[0]), src[1])
+            return nu, ci, res.advise(nu, ci).sentence
+        except (ValueError, KeyError, TypeError, IndexError) as exc:
+            return None, None, f"cannot be placed: {exc}"
 
     def y_of(self, nu: float, net_state=None) -> float:
         """The map's second coordinate for a network of strand density ν (filler φ, or N)."""

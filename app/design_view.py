@@ -38,7 +38,7 @@ def _esc(x) -> str:
     return _html.escape(str(x))
 
 
-def map_figure(dmap, current=None, compound=None, height=360):
+def map_figure(dmap, current=None, compound=None, height=360, measured=None):
     """Bokeh figure of a :class:`~network_models.design_map.DesignMap`: a translucent band per target, the
     feasible cells in green, the N = M_c/M_K line (axis N), the explorer's network and today's compound."""
     ylog = dmap.axis == "N"
@@ -69,6 +69,11 @@ def map_figure(dmap, current=None, compound=None, height=360):
     if compound is not None:
         p.scatter([compound[0]], [compound[1]], size=12, marker="diamond", color="#ff7f0e",
                   legend_label="today's compound")
+    if measured:
+        src = ColumnDataSource({"x": [m[1] for m in measured], "y": [m[2] for m in measured],
+                                "name": [m[0] for m in measured]}, name="ns-design-compounds")
+        p.scatter("x", "y", source=src, size=10, marker="triangle", color="#8c564b", legend_label="measured compounds")
+        p.text("x", "y", text="name", source=src, x_offset=6, y_offset=-6, text_font_size="9pt")
     p.legend.location = "top_right"
     p.legend.click_policy = "hide"
     p.legend.label_text_font_size = "9pt"
@@ -173,17 +178,26 @@ class DesignView(pn.viewable.Viewer):
         res = s.compute()
         cur = self._current()
         parts = [res.to_html(map=None, current=None if cur is None else cur[0])]
+        for name, (_nu, _ci, sentence) in reversed(list(s.compound_advice.items())):
+            parts.insert(0, f"<p class='ns-design-advice' data-compound='{_esc(name)}'><b>{_esc(name)}:</b> "
+                            f"{_esc(sentence)}</p>")
         if s.advice is not None:
             parts.insert(0, f"<p class='ns-design-advice'><b>Today's compound:</b> {_esc(s.advice.sentence)}</p>")
         self.result.object = "".join(parts)
         compound = None
         if s.compound_nu is not None:
             compound = (s.compound_nu, s.y_of(s.compound_nu))
-        fig, self._cur_source = map_figure(s.map, cur, compound)
+        measured = [(n, v[0], s.y_of(v[0])) for n, v in s.compound_advice.items() if v[0] is not None]
+        fig, self._cur_source = map_figure(s.map, cur, compound, measured=measured)
         fig.on_event(Tap, self._on_tap)
         self.map_pane.object = fig
         self.models_pane.object = self._models_html()
         return res
+
+    def set_compounds(self, compounds: dict):
+        """Measured compounds to place on the map and advise on at the next run: name -> FitResult (read
+        under the design model) or (ν in mol/m³, (low, high) or None)."""
+        self.state.compounds = dict(compounds)
 
     def _models_html(self) -> str:
         mw = self.state.models

@@ -97,3 +97,13 @@ def test_feasibility_map_agrees_with_the_window():
     assert m.nu[m.feasible[1]].max() < cols.max()
     mN = feasibility_map(r.targets, axis="N", y=np.geomspace(5, 100, 6), nu_range=(100.0, 600.0))
     assert mN.coupled_N is not None and mN.y_window() is not None
+
+
+def test_measured_compounds_are_placed_and_advised():
+    v = create_design_view()
+    v.set_compounds({"QM-A": (150.0, (140.0, 160.0)), "bad": ("x", None)})
+    res = v.compute()
+    adv = v.state.compound_advice
+    assert adv["QM-A"][2] == res.advise(150.0, (140.0, 160.0)).sentence
+    assert adv["bad"][0] is None and "cannot be placed" in adv["bad"][2]
+    assert "data-compound='QM-A'" in v.result.object
