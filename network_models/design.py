@@ -564,6 +564,11 @@ def _extra_notices(ev: _Evaluator, setup: DesignSetup, outcomes: list[TargetOutc
     if setup.filler > 0:
         notes.append(Notice(f"filler φ = {setup.filler:g} enters through the network's filler handling "
                             "(Guth–Gold amplification): well-dispersed, weakly reinforcing filler only", "filler"))
+    hot = [o.target.text for o in outcomes if o.target.temperature is not None]
+    if hot:
+        notes.append(Notice(f"{', '.join(hot)}: the same network at another temperature, its moduli following "
+                            "absolute temperature (entropic elasticity); many filled compounds soften with "
+                            "temperature instead, so confirm with a test at that temperature", "temperature"))
     kinds = {o.target.kind for o in outcomes}
     if kinds & {"lock", "reserve"}:
         notes.append(Notice("the locking stretch is an upper bound on the elongation at break: real compounds break "

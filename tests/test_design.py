@@ -41,6 +41,7 @@ def test_affine_E_and_hot_G_targets():
     r = design(["G@100C>=0.4MPa"], model="affine", temperature="23C")
     assert r.window.lo == pytest.approx(0.4e6 / (R * (zero_Celsius + 100.0)), rel=1e-8)
     assert r.window.hi_open and r.binding["high"] == []
+    assert any(n.kind == "temperature" for n in r.notices)  # physics.md §7: filled compounds often soften
 
 
 def test_neo_hookean_M100_target():
