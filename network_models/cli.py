@@ -15,7 +15,7 @@ import sys
 from .errors import UserError
 
 #: sub-command modules, in the order ``--help`` lists them
-COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "serve")
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "serve")
 
 
 def build_parser() -> argparse.ArgumentParser:
