@@ -135,7 +135,8 @@ def test_lower_lock_of_the_eight_chain_is_the_root_below_one(mode, N):
     f = {Mode.UNIAXIAL: lambda x: x**2 + 2 / x, Mode.EQUIBIAXIAL: lambda x: 2 * x**2 + x**-4,
          Mode.PLANAR: lambda x: x**2 + 1 + x**-2}[mode]
     with mp.workdps(40):
-        root = float(mp.findroot(lambda x: f(x) - 3 * N, (mp.mpf("1e-3"), mp.mpf("0.999999")), solver="bisect", tol=1e-30, maxsteps=200))
+        root = float(mp.findroot(lambda x: f(x) - 3 * N, (mp.mpf("1e-3"), mp.mpf("0.999999")), solver="bisect",
+                                 tol=1e-30, maxsteps=200))
     lo, hi = get_model("eight-chain").stretch_range(mode, mu=1.0, N=N)
     assert 0 < lo < 1 and lo == pytest.approx(root, rel=1e-12)
     m = get_model("eight-chain")
