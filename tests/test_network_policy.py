@@ -329,6 +329,17 @@ def test_eight_chain_energy_keeps_its_digits_at_large_N(N, lam):
     assert W == pytest.approx(ref, rel=1e-10)  # was 3e-6 off at N = 1e5, λ = 1.01
 
 
+@pytest.mark.parametrize("N", [1e2, 1e5])
+def test_three_chain_energy_keeps_its_digits_at_large_N(N):
+    # three-chain (Wang & Guth 1952, as in Arruda & Boyce 1993): W = (μN/3) Σᵢ [g(λᵢ/√N) − g(1/√N)]
+    lam = 1.02
+    with mp.workdps(50):
+        ls = (mp.mpf(lam), 1 / mp.sqrt(mp.mpf(lam)), 1 / mp.sqrt(mp.mpf(lam)))
+        ref = float(N / 3 * sum(_mp_chain_energy(li / mp.sqrt(N)) - _mp_chain_energy(1 / mp.sqrt(N)) for li in ls))
+    W = float(get_model("three-chain").energy("uniaxial", lam, mu=1.0, N=N))
+    assert W == pytest.approx(ref, rel=1e-9)
+
+
 def test_chain_energy_series_coefficients():
     # g(r) = ∫₀^r L⁻¹(s)ds: coefficients a_k/(2k + 2) of the reverted Langevin series (A&S 4.5.67)
     from network_models.models._special import CHAIN_ENERGY_SERIES
