@@ -12,6 +12,8 @@ import math
 import mpmath as mp
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy.constants import R  # CODATA gas constant
 from scipy.optimize import brentq
 
@@ -356,3 +358,20 @@ def test_reduced_stress_at_one_is_its_limit(name):
     at_one = float(m.reduced_stress(1.0, p))
     near = float(m.reduced_stress(1.0 + 1e-5, p))
     assert np.isfinite(at_one) and at_one == pytest.approx(near, rel=1e-4)
+
+
+@settings(max_examples=80, deadline=None)
+@given(nu=st.floats(20.0, 5000.0), phi=st.floats(0.0, 0.45), T=st.floats(233.15, 423.15), f=st.floats(3.0, 8.0),
+       ent=st.booleans(), polymer=st.sampled_from(["NR", "SBR", "BR"]))
+def test_no_model_shows_a_negative_modulus_anywhere_the_sliders_reach(nu, phi, T, f, ent, polymer):
+    """issue 10 'done when': every model's small-strain modulus from a network is positive and follows the
+    policy, over the app's slider ranges (a network the core refuses says so in a sentence instead)."""
+    try:
+        net = Network(polymer=polymer, nu=nu, T=T, f=f, filler_fraction=phi, entanglements=ent)
+    except ParameterError as e:
+        assert "at least" in str(e)
+        return
+    for name, m in MODELS.items():
+        p = net.model_params(m)
+        G0 = m.small_strain_modulus(**p)
+        assert G0 > 0 and G0 == pytest.approx(_expected_G0(name, net), rel=1e-9), name

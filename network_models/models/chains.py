@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
 from ..langevin import inverse_langevin, langevin_derivative
@@ -20,6 +22,22 @@ def _chain_energy_sum(d, t0, r, r0):
         series = chain_energy_difference(np.where(small, d, 0.0), t0)
         exact = chain_energy(np.where(small, r0, r), r0)
     return np.where(small, series, exact)
+
+
+@lru_cache(maxsize=512)
+def _eight_chain_modulus_per_mu(N: float) -> float:
+    """G₀/μ = √N L⁻¹(1/√N)/3 (physics.md §3 [derived]); cached because a network maps to the model once per
+    mode and per readout with the same N."""
+    sn = np.sqrt(N)
+    return float(sn * inverse_langevin(1.0 / sn) / 3.0)
+
+
+@lru_cache(maxsize=512)
+def _three_chain_modulus_per_mu(N: float) -> float:
+    """G₀/μ of the three-chain model: separable W = Σ w(λᵢ) gives G = (w'(1) + w''(1))/2 [derived]."""
+    sn = np.sqrt(N)
+    beta = inverse_langevin(1.0 / sn)
+    return float((sn * beta + 1.0 / langevin_derivative(beta)) / 6.0)
 
 
 def _chain_reading(model):
@@ -63,13 +81,12 @@ class EightChain(Model):
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
-        sn = np.sqrt(p["N"])
-        return float(p["mu"] * sn * inverse_langevin(1.0 / sn) / 3.0)
+        return p["mu"] * _eight_chain_modulus_per_mu(p["N"])
 
     def _from_moduli(self, Gx, Ge, network):
         # μ chosen so that the small-strain modulus μ√N L⁻¹(1/√N)/3 is exactly G_x + G_e (policy)
         N = network.N_effective
-        return {"mu": (Gx + Ge) / self.small_strain_modulus(mu=1.0, N=N), "N": N}
+        return {"mu": (Gx + Ge) / _eight_chain_modulus_per_mu(N), "N": N}
 
     def network_reading(self, values):
         return _chain_reading(self)
@@ -109,14 +126,11 @@ class ThreeChain(Model):
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
-        sn = np.sqrt(p["N"])
-        beta = inverse_langevin(1.0 / sn)
-        # separable W = Σ w(λᵢ): G = (w'(1) + w''(1))/2 [derived]
-        return float(p["mu"] / 6.0 * (sn * beta + 1.0 / langevin_derivative(beta)))
+        return p["mu"] * _three_chain_modulus_per_mu(p["N"])
 
     def _from_moduli(self, Gx, Ge, network):
         N = network.N_effective
-        return {"mu": (Gx + Ge) / self.small_strain_modulus(mu=1.0, N=N), "N": N}
+        return {"mu": (Gx + Ge) / _three_chain_modulus_per_mu(N), "N": N}
 
     def network_reading(self, values):
         return _chain_reading(self)
