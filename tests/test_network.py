@@ -67,7 +67,8 @@ def test_locking_stretch_per_mode_orders():
     # (G ∝ T at fixed network is how the mapping is defined, so it is not tested here: such a test cannot fail)
     net = Network(polymer="NR", nu=150.0)
     u, e, p = (net.locking_stretch(m) for m in (Mode.UNIAXIAL, Mode.EQUIBIAXIAL, Mode.PLANAR))
-    assert e < p < u  # equibiaxial locks first: I₁ grows fastest there
+    # equibiaxial locks first: I₁ grows fastest there [derived from the physics.md §2 invariant table]
+    assert e < p < u
 
 
 def test_every_model_maps_from_a_network():
