@@ -171,7 +171,7 @@ def _entanglement_rows(G, G_ci, Gc, Gc_ci, Ge, ge_txt, upper, T, f, rho, MK):
     ph = 1.0 - 2.0 / f
     label = "full plateau modulus removed (upper bound on entanglements)" if upper else "entanglement share removed"
     assumes = f"G − G_e = νRT; {ge_txt}" + (f"; {UPPER_BOUND_NOTE}" if upper else "")
-    note = "lower bound on ν: the full G_N⁰ over-counts untrapped entanglements" if upper else ""
+    note = "lower bound on ν: the full G_N⁰ over-counts untrapped entanglements" if upper and Gc > 0 else ""
     return [
         _row("affine-no-entanglement", f"affine, {label}", assumes, Gc, Gc_ci, 1.0, T, f, rho, MK, note=note),
         _row("phantom-no-entanglement", f"phantom (f = {f:g}), {label}",
