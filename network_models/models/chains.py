@@ -2,11 +2,12 @@
 
 from __future__ import annotations
 
+import math
 from functools import lru_cache
 
 import numpy as np
 
-from ..langevin import inverse_langevin, langevin_derivative
+from ..langevin import inverse_langevin, inverse_langevin_scalar, langevin_derivative
 from ..params import ParamSet, kuhn_number_param, shear_modulus_param
 from ._special import CHAIN_SERIES_MAX_T, chain_energy, chain_energy_difference
 from .base import ChainReading, Model
@@ -28,15 +29,15 @@ def _chain_energy_sum(d, t0, r, r0):
 def _eight_chain_modulus_per_mu(N: float) -> float:
     """G₀/μ = √N L⁻¹(1/√N)/3 (physics.md §3 [derived]); cached because a network maps to the model once per
     mode and per readout with the same N."""
-    sn = np.sqrt(N)
-    return float(sn * inverse_langevin(1.0 / sn) / 3.0)
+    sn = math.sqrt(N)
+    return sn * inverse_langevin_scalar(1.0 / sn) / 3.0
 
 
 @lru_cache(maxsize=512)
 def _three_chain_modulus_per_mu(N: float) -> float:
     """G₀/μ of the three-chain model: separable W = Σ w(λᵢ) gives G = (w'(1) + w''(1))/2 [derived]."""
-    sn = np.sqrt(N)
-    beta = inverse_langevin(1.0 / sn)
+    sn = math.sqrt(N)
+    beta = inverse_langevin_scalar(1.0 / sn)
     return float((sn * beta + 1.0 / langevin_derivative(beta)) / 6.0)
 
 
