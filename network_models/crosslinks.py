@@ -13,11 +13,15 @@ Relations (physics.md §3–4; R from scipy.constants):
 * M100 / M300 (nominal stress at 100 % / 300 % elongation, i.e. λ = 2 / λ = 4) are inverted with the
   neo-Hookean (affine) relation P = G(λ − λ⁻²): G = M100/1.75, G = M300/3.9375.  These are secant values:
   real compounds are not neo-Hookean at 300 %, so treat them as rough;
-* entanglement share removed: G_c = G − G_e with G_e from the fit (tube G_e, Mooney 2C₂) or else the
-  polymer's plateau modulus G_N⁰ scaled with absolute temperature;
-* filler removed: G_gum = G/(1 + 2.5φ + 14.1φ²) (Guth & Gold 1938 [memory]);
-* dangling ends (Flory [memory]): the modulus measures ν_eff = ν(1 − 2M_c/M_n); with M_c = ρ/ν this gives
-  the chemical strand density ν = ν_eff + 2ρ/M_n.
+* entanglement share removed: G_c = G − G_e with G_e from the fit when the model separates it (tube G_e,
+  Mooney 2C₂ ≥ 0) or else the polymer's plateau modulus G_N⁰ scaled with absolute temperature — an
+  **upper bound** on the entanglement part (only trapped entanglements count), so those rows are lower
+  bounds on ν; with a known sol fraction w_s the trapped part G_N⁰·T_e (Langley; Dossin & Graessley, see
+  :mod:`network_models.entanglement`) gives the "trapped entanglements" rows;
+* filler removed: G_gum = G/(1 + 2.5φ + 14.1φ²) (Guth & Gold 1938 [memory]); a fitted Kuhn number of a
+  filled compound is the amplified one, the gum's is N = 1 + X(N_fit − 1) (amplified first invariant);
+* ν is always the elastically active strand density, except in the dangling-end row, which gives the
+  **chemical (total)** strand density ν_chem = ν + 2ρ/M_n (Flory [memory]) and says so.
 
 Each row says what it assumes.  Intervals: the modulus interval of the input is mapped through each
 (monotone) relation; for a fit the small-strain modulus interval comes from the fit covariance (delta
@@ -30,9 +34,9 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy import stats
-from scipy.constants import R
 
+from .constants import LAB_TEMPERATURE, R, celsius, t_quantile
+from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
 from .network import get_polymer, guth_gold
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
@@ -73,6 +77,7 @@ class CrosslinkRow:
     N: float | None  # Kuhn segments per strand, M_c/M_K (or fitted, see note)
     N_ci: tuple[float, float] | None
     note: str = ""
+    nu_kind: str = "elastically active"  # or "chemical (total)": which strand density ``nu`` is
 
     def to_dict(self) -> dict:
         def c(x):
@@ -85,7 +90,7 @@ class CrosslinkRow:
                 "modulus_Pa": c(self.modulus), "strand_density": c(self.nu), "strand_density_ci95": ci(self.nu_ci),
                 "junction_density": c(self.junction_density), "junction_density_ci95": ci(self.junction_ci),
                 "Mc": c(self.Mc), "Mc_ci95": ci(self.Mc_ci), "N": c(self.N), "N_ci95": ci(self.N_ci),
-                "note": self.note}
+                "note": self.note, "strand_density_kind": self.nu_kind}
 
 
 @dataclass
@@ -98,6 +103,9 @@ class CrosslinkTable:
     G_ci: tuple[float, float] | None
     inputs: dict
     notes: list[str] = field(default_factory=list)
+    #: G_e/G₀ of the entanglement-removed rows; None when over 100 % or undefined (see the text and notes)
+    entanglement_share: float | None = None
+    entanglement_share_text: str = "—"
 
     def __iter__(self):
         return iter(self.rows)
@@ -118,7 +126,8 @@ class CrosslinkTable:
             "inputs": self.inputs,
             "units": {"strand_density": "mol/m³", "junction_density": "mol/m³", "Mc": "kg/mol", "N": "1",
                       "modulus_Pa": "Pa"},
-            "rows": [r.to_dict() for r in self.rows], "notes": list(self.notes),
+            "rows": [r.to_dict() for r in self.rows], "notes": [str(n) for n in self.notes],
+            "entanglement_share": self.entanglement_share, "entanglement_share_text": self.entanglement_share_text,
         }
 
 
@@ -135,7 +144,7 @@ def _map_ci(ci, fn):
     return (min(va, vb), max(va, vb))
 
 
-def _row(key, label, assumes, Gx, Gx_ci, factor, T, f, rho, MK, note="", shift=0.0):
+def _row(key, label, assumes, Gx, Gx_ci, factor, T, f, rho, MK, note="", shift=0.0, nu_kind="elastically active"):
     """Row for crosslink modulus Gx = factor·νRT (+ ν shift for dangling ends)."""
 
     def nu_of(g):
@@ -145,20 +154,47 @@ def _row(key, label, assumes, Gx, Gx_ci, factor, T, f, rho, MK, note="", shift=0
 
     nu = nu_of(Gx)
     if nu is None:
+        gone = "no positive crosslink modulus is left under this assumption"
         return CrosslinkRow(key, label, assumes, Gx, None, None, None, None, None, None, None, None,
-                            note or "no positive crosslink modulus is left under this assumption")
+                            f"{gone}; {note}" if note else gone, nu_kind)
     nu_ci = _map_ci(Gx_ci, lambda g: nu_of(g) if g > 0 else None)
     if Gx_ci is not None and nu_ci is None:
         note = (note + "; " if note else "") + "the lower end of the interval leaves no positive crosslink modulus"
     Mc = rho / nu
     return CrosslinkRow(
         key, label, assumes, Gx, nu, nu_ci, 2.0 * nu / f, _map_ci(nu_ci, lambda x: 2.0 * x / f),
-        Mc, _map_ci(nu_ci, lambda x: rho / x), Mc / MK, _map_ci(nu_ci, lambda x: rho / x / MK), note,
+        Mc, _map_ci(nu_ci, lambda x: rho / x), Mc / MK, _map_ci(nu_ci, lambda x: rho / x / MK), note, nu_kind,
     )
 
 
-def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_ci=None, Ge_source=None,
-           Gc=None, Gc_ci=None, extra_rows=(), inputs=None, notes=None):
+def _entanglement_rows(G, G_ci, Gc, Gc_ci, Ge, ge_txt, upper, T, f, rho, MK):
+    ph = 1.0 - 2.0 / f
+    label = "full plateau modulus removed (upper bound on entanglements)" if upper else "entanglement share removed"
+    assumes = f"G − G_e = νRT; {ge_txt}" + (f"; {UPPER_BOUND_NOTE}" if upper else "")
+    note = "lower bound on ν: the full G_N⁰ over-counts untrapped entanglements" if upper and Gc > 0 else ""
+    return [
+        _row("affine-no-entanglement", f"affine, {label}", assumes, Gc, Gc_ci, 1.0, T, f, rho, MK, note=note),
+        _row("phantom-no-entanglement", f"phantom (f = {f:g}), {label}",
+             assumes.replace("G − G_e = νRT", "G − G_e = (1 − 2/f)νRT", 1), Gc, Gc_ci, ph, T, f, rho, MK, note=note),
+    ]
+
+
+def _trapped_rows(G, G_ci, Ge_full, sol_fraction, T, f, rho, MK):
+    Te = trapping_factor(sol_fraction)
+    Ge_t = Ge_full * Te
+    txt = (f"G_e,trapped = G_N⁰·T_e = {Ge_t / 1e6:.3g} MPa, T_e = (1 − √w_s)⁴ = {Te:.3g} at sol fraction "
+           f"w_s = {sol_fraction:g} (Langley 1968; Dossin & Graessley 1979 [from memory])")
+    ci = None if G_ci is None else (G_ci[0] - Ge_t, G_ci[1] - Ge_t)
+    return [
+        _row("affine-trapped-entanglements", "affine, trapped entanglements removed", f"G − G_e,trapped = νRT; {txt}",
+             G - Ge_t, ci, 1.0, T, f, rho, MK),
+        _row("phantom-trapped-entanglements", f"phantom (f = {f:g}), trapped entanglements removed",
+             f"G − G_e,trapped = (1 − 2/f)νRT; {txt}", G - Ge_t, ci, 1.0 - 2.0 / f, T, f, rho, MK),
+    ]
+
+
+def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=None,
+           Gc=None, Gc_ci=None, extra_rows=(), inputs=None, notes=None, sol_fraction=None):
     poly = get_polymer(polymer)
     if not (T > 0 and math.isfinite(T)):
         raise ValueError(f"temperature must be above absolute zero; got {T!r} K")
@@ -174,46 +210,56 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_ci=None, 
         _row("phantom", f"phantom (f = {f:g}), all of G", f"G = (1 − 2/f)νRT, f = {f:g}; entanglements counted",
              G, G_ci, ph, T, f, rho, MK),
     ]
-    # entanglement share
+    # entanglement share: from the model when it separates it, else the full plateau modulus (an upper bound)
+    Ge_plateau = poly.plateau_modulus * T / poly.plateau_temperature * X
+    upper = Gc is None and Ge is None
     if Gc is None:
         if Ge is None:
-            Ge = poly.plateau_modulus * T / poly.plateau_temperature * X
+            Ge = Ge_plateau
             Ge_source = (f"plateau modulus of {poly.key} G_N⁰ = {poly.plateau_modulus / 1e6:.3g} MPa scaled to T"
                          + (" and amplified by Guth–Gold" if X != 1 else "") + f" [{poly.status}]")
         Gc = G - Ge
         Gc_ci = None if G_ci is None else (G_ci[0] - Ge, G_ci[1] - Ge)
     ge_txt = f"G_e = {Ge / 1e6:.3g} MPa from {Ge_source}" if Ge is not None else f"crosslink part from {Ge_source}"
-    rows.append(_row("affine-no-entanglement", "affine, entanglement share removed",
-                     f"G − G_e = νRT; {ge_txt}", Gc, Gc_ci, 1.0, T, f, rho, MK))
-    rows.append(_row("phantom-no-entanglement", f"phantom (f = {f:g}), entanglement share removed",
-                     f"G − G_e = (1 − 2/f)νRT; {ge_txt}", Gc, Gc_ci, ph, T, f, rho, MK))
+    rows.extend(_entanglement_rows(G, G_ci, Gc, Gc_ci, Ge, ge_txt, upper, T, f, rho, MK))
+    share, share_text, share_notes = entanglement_share(Ge, G, "crosslink table")
+    notes.extend(share_notes)
+    if sol_fraction is not None:
+        rows.extend(_trapped_rows(G, G_ci, Ge_plateau, sol_fraction, T, f, rho, MK))
     if filler_fraction > 0:
         rows.append(_row("affine-no-filler", f"affine, filler removed (φ = {filler_fraction:g})",
                          f"G/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); entanglements counted",
                          G / X, _map_ci(G_ci, lambda g: g / X), 1.0, T, f, rho, MK))
         rows.append(_row("affine-no-entanglement-no-filler",
                          f"affine, entanglement share and filler removed (φ = {filler_fraction:g})",
-                         f"(G − G_e)/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); {ge_txt}",
+                         f"(G − G_e)/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); {ge_txt}"
+                         + (f"; {UPPER_BOUND_NOTE}" if upper else ""),
                          Gc / X, _map_ci(Gc_ci, lambda g: g / X), 1.0, T, f, rho, MK))
     if Mn is not None:
         if not (Mn > 0):
             raise ValueError(f"primary-chain M_n must be positive; got {Mn!r}")
-        rows.append(_row("affine-dangling-ends", f"affine, dangling ends out (M_n {Mn:.4g} kg/mol)",
-                         "νRT(1 − 2M_c/M_n) = G, so ν = G/RT + 2ρ/M_n (Flory [memory]); entanglements counted",
-                         G, G_ci, 1.0, T, f, rho, MK, shift=2.0 * rho / Mn))
+        rows.append(_row("affine-dangling-ends", f"chemical (total) strand density, dangling ends included "
+                         f"(M_n {Mn:.4g} kg/mol)",
+                         "G = νRT gives the elastically active ν; the chemical density adds the dangling ends: "
+                         "ν_chem = G/RT + 2ρ/M_n (Flory [memory]); entanglements counted",
+                         G, G_ci, 1.0, T, f, rho, MK, shift=2.0 * rho / Mn, nu_kind="chemical (total)",
+                         note="this row's ν is the CHEMICAL (total) strand density, not the elastically active one "
+                         "(that is the 'affine' row); its M_c and N are per chemical strand"))
     rows.extend(extra_rows)
-    notes.append(f"strand density ν counts elastically active strands; junction (crosslink) density μ_j = 2ν/f "
-                 f"(f = {f:g}); N = M_c/M_K with M_K = {MK * 1000:.4g} g/mol for {poly.key} [{poly.status}]")
-    notes.append(f"evaluated at T = {T - 273.15:.1f} °C; R from scipy.constants (CODATA)")
-    return CrosslinkTable(rows, poly.key, float(T), float(f), float(G), G_ci, dict(inputs or {}), notes)
+    notes.append(f"strand density ν counts elastically active strands (except where a row says chemical); junction "
+                 f"(crosslink) density μ_j = 2ν/f (f = {f:g}); N = M_c/M_K with M_K = {MK * 1000:.4g} g/mol for "
+                 f"{poly.key} [{poly.status}]")
+    notes.append(f"evaluated at T = {celsius(T):.1f} °C; R from scipy.constants (CODATA)")
+    return CrosslinkTable(rows, poly.key, float(T), float(f), float(G), G_ci, dict(inputs or {}), notes,
+                          share, share_text)
 
 
 def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float = 296.15, f: float = 4.0,
                  filler_fraction: float = 0.0, Mn: float | None = None, ci95=None, c2: float | None = None,
-                 ) -> CrosslinkTable:
+                 sol_fraction: float | None = None) -> CrosslinkTable:
     """Crosslink table from one number a compounder has (Pa): G, E, M100, M300, or Mooney 2C1 (with the
     Mooney slope 2C2 as ``c2``, which is then taken as the entanglement share).  ``ci95`` (lo, hi) of the
-    same kind gives intervals."""
+    same kind gives intervals.  ``sol_fraction`` (w_s, 0–1) adds the trapped-entanglement rows."""
     k = str(kind).strip().upper()
     G = shear_modulus_from(value, k)
     G_ci = None
@@ -239,7 +285,7 @@ def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float
             notes.append("2C₁ used as G (lower end of the Mooney bracket, without the 2C₂ share)")
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
                   Ge_source=Ge_src, Gc=Gc, Gc_ci=Gc_ci, inputs={"value_Pa": value, "kind": k, "ci95": ci95},
-                  notes=notes)
+                  notes=notes, sol_fraction=sol_fraction)
 
 
 def _derived(result, fn):
@@ -264,65 +310,75 @@ def _derived(result, fn):
     var = float(g @ cov @ g)
     if not (var >= 0 and math.isfinite(var)):
         return v0, None
-    t = float(stats.t.ppf(0.975, max(result.n - result.k, 1)))
+    t = t_quantile(max(result.n - result.k, 1))
     se = math.sqrt(var)
     return v0, (v0 - t * se, v0 + t * se)
 
 
+def _ci(P, name):
+    ci = P[name].ci95
+    return None if ci is None or ci[0] is None or ci[1] is None else tuple(ci)
+
+
+def _reading_rows(result, reading, *, T, f, poly, X):
+    """Rows for one :class:`~network_models.models.base.ChainReading` of the fitted model."""
+    P = result.params
+    rho, MK = poly.density, poly.kuhn_molar_mass
+    fr = reading.f if reading.f is not None else f
+    mod = P[reading.modulus_param]
+    row = _row(reading.key, reading.label, reading.assumes, mod.value, _ci(P, reading.modulus_param),
+               reading.factor, T, fr, rho, MK, note=reading.note)
+    if row.nu is not None and reading.N_param is not None:
+        Nv = reading.N_of(P[reading.N_param].value)
+        row.note = (row.note + "; " if row.note else "") + f"M_c/M_K would give N = {row.N:.3g}"
+        row.N, row.N_ci = Nv, _map_ci(_ci(P, reading.N_param), reading.N_of)
+    rows = [row]
+    if X != 1.0 and row.nu is not None:  # filler removed: modulus /X, and the gum's N = 1 + X(N_fit − 1)
+        gum = _row(reading.key + "-no-filler", reading.label + " — filler removed",
+                   reading.assumes + f"; modulus/X and N_gum = 1 + X(N − 1) with X = {X:.4g} (Guth–Gold factor, "
+                   "amplified first invariant)", mod.value / X, _map_ci(_ci(P, reading.modulus_param), lambda g: g / X),
+                   reading.factor, T, fr, rho, MK)
+        if gum.nu is not None and reading.N_param is not None:
+            gum.N = 1.0 + X * (row.N - 1.0)
+            gum.N_ci = _map_ci(row.N_ci, lambda n: 1.0 + X * (n - 1.0))
+        rows.append(gum)
+    return rows
+
+
 def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 4.0,
-             filler_fraction: float = 0.0, Mn: float | None = None) -> CrosslinkTable:
+             filler_fraction: float = 0.0, Mn: float | None = None,
+             sol_fraction: float | None = None) -> CrosslinkTable:
     """Crosslink table from a :class:`~network_models.fitting.FitResult`: the small-strain modulus of the
-    fitted model (with its interval), the entanglement share the model separates (tube G_e, Mooney 2C₂)
-    and, for Langevin-chain models, the fitted chain modulus μ = νRT and N."""
+    fitted model (with its interval), the entanglement part as the model separates it
+    (``Model.modulus_split``) and the model's own network readings (``Model.network_reading``: chain
+    modulus and N, phantom part with its f, Gent's J_m as N)."""
     m = result.model_obj
     notes = [f"from the {result.title} fit ({result.n} points)"]
     if T is None:
         if result.temperature is not None:
             T = result.temperature
         else:
-            T = 296.15
+            T = LAB_TEMPERATURE
             notes.append("the curves state no temperature: 23 °C assumed")
     G, G_ci = _derived(result, lambda p: m.small_strain_modulus(**p))
-    P = result.params
-    Ge = Gc = Gc_ci = src = None
     poly = get_polymer(polymer)
+    X = guth_gold(filler_fraction)
+    Ge = Gc = Gc_ci = src = None
+    split = m.modulus_split(result.values)
+    if split.separable and split.entanglement is not None and split.entanglement > 0:
+        Gc, Gc_ci = _derived(result, lambda p: m.modulus_split(p).crosslink)
+        Ge, src = split.entanglement, f"the {result.title} fit ({split.basis})"
+    else:
+        notes.append(f"{split.basis}: the entanglement-removed rows subtract the polymer's plateau modulus")
     extra = []
-    if "Gc" in P and "Ge" in P:
-        Gc, Gc_ci = _derived(result, lambda p: m.small_strain_modulus(**p) - p["Ge"])
-        Ge, src = P["Ge"].value, f"the fitted tube modulus G_e ({result.title})"
-    elif m.name == "mooney-rivlin":
-        Gc, Gc_ci = 2 * P["C1"].value, _map_ci(P["C1"].ci95, lambda x: 2 * x)
-        Ge, src = 2 * P["C2"].value, "the fitted Mooney slope 2C₂"
-        if Ge < 0:
-            Ge = Gc = Gc_ci = src = None
-            notes.append("the fitted 2C₂ is negative, so it cannot be an entanglement share: the "
-                         "entanglement-removed rows use the polymer's plateau modulus instead")
-    if "mu" in P and "N" in P:
-        mu = P["mu"]
-        rho, MK = poly.density, poly.kuhn_molar_mass
-        row = _row("model-chain-modulus", f"{result.title}: chain modulus μ = νRT",
-                   "μ = nkT = νRT (affine chain density); N as fitted", mu.value,
-                   mu.ci95 if mu.ci95[0] is not None else None, 1.0, T, f, rho, MK,
-                   note="N here is the fitted Kuhn number; M_c/M_K would give "
-                   f"{rho / (mu.value / (R * T)) / MK:.3g}" if mu.value > 0 else "")
-        if row.nu is not None:
-            row.N, row.N_ci = P["N"].value, (P["N"].ci95 if P["N"].ci95[0] is not None else None)
-        extra.append(row)
-    elif m.name == "constrained-junction":
-        gp = P["G_ph"]
-        fm = P["f"].value
-        extra.append(_row("model-phantom-part", f"{result.title}: phantom part G_ph = (1 − 2/f)νRT",
-                          f"G_ph = (1 − 2/f)νRT with the model's f = {fm:g}", gp.value,
-                          gp.ci95 if gp.ci95[0] is not None else None, 1.0 - 2.0 / fm, T, fm,
-                          poly.density, poly.kuhn_molar_mass))
-    elif m.name == "gent":
-        notes.append(f"Gent J_m = {P['Jm'].value:.3g} corresponds to an eight-chain N ≈ J_m/3 + 1 = "
-                     f"{P['Jm'].value / 3 + 1:.3g} (matching the locks)")
+    for reading in m.network_reading(result.values):
+        extra.extend(_reading_rows(result, reading, T=T, f=f, poly=poly, X=X))
     for w in result.warnings:
-        if "poorly determined" in w or "bound" in w:
+        kind = getattr(w, "kind", "")
+        if kind in {"not-identifiable", "at-bound"} or "poorly determined" in w or "bound" in w:
             notes.append("fit caution: " + w)
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
-                  Ge_source=src, Gc=Gc, Gc_ci=Gc_ci, extra_rows=extra,
+                  Ge_source=src, Gc=Gc, Gc_ci=Gc_ci, extra_rows=extra, sol_fraction=sol_fraction,
                   inputs={"fit_model": result.model, "small_strain_modulus_Pa": G}, notes=notes)
 
 

@@ -29,9 +29,11 @@ Edge values: ``|y| == 1`` gives ``±inf`` (a chain at full extension needs infin
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
-__all__ = ["langevin", "inverse_langevin", "langevin_derivative", "LINV_SERIES"]
+__all__ = ["langevin", "inverse_langevin", "inverse_langevin_scalar", "langevin_derivative", "LINV_SERIES"]
 
 # Maclaurin coefficients of L^{-1}(y) = sum c_k y^(2k+1) (exact rationals, checked in tests against
 # mpmath's series reversion of L(x) = x/3 - x^3/45 + 2x^5/945 - ...).
@@ -243,3 +245,32 @@ def inverse_langevin(y):
             out[bad] = np.where(a[bad] == 1.0, np.inf, np.nan)
     np.copysign(out, flat, out=out)
     return out[0] if scalar else out.reshape(y.shape)
+
+
+def inverse_langevin_scalar(y: float) -> float:
+    """L⁻¹(y) for one Python float in [0, 1), without numpy's per-call overhead (a network maps to the chain
+    models once per slider move): the Maclaurin series below 0.1, else Cohen's start and Newton steps on the
+    residual (coth x − 1) − 1/x + (1 − y), which keeps its relative accuracy as y → 1."""
+    y = float(y)
+    if not (0.0 <= y < 1.0):  # same edges as inverse_langevin: ±1 → ±inf, beyond and NaN → NaN, odd function
+        if abs(y) == 1.0:
+            return math.copysign(math.inf, y)
+        return -inverse_langevin_scalar(-y) if -1.0 < y < 0.0 else math.nan
+    if y < 0.1:
+        yy = y * y
+        acc = 0.0
+        for c in reversed(LINV_SERIES):
+            acc = acc * yy + c
+        return y * acc
+    x = y * (3.0 - y * y) / (1.0 - y * y)
+    one_minus_y = 1.0 - y
+    for _ in range(20):
+        e = math.exp(-2.0 * x)
+        coth_m1 = 2.0 * e / (1.0 - e)
+        r = coth_m1 - 1.0 / x + one_minus_y
+        dL = 1.0 / (x * x) - 4.0 * e / ((1.0 - e) * (1.0 - e))  # L'(x) = 1/x² − 1/sinh²x
+        step = r / dL
+        x -= step
+        if abs(step) <= 1e-16 * x:
+            break
+    return x

@@ -7,6 +7,14 @@ Two densities are kept apart everywhere:
 * **junction (crosslink) density** μ_j = 2ν/f (mol/m³) for junction functionality f.
 
 Both are called "crosslink density" in papers; every number this module reports says which it is.
+ν has ONE meaning here: elastically active strands (what the modulus measures).  The other density in
+use is named apart: the **chemical (total) strand density** ν_chem = ν + 2ρ/M_n counts the dangling
+chain ends too (Flory), see :attr:`Network.chemical_strand_density` and :meth:`Network.from_chemical`.
+
+Filler (volume fraction φ) amplifies both the modulus and the strain the rubber phase sees, with the
+Guth–Gold factor X = 1 + 2.5φ + 14.1φ²: moduli ×X, and the first invariant the chains feel is the
+amplified Ī₁ = 3 + X(I₁ − 3) (Mullins & Tobin 1965; Bergström & Boyce 1999 [from memory]), so a filled
+network locks where Ī₁ = 3N, i.e. like a gum network with N_eff = 1 + (N − 1)/X.
 """
 
 from __future__ import annotations
@@ -17,7 +25,13 @@ from dataclasses import dataclass, field, replace
 from scipy.constants import R
 
 from .deformation import MODES, Mode
+from .entanglement import G_E_POLICY
+from .errors import ParameterError
 from .materials import Polymer, get_polymer, polymers  # the polymer table lives in materials.py
+
+#: Smallest Kuhn number per strand a network may have: below it a strand is nearly straight at rest and the
+#: Langevin chain statistics (and every modulus built on them) lose their meaning [common practice].
+N_MIN = 1.5
 
 #: Typical bulk modulus of an unfilled rubber, Pa [common practice: ~2 GPa for natural rubber gum].
 BULK_MODULUS_TYPICAL = 2.0e9
@@ -52,6 +66,22 @@ class Network:
     expansion: float | None = None  # volume expansion coefficient, 1/K; None = the polymer's value
     N_direct: bool = field(init=False, default=False)
 
+    @classmethod
+    def from_chemical(cls, nu_chemical: float, Mn: float, **kw) -> Network:
+        """A network from its chemical (total) strand density ν_chem and primary-chain M_n: the
+        elastically active density is ν = ν_chem(1 − 2M_c/M_n) with M_c = ρ/ν_chem (Flory [from memory],
+        physics.md §3).  M_n ≤ 2M_c means no gel (every strand dangles): a ParameterError says so."""
+        poly = get_polymer(kw.get("polymer", "NR"))
+        if not (nu_chemical > 0 and Mn > 0 and math.isfinite(nu_chemical) and math.isfinite(Mn)):
+            raise ParameterError(f"the chemical strand density and M_n must be positive; got {nu_chemical!r}, {Mn!r}")
+        Mc = poly.density / nu_chemical
+        if Mn <= 2.0 * Mc:
+            raise ParameterError(
+                f"M_n = {Mn * 1000:.4g} g/mol is not above 2M_c = {2 * Mc * 1000:.4g} g/mol: below the gel point "
+                "every strand has a free end and the network carries no load. Check M_n (primary chains before "
+                "crosslinking, kg/mol) or the crosslink density")
+        return cls(nu=nu_chemical * (1.0 - 2.0 * Mc / Mn), Mn=Mn, **kw)
+
     def __post_init__(self):
         poly = get_polymer(self.polymer)
         object.__setattr__(self, "polymer", poly.key)
@@ -70,10 +100,12 @@ class Network:
         object.__setattr__(self, "N_direct", self.N is not None)
         if self.N is None:
             object.__setattr__(self, "N", self.Mc / poly.kuhn_molar_mass)
-        if not (self.N > 1.0 and math.isfinite(self.N)):
-            raise ValueError(
-                f"Kuhn segments per strand N must exceed 1; got {self.N!r}"
-                + ("" if self.N_direct else " (from M_c / M_K: the strand density is too high for this polymer)")
+        if not (self.N >= N_MIN and math.isfinite(self.N)):
+            raise ParameterError(
+                f"Kuhn segments per strand N must be at least {N_MIN:g} (a shorter strand is nearly straight at "
+                f"rest and chain statistics do not apply); got {self.N:.4g}"
+                + ("" if self.N_direct else f" from M_c / M_K: the strand density {self.nu:.4g} mol/m³ is too high "
+                   f"for {poly.key}, lower it below {poly.density / (N_MIN * poly.kuhn_molar_mass):.4g} mol/m³")
             )
         if not (self.T > 0):
             raise ValueError(f"temperature must be above absolute zero; got {self.T!r} K")
@@ -112,15 +144,22 @@ class Network:
         return 2.0 * self.nu / self.f
 
     @property
-    def dangling_factor(self) -> float:
-        """Flory's correction 1 − 2M_c/M_n (physics.md §3 [memory]); 1 without M_n; floored at 0."""
+    def chemical_strand_density(self) -> float:
+        """ν_chem = ν + 2ρ/M_n (mol/m³): all strands between junctions and chain ends, dangling ends
+        included (Flory [from memory]); equal to ν without M_n.  Not what the modulus measures."""
         if self.Mn is None:
-            return 1.0
-        return max(0.0, 1.0 - 2.0 * self.Mc / self.Mn)
+            return self.nu
+        return self.nu + 2.0 * self.poly.density / self.Mn
+
+    @property
+    def dangling_factor(self) -> float:
+        """Fraction of the chemical strands that are elastically active, ν/ν_chem = 1 − 2M_c,chem/M_n."""
+        return self.nu / self.chemical_strand_density
 
     @property
     def effective_strand_density(self) -> float:
-        return self.nu * self.dangling_factor
+        """ν itself: the network's strand density is the elastically active one (kept for old callers)."""
+        return self.nu
 
     @property
     def N_source(self) -> str:
@@ -132,9 +171,15 @@ class Network:
         return guth_gold(self.filler_fraction)
 
     @property
+    def N_effective(self) -> float:
+        """Kuhn number of a gum network that locks where this filled one does: 1 + (N − 1)/X (amplified
+        first invariant, see the module text); N itself without filler."""
+        return filler_amplified_N(self.N, self.filler_factor)
+
+    @property
     def affine_modulus(self) -> float:
-        """νRT (dangling ends removed, Guth–Gold amplified), Pa."""
-        return self.effective_strand_density * R * self.T * self.filler_factor
+        """νRT·X (ν elastically active, Guth–Gold amplified), Pa."""
+        return self.nu * R * self.T * self.filler_factor
 
     @property
     def phantom_modulus(self) -> float:
@@ -151,7 +196,7 @@ class Network:
 
     @property
     def small_strain_modulus(self) -> float:
-        """Affine crosslink part plus entanglement part, Pa."""
+        """Affine crosslink part plus entanglement part (the policy's G₀ for affine-reading models), Pa."""
         return self.affine_modulus + self.entanglement_modulus
 
     @property
@@ -165,8 +210,13 @@ class Network:
 
     # ----- extensibility ------------------------------------------------------------------------
     def locking_stretch(self, mode) -> float:
-        """Locking stretch in tension of a network with N Kuhn segments per strand (:func:`lock_from_N`)."""
-        return lock_from_N(self.N, mode)
+        """Locking stretch in tension of a network with N Kuhn segments per strand and its filler
+        (:func:`lock_from_N`)."""
+        return lock_from_N(self.N, mode, self.filler_factor)
+
+    def locking_range(self, mode) -> tuple[float, float]:
+        """(lower, upper) locking stretches in the mode (below 1 the free direction reaches the lock)."""
+        return lock_range_from_N(self.N, mode, self.filler_factor)
 
     # ----- to models -----------------------------------------------------------------------------
     def model_params(self, model) -> dict[str, float]:
@@ -175,33 +225,63 @@ class Network:
         m = get_model(model) if isinstance(model, str) else model
         return m.resolve(m.from_network(self))
 
+    def model_notices(self, model) -> list:
+        """Sentences (``Notice``) when the mapping to ``model`` had to bound a parameter (e.g. δ capped)."""
+        from .models import get_model
+
+        m = get_model(model) if isinstance(model, str) else model
+        return list(m.network_notices(self))
+
     def summary(self) -> dict:
         """Every derived number, with units and what it is."""
         p = self.poly
         return {
             "polymer": {"value": p.key, "title": p.title, "source": p.source, "status": p.status},
             "strand_density": {"value": self.nu, "unit": "mol/m³", "meaning": "elastically active strands ν"},
+            "chemical_strand_density": {"value": self.chemical_strand_density, "unit": "mol/m³",
+                                        "meaning": "chemical (total) strands ν + 2ρ/M_n, dangling ends included"},
             "junction_density": {"value": self.junction_density, "unit": "mol/m³",
                                  "meaning": f"crosslink junctions μ_j = 2ν/f (f = {self.f:g})"},
             "Mc": {"value": self.Mc, "unit": "kg/mol", "meaning": "strand molar mass ρ/ν"},
             "N": {"value": self.N, "unit": "1", "meaning": f"Kuhn segments per strand ({self.N_source})"},
+            "N_effective": {"value": self.N_effective, "unit": "1",
+                            "meaning": "N of the gum network that locks where this filled one does, 1 + (N − 1)/X"},
             "T": {"value": self.T, "unit": "K"},
             "affine_modulus": {"value": self.affine_modulus, "unit": "Pa", "meaning": "νRT (corrected)"},
             "phantom_modulus": {"value": self.phantom_modulus, "unit": "Pa", "meaning": "(1 − 2/f)νRT"},
             "entanglement_modulus": {"value": self.entanglement_modulus, "unit": "Pa",
                                      "meaning": "G_e from the plateau modulus, ∝ T"},
             "locking_stretch": {m.value: self.locking_stretch(m) for m in MODES},
+            "entanglement_policy": G_E_POLICY,
             "poisson_ratio": {"value": self.poisson_ratio, "unit": "1"},
             "bulk_to_shear": {"value": self.bulk_to_shear, "unit": "1"},
         }
 
 
-def lock_from_N(N: float, mode) -> float:
-    """The one place a network's locking stretch in tension comes from its N: the chain reaches full
-    extension when the eight-chain stretch √(I₁/3) equals √N, i.e. I₁(λ) = 3N (Arruda & Boyce 1993)."""
-    from .models import get_model
+def filler_amplified_N(N: float, X: float = 1.0) -> float:
+    """N_eff = 1 + (N − 1)/X: with the amplified first invariant Ī₁ = 3 + X(I₁ − 3), the lock Ī₁ = 3N
+    falls where I₁ = 3N_eff (Bergström & Boyce 1999 [from memory])."""
+    if not (X >= 1.0 and math.isfinite(X)):
+        raise ParameterError(f"the filler amplification factor X must be at least 1; got {X!r}")
+    return 1.0 + (float(N) - 1.0) / X
 
-    return get_model("eight-chain").stretch_limit(mode, mu=1.0, N=N)
+
+def lock_range_from_N(N: float, mode, X: float = 1.0) -> tuple[float, float]:
+    """(lower, upper) locking stretches of a network with N Kuhn segments per strand and filler
+    amplification X: the chains reach full extension where the amplified invariant 3 + X(I₁ − 3) equals
+    3N (eight-chain stretch √(Ī₁/3) = √N, Arruda & Boyce 1993; amplification Bergström & Boyce 1999)."""
+    from .models.base import _I1_lock_stretches
+
+    if not (N > 1.0 and math.isfinite(N)):
+        raise ParameterError(f"Kuhn segments per strand N must exceed 1; got {N!r}")
+    return _I1_lock_stretches(Mode.parse(mode), 3.0 * filler_amplified_N(N, X))
 
 
-__all__ = ["lock_from_N", "Network", "Polymer", "polymers", "get_polymer", "guth_gold", "BULK_MODULUS_TYPICAL", "Mode"]
+def lock_from_N(N: float, mode, X: float = 1.0) -> float:
+    """The one place a network's locking stretch in tension comes from its N (and filler amplification
+    X, 1 = gum): see :func:`lock_range_from_N`."""
+    return lock_range_from_N(N, mode, X)[1]
+
+
+__all__ = ["lock_from_N", "lock_range_from_N", "filler_amplified_N", "N_MIN", "G_E_POLICY", "Network",
+            "Polymer", "polymers", "get_polymer", "guth_gold", "BULK_MODULUS_TYPICAL", "Mode"]

@@ -106,9 +106,15 @@ def shear_modulus_param(name="G", symbol="G", meaning="small-strain shear modulu
     )
 
 
+#: smallest N a chain model accepts (a filled network's amplified N_eff = 1 + (N − 1)/X can lie below the
+#: network's own N_MIN = 1.5, so the models allow a little less) [common practice]
+KUHN_N_MIN = 1.01
+
+
 def kuhn_number_param(default=26.5):
     return Param(
-        "N", "N", "1", (1.0 + 1e-9, 1e6), (3.0, 200.0), default,
-        "Kuhn segments per network strand (sets the locking stretch)",
+        "N", "N", "1", (KUHN_N_MIN, 1e6), (3.0, 200.0), default,
+        "Kuhn segments per network strand (sets the locking stretch; at least 1.01: nearer 1 the chain is "
+        "straight at rest and the small-strain modulus grows without bound)",
         "Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389", log_scale=True,
     )

@@ -118,6 +118,8 @@ def test_from_fit_eight_chain_recovers_strand_density():
 
 
 def test_from_fit_tube_uses_fitted_entanglement_share():
+    # Rubinstein & Panyukov 1997 [from memory]: G₀ = G_c + G_e with G_c the crosslink strands (affine νRT), so
+    # the entanglement-removed row reads ν from the fitted G_c, the plain affine row from G_c + G_e.
     m = get_model("non-affine-tube")
     lam = np.linspace(1.05, 3.0, 30)
     true = {"Gc": 0.25e6, "Ge": 0.2e6}

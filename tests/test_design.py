@@ -17,7 +17,7 @@ from network_models import MODELS, Network, get_model, get_polymer
 from network_models.design import compare_models, design
 from network_models.design_advice import compound_from_fit
 from network_models.design_targets import TargetError, parse_target
-from network_models.network import lock_from_N
+from network_models.network import N_MIN, lock_from_N
 
 T23 = zero_Celsius + 23.0
 
@@ -26,7 +26,8 @@ T23 = zero_Celsius + 23.0
 def test_affine_G_target_gives_G_over_RT_at_both_edges():
     # affine network G = νRT (Kuhn; Wall; Flory, as in Treloar 1975 ch. 4); R from scipy.constants (CODATA)
     G = 0.55e6
-    r = design(["G=0.55MPa±5%"], model="affine", temperature="23C")
+    # entanglements off: under the one G_e policy every model (affine too) adds G_e to νRT
+    r = design(["G=0.55MPa±5%"], model="affine", temperature="23C", entanglements=False)
     assert r.feasible
     assert r.window.lo == pytest.approx(0.95 * G / (R * T23), rel=1e-8)
     assert r.window.hi == pytest.approx(1.05 * G / (R * T23), rel=1e-8)
@@ -35,12 +36,16 @@ def test_affine_G_target_gives_G_over_RT_at_both_edges():
 
 def test_affine_E_and_hot_G_targets():
     # E = 3G (incompressible, small strain; Treloar 1944); G ∝ T at a fixed network (Meyer & Ferri 1935)
-    r = design(["E=1.5MPa±0.15MPa"], model="affine", temperature="23C")
+    r = design(["E=1.5MPa±0.15MPa"], model="affine", temperature="23C", entanglements=False)
     assert r.window.lo == pytest.approx(1.35e6 / 3 / (R * T23), rel=1e-8)
     assert r.window.hi == pytest.approx(1.65e6 / 3 / (R * T23), rel=1e-8)
-    r = design(["G@100C>=0.4MPa"], model="affine", temperature="23C")
+    r = design(["G@100C>=0.4MPa"], model="affine", temperature="23C", entanglements=False)
     assert r.window.lo == pytest.approx(0.4e6 / (R * (zero_Celsius + 100.0)), rel=1e-8)
-    assert r.window.hi_open and r.binding["high"] == []
+    # the top is the densest network the polymer allows, N = N_MIN Kuhn segments per strand with N coupled to
+    # ν (ν = ρ/(N·M_K)); the sentence says the target stops being computable there and why
+    poly = get_polymer("NR")
+    assert r.binding["high"] == ["G@100C>=0.4MPa"] and "at least 1.5" in r.why
+    assert r.window.hi == pytest.approx(poly.density / (N_MIN * poly.kuhn_molar_mass), rel=2e-2)
     assert any(n.kind == "temperature" for n in r.notices)  # physics.md §7: filled compounds often soften
 
 

@@ -46,8 +46,9 @@ def test_json_contract_feasible(capsys):
 
 def test_json_contract_affine_G_edges(capsys):
     # affine G = νRT, R from scipy.constants (CODATA)
+    # entanglements off: under the one G_e policy the affine model also adds G_e to νRT
     code, out, _ = run(capsys, "design", "--model", "affine", "--temperature", "40C", "--target", "G=0.5MPa±4%",
-                       "--json")
+                       "--no-entanglements", "--json")
     d = _doc(out)
     T = zero_Celsius + 40.0
     assert d["strand_density"]["low"] == pytest.approx(0.96 * 0.5e6 / (R * T), rel=1e-8)
@@ -104,7 +105,7 @@ def test_current_from_files(capsys, tmp_path):
     (["--target", "G>=1MPa", "--current-ci", "1..2"], "--current-nu"),
     (["--target", "G>=1MPa", "--current-nu", "100", "--current-ci", "abc"], "235..265"),
     (["--target", "G>=1MPa", "--filler", "0.7"], "filler"),
-    (["--target", "Q(toluene)<=3", "--polymer", "BR"], "chi="),
+    (["--target", "Q(acetone)<=3", "--polymer", "NR"], "chi="),  # no NR–acetone χ row in the table
     (["--target", "Q(water)<=3"], "water"),
 ])
 def test_error_paths_exit_2_with_a_sentence(capsys, args, words):

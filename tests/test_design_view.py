@@ -29,7 +29,7 @@ def test_view_finds_the_window_and_shows_binding():
 
 def test_affine_window_in_the_view_follows_the_explorer_temperature():
     # affine G = νRT (R from scipy.constants, CODATA) at the explorer's temperature
-    st = NetworkState(T_C=60.0)
+    st = NetworkState(T_C=60.0, entanglements=False)  # the affine model adds G_e otherwise (one G_e policy)
     v = create_design_view(explorer_state=st)
     v.state.model = "affine"
     v.rows.objects = []

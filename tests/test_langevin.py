@@ -9,7 +9,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from network_models.langevin import LINV_SERIES, inverse_langevin, langevin, langevin_derivative
+from network_models.langevin import (
+    LINV_SERIES,
+    inverse_langevin,
+    inverse_langevin_scalar,
+    langevin,
+    langevin_derivative,
+)
 from tests.reference import langevin_series_coefficients, mp_inverse_langevin, mp_langevin, revert_odd_series
 
 
@@ -129,3 +135,12 @@ def test_property_finite_inside_and_monotone(y):
         assert np.sign(x[0]) == np.sign(y) or y == 0
         if np.nextafter(y, 2.0) < 1:
             assert x[1] >= x[0] - 1e-14 * abs(x[0])  # monotone within the accuracy promise
+
+
+def test_scalar_inverse_matches_mpmath(reference_points):
+    # the pure-Python scalar path (used per slider move for the chain models' small-strain modulus) keeps the
+    # project's accuracy promise against mpmath (physics.md §6)
+    pts, ref = reference_points
+    got = np.array([inverse_langevin_scalar(float(p)) for p in pts])
+    np.testing.assert_allclose(got, ref, rtol=1e-13, atol=0)
+    assert np.isinf(inverse_langevin_scalar(1.0)) and np.isnan(inverse_langevin_scalar(1.5))

@@ -128,6 +128,19 @@ def test_unknown_model_lists_the_registry():
     assert get_model("Eight Chain") is MODELS["eight-chain"]
 
 
+@pytest.mark.parametrize("name", list(MODELS))
+def test_every_model_answers_the_network_questions(name):
+    """Adding a model = one file + one registry line: it must map from a network under the policy, declare
+    its colour, and its readings must name parameters it has."""
+    from network_models import Network
+
+    m = get_model(name)
+    p = Network(polymer="NR", nu=150.0, filler_fraction=0.1).model_params(m)
+    assert m.colour.startswith("#") and m.colour != Model.colour
+    for r in m.network_reading(p):
+        assert r.modulus_param in p and (r.N_param is None or r.N_param in p)
+
+
 def test_registry_has_the_required_models():
     required = {"affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube",
                 "neo-hookean", "mooney-rivlin", "gent"}
@@ -182,3 +195,6 @@ def test_closed_form_lock_matches_the_numerical_lock(name, mode):
         slow = m._stretch_range_numeric(Mode(mode), p)
         assert fast[1] == pytest.approx(slow[1], rel=1e-12)
         assert fast[0] == pytest.approx(slow[0], rel=1e-10, abs=1e-300)
+        # every mode has a lower lock below 1 (the free direction stretches there); both paths once returned 0
+        # for equibiaxial and planar and agreed with each other — mpmath roots are in test_network_policy.py
+        assert 0.0 < fast[0] < 1.0

@@ -17,7 +17,8 @@ def test_affine_and_phantom_moduli_from_R():
     net = Network(polymer="NR", nu=200.0, T=300.0, entanglements=False)
     assert get_model("affine").from_network(net)["G"] == pytest.approx(200.0 * R * 300.0, rel=1e-15)
     assert get_model("phantom").from_network(net)["G"] == pytest.approx(0.5 * 200.0 * R * 300.0, rel=1e-15)
-    net6 = Network(polymer="NR", nu=200.0, T=300.0, f=6)
+    # entanglements off: under the one G_e policy (network_models.entanglement) they would add G_e to G
+    net6 = Network(polymer="NR", nu=200.0, T=300.0, f=6, entanglements=False)
     assert get_model("phantom").from_network(net6)["G"] == pytest.approx((1 - 2 / 6) * 200.0 * R * 300.0)
 
 
@@ -101,13 +102,16 @@ def test_gent_lock_and_neo_hookean_limit():
 
 
 def test_constrained_junction_limits():
-    # Flory & Erman 1982: κ → 0 gives the phantom network, κ → ∞ the affine network (f = 4: twice phantom).
+    # Flory & Erman 1982: κ → 0 gives the phantom network, κ → ∞ the affine network.  Checked at f = 6: at f = 4
+    # the junction density μ_j = 2ν/f and the cycle rank ξ = ν − μ_j coincide, so a model that used the wrong
+    # one would pass.  Affine/phantom = νRT/((1 − 2/f)νRT) = f/(f − 2) = 3/2 (James & Guth 1943; physics.md §3).
     cj = get_model("constrained-junction")
     lam = np.linspace(0.6, 4, 25)
-    G_ph = 0.2e6
+    G_ph, f = 0.2e6, 6.0
     phantom = G_ph * (lam - lam**-2)
-    np.testing.assert_allclose(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=0.0), phantom, rtol=1e-12)
-    devs = [np.max(np.abs(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=k) / (2 * phantom) - 1))
+    np.testing.assert_allclose(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=0.0, f=f), phantom, rtol=1e-12)
+    affine = f / (f - 2) * phantom
+    devs = [np.max(np.abs(cj.nominal_stress("uniaxial", lam, G_ph=G_ph, kappa=k, f=f) / affine - 1))
             for k in (1e2, 1e3, 1e4)]
     assert devs[0] > devs[1] > devs[2] and devs[2] < 5e-3
 

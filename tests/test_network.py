@@ -48,19 +48,10 @@ def test_filler_and_dangling_ends_scale_the_modulus():
     assert base.affine_modulus == pytest.approx(150.0 * R * 300.0)
     filled = base.with_(filler_fraction=0.1)
     assert filled.affine_modulus / base.affine_modulus == pytest.approx(guth_gold(0.1))
-    # Flory's dangling-end correction ν_eff = ν(1 − 2M_c/M_n) [from memory, physics.md §3]
+    # ν is the elastically active density (one definition): M_n does not change the modulus any more
+    # (it used to subtract the dangling ends a second time); it gives the chemical density instead.
     de = base.with_(Mn=10 * base.Mc)
-    assert de.affine_modulus / base.affine_modulus == pytest.approx(1 - 2 / 10)
-
-
-def test_modulus_proportional_to_absolute_temperature():
-    # Entropic network at fixed structure: G ∝ T (Meyer & Ferri 1935), G_e ∝ T as well (physics.md §4).
-    a = Network(polymer="NR", nu=150.0, T=250.0)
-    b = a.with_(T=375.0)
-    for name, m in MODELS.items():
-        ga = m.small_strain_modulus(**a.model_params(m))
-        gb = m.small_strain_modulus(**b.model_params(m))
-        assert gb / ga == pytest.approx(1.5, rel=1e-12), name
+    assert de.affine_modulus == pytest.approx(base.affine_modulus, rel=1e-15)
 
 
 def test_poisson_ratio_and_bulk_to_shear():
@@ -73,9 +64,11 @@ def test_poisson_ratio_and_bulk_to_shear():
 
 
 def test_locking_stretch_per_mode_orders():
+    # (G ∝ T at fixed network is how the mapping is defined, so it is not tested here: such a test cannot fail)
     net = Network(polymer="NR", nu=150.0)
     u, e, p = (net.locking_stretch(m) for m in (Mode.UNIAXIAL, Mode.EQUIBIAXIAL, Mode.PLANAR))
-    assert e < p < u  # equibiaxial locks first: I₁ grows fastest there
+    # equibiaxial locks first: I₁ grows fastest there [derived from the physics.md §2 invariant table]
+    assert e < p < u
 
 
 def test_every_model_maps_from_a_network():

@@ -80,7 +80,12 @@ def test_strand_density_input_changes_plotted_stress(app_page):
     assert lam1 == pytest.approx(lam0)
     # Affine (Kuhn–Wall–Flory) network in uniaxial tension: P = νRT(λ − λ⁻²) (Treloar, The Physics of
     # Rubber Elasticity, 3rd ed. 1975, ch. 4 [memory]); R from scipy.constants; default T = 23 °C.
-    expected = 300.0 * R * 296.15 * (lam1 - lam1**-2) / 1e6
+    # Under the one G_e policy (network_models.entanglement) the entanglement part, on by default, adds the
+    # plateau modulus ∝ T (polymer table) to every model's modulus, the affine one included.
+    from network_models import get_polymer
+
+    nr = get_polymer("NR")
+    expected = (300.0 * R * 296.15 + nr.plateau_modulus * 296.15 / nr.plateau_temperature) * (lam1 - lam1**-2) / 1e6
     assert p1 == pytest.approx(expected, rel=1e-9)
     # the readout beside the control shows junction density μ_j = 2ν/f = 150 mol/m³ at f = 4 (definition)
     wait_text(page, ".ns-readout", "150 mol/m³")

@@ -37,6 +37,31 @@ class ModulusSplit:
     basis: str = ""
 
 
+@dataclass(frozen=True)
+class ChainReading:
+    """One way a model's fitted parameters read as network numbers beyond G₀ (asked by the crosslink
+    table, which turns it into a row with intervals from the fit).
+
+    The crosslink modulus is the fitted parameter ``modulus_param`` and stands for ``factor``·νRT
+    (1 for affine chains, 1 − 2/f for a phantom part).  ``N_param`` names the parameter that gives the
+    Kuhn number per strand through ``N_map`` (identity for N itself, J_m/3 + 1 for Gent); None means the
+    table uses M_c/M_K.  ``f`` is the junction functionality the reading assumes (None: the table's f).
+    """
+
+    key: str
+    label: str
+    assumes: str
+    modulus_param: str
+    factor: float = 1.0
+    f: float | None = None
+    N_param: str | None = None
+    N_map: object = None  # callable float -> float, None = identity
+    note: str = ""
+
+    def N_of(self, value: float) -> float:
+        return float(value if self.N_map is None else self.N_map(value))
+
+
 def _newton_monotone(f, df, x, tol=1e-15, max_iter=60):
     """Scalar Newton iteration; the callers start on the side where it converges monotonically."""
     for _ in range(max_iter):
@@ -48,20 +73,33 @@ def _newton_monotone(f, df, x, tol=1e-15, max_iter=60):
 
 
 def _I1_lock_stretches(mode: Mode, c: float) -> tuple[float, float]:
-    """Stretches at which I₁(λ) = c in the mode (c > 3): (lower, upper); the lower one only for uniaxial
-    compression.  Scalar Newton from starts where each branch is convex and the residual positive, so the
-    iteration is monotone (no bracketing needed); planar has a closed form."""
+    """Stretches at which I₁(λ) = c in the mode (c > 3): (lower, upper).  Every mode has a lower root
+    (compression in uniaxial; λ < 1 in equibiaxial and planar, where the free direction stretches).
+    Scalar Newton from starts where each branch is convex and the residual positive, so the iteration
+    is monotone (no bracketing needed); planar has a closed form and is symmetric under λ → 1/λ."""
     if not c > 3.0:
         return 1.0, 1.0
     if mode is Mode.UNIAXIAL:  # λ² + 2/λ = c
         hi = _newton_monotone(lambda x: x * x + 2.0 / x - c, lambda x: 2.0 * x - 2.0 / (x * x), math.sqrt(c))
         lo = _newton_monotone(lambda x: x * x + 2.0 / x - c, lambda x: 2.0 * x - 2.0 / (x * x), 2.0 / c)
         return lo, hi
-    if mode is Mode.EQUIBIAXIAL:  # 2λ² + λ⁻⁴ = c
-        hi = _newton_monotone(lambda x: 2.0 * x * x + x**-4 - c, lambda x: 4.0 * x - 4.0 * x**-5, math.sqrt(c / 2.0))
-        return 0.0, hi
+    if mode is Mode.EQUIBIAXIAL:  # 2λ² + λ⁻⁴ = c; lower start c^(-1/4) makes λ⁻⁴ = c, residual 2λ² > 0
+        f = lambda x: 2.0 * x * x + x**-4 - c  # noqa: E731
+        df = lambda x: 4.0 * x - 4.0 * x**-5  # noqa: E731
+        return _newton_monotone(f, df, c**-0.25), _newton_monotone(f, df, math.sqrt(c / 2.0))
     b = c - 1.0  # planar: λ² + 1 + λ⁻² = c  ⇒  u + 1/u = c − 1 with u = λ²
-    return 0.0, math.sqrt((b + math.sqrt(b * b - 4.0)) / 2.0)
+    hi = math.sqrt((b + math.sqrt(b * b - 4.0)) / 2.0)
+    return 1.0 / hi, hi
+
+
+def _max_stretch_lock_stretches(mode: Mode, lm: float) -> tuple[float, float]:
+    """(lower, upper) stretch at which the largest principal stretch reaches ``lm`` (> 1): below 1 the
+    largest stretch is the free/transverse one — λ^(−1/2) uniaxial, λ⁻² equibiaxial, 1/λ planar."""
+    if mode is Mode.UNIAXIAL:
+        return 1.0 / (lm * lm), lm
+    if mode is Mode.EQUIBIAXIAL:
+        return lm**-0.5, lm
+    return 1.0 / lm, lm
 
 
 class Model:
@@ -140,8 +178,34 @@ class Model:
     def small_strain_modulus(self, **params) -> float:
         raise NotImplementedError
 
+    # ----- from a network: the one entanglement policy (network_models.entanglement) ----------------
+    def network_crosslink_modulus(self, network) -> float:
+        """The crosslink part of the small-strain modulus this model gives a :class:`Network` (Pa, filler
+        amplified): affine νRT·X unless the model's physics says otherwise (phantom, constrained junction)."""
+        return network.affine_modulus
+
     def from_network(self, network) -> dict[str, float]:
+        """Parameters for a network under the one entanglement policy: the small-strain modulus is
+        G₀ = G_x + G_e (crosslink part as this model reads ν, plus the network's entanglement part), and
+        the lock follows the network's filler-amplified N (``network.N_effective``)."""
+        from ..entanglement import policy_parts
+
+        Gx, Ge = policy_parts(self, network)
+        return self._from_moduli(Gx, Ge, network)
+
+    def _from_moduli(self, Gx: float, Ge: float, network) -> dict[str, float]:
+        """Parameters whose small-strain modulus is exactly Gx + Ge (each model; tested over the registry)."""
         raise NotImplementedError
+
+    def network_notices(self, network) -> list:
+        """Sentences (``errors.Notice``) when the mapping from this network had to bound something
+        (e.g. the extended tube's δ); empty when the mapping is exact."""
+        return []
+
+    def network_reading(self, values: dict) -> list[ChainReading]:
+        """How the fitted parameters read as network numbers beyond G₀ (chain modulus and N, phantom
+        part with its f, J_m as N); empty when G₀ is all the model says."""
+        return []
 
     def guess(self, modulus: float) -> dict[str, float]:
         """Start values for a fit, from the data's small-strain shear modulus estimate (Pa)."""
@@ -199,10 +263,16 @@ class Model:
         return np.asarray(lam, dtype=np.float64) * self.nominal_stress(mode, lam, params, **kw)
 
     def reduced_stress(self, lam, params=None, **kw):
-        """Mooney reduced stress σ* = P/(λ − λ⁻²) in uniaxial tension/compression, Pa."""
+        """Mooney reduced stress σ* = P/(λ − λ⁻²) in uniaxial tension/compression, Pa.  At λ = 1 (0/0) it
+        returns its limit, the small-strain shear modulus G₀ (P ≈ 3G₀(λ − 1) and λ − λ⁻² ≈ 3(λ − 1))."""
         lam = np.asarray(lam, dtype=np.float64)
         with np.errstate(all="ignore"):
-            return self.nominal_stress(Mode.UNIAXIAL, lam, params, **kw) / (lam - lam**-2)
+            out = self.nominal_stress(Mode.UNIAXIAL, lam, params, **kw) / (lam - lam**-2)
+        at_one = lam == 1.0
+        if np.any(at_one):
+            G0 = float(self.small_strain_modulus(**self.resolve(params, **kw)))
+            out = np.where(at_one, G0, out)
+        return out
 
     def energy(self, mode, lam, params: dict | None = None, **kw):
         """Strain energy per unit reference volume, J/m³ (zero in the undeformed state); NaN past lock."""
@@ -240,7 +310,7 @@ class Model:
             return _I1_lock_stretches(mode, c)
         lm = self._lock_stretch(p)
         if lm is not None:  # locks when the largest principal stretch reaches lm
-            return (1.0 / (lm * lm) if mode is Mode.UNIAXIAL else 0.0), lm
+            return _max_stretch_lock_stretches(mode, lm)
         return self._stretch_range_numeric(mode, p)
 
     def _stretch_range_numeric(self, mode, p) -> tuple[float, float]:
@@ -261,13 +331,12 @@ class Model:
                 break
             x *= 2.0
         lo = 0.0
-        if mode is Mode.UNIAXIAL:
-            x = 0.5
-            while x > 1e-8:
-                if margin(x) <= 0:
-                    lo = brentq(margin, x, 1.0, xtol=1e-15, rtol=1e-15)
-                    break
-                x *= 0.5
+        x = 0.5  # every mode can lock below λ = 1 (the free direction stretches there)
+        while x > 1e-8:
+            if margin(x) <= 0:
+                lo = brentq(margin, x, 1.0, xtol=1e-15, rtol=1e-15)
+                break
+            x *= 0.5
         return lo, hi
 
     def stretch_limit(self, mode, params: dict | None = None, **kw) -> float | None:

@@ -2,12 +2,49 @@
 
 from __future__ import annotations
 
+import math
+from functools import lru_cache
+
 import numpy as np
 
-from ..langevin import inverse_langevin, langevin_derivative
+from ..langevin import inverse_langevin, inverse_langevin_scalar, langevin_derivative
 from ..params import ParamSet, kuhn_number_param, shear_modulus_param
-from ._special import log_x_over_sinh
-from .base import Model
+from ._special import CHAIN_SERIES_MAX_T, chain_energy, chain_energy_difference
+from .base import ChainReading, Model
+
+
+def _chain_energy_sum(d, t0, r, r0):
+    """g(r) − g(r0) per chain: the series (no cancellation at large N) where t = t0 + d = r² is small,
+    the exact form elsewhere."""
+    if t0 > CHAIN_SERIES_MAX_T:
+        return chain_energy(r, r0)
+    with np.errstate(all="ignore"):
+        small = (t0 + d) <= CHAIN_SERIES_MAX_T
+        series = chain_energy_difference(np.where(small, d, 0.0), t0)
+        exact = chain_energy(np.where(small, r0, r), r0)
+    return np.where(small, series, exact)
+
+
+@lru_cache(maxsize=512)
+def _eight_chain_modulus_per_mu(N: float) -> float:
+    """G₀/μ = √N L⁻¹(1/√N)/3 (physics.md §3 [derived]); cached because a network maps to the model once per
+    mode and per readout with the same N."""
+    sn = math.sqrt(N)
+    return sn * inverse_langevin_scalar(1.0 / sn) / 3.0
+
+
+@lru_cache(maxsize=512)
+def _three_chain_modulus_per_mu(N: float) -> float:
+    """G₀/μ of the three-chain model: separable W = Σ w(λᵢ) gives G = (w'(1) + w''(1))/2 [derived]."""
+    sn = math.sqrt(N)
+    beta = inverse_langevin_scalar(1.0 / sn)
+    return float((sn * beta + 1.0 / langevin_derivative(beta)) / 6.0)
+
+
+def _chain_reading(model):
+    return [ChainReading("model-chain-modulus", f"{model.title}: chain modulus μ = νRT",
+                         "μ = nkT = νRT (affine chain density); N as fitted", "mu", 1.0, N_param="N",
+                         note="N here is the fitted Kuhn number (filler-amplified when the compound is filled)")]
 
 
 class EightChain(Model):
@@ -22,7 +59,8 @@ class EightChain(Model):
     equation = ("W = μN[(λ_ch/√N)β + ln(β/sinh β)],  λ_ch = √(I₁/3),  β = L⁻¹(λ_ch/√N);  "
                 "2W₁ = (μ/3)(√N/λ_ch)β")
     references = ("Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389",)
-    assumption = "affine chain density n: μ = nkT = νRT; locking when λ_ch reaches √N"
+    assumption = ("affine chain density n: μ = nkT = νRT; locking when λ_ch reaches √N; from a network, "
+                  "entanglements count as extra chains (μ set so that G₀ = G_x + G_e)")
 
     def _dW_dI(self, I1, I2, p):
         sn = np.sqrt(p["N"])
@@ -32,14 +70,9 @@ class EightChain(Model):
 
     def _W_inv(self, I1, I2, p):
         N = p["N"]
-        sn = np.sqrt(N)
-
-        def w(lch):
-            r = lch / sn
-            beta = inverse_langevin(r)
-            return r * beta + log_x_over_sinh(beta)
-
-        return p["mu"] * N * (w(np.sqrt(I1 / 3.0)) - w(np.ones(1))[0])
+        # W = μN[g(r) − g(r0)], r² = I₁/(3N), r0² = 1/N; r² − r0² = (I₁ − 3)/(3N) formed directly
+        return p["mu"] * N * _chain_energy_sum((I1 - 3.0) / (3.0 * N), 1.0 / N, np.sqrt(I1 / (3.0 * N)),
+                                               1.0 / np.sqrt(N))
 
     def _margin(self, l1, l2, l3, I1, p):
         return 3.0 * p["N"] - I1
@@ -49,11 +82,15 @@ class EightChain(Model):
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
-        sn = np.sqrt(p["N"])
-        return float(p["mu"] * sn * inverse_langevin(1.0 / sn) / 3.0)
+        return p["mu"] * _eight_chain_modulus_per_mu(p["N"])
 
-    def from_network(self, network):
-        return {"mu": network.affine_modulus + network.entanglement_modulus, "N": network.N}
+    def _from_moduli(self, Gx, Ge, network):
+        # μ chosen so that the small-strain modulus μ√N L⁻¹(1/√N)/3 is exactly G_x + G_e (policy)
+        N = network.N_effective
+        return {"mu": (Gx + Ge) / _eight_chain_modulus_per_mu(N), "N": N}
+
+    def network_reading(self, values):
+        return _chain_reading(self)
 
     def guess(self, modulus):
         return {"mu": 0.95 * modulus, "N": 30.0}
@@ -78,15 +115,9 @@ class ThreeChain(Model):
 
     def _W_lam(self, l1, l2, l3, p):
         N = p["N"]
-        sn = np.sqrt(N)
-
-        def w(lam):
-            r = lam / sn
-            beta = inverse_langevin(r)
-            return r * beta + log_x_over_sinh(beta)
-
-        ref = 3.0 * w(np.ones(1))[0]
-        return (p["mu"] * N / 3.0) * (w(l1) + w(l2) + w(l3) - ref)
+        t0, r0 = 1.0 / N, 1.0 / np.sqrt(N)
+        tot = sum(_chain_energy_sum((lam * lam - 1.0) / N, t0, lam / np.sqrt(N), r0) for lam in (l1, l2, l3))
+        return (p["mu"] * N / 3.0) * tot
 
     def _margin(self, l1, l2, l3, I1, p):
         return np.sqrt(p["N"]) - np.maximum(np.maximum(l1, l2), l3)
@@ -96,13 +127,14 @@ class ThreeChain(Model):
 
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
-        sn = np.sqrt(p["N"])
-        beta = inverse_langevin(1.0 / sn)
-        # separable W = Σ w(λᵢ): G = (w'(1) + w''(1))/2 [derived]
-        return float(p["mu"] / 6.0 * (sn * beta + 1.0 / langevin_derivative(beta)))
+        return p["mu"] * _three_chain_modulus_per_mu(p["N"])
 
-    def from_network(self, network):
-        return {"mu": network.affine_modulus + network.entanglement_modulus, "N": network.N}
+    def _from_moduli(self, Gx, Ge, network):
+        N = network.N_effective
+        return {"mu": (Gx + Ge) / _three_chain_modulus_per_mu(N), "N": N}
+
+    def network_reading(self, values):
+        return _chain_reading(self)
 
     def guess(self, modulus):
         return {"mu": 0.95 * modulus, "N": 30.0}

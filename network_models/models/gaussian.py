@@ -7,7 +7,7 @@ import numpy as np
 
 from ..errors import Notice
 from ..params import FUNCTIONALITY, Param, ParamSet, shear_modulus_param
-from .base import Model, ModulusSplit
+from .base import ChainReading, Model, ModulusSplit
 
 
 class NeoHookean(Model):
@@ -29,8 +29,8 @@ class NeoHookean(Model):
     def small_strain_modulus(self, **params):
         return self.resolve(params)["G"]
 
-    def from_network(self, network):
-        return {"G": network.affine_modulus + network.entanglement_modulus}
+    def _from_moduli(self, Gx, Ge, network):
+        return {"G": Gx + Ge}
 
     def guess(self, modulus):
         return {"G": modulus}
@@ -44,10 +44,8 @@ class Affine(NeoHookean):
     params = ParamSet((shear_modulus_param(meaning="affine network modulus νRT"),))
     equation = "W = (G/2)(I₁ − 3),  G = νRT = ρRT/M_c"
     references = ("Kuhn; Wall; Flory — affine Gaussian network, as in Treloar (1975) ch. 4",)
-    assumption = "affine junction displacements: G = νRT (ν = strand density)"
-
-    def from_network(self, network):
-        return {"G": network.affine_modulus}
+    assumption = ("affine junction displacements: G = νRT (ν = strand density); from a network, "
+                  "entanglements add G_e to G")
 
 
 class Phantom(NeoHookean):
@@ -58,15 +56,11 @@ class Phantom(NeoHookean):
     params = ParamSet((shear_modulus_param(meaning="phantom network modulus (1 − 2/f)νRT"),))
     equation = "W = (G/2)(I₁ − 3),  G = ξRT = (1 − 2/f)νRT"
     references = ("James & Guth 1943, J. Chem. Phys. 11:455 — phantom network",)
-    assumption = "junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j)"
+    assumption = ("junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j); from a network, "
+                  "entanglements add G_e to G")
 
-    def modulus_split(self, values):
-        G0 = float(self.small_strain_modulus(**values))
-        return ModulusSplit(total=G0, crosslink=G0, entanglement=0.0, separable=True,
-                            basis="phantom modulus taken as crosslink part (no entanglement term)")
-
-    def from_network(self, network):
-        return {"G": network.phantom_modulus}
+    def network_crosslink_modulus(self, network):
+        return network.phantom_modulus
 
 
 class MooneyRivlin(Model):
@@ -110,8 +104,8 @@ class MooneyRivlin(Model):
         p = self.resolve(params)
         return 2.0 * (p["C1"] + p["C2"])
 
-    def from_network(self, network):
-        return {"C1": network.affine_modulus / 2.0, "C2": network.entanglement_modulus / 2.0}
+    def _from_moduli(self, Gx, Ge, network):
+        return {"C1": Gx / 2.0, "C2": Ge / 2.0}
 
     def guess(self, modulus):
         return {"C1": 0.4 * modulus, "C2": 0.1 * modulus}
@@ -134,7 +128,8 @@ class ConstrainedJunction(Model):
                 "Bᵢ = κ²(λᵢ² − 1)/(λᵢ² + κ)², Dᵢ = λᵢ²Bᵢ/κ,  μ_j = 2ξ/(f − 2)")
     references = ("Flory & Erman 1982, Macromolecules 15:800",
                   "Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389, appendix")
-    assumption = "phantom network plus junction constraints of strength κ; junction density μ_j = 2ν/f"
+    assumption = ("phantom network plus junction constraints of strength κ; junction density μ_j = 2ν/f; "
+                  "from a network, G_e scales G_ph so that G₀ = G_x + G_e")
 
     def _mu_j(self, p):
         return p["G_ph"] * 2.0 / (p["f"] - 2.0)
@@ -170,19 +165,27 @@ class ConstrainedJunction(Model):
         dW_da = 0.5 * self._mu_j(p) * (dB * B / (1.0 + B) + dD * D / (1.0 + D))
         return 2.0 * lam * dW_da
 
+    @staticmethod
+    def _modulus_per_G_ph(kappa, f):
+        # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴ with μ_j = 2ξ/(f − 2)  [derived from the strain energy above]
+        return 1.0 + 2.0 / (f - 2.0) * kappa * kappa * (kappa * kappa + 1.0) / (1.0 + kappa) ** 4
+
     def small_strain_modulus(self, **params):
         p = self.resolve(params)
-        k = p["kappa"]
-        # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴  [derived from the strain energy above]
-        return p["G_ph"] + self._mu_j(p) * k * k * (k * k + 1.0) / (1.0 + k) ** 4
+        return p["G_ph"] * self._modulus_per_G_ph(p["kappa"], p["f"])
 
-    def modulus_split(self, values):
-        G0 = float(self.small_strain_modulus(**values))
-        return ModulusSplit(total=G0, crosslink=G0, entanglement=0.0, separable=True,
-                            basis="constrained-junction modulus taken as crosslink part (no entanglement term)")
+    def network_crosslink_modulus(self, network):
+        # the phantom part (1 − 2/f)νRT·X with the default constraint strength κ on top
+        return network.phantom_modulus * self._modulus_per_G_ph(self.params["kappa"].default, network.f)
 
-    def from_network(self, network):
-        return {"G_ph": network.phantom_modulus, "kappa": self.params["kappa"].default, "f": network.f}
+    def _from_moduli(self, Gx, Ge, network):
+        k = self.params["kappa"].default
+        return {"G_ph": (Gx + Ge) / self._modulus_per_G_ph(k, network.f), "kappa": k, "f": network.f}
+
+    def network_reading(self, values):
+        f = float(values["f"])
+        return [ChainReading("model-phantom-part", f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
+                             f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", "G_ph", 1.0 - 2.0 / f, f=f)]
 
     def guess(self, modulus):
         return {"G_ph": 0.6 * modulus, "kappa": 5.0}

@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..params import Param, ParamSet, shear_modulus_param
-from .base import Model
+from .base import ChainReading, Model
 
 
 class Gent(Model):
@@ -38,8 +38,15 @@ class Gent(Model):
     def small_strain_modulus(self, **params):
         return self.resolve(params)["G"]
 
-    def from_network(self, network):
-        return {"G": network.affine_modulus + network.entanglement_modulus, "Jm": 3.0 * (network.N - 1.0)}
+    def _from_moduli(self, Gx, Ge, network):
+        # J_m matched to the eight-chain lock I₁ = 3N of the (filler-amplified) network
+        return {"G": Gx + Ge, "Jm": 3.0 * (network.N_effective - 1.0)}
+
+    def network_reading(self, values):
+        return [ChainReading("model-chain-equivalent", f"{self.title}: G = νRT, N from J_m",
+                             "G = νRT (affine, entanglements counted); N = J_m/3 + 1 locks where the eight-chain "
+                             "model with that N does", "G", 1.0, N_param="Jm", N_map=lambda J: J / 3.0 + 1.0,
+                             note="N from J_m = 3(N − 1) (matching locks), not from M_c/M_K")]
 
     def guess(self, modulus):
         return {"G": modulus, "Jm": 80.0}

@@ -6,9 +6,12 @@ the uncrosslinked polymer).  Both scale with absolute temperature at a fixed net
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from ..deformation import Mode
+from ..errors import Notice
 from ..params import Param, ParamSet, shear_modulus_param
 from .base import Model, ModulusSplit
 
@@ -54,8 +57,8 @@ class NonAffineTube(Model):
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]
 
-    def from_network(self, network):
-        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus}
+    def _from_moduli(self, Gx, Ge, network):
+        return {"Gc": Gx, "Ge": Ge}
 
     def guess(self, modulus):
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
@@ -107,19 +110,32 @@ class SlipTube(Model):
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]  # den(1) = 1
 
-    def from_network(self, network):
-        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus}
+    def _from_moduli(self, Gx, Ge, network):
+        return {"Gc": Gx, "Ge": Ge}
 
     def guess(self, modulus):
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
-# Sign before the logarithm in the crosslink part of the extended tube model.  "+1" is the usual print of
-# Kaliske & Heinrich 1999 (Rubber Chem. Technol. 72:602, doi 10.5254/1.3538822) — the paper itself was not
-# re-read here, but the same "+" form is what the open-source FElupe library documents for that reference.
-# With it the small-strain modulus of this W is exactly G_c(1 − 2δ²) + G_e (often quoted as G_c + G_e,
-# which holds to O(δ²)); tests check it by differentiating W numerically.
+# Sign before the logarithm in the crosslink part of the extended tube model: "+".  The 1999 paper itself
+# (Kaliske & Heinrich, Rubber Chem. Technol. 72:602, doi 10.5254/1.3538822) was NOT read here; the "+"
+# form is what a later implementation that cites it prints (the Hyperelastics.jl documentation of its
+# ExtendedTubeModel: W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + log(1 − δ²(I₁ − 3))] + (2G_e/β²)Σ(λᵢ^−β − 1),
+# found with the project's search tool) and what the open-source FElupe library documents.
+# With it the small-strain modulus of this W is exactly G_c(1 − 2δ²) + G_e [derived]; tests check it by
+# differentiating W numerically.
 EXTENDED_TUBE_LOG_SIGN = +1.0
+
+# Where the crosslink part stays stable [derived from W above, x = I₁ − 3 ≥ 0, u = 1 − δ²x ∈ (0, 1]]:
+#   2W₁/G_c = [(1 − δ²) − δ²u]/u²            > 0 for every u ≤ 1  ⇔  δ² < ½  (worst case u = 1, small strain)
+#   2W₁₁/G_c = δ²[2(1 − δ²) − δ²u]/u³        > 0 whenever δ² < ⅔
+# so δ² < ½ keeps W₁ > 0 and W₁₁ > 0 (the usual sufficient conditions for an I₁ model to be stable in every
+# homogeneous mode [from memory]) and the small-strain modulus G_c(1 − 2δ²) positive.
+#: largest δ the model accepts (just below 1/√2)
+DELTA_MAX = 0.7071
+#: largest δ the network → model mapping produces: the crosslink part keeps at least half its modulus
+#: (1 − 2δ² ≥ ½); a network that asks for more (N_eff < 7/3) gets this δ and a notice
+DELTA_NETWORK_MAX = 0.5
 
 
 class ExtendedTube(Model):
@@ -130,17 +146,17 @@ class ExtendedTube(Model):
     has_stretch_part = True
     params = ParamSet((
         _GC, _GE,
-        Param("delta", "δ", "1", (0.0, 1.0), (0.02, 0.3), 0.1,
-              "finite extensibility: the model locks at I₁ − 3 = 1/δ²",
-              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [memory]"),
+        Param("delta", "δ", "1", (0.0, DELTA_MAX), (0.02, 0.3), 0.1,
+              "finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
+              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [from memory]; bound derived in tube.py"),
         Param("beta", "β", "1", (1e-6, 1.0), (0.05, 1.0), 0.2,
               "tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
               "Kaliske & Heinrich 1999 [memory]", held=True),
     ))
     equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
                 "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
-    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (sign of the log term as usually printed; "
-                  "paper not re-read)",)
+    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (paper not read here; the + sign of the "
+                  "log term as reprinted in the Hyperelastics.jl documentation, which cites it)",)
     assumption = "G_c crosslinks, G_e entanglements; δ sets the extensibility of crosslink strands"
 
     def _dW_dI(self, I1, I2, p):
@@ -178,11 +194,36 @@ class ExtendedTube(Model):
         d2 = p["delta"] ** 2
         return p["Gc"] * (1.0 - d2 + EXTENDED_TUBE_LOG_SIGN * (-d2)) + p["Ge"]
 
-    def from_network(self, network):
-        # match the extensibility to the eight-chain lock: I₁ − 3 = 3N − 3  ⇒  δ = 1/√(3(N − 1))
-        delta = min(0.999, 1.0 / np.sqrt(max(3.0 * (network.N - 1.0), 1e-12)))
-        return {"Gc": network.affine_modulus, "Ge": network.entanglement_modulus, "delta": float(delta),
+    @staticmethod
+    def _network_delta(network) -> tuple[float, float]:
+        """(δ used, δ asked): the extensibility matched to the eight-chain lock of the filler-amplified
+        network, I₁ − 3 = 3(N_eff − 1) ⇒ δ = 1/√(3(N_eff − 1)), capped at DELTA_NETWORK_MAX."""
+        asked = 1.0 / math.sqrt(3.0 * (network.N_effective - 1.0))
+        return min(asked, DELTA_NETWORK_MAX), asked
+
+    def _from_moduli(self, Gx, Ge, network):
+        delta, _ = self._network_delta(network)
+        # G_c chosen so that the small-strain modulus G_c(1 − 2δ²) + G_e is exactly G_x + G_e (policy)
+        return {"Gc": Gx / (1.0 - 2.0 * delta * delta), "Ge": Ge, "delta": delta,
                 "beta": self.params["beta"].default}
+
+    def network_notices(self, network):
+        delta, asked = self._network_delta(network)
+        if asked <= delta:
+            return []
+        return [Notice(
+            f"extended tube: this network's N (effective {network.N_effective:.3g}) asks for δ = {asked:.3g}, "
+            f"beyond the stable range; δ is capped at {DELTA_NETWORK_MAX:g}, so this model locks at "
+            f"I₁ − 3 = {1 / DELTA_NETWORK_MAX**2:g} instead of {1 / asked**2:.3g} (a strand this short is at "
+            "the edge of what the model describes)", "bounded", self.name)]
+
+    def stability_notes(self, values):
+        d2 = float(values.get("delta", 0.0)) ** 2
+        if 1.0 - 2.0 * d2 < 0.1:
+            return [Notice(f"extended tube: δ = {math.sqrt(d2):.3g} is close to 1/√2, where the crosslink part "
+                           "loses its small-strain stiffness (G_c(1 − 2δ²) → 0); treat G_c as poorly determined",
+                           "unstable", self.name)]
+        return []
 
     def guess(self, modulus):
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus, "delta": 0.08}
