@@ -85,6 +85,7 @@ def test_modified_z_matches_definition():
     assert st.outliers(x) == [4]
     assert st.outliers([1.0, 1.0, 1.0, 5.0]) == []  # MAD = 0: no robust scale, nothing flagged
     assert st.outliers([1.0, 2.0]) == []
+    assert st.outliers([10.0, 10.1, 13.0, 9.9]) == []  # fewer than five values: not judged
 
 
 # ----- simulations with a known truth ----------------------------------------------------------------
