@@ -274,8 +274,11 @@ class Manifest:
         return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def load_manifest(path, **read_options) -> Manifest:
-    """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder."""
+def load_manifest(path=None, **read_options) -> Manifest:
+    """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder.  Default: the
+    bundled sample set (sample_sets/compounds.toml)."""
+    if path is None:
+        from .testdata import SAMPLE_MANIFEST as path
     p = Path(path)
     if p.is_dir():
         for cand in ("compounds.toml", "manifest.toml", "manifest.json"):
