@@ -354,3 +354,37 @@ def test_app_compare_state_and_download_agree():
     assert nu["B"] / nu["A"] == pytest.approx(1.2, rel=1e-6)  # 2C₁ ratio 0.24/0.20 (closed form above)
     with pytest.raises(ValueError, match="name"):
         st.add_uploads("", [("a.csv", b"x")])
+
+
+def test_cli_compare_json_contract(tmp_path, capsys):
+    # the documented contract (README, "Comparing compounds"): one JSON object with these names
+    from network_models.cli import main
+
+    specs = []
+    for name, C1, factors in (("A", 0.20e6, (0.97, 1.0, 1.03)), ("B", 0.26e6, (0.99, 1.02, 0.98))):
+        lam = np.linspace(1.05, 4.0, 40)
+        f = tmp_path / f"{name}.csv"
+        rows = [f"{name}-{i},{x:.5f},{k * y / 1e6:.7f}" for i, k in enumerate(factors, 1)
+                for x, y in zip(lam, mooney_uniaxial(lam, C1, 0.05e6), strict=True)]
+        head = "# mode: uniaxial\n# temperature: 23 °C\nspecimen,stretch,stress (MPa)\n"
+        f.write_text(head + "\n".join(rows), "utf-8")
+        specs += ["--compound", f"{name}={f}"]
+    assert main(["compare", *specs, "--baseline", "A", "--model", "mooney-rivlin", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert isinstance(doc, dict)
+    for c in doc["compounds"]:
+        assert isinstance(c["name"], str)
+        assert [s["name"] for s in c["specimens"]] == [f"{c['name']}-{i}" for i in (1, 2, 3)]
+        assert all(s["G0"] > 0 for s in c["specimens"])
+        g = c["G0"]
+        assert g["n"] == 3 and g["ci95"][0] < g["mean"] < g["ci95"][1] and g["sd"] > 0 and g["median"] > 0
+        h = c["headline"]
+        assert h["quantity"] == "strand_density" and h["unit"] == "mol/m³" and h["value"] > 0 and h["basis"]
+        assert len(h["ci95"]) == 2
+    d = {x["quantity"]: x for x in doc["differences"]}
+    assert set(d) >= {"G0", "strand_density"}
+    for x in d.values():
+        assert x["compound"] == "B" and x["verdict"] in ("different", "not distinguishable", "cannot judge")
+        assert {"percent", "absolute", "ci95"} <= set(x)
+    # 2C₁ +30 % with ~3 % scatter: G₀ +24 % (Mooney: G₀ = 2(C₁ + C₂)) — different
+    assert d["G0"]["verdict"] == "different" and d["G0"]["percent"] == pytest.approx(24.0, abs=3.0)
