@@ -128,13 +128,8 @@ def flory_rehner_strand_density(phi: float, chi: float, V1: float, f: float = 4.
 
 def specimen_values(curves: list[TestCurve], mode: Mode, lam: float) -> list[float]:
     """Nominal stress at ``lam`` on each curve of ``mode`` that reaches it (loading branch, linear interpolation)."""
-    out = []
-    for c in curves:
-        if c.mode is mode:
-            v = stress_at([TestCurve(Mode.UNIAXIAL, c.stretch, c.stress)], lam)
-            if v is not None:
-                out.append(v)
-    return out
+    vals = (stress_at([c], lam, mode) for c in curves if c.mode is mode)
+    return [v for v in vals if v is not None]
 
 
 def measured_at(curves: list[TestCurve], mode: Mode, lam: float) -> tuple[float | None, int]:

@@ -89,12 +89,12 @@ def main_mode(groups: dict[str, list]) -> Mode | None:
     return Mode.UNIAXIAL if Mode.UNIAXIAL in best else best[0]
 
 
-def stress_at(curves, lam: float) -> float | None:
-    """Mean nominal stress at ``lam`` over the uniaxial curves that reach it (loading branch, linear
+def stress_at(curves, lam: float, mode: Mode = Mode.UNIAXIAL) -> float | None:
+    """Mean nominal stress at ``lam`` over the curves of ``mode`` that reach it (loading branch, linear
     interpolation); None when none does."""
     vals = []
     for c in curves:
-        if c.mode is not Mode.UNIAXIAL or len(c) < 2:
+        if c.mode is not mode or len(c) < 2:
             continue
         imax = int(np.argmax(c.stretch))
         x, y = c.stretch[: imax + 1], c.stress[: imax + 1]
