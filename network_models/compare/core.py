@@ -25,10 +25,11 @@ def _pooling_problem(compound) -> str | None:
     for c in compound.curves:
         who = c.metadata.get("compound")
         if who not in (None, ""):
-            said.setdefault(str(who), set()).add(c.metadata.get("file") or c.source or c.name)
+            said.setdefault(str(who), set()).add(c.source or c.metadata.get("file") or c.name)
     if len(said) < 2:
         return None
-    parts = "; ".join(f"{', '.join(sorted(files))} say compound {who!r}" for who, files in said.items())
+    parts = "; ".join(f"{', '.join(sorted(files))} {'says' if len(files) == 1 else 'say'} compound {who!r}"
+                      for who, files in said.items())
     split = " ".join(f"--compound {who}={','.join(sorted(files))}" for who, files in said.items())
     return (f"{compound.name}: the files belong to different compounds ({parts}), so they are not pooled into one "
             f"fit; compare them as separate compounds ({split}), or ask for pooling explicitly (pool=True, --pool)")

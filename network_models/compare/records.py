@@ -16,7 +16,8 @@ TEMPERATURE_NOTE = ("G ∝ T at a fixed network (entropic elasticity); filled co
                     "temperature in reality, so treat the service-temperature modulus of a filled compound as "
                     "an upper estimate and check it with a test at that temperature")
 #: how the interval of a specimen quantity is made (shown beside it)
-SPECIMEN_INTERVAL = "mean of {n} specimens; interval: specimen scatter with fit error (Student t, n − 1)"
+SPECIMEN_INTERVAL = ("mean of the specimens (n beside each value); interval: specimen scatter with fit error "
+                     "(Student t, n − 1)")
 ONE_SPECIMEN = ("one specimen: scatter unknown — no interval is shown for the compound (the fit's own interval "
                 "[{lo} … {hi}] covers the fit only)")
 
