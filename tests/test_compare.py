@@ -185,10 +185,11 @@ def test_exclusion_is_kept_with_its_reason():
 
 def test_files_of_different_compounds_are_not_pooled():
     a = mr_compound("A", 0.2e6, 0.05e6, planar=False)
-    a.curves[0].metadata.update(compound="QX-1", file="x.csv")
-    a.curves[1].metadata.update(compound="QX-2", file="y.csv")
+    a.curves[0].metadata.update(compound="QX-1")
+    a.curves[1].metadata.update(compound="QX-2")
+    a.curves[0].source, a.curves[1].source = "lab/x.csv", "lab/y.csv"
     r = compare([a], model="mooney-rivlin", spread_models=())["A"]
-    assert not r.ok and "not pooled" in r.error and "x.csv" in r.error and "--compound" in r.error
+    assert not r.ok and "not pooled" in r.error and "--compound QX-1=lab/x.csv" in r.error
     assert compare([a], model="mooney-rivlin", pool=True, spread_models=())["A"].ok
 
 
