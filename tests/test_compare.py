@@ -389,3 +389,31 @@ def test_cli_compare_json_contract(tmp_path, capsys):
         assert {"percent", "absolute", "ci95"} <= set(x)
     # 2C₁ +30 % with ~3 % scatter: G₀ +24 % (Mooney: G₀ = 2(C₁ + C₂)) — different
     assert d["G0"]["verdict"] == "different" and d["G0"]["percent"] == pytest.approx(24.0, abs=3.0)
+
+
+def test_specimen_grouping_rules():
+    from network_models.compare import specimen_groups
+    from network_models.compare.specimens import main_mode
+
+    lam = np.linspace(1.05, 2.0, 5)
+    P = mooney_uniaxial(lam, 0.2e6, 0.0)
+    cs = [TestCurve("uniaxial", lam, P, name="a1", source="a.csv", specimen="1"),
+          TestCurve("planar", lam, P, name="a1p", source="a_planar.csv", specimen="1"),  # same piece, other mode
+          TestCurve("uniaxial", lam, P, name="b1", source="b.csv", specimen="1"),  # same name, other file
+          TestCurve("uniaxial", lam, P, name="c", source="lab/c.csv"),  # one file per specimen
+          TestCurve("uniaxial", lam, P, name="d", metadata={"specimen": "D-7"})]
+    g = specimen_groups(cs)
+    assert list(g) == ["1", "b.csv:1", "c.csv", "D-7"]
+    assert [c.name for c in g["1"]] == ["a1", "a1p"]
+    assert main_mode(g) is Mode.UNIAXIAL
+    assert main_mode({"p": [cs[1]], "u": [cs[0]]}) is Mode.UNIAXIAL  # a tie goes to uniaxial
+
+
+def test_cli_exclusion_spec_is_checked():
+    from network_models.cli import UserError
+    from network_models.commands.report import parse_exclusions
+
+    assert parse_exclusions(["A:S1:torn: at grip", "A:S2", "B:x"]) == {
+        "A": {"S1": "torn: at grip", "S2": "excluded by the user"}, "B": {"x": "excluded by the user"}}
+    with pytest.raises(UserError, match="COMPOUND:SPECIMEN"):
+        parse_exclusions(["A"])
