@@ -37,6 +37,7 @@ class Quantity:
     display_scale: float = 1.0
     note: str = ""
     n: int | None = None  # specimens behind the value (None: not a specimen quantity)
+    interval: str = ""  # how the interval was made, when not the pooled fit's
 
     @property
     def has_interval(self) -> bool:
@@ -49,7 +50,7 @@ class Quantity:
         return {"key": self.key, "label": self.label, "value": self.value, "unit": self.unit,
                 "ci95_low": self.low, "ci95_high": self.high, "basis": self.basis,
                 "display_unit": self.display_unit or self.unit, "display_scale": self.display_scale,
-                "note": self.note, "n": self.n}
+                "note": self.note, "n": self.n, "interval": self.interval}
 
 
 @dataclass

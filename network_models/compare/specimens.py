@@ -274,7 +274,7 @@ def specimen_table(res, tier: int, why: str) -> None:
             fit_se = [sp.fit_se.get(q) for sp in res.specimens if sp.used and sp.values.get(q) is not None]
             qt.value = s.mean
             qt.low, qt.high = combined_interval(s, fit_se)
-            qt.basis = SPECIMEN_INTERVAL + (f"; {qt.basis}" if qt.basis else "")
+            qt.interval = SPECIMEN_INTERVAL
         elif qt.has_interval:
             sc = qt.display_scale
             qt.note = ONE_SPECIMEN.format(lo=f"{qt.low * sc:.4g}", hi=f"{qt.high * sc:.4g}") + (

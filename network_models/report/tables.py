@@ -35,7 +35,7 @@ def _fit_rows(out: _Rows, r) -> None:
                 p.display_scale, note="held fixed" if p.held else f"standard error {p.stderr!r}")
     for q in r.quantities.values():
         out.add("quantity", r.name, q.key, q.label, q.value, q.unit, q.low, q.high, q.display_unit,
-                q.display_scale, q.basis, q.note)
+                q.display_scale, q.basis, "; ".join(x for x in (q.interval, q.note) if x))
     for fq in r.fit_quality:
         out.add("fit_quality", r.name, f"rms_{fq['mode']}", f"RMS residual, {fq['mode']}", fq["rms_Pa"], "Pa",
                 shown_unit="MPa", scale=1e-6)
