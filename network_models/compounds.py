@@ -45,6 +45,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .constants import kelvin
 from .testdata import DataError, TestCurve
 
 
@@ -86,7 +87,7 @@ class SwellingTest:
             if f"{k}_g" in d:
                 d[k] = float(d.pop(f"{k}_g")) / 1000.0
         if "temperature_C" in d:
-            d["temperature"] = float(d.pop("temperature_C")) + 273.15
+            d["temperature"] = kelvin(float(d.pop("temperature_C")))
         try:
             return cls(**d)
         except TypeError as exc:

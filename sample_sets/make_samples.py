@@ -26,6 +26,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from network_models import get_model
+from network_models.constants import LAB_TEMPERATURE, ZERO_CELSIUS
 from network_models.thermo import force_at_fixed_length
 
 SEED = 20261202
@@ -33,7 +34,7 @@ HERE = Path(__file__).resolve().parent
 BANNER = ("INVENTED DATA for demonstration only. Quillmere Elastomer Works is an invented maker; "
           "these are not measurements")
 GENERATOR = get_model("extended-tube")
-T_TEST = 296.15  # 23 °C, the usual laboratory temperature [common practice]
+T_TEST = LAB_TEMPERATURE  # 23 °C, the usual laboratory temperature [common practice]
 
 #: The invented compounds: recipe facts for the manifest and the extended-tube parameters behind the data.
 #: Gc, Ge and delta are what ``Network(polymer="NR", nu=..., T=296.15, filler_fraction=phi)`` gave when the
@@ -265,13 +266,13 @@ def force_temperature(rng) -> str:
     """QM-S2 clamped at λ = 2.0, heated from 20 to 80 °C; force from the Gaussian network with expansion."""
     c = COMPOUNDS["QM-S2"]
     area = 4e-3 * 2e-3
-    T = np.arange(20.0, 81.0, 5.0) + 273.15
+    T = np.arange(20.0, 81.0, 5.0) + ZERO_CELSIUS
     F = force_at_fixed_length(T, 2.0, c["Gc"] + c["Ge"], T_TEST, area, expansion=6.6e-4)
     F = F * (1 + rng.normal(0, 0.004, T.size))
     out = [header(["compound: QM-S2", "stretch: 2.0", "width: 4 mm", "thickness: 2 mm",
                    "note: clamped at stretch 2.0 at 23 °C, relaxed 2 h, then heated in 5 °C steps (invented)"]),
            "temperature (°C),force (N)\n"]
-    out += [f"{t - 273.15:.1f},{f:.4f}\n" for t, f in zip(T, F, strict=True)]
+    out += [f"{t - ZERO_CELSIUS:.1f},{f:.4f}\n" for t, f in zip(T, F, strict=True)]
     return "".join(out)
 
 
@@ -314,7 +315,7 @@ def manifest() -> str:
         "invented = true\n",
         "polymer = \"NR\"\n",
         "baseline = \"QM-S2\"\n",
-        f"test_temperature_C = {T_TEST - 273.15:.1f}\n",
+        f"test_temperature_C = {T_TEST - ZERO_CELSIUS:.1f}\n",
         f"generator = {q(generator)}\n",
         "purpose = \"Choose the cure dose; check whether the accelerator change and the filler matter\"\n\n",
     ]

@@ -125,11 +125,12 @@ def _fmt(q, scale=None):
 
 def summary(cmp) -> str:
     """A tidy human summary of a comparison."""
+    from ..constants import celsius
     from ..models import get_model
 
     m = get_model(cmp.model)
     lines = [f"Model: {m.title}; baseline {cmp.baseline}; "
-             f"service temperature {cmp.service_temperature - 273.15:.1f} °C",
+             f"service temperature {celsius(cmp.service_temperature):.1f} °C",
              "ν = strand density, μ_j = junction (crosslink) density = 2ν/f; basis: the headline basis below; "
              "values are specimen means, [95 % interval] from specimen scatter with fit error", ""]
     cols = (("G0", "G₀ (MPa)"), ("nu", "ν (mol/m³)"), ("mu_j", "μ_j (mol/m³)"), ("Mc", "M_c (g/mol)"),
