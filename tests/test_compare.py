@@ -417,3 +417,16 @@ def test_cli_exclusion_spec_is_checked():
         "A": {"S1": "torn: at grip", "S2": "excluded by the user"}, "B": {"x": "excluded by the user"}}
     with pytest.raises(UserError, match="COMPOUND:SPECIMEN"):
         parse_exclusions(["A"])
+
+
+def test_outlier_is_flagged_once_and_can_be_excluded():
+    # five specimens, one at 1.6× the others: its modified z-score (Iglewicz & Hoaglin 1993) is far above 3.5
+    a = mr_compound("A", 0.2e6, 0.05e6, planar=False, factors=(1.0, 1.01, 0.99, 1.02, 1.6))
+    r = compare([a], model="mooney-rivlin", spread_models=())["A"]
+    flagged = [s.name for s in r.specimens if s.outlier]
+    assert flagged == ["A-5"] and "G0" in r.specimens[4].outlier
+    notes = [w for w in r.warnings if getattr(w, "kind", None) == "outlier"]
+    assert len(notes) == 1 and "A-5" in notes[0]
+    r2 = compare([a], model="mooney-rivlin", spread_models=(), exclude={"A": {"A-5": "air bubble"}})["A"]
+    assert r2.stats["G0"].n == 4 and r2.stats["G0"].mean == pytest.approx(
+        np.mean([1.0, 1.01, 0.99, 1.02]) * 2 * 0.25e6, rel=1e-6)

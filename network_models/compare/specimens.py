@@ -218,6 +218,7 @@ def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> N
     """Fit every specimen of ``res.compound`` alone, flag outliers, apply exclusions, choose the headline
     basis, summarise every specimen quantity (``res.stats``) and put the specimen means and intervals into
     the comparison table."""
+    from ..errors import Notice
     from ..statistics import OUTLIER_Z, modified_z, summarize
 
     c = res.compound
@@ -239,22 +240,26 @@ def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> N
             read_specimen(m, fr, c, res.test_temperature, spec, propagate)
         res.specimens.append(spec)
     for name in exclude:
-        res.warnings.append(f"{c.name}: no specimen called {name!r} to exclude; specimens are "
-                            f"{', '.join(groups) or 'none'}")
+        res.warnings.append(Notice(f"{c.name}: no specimen called {name!r} to exclude; specimens are "
+                                   f"{', '.join(groups) or 'none'}", "exclusion", c.name))
     tier, why = choose_tier({t: v for t, (v, _ci) in res.pooled_nu.items()}, res.specimens)
     for spec in res.specimens:
         if spec.error is None:
             finish_specimen(spec, tier, c)
     used = [s for s in res.specimens if s.used]
+    flags: dict[str, list[str]] = {}
     for q in SPECIMEN_QUANTITIES:
         zs = modified_z([s.values.get(q) for s in used])
         for s, z in zip(used, zs, strict=True):
             if z is not None and abs(z) > OUTLIER_Z:
                 s.outlier.append(q)
-                res.warnings.append(f"{c.name}: specimen {s.name} is far from the others on {q} (modified z-score "
-                                    f"{z:+.1f} > {OUTLIER_Z:g}, Iglewicz & Hoaglin 1993); look at it, and exclude it "
-                                    "with a reason if a fault is known")
+                flags.setdefault(s.name, []).append(f"{q} ({z:+.1f})")
         res.stats[q] = summarize(res.specimen_values(q))
+    for name, where in flags.items():
+        res.warnings.append(Notice(
+            f"{c.name}: specimen {name} is far from the others — modified z-score above {OUTLIER_Z:g} (Iglewicz & "
+            f"Hoaglin 1993) on {', '.join(where)}; look at it, and exclude it with a reason if a fault is known",
+            "outlier", c.name))
     return tier, why
 
 
