@@ -33,8 +33,8 @@ Manifest format (TOML; JSON with the same keys also works)::
     chi = 0.39                                       # optional: Flory–Huggins χ (default: solvent table)
 
 The ``[compounds.NAME]`` table form (one table per compound) is accepted too, and so is the sample-set
-manifest read by :func:`network_models.testdata.read_manifest` (``[scenario]`` + ``[[compound]]`` with
-``key``; swelling from its swelling table).
+manifest (``[scenario]`` + ``[[compound]]`` with ``key``, files as ``{ path, mode }``, one ``[swelling]``
+table; sample_sets/README.md), read here directly.
 """
 
 from __future__ import annotations
@@ -45,6 +45,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .constants import kelvin
 from .testdata import DataError, TestCurve
 
 
@@ -86,7 +87,7 @@ class SwellingTest:
             if f"{k}_g" in d:
                 d[k] = float(d.pop(f"{k}_g")) / 1000.0
         if "temperature_C" in d:
-            d["temperature"] = float(d.pop("temperature_C")) + 273.15
+            d["temperature"] = kelvin(float(d.pop("temperature_C")))
         try:
             return cls(**d)
         except TypeError as exc:
@@ -246,16 +247,39 @@ def _manifest_entries(doc) -> list[dict]:
 
 @dataclass
 class Manifest:
+    """The one manifest type: compounds (read, with their curves and swelling tests), title, purpose,
+    baseline, and for the sample-set format the swelling table and force–temperature files it names."""
+
     compounds: list[Compound]
     title: str = ""
     purpose: str = ""
     baseline: str | None = None
     path: str = ""
     extra: dict = field(default_factory=dict)
+    swelling_path: Path | None = None
+    force_temperature: list[Path] = field(default_factory=list)
+
+    def __iter__(self):
+        return iter(self.compounds)
+
+    def __getitem__(self, name: str) -> Compound:
+        for c in self.compounds:
+            if c.name == name:
+                return c
+        raise KeyError(f"no compound {name!r} in {Path(self.path).name}; it lists "
+                       f"{', '.join(c.name for c in self.compounds)}")
+
+    def force_temperature_records(self) -> list:
+        from .testdata import read_force_temperature
+
+        return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def load_manifest(path, **read_options) -> Manifest:
-    """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder."""
+def load_manifest(path=None, **read_options) -> Manifest:
+    """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder.  Default: the
+    bundled sample set (sample_sets/compounds.toml)."""
+    if path is None:
+        from .testdata import SAMPLE_MANIFEST as path
     p = Path(path)
     if p.is_dir():
         for cand in ("compounds.toml", "manifest.toml", "manifest.json"):
@@ -273,7 +297,7 @@ def load_manifest(path, **read_options) -> Manifest:
         raise DataError(f"manifest {p.name}: cannot be parsed ({exc}); fix the syntax") from None
     if isinstance(doc, dict) and ("scenario" in doc or any(
             isinstance(e, dict) and "key" in e and "name" not in e for e in doc.get("compound", []))):
-        return _from_sample_manifest(p)
+        return _from_sample_manifest(p, doc, read_options)
     entries = _manifest_entries(doc)
     comps, baseline = [], doc.get("baseline") if isinstance(doc, dict) else None
     for i, e in enumerate(entries, 1):
@@ -312,33 +336,52 @@ def load_manifest(path, **read_options) -> Manifest:
                     baseline=baseline, path=str(p), extra=extra)
 
 
-def _from_sample_manifest(p: Path) -> Manifest:
-    """The sample-set manifest format of :func:`network_models.testdata.read_manifest`."""
-    from .testdata import read_manifest
+def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
+    """The sample-set manifest format (``[scenario]`` + ``[[compound]]`` with ``key``, files as
+    ``{ path, mode, note }``, one ``[swelling]`` table, ``[[force_temperature]]``; sample_sets/README.md)."""
+    from .testdata import read_swelling
 
-    man = read_manifest(p)
-    swell = man.swelling_results()
-    raw_swell = tomllib.loads(p.read_text("utf-8")).get("swelling", {})
-    chi = raw_swell.get("chi") if isinstance(raw_swell, dict) else None
+    scen = doc.get("scenario", {})
+    if not isinstance(scen, dict):
+        raise DataError(f"manifest {p.name}: [scenario] must be a table")
+    raw_swell = doc.get("swelling", {})
+    if not isinstance(raw_swell, dict):
+        raise DataError(f"manifest {p.name}: [swelling] must be one table with a path")
+    swell_path = p.parent / raw_swell["path"] if raw_swell.get("path") else None
+    swell = read_swelling(swell_path) if swell_path is not None else []
     comps = []
-    for c in man.compounds:
-        info = dict(c.info)
+    for i, e in enumerate(doc.get("compound", []), 1):
+        if not isinstance(e, dict) or not e.get("key"):
+            raise DataError(f"manifest {p.name}: compound number {i} has no 'key'")
+        key = str(e["key"])
+        info = {k: v for k, v in e.items() if k not in ("key", "title", "polymer", "files")}
         notes = str(info.pop("notes", info.pop("note", "")))
         baseline = bool(info.pop("baseline", False))
         f = float(info.pop("f", 4.0))
-        meta = {"title": c.title} if c.title and c.title != c.key else {}
-        meta.update(info)
+        title = str(e.get("title", key))
+        meta = ({"title": title} if title != key else {}) | info
         curves = []
-        for cf in c.curve_files:
-            if not cf.path.exists():
-                raise DataError(f"manifest {p.name}: compound {c.key!r} lists {cf.path.name}, which is not there")
-            curves.extend(_read(cf.path, mode=cf.mode))
-        tests = [SwellingTest.from_record(r, chi=chi) for r in swell if r.compound in (c.key, c.title)]
-        comps.append(Compound(name=c.key, curves=curves, swelling=tests, metadata=meta, polymer=c.polymer, f=f,
-                              notes=notes, baseline=baseline))
-    baseline = man.info.get("baseline") or next((c.name for c in comps if c.baseline), None)
-    return Manifest(comps, title=man.title, purpose=str(man.info.get("purpose", man.note or "")),
-                    baseline=baseline, path=str(p), extra=dict(man.info))
+        for fe in e.get("files", []):
+            fe = {"path": fe} if isinstance(fe, str) else fe
+            if not isinstance(fe, dict) or not isinstance(fe.get("path"), str):
+                raise DataError(f"manifest {p.name}: compound {key!r}: each file needs a path, e.g. "
+                                '{ path = "A_uniaxial.csv", mode = "uniaxial" }')
+            path = p.parent / fe["path"]
+            if not path.exists():
+                raise DataError(f"manifest {p.name}: compound {key!r} lists {path.name}, which is not there")
+            opts = dict(read_options) | ({"mode": fe["mode"]} if fe.get("mode") else {})
+            curves.extend(_read(path, **opts))
+        tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell if r.compound in (key, title)]
+        comps.append(Compound(name=key, curves=curves, swelling=tests, metadata=meta,
+                              polymer=str(e.get("polymer", scen.get("polymer", "NR"))), f=f, notes=notes,
+                              baseline=baseline))
+    names = [c.name for c in comps]
+    if len(set(names)) != len(names):
+        raise DataError(f"manifest {p.name}: compound keys must be unique; got {', '.join(names)}")
+    baseline = scen.get("baseline") or next((c.name for c in comps if c.baseline), None)
+    return Manifest(comps, title=str(scen.get("title", p.stem)), purpose=str(scen.get("purpose", scen.get("note", ""))),
+                    baseline=baseline, path=str(p), extra=dict(scen), swelling_path=swell_path,
+                    force_temperature=[p.parent / r["path"] for r in doc.get("force_temperature", [])])
 
 
 #: file endings treated as lab files when loading a folder

@@ -19,6 +19,15 @@ ZERO_CELSIUS: float = _c.zero_Celsius
 LAB_TEMPERATURE: float = ZERO_CELSIUS + 23.0
 
 
+#: stretches of the trade moduli M100 and M300: nominal stress at 100 % and 300 % elongation, λ = 2 and 4
+#: (physics.md §7) — the one definition
+TRADE_MODULI: dict[str, float] = {"M100": 2.0, "M300": 4.0}
+
+#: the caution every result that may feed a design decision carries — the one wording
+CAUTION: str = ("Model results support design decisions; they do not replace validation testing of parts. "
+                "For safety-relevant parts the applicable standards and licensed engineering practice govern.")
+
+
 def celsius(T_kelvin: float) -> float:
     return T_kelvin - ZERO_CELSIUS
 
@@ -36,4 +45,4 @@ def t_quantile(dof: int, level: float = 0.95) -> float:
     return float(stats.t.ppf(0.5 + level / 2.0, max(int(dof), 1)))
 
 
-__all__ = ["R", "ZERO_CELSIUS", "LAB_TEMPERATURE", "celsius", "kelvin", "t_quantile"]
+__all__ = ["CAUTION", "R", "ZERO_CELSIUS", "LAB_TEMPERATURE", "TRADE_MODULI", "celsius", "kelvin", "t_quantile"]

@@ -1,8 +1,13 @@
 """Make the bundled sample set: INVENTED data for demonstration, never measurements.
 
-The scenario: "Quillmere Elastomer Works" (an invented maker) compares four invented natural-rubber
-compounds: three sulfur cure doses (QM-S1 low, QM-S2 mid, QM-S3 high) and one carbon-black-filled variant
-of the mid dose (QM-S2B).  The curves are generated from the **extended-tube** model (with each
+The scenario: "Quillmere Elastomer Works" (an invented maker) compares five invented natural-rubber
+compounds: three sulfur cure doses (QM-S1 low, QM-S2 mid, QM-S3 high), one carbon-black-filled variant
+of the mid dose (QM-S2B) and one small recipe change of the mid dose (QM-S2A, accelerator 0.6 → 0.7 phr)
+whose effect lies inside the specimen-to-specimen scatter.  Every compound has three to five specimens;
+each specimen's stress carries its own factor (about 4 % scatter — cross-section measurement and cure
+gradients between dumbbells, invented), so a comparison must judge scatter, not fit error.
+
+The curves are generated from the **extended-tube** model (with each
 compound's parameters from ``network_models.Network``, pinned), i.e. from a model other than the ones users
 usually fit (eight-chain, affine, phantom, Mooney–Rivlin), then given realistic faults: ~1 % noise and a
 small force offset, slack at the start of one file, an unloading branch in another, repeated points.
@@ -21,6 +26,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from network_models import get_model
+from network_models.constants import LAB_TEMPERATURE, ZERO_CELSIUS
 from network_models.thermo import force_at_fixed_length
 
 SEED = 20261202
@@ -28,7 +34,7 @@ HERE = Path(__file__).resolve().parent
 BANNER = ("INVENTED DATA for demonstration only. Quillmere Elastomer Works is an invented maker; "
           "these are not measurements")
 GENERATOR = get_model("extended-tube")
-T_TEST = 296.15  # 23 °C, the usual laboratory temperature [common practice]
+T_TEST = LAB_TEMPERATURE  # 23 °C, the usual laboratory temperature [common practice]
 
 #: The invented compounds: recipe facts for the manifest and the extended-tube parameters behind the data.
 #: Gc, Ge and delta are what ``Network(polymer="NR", nu=..., T=296.15, filler_fraction=phi)`` gave when the
@@ -44,6 +50,17 @@ COMPOUNDS = {
                   Gc=480.2e3, Ge=347.8e3, delta=0.09095),
     "QM-S2B": dict(nu=140.0, sulfur_phr=2.0, filler_phr=30.0, phi=0.13,
                    title="NR, mid sulfur dose, 30 phr carbon black", Gc=538.9e3, Ge=543.8e3, delta=0.1152),
+    # the small recipe change: 5 % more crosslink modulus, i.e. about +2.5 % in G₀ — inside the ~4 % scatter
+    "QM-S2A": dict(nu=147.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, accelerator_phr=0.7,
+                   title="NR gum, mid sulfur dose, accelerator 0.7 phr", Gc=361.9e3, Ge=347.8e3, delta=0.07868),
+}
+#: each specimen's stress factor (invented scatter, sd about 4 %), per compound, in file order
+SPECIMEN_FACTORS = {
+    "QM-S1": (0.97, 1.02, 0.95, 1.04, 1.01),
+    "QM-S2": (1.03, 0.96, 1.01, 0.99),
+    "QM-S3": (1.00, 0.96, 1.04, 1.02),
+    "QM-S2B": (1.00, 0.95, 1.04),
+    "QM-S2A": (1.03, 0.97, 1.05, 1.01, 0.98),
 }
 BETA = 0.2  # extended-tube exponent, the model's typical value
 
@@ -54,8 +71,10 @@ def generator_params(key, scale=1.0):
     return {"Gc": c["Gc"] * scale, "Ge": c["Ge"], "delta": c["delta"] * np.sqrt(scale), "beta": BETA}
 
 
-def nominal(key, mode, lam, scale=1.0):
-    return GENERATOR.nominal_stress(mode, lam, generator_params(key, scale))
+def nominal(key, mode, lam, scale=1.0, specimen=1.0):
+    """Nominal stress of compound ``key``; ``scale`` changes its crosslink density, ``specimen`` is the
+    specimen's stress factor (its scatter)."""
+    return specimen * GENERATOR.nominal_stress(mode, lam, generator_params(key, scale))
 
 
 def noisy(rng, stress, rel=0.01, offset=3e3):
@@ -80,9 +99,9 @@ def uniaxial_s1(rng) -> str:
         "compound: QM-S1", "mode: uniaxial", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
         "test piece: dumbbell, 500 mm/min (invented)",
     ]), "specimen,stretch,stress (MPa)\n"]
-    for k, scale in enumerate((0.98, 1.0, 1.03), start=1):
+    for k, factor in enumerate(SPECIMEN_FACTORS["QM-S1"], start=1):
         lam = np.linspace(1.0, 7.5, 60)
-        s = noisy(rng, nominal("QM-S1", "uniaxial", lam, scale))
+        s = noisy(rng, nominal("QM-S1", "uniaxial", lam, specimen=factor))
         for a, b in zip(lam, s, strict=True):
             out.append(f"S1-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n")
     return "".join(out)
@@ -92,9 +111,9 @@ def uniaxial_s2(rng) -> str:
     """Force in N against extension in mm with geometry in metadata, repeated column pairs, slack at the start."""
     gauge, width, thick = 20.0, 4.0, 2.0  # mm
     cols, n = [], 64
-    for scale in (1.01, 0.99):
+    for factor in SPECIMEN_FACTORS["QM-S2"]:
         lam = np.linspace(1.0, 7.0, n - 6)
-        stress = noisy(rng, nominal("QM-S2", "uniaxial", lam, scale))
+        stress = noisy(rng, nominal("QM-S2", "uniaxial", lam, specimen=factor))
         force = stress * (width * thick * 1e-6)
         # slack: the crosshead travels ~1.2 mm before the specimen is taut; the force hovers around zero
         slack_ext = np.linspace(-1.2, -0.2, 6)
@@ -105,9 +124,9 @@ def uniaxial_s2(rng) -> str:
         "compound: QM-S2", "mode: uniaxial", f"gauge length: {gauge:g} mm", f"width: {width:g} mm",
         f"thickness: {thick:g} mm", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
         "note: crosshead zeroed before the specimens were taut (slack at the start)",
-    ]), "Extension S2-1 (mm),Force S2-1 (N),Extension S2-2 (mm),Force S2-2 (N)\n"]
+    ]), ",".join(f"Extension S2-{k} (mm),Force S2-{k} (N)" for k in range(1, len(cols) + 1)) + "\n"]
     for i in range(n):
-        out.append(",".join(f"{fmt(cols[c][0][i], 3)},{fmt(cols[c][1][i], 4)}" for c in range(2)) + "\n")
+        out.append(",".join(f"{fmt(cols[c][0][i], 3)},{fmt(cols[c][1][i], 4)}" for c in range(len(cols))) + "\n")
     return "".join(out)
 
 
@@ -118,13 +137,13 @@ def uniaxial_s3(rng) -> str:
         "cycle: 1st loading and unloading, virgin specimens", "exported with decimal commas (invented lab)",
     ]), "Specimen;Strain (%);Stress [psi]\n"]
     pa_per_psi = 6894.757293168361  # only to invent the file; readers convert with pint
-    for k, scale in enumerate((1.0, 0.97, 1.02), start=1):
+    for k, factor in enumerate(SPECIMEN_FACTORS["QM-S3"], start=1):
         lam_up = np.linspace(1.0, 6.5, 52)
         lam = lam_up
         if k == 1:  # unloading branch: the return path lies below the loading path (hysteresis)
             lam_down = np.linspace(6.5, 1.2, 20)[1:]
             lam = np.concatenate([lam_up, lam_down])
-        s = noisy(rng, nominal("QM-S3", "uniaxial", lam, scale))
+        s = noisy(rng, nominal("QM-S3", "uniaxial", lam, specimen=factor))
         if k == 1:
             s[lam_up.size:] *= 0.8
         rows = list(zip((lam - 1.0) * 100.0, s / pa_per_psi, strict=True))
@@ -134,6 +153,21 @@ def uniaxial_s3(rng) -> str:
         for e, p in rows:
             out.append(f"S3-{k};{fmt(e, 2).replace('.', ',')};{fmt(p, 2).replace('.', ',')}\n")
     return "".join(out)
+
+
+def uniaxial_s2a(k: int):
+    """One file per specimen (the specimen named in a metadata line), stretch and MPa."""
+    def make(rng) -> str:
+        factor = SPECIMEN_FACTORS["QM-S2A"][k - 1]
+        out = [header([
+            "compound: QM-S2A", f"specimen: A-{k}", "mode: uniaxial", "temperature: 23 °C",
+            "cycle: 1st loading, virgin specimen", "test piece: dumbbell, 500 mm/min (invented)",
+        ]), "stretch,stress (MPa)\n"]
+        lam = np.linspace(1.0, 7.0, 56)
+        s = noisy(rng, nominal("QM-S2A", "uniaxial", lam, specimen=factor))
+        out += [f"{fmt(a, 4)},{fmt(b / 1e6, 5)}\n" for a, b in zip(lam, s, strict=True)]
+        return "".join(out)
+    return make
 
 
 def planar_s2(rng) -> str:
@@ -170,14 +204,16 @@ def uniaxial_s2b_rows(rng) -> tuple[list[list], list[list]]:
     """Rows for the .xlsx: metadata rows, header row, unit row, then strain % / stress N/mm² pairs."""
     meta = [[f"# {BANNER}"], ["# compound: QM-S2B"], ["# mode:", "uniaxial"], ["# temperature:", "23 °C"],
             ["# cycle: 3rd loading after 200 % pre-stretch"]]
-    table = [["Strain B-1", "Stress B-1", "Strain B-2", "Stress B-2"], ["%", "N/mm²", "%", "N/mm²"]]
+    factors = SPECIMEN_FACTORS["QM-S2B"]
+    table = [[h for k in range(1, len(factors) + 1) for h in (f"Strain B-{k}", f"Stress B-{k}")],
+             ["%", "N/mm²"] * len(factors)]
     cols = []
-    for scale in (1.0, 0.97):
+    for factor in factors:
         lam = np.linspace(1.0, 5.5, 46)
-        s = noisy(rng, nominal("QM-S2B", "uniaxial", lam, scale))
+        s = noisy(rng, nominal("QM-S2B", "uniaxial", lam, specimen=factor))
         cols.append((np.round((lam - 1) * 100, 2), np.round(s / 1e6, 5)))
     for i in range(cols[0][0].size):
-        table.append([float(cols[0][0][i]), float(cols[0][1][i]), float(cols[1][0][i]), float(cols[1][1][i])])
+        table.append([float(v) for col in cols for v in (col[0][i], col[1][i])])
     return meta, table
 
 
@@ -230,33 +266,36 @@ def force_temperature(rng) -> str:
     """QM-S2 clamped at λ = 2.0, heated from 20 to 80 °C; force from the Gaussian network with expansion."""
     c = COMPOUNDS["QM-S2"]
     area = 4e-3 * 2e-3
-    T = np.arange(20.0, 81.0, 5.0) + 273.15
+    T = np.arange(20.0, 81.0, 5.0) + ZERO_CELSIUS
     F = force_at_fixed_length(T, 2.0, c["Gc"] + c["Ge"], T_TEST, area, expansion=6.6e-4)
     F = F * (1 + rng.normal(0, 0.004, T.size))
     out = [header(["compound: QM-S2", "stretch: 2.0", "width: 4 mm", "thickness: 2 mm",
                    "note: clamped at stretch 2.0 at 23 °C, relaxed 2 h, then heated in 5 °C steps (invented)"]),
            "temperature (°C),force (N)\n"]
-    out += [f"{t - 273.15:.1f},{f:.4f}\n" for t, f in zip(T, F, strict=True)]
+    out += [f"{t - ZERO_CELSIUS:.1f},{f:.4f}\n" for t, f in zip(T, F, strict=True)]
     return "".join(out)
 
 
 MANIFEST_FILES = {
-    "QM-S1": [("QM-S1_uniaxial.csv", "uniaxial", "stretch and MPa, three specimens (specimen column)")],
+    "QM-S1": [("QM-S1_uniaxial.csv", "uniaxial", "stretch and MPa, five specimens (specimen column)")],
     "QM-S2": [("QM-S2_uniaxial_force.csv", "uniaxial", "force in N and extension in mm, geometry in metadata, "
-               "two specimens as column pairs, slack at the start"),
+               "four specimens as column pairs, slack at the start"),
               ("QM-S2_planar.csv", "planar", "stretch and MPa, two specimens"),
               ("QM-S2_equibiaxial.csv", "equibiaxial", "true stress in N/mm² (bubble inflation)")],
-    "QM-S3": [("QM-S3_uniaxial_psi.txt", "uniaxial", "psi and % strain, semicolons, decimal commas; "
-               "specimen S3-1 has an unloading branch, S3-2 repeated points")],
+    "QM-S3": [("QM-S3_uniaxial_psi.txt", "uniaxial", "psi and % strain, semicolons, decimal commas; four "
+               "specimens; S3-1 has an unloading branch, S3-2 repeated points")],
     "QM-S2B": [("QM-S2B_uniaxial.xlsx", "uniaxial", "workbook: header row plus unit row, % strain and N/mm², "
-                "two specimens as column pairs, 3rd loading after 200 % pre-stretch"),
+                "three specimens as column pairs, 3rd loading after 200 % pre-stretch"),
                ("QM-S2B_planar.csv", "planar", "% strain and MPa, 3rd loading after 200 % pre-stretch")],
+    "QM-S2A": [(f"QM-S2A_uniaxial_A{k}.csv", "uniaxial", f"one file per specimen (specimen A-{k} named in a "
+                "metadata line), stretch and MPa") for k in range(1, 6)],
 }
 NOTES = {
     "QM-S1": "softest of the cure series; longest strands",
     "QM-S2": "the baseline: the plant's current cure dose (invented)",
     "QM-S3": "stiffest gum; shortest strands, lowest locking stretch",
     "QM-S2B": "QM-S2 with 30 phr of a reinforcing carbon black; pre-cycled, so the Mullins-softened curve",
+    "QM-S2A": "QM-S2 with 0.1 phr more accelerator: a change smaller than the specimen scatter (invented)",
 }
 
 
@@ -266,7 +305,7 @@ def manifest() -> str:
         return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
 
     generator = (f"make_samples.py, seed {SEED}: extended-tube model (parameters from network_models.Network, pinned), "
-                 "~1 % noise plus a small offset")
+                 "~1 % noise plus a small offset, a stress factor per specimen (~4 % scatter)")
     out = [
         f"# {BANNER}\n",
         "# Written by make_samples.py; format described in README.md in this folder.\n\n",
@@ -276,8 +315,9 @@ def manifest() -> str:
         "invented = true\n",
         "polymer = \"NR\"\n",
         "baseline = \"QM-S2\"\n",
-        f"test_temperature_C = {T_TEST - 273.15:.1f}\n",
-        f"generator = {q(generator)}\n\n",
+        f"test_temperature_C = {T_TEST - ZERO_CELSIUS:.1f}\n",
+        f"generator = {q(generator)}\n",
+        "purpose = \"Choose the cure dose; check whether the accelerator change and the filler matter\"\n\n",
     ]
     for key, c in COMPOUNDS.items():
         p = generator_params(key)
@@ -288,7 +328,7 @@ def manifest() -> str:
             f"title = {q(c['title'])}\n",
             "polymer = \"NR\"\n",
             f"sulfur_phr = {c['sulfur_phr']:.1f}\n",
-            "accelerator_phr = 0.6\n",
+            f"accelerator_phr = {c.get('accelerator_phr', 0.6):.1f}\n",
             f"filler = {q('carbon black (reinforcing grade)' if c['filler_phr'] else 'none')}\n",
             f"filler_phr = {c['filler_phr']:.1f}\n",
             f"filler_volume_fraction = {c['phi']:.2f}\n",
@@ -331,6 +371,7 @@ TEXT_FILES = {
     "QM-S2B_planar.csv": planar_s2b,
     "swelling_toluene.csv": swelling,
     "QM-S2_force_temperature.csv": force_temperature,
+    **{f"QM-S2A_uniaxial_A{k}.csv": uniaxial_s2a(k) for k in range(1, 6)},
 }
 XLSX = "QM-S2B_uniaxial.xlsx"
 

@@ -37,21 +37,24 @@ def gent_planar(lam, G, Jm):
     return G * (lam - lam**-3) / (1 - (I1 - 3) / Jm)
 
 
-def compound(name, G, Jm, seed):
+def compound(name, G, Jm, seed, factors=(0.97, 1.0, 1.03)):
+    """Uniaxial specimens at ``factors`` × G (one file, a specimen each) and one planar curve."""
     rng = np.random.default_rng(seed)
     lu = np.linspace(1.05, 4.5, 50)
     lp = np.linspace(1.05, 3.0, 30)
-    cs = [TestCurve("uniaxial", lu, gent_uniaxial(lu, G, Jm) * (1 + 0.01 * rng.standard_normal(lu.size)),
-                    name=f"{name}-u", source=f"{name}_uniaxial.csv", temperature=T23, cycle="3rd loading"),
-          TestCurve("planar", lp, gent_planar(lp, G, Jm) * (1 + 0.01 * rng.standard_normal(lp.size)),
-                    name=f"{name}-p", source=f"{name}_planar.csv", temperature=T23)]
+    cs = [TestCurve("uniaxial", lu, gent_uniaxial(lu, k * G, Jm) * (1 + 0.01 * rng.standard_normal(lu.size)),
+                    name=f"{name}-u{i}", source=f"{name}_uniaxial.csv", temperature=T23, cycle="3rd loading",
+                    specimen=f"{name}{i}") for i, k in enumerate(factors, 1)]
+    cs.append(TestCurve("planar", lp, gent_planar(lp, G, Jm) * (1 + 0.01 * rng.standard_normal(lp.size)),
+                        name=f"{name}-p", source=f"{name}_planar.csv", temperature=T23))
     return Compound(name, cs, metadata={"cure dose": f"{name} (invented)"}, notes="invented for a test")
 
 
 @pytest.fixture(scope="module")
 def report():
-    cmp = compare([compound("A", 0.45e6, 60.0, 1), compound("B", 0.55e6, 50.0, 2)], model="gent",
-                  baseline="A", service_temperature=353.15)
+    cmp = compare([compound("A", 0.45e6, 60.0, 1), compound("B", 0.55e6, 50.0, 2, (0.98, 1.0, 1.02, 1.01))],
+                  model="gent", baseline="A", service_temperature=353.15, exclude={"B": {"B4": "nicked edge"}},
+                  spread_models=("gent", "neo-hookean"))
     assert all(r.ok for r in cmp.results)
     return Report(cmp, title="Test review (invented data)", purpose="Check the report numbers")
 
@@ -97,9 +100,15 @@ def test_html_numbers_are_the_fit_results(report):
             decl = r.params[[q.name for q in r.params].index(name)]
             shown = first_number(cell["text"])  # what a reader sees: 4 significant digits, trade unit
             assert shown == pytest.approx(est.value * decl.display_scale, rel=6e-4)
+        # G₀ in the comparison table: the mean of the used specimens' own fits
         g0 = next(c for c in p.cells if c["compound"] == r.name and c["key"] == "G0")
-        assert g0["value"] == pytest.approx(fr.small_strain_modulus, rel=1e-12)
-        assert first_number(g0["text"]) == pytest.approx(fr.small_strain_modulus / 1e6, rel=6e-4)
+        own = [s.values["G0"] for s in r.specimens if s.used]
+        assert len(own) == 3 and g0["value"] == pytest.approx(np.mean(own), rel=1e-12)
+        assert first_number(g0["text"]) == pytest.approx(np.mean(own) / 1e6, rel=6e-4)
+        for s in r.specimens:  # every specimen listed with its own value
+            if s.values.get("G0") is not None:
+                cell = next(c for c in p.cells if c["compound"] == r.name and c["key"] == f"specimen:{s.name}:G0")
+                assert cell["value"] == s.values["G0"]
 
 
 def test_csv_and_json_hold_the_fit_results_and_round_trip(report, tmp_path):
@@ -121,9 +130,21 @@ def test_csv_and_json_hold_the_fit_results_and_round_trip(report, tmp_path):
             row = by[("quantity", r.name, key)]
             assert row["value"] == q["value"] and row["ci95_low"] == q["ci95_low"]
             assert row["unit"] == q["unit"]
-    # differences: CSV and JSON agree
+    # differences: CSV and JSON agree (absolute difference, its interval, the verdict)
     for d in doc["differences"]:
-        assert by[("difference", d["compound"], d["key"])]["value"] == pytest.approx(d["percent"], rel=1e-15)
+        row = by[("difference", d["compound"], d["quantity"])]
+        assert row["value"] == d["absolute"] and [row["ci95_low"], row["ci95_high"]] == (d["ci95"] or [None, None])
+        assert row["note"].startswith(d["verdict"])
+    # specimens, statistics, headline and exclusions: the same in both
+    for jc in doc["compounds"]:
+        for sp in jc["specimens"]:
+            if sp["G0"] is not None:
+                assert by[("specimen", jc["name"], f"{sp['name']}:G0")]["value"] == sp["G0"]
+        assert by[("statistics", jc["name"], "G0:n")]["value"] == jc["G0"]["n"]
+        assert by[("statistics", jc["name"], "G0:mean")]["value"] == jc["G0"]["mean"]
+        assert by[("headline", jc["name"], "strand_density")]["value"] == jc["headline"]["value"]
+    assert doc["exclusions"] == [{"compound": "B", "specimen": "B4", "reason": "nicked edge"}]
+    assert by[("exclusion", "B", "B4")]["note"] == "nicked edge"
     # the CSV re-written from what was read is identical (round trip of the file itself)
     assert paths["csv"].read_text("utf-8") == report.to_csv()
     assert all(v is None or math.isfinite(v) for r in rows for v in (r["value"], r["ci95_low"], r["ci95_high"]))
@@ -145,7 +166,10 @@ def test_html_is_self_contained_and_has_the_review_sections(report):
         assert needed in html, needed
     for c in CAUTIONS:
         assert c in html.replace("&#x27;", "'")
-    assert html.count("<svg") >= 4  # uniaxial, planar, crosslink bars, service temperature
+    assert html.count("<svg") >= 6  # specimens ×2, uniaxial, planar, crosslink bars, service temperature
+    # the summary states n per compound and the verdict wording; exclusions are listed with their reason
+    assert "n = 3 specimen(s)" in html and "not distinguishable" in html and "Welch" in html
+    assert "Exclusions" in html and "nicked edge" in html
     assert "nan" not in re.sub(r"<[^>]+>", " ", html).lower().split()
 
 
@@ -168,6 +192,19 @@ def test_nice_ticks_cover_range_with_round_steps(lo, hi):
     mant = steps[0] / 10 ** math.floor(math.log10(steps[0]))
     assert any(math.isclose(mant, m) for m in (1, 2, 2.5, 5))
     assert 3 <= len(t) <= 12
+
+
+def test_charts_carry_their_own_styles(report):
+    # a chart copied out of the page has no stylesheet: white background, and every text and line styled inline
+    from network_models.report import specimen_plot
+
+    for svg in (specimen_plot(report.cmp, "G0"), svg_line_chart([{"label": "a", "x": [1, 2], "y": [0, 1]}], "x", "y")):
+        assert '<rect x="0" y="0"' in svg and 'fill="#ffffff"' in svg
+        for m in re.finditer(r"<text [^>]*>", svg):
+            assert 'fill="' in m.group(0) and "font-size" in m.group(0), m.group(0)
+        for m in re.finditer(r"<line [^>]*>", svg):
+            assert "stroke=" in m.group(0) or "<g stroke" in svg, m.group(0)
+        assert "class=\"grid\"" not in svg and "class=\"tk\"" not in svg
 
 
 def test_svg_chart_skips_nan_and_labels_axes():

@@ -5,11 +5,10 @@ a baseline and (report) write the self-contained design-review HTML with CSV and
         --model extended-tube --service-temperature 80C --purpose "Pick the cure dose" -o review.html
     netstretch report --manifest sample_sets/compounds.toml -o review.html
     netstretch compare --manifest sample_sets/compounds.toml --service-temperature 80C
+    netstretch compare --manifest sample_sets/compounds.toml --exclude "QM-S1:S1-4:torn at the grip" --json
 """
 
 from __future__ import annotations
-
-import json
 
 #: default model of a comparison: separates crosslink (G_c) and entanglement (G_e) parts and locks
 DEFAULT_MODEL = "extended-tube"
@@ -31,6 +30,12 @@ def _common(p):
     p.add_argument("--polymer", default="NR", help="polymer of --compound compounds (default NR)")
     p.add_argument("--functionality", type=float, default=4.0, metavar="F",
                    help="junction functionality f of --compound compounds (default 4)")
+    p.add_argument("--exclude", action="append", default=[], metavar="COMPOUND:SPECIMEN[:REASON]",
+                   help="keep a specimen out of the statistics, with the reason (repeat it); listed in the results")
+    p.add_argument("--pool", action="store_true",
+                   help="fit files that state different compounds together as one compound (off: they are refused)")
+    p.add_argument("--no-model-spread", action="store_true",
+                   help="skip fitting the other models for the model spread beside the headline (faster)")
 
 
 def add_parser(sub):
@@ -81,11 +86,28 @@ def _load(args):
     return comps, title, purpose, args.baseline or baseline, Ts
 
 
+def parse_exclusions(items) -> dict[str, dict[str, str]]:
+    """``["C:S:reason", "C:S"]`` -> ``{"C": {"S": "reason"}}``, with a sentence for a malformed one."""
+    from ..cli import UserError
+
+    out: dict[str, dict[str, str]] = {}
+    for item in items or []:
+        parts = item.split(":", 2)
+        if len(parts) < 2 or not parts[0].strip() or not parts[1].strip():
+            raise UserError(f"--exclude {item!r}: write it as COMPOUND:SPECIMEN[:REASON], e.g. "
+                            "'QM-S1:S1-4:torn at the grip'")
+        reason = parts[2].strip() if len(parts) > 2 and parts[2].strip() else "excluded by the user"
+        out.setdefault(parts[0].strip(), {})[parts[1].strip()] = reason
+    return out
+
+
 def _compare(args):
     from ..compare import compare
 
     comps, title, purpose, baseline, Ts = _load(args)
-    cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts)
+    cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts,
+                  exclude=parse_exclusions(args.exclude), pool=args.pool,
+                  spread_models=() if args.no_model_spread else None)
     return cmp, title, purpose
 
 
@@ -103,19 +125,21 @@ def _fmt(q, scale=None):
 
 def summary(cmp) -> str:
     """A tidy human summary of a comparison."""
+    from ..constants import celsius
     from ..models import get_model
 
     m = get_model(cmp.model)
     lines = [f"Model: {m.title}; baseline {cmp.baseline}; "
-             f"service temperature {cmp.service_temperature - 273.15:.1f} °C",
-             "ν = strand density, μ_j = junction (crosslink) density = 2ν/f; basis: affine, entanglement part "
-             "removed (and filler, by Guth–Gold, where a filler fraction is given); [95 % interval]", ""]
+             f"service temperature {celsius(cmp.service_temperature):.1f} °C",
+             "ν = strand density, μ_j = junction (crosslink) density = 2ν/f; basis: the headline basis below; "
+             "values are specimen means, [95 % interval] from specimen scatter with fit error", ""]
     cols = (("G0", "G₀ (MPa)"), ("nu", "ν (mol/m³)"), ("mu_j", "μ_j (mol/m³)"), ("Mc", "M_c (g/mol)"),
             ("N", "N"), ("lock", "λ_lock uniaxial"), ("ent_share", "entanglement (%)"),
             ("G0_service", "G₀ at T_s (MPa)"), ("M100_measured", "M100 meas. (MPa)"),
             ("M100_predicted", "M100 fit (MPa)"), ("M300_measured", "M300 meas. (MPa)"),
             ("M300_predicted", "M300 fit (MPa)"), ("nu_swelling", "ν swelling (mol/m³)"))
-    table = [["quantity"] + [r.name + (" (base)" if r.name == cmp.baseline else "") for r in cmp.results]]
+    table = [["quantity"] + [r.name + (" (base)" if r.name == cmp.baseline else "") for r in cmp.results],
+             ["specimens (n)"] + [str(r.n) if r.ok else "—" for r in cmp.results]]
     for key, label in cols:
         if not any(key in r.quantities for r in cmp.results):
             continue
@@ -124,15 +148,7 @@ def summary(cmp) -> str:
     for row in table:
         lines.append("  ".join(f"{c:<{w}s}" if i == 0 else f"{c:>{w}s}" for i, (c, w) in
                                enumerate(zip(row, widths, strict=True))).rstrip())
-    width = max(len(r.name) for r in cmp.results) + 2
-    diffs = [d for d in cmp.differences() if d["key"] in ("G0", "nu", "M100_measured", "nu_swelling")]
-    if diffs:
-        lines.append("")
-        lines.append(f"Against {cmp.baseline}:")
-        for d in diffs:
-            ov = {True: "95 % intervals overlap", False: "95 % intervals apart", None: "no statistical interval"}[
-                d["intervals_overlap"]]
-            lines.append(f"  {d['compound']:{width}s} {d['label']:34s} {d['percent']:+7.1f} %   {ov}")
+    lines += headline_lines(cmp) + verdict_lines(cmp)
     problems = [r.error for r in cmp.results if r.error] + [w for r in cmp.results for w in r.warnings]
     if problems:
         lines.append("")
@@ -141,15 +157,55 @@ def summary(cmp) -> str:
     return "\n".join(lines)
 
 
+def headline_lines(cmp) -> list[str]:
+    """One line per compound: the headline ν with its basis, n and interval (or why there is none)."""
+    from ..report import fmt
+
+    out = ["", "Headline (strand density ν, mol/m³; interval: specimen scatter with fit error, 95 %):"]
+    for r in cmp.results:
+        h = r.headline
+        if h is None:
+            out.append(f"  {r.name}: no headline — {r.error or 'not fitted'}")
+            continue
+        ci = f"[{fmt(h.ci95[0])}–{fmt(h.ci95[1])}]" if h.ci95 else "scatter unknown"
+        excl = [s.name for s in r.specimens if s.excluded]
+        out.append(f"  {r.name}: ν = {fmt(h.value)} {ci}, n = {h.n} specimen(s); basis: {h.basis}"
+                   + (f" ({h.note})" if h.note else "") + (f"; excluded: {', '.join(excl)}" if excl else ""))
+    return out
+
+
+def verdict_lines(cmp) -> list[str]:
+    from ..report import fmt
+    from ..statistics import VERDICT_WORDING
+
+    diffs = [d for d in cmp.differences() if d["quantity"] in ("G0", "strand_density", "M100_measured")]
+    if not diffs:
+        return []
+    width = max(len(r.name) for r in cmp.results) + 2
+    out = ["", f"Against {cmp.baseline} (from the specimens; Welch 95 % interval of the difference):"]
+    for d in diffs:
+        ci = (f"[{d['ci95_percent'][0]:+.1f} … {d['ci95_percent'][1]:+.1f} %]" if d.get("ci95_percent") else "")
+        mdd = f"; detectable ≥ {d['detectable_percent']:.1f} %" if d.get("detectable_percent") is not None else ""
+        pct = "—" if d["percent"] is None else f"{d['percent']:+7.1f} %"
+        absv = "" if d["absolute"] is None or d["quantity"] != "strand_density" else f" (Δν {fmt(d['absolute'])})"
+        out.append(f"  {d['compound']:{width}s} {d['label']:32s} {pct}{absv} {ci}  {d['verdict'].upper()}"
+                   f" (n {d['n']} vs {d['n_baseline']}{mdd})")
+    out.append("  " + VERDICT_WORDING)
+    return out
+
+
 def run_compare(args):
+    from ..constants import CAUTION
+    from ..jsonio import dumps
+
     cmp, _title, _purpose = _compare(args)
     if args.json:
-        from .fit import json_document
-
-        print(json.dumps(json_document(cmp.to_dict()), indent=2, ensure_ascii=False))
+        doc = cmp.to_dict()
+        doc["caution"] = CAUTION
+        print(dumps(doc))
     else:
         print(summary(cmp))
-        print("\nModel results support design decisions; they do not replace validation testing of parts.")
+        print("\n" + CAUTION)
     return 0 if any(r.ok for r in cmp.results) else 2
 
 
@@ -167,8 +223,10 @@ def run_report(args):
         paths = rep.write(args.output)
     except OSError as exc:
         raise UserError(f"cannot write {args.output}: {exc.strerror or exc}") from None
+    from ..constants import CAUTION
+
     print(summary(cmp))
     print("\nWrote " + ", ".join(str(p) for p in paths.values()))
-    print("Model results support design decisions; they do not replace validation testing of parts.")
+    print(CAUTION)
     return 0
 
