@@ -12,6 +12,7 @@ import importlib
 import os
 import sys
 
+from .constants import CAUTION
 from .errors import UserError
 
 #: sub-command modules, in the order ``--help`` lists them
@@ -22,7 +23,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="netstretch",
         description="Rubber-network models, lab-curve fitting and crosslink density for compound designers.",
-        epilog="Results support design decisions; they do not replace validation testing of parts.",
+        epilog=CAUTION,
     )
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:

@@ -30,7 +30,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 from scipy.optimize import brentq, minimize_scalar
 
-from .constants import LAB_TEMPERATURE, ZERO_CELSIUS
+from .constants import CAUTION, LAB_TEMPERATURE, ZERO_CELSIUS
 from .design_targets import Target, TargetError, parse_targets
 from .errors import Notice, UserError
 from .models import get_model
@@ -43,8 +43,7 @@ __all__ = ["NU_RANGE", "CAUTION", "DesignResult", "DesignSetup", "Interval",
 #: strand densities scanned, mol/m³ (M_c from ~450 kg/mol down to ~45 g/mol for NR): wider than any rubber
 NU_RANGE = (2.0, 2.0e4)
 _GRID = 97  # log grid points over NU_RANGE (about 24 per decade); edges are refined with brentq
-CAUTION = ("Model results support design decisions; they do not replace validation testing of parts. "
-           "Safety-relevant parts follow the applicable standards and licensed engineering practice.")
+
 
 
 # ------------------------------------------------------------------------------------------------

@@ -15,6 +15,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from .constants import CAUTION
 from .design import DesignSetup, _check_modes, _Evaluator, _setup
 from .design_targets import parse_targets
 from .network import get_polymer
@@ -296,8 +297,7 @@ def result_html(result, map="auto", current: float | None = None) -> str:
            f"{e(dmap.y_label)} ({e(r.setup.model)}): translucent bands, each target; green, all met.</figcaption>"
            "</figure>")
         + (f"<ul class='ns-design-notes'>{notes}</ul>" if notes else "")
-        + "<p class='ns-caution'>Model results support design decisions; they do not replace validation testing "
-          "of parts. Safety-relevant parts follow the applicable standards and licensed engineering practice.</p>"
+        + f"<p class='ns-caution'>{e(CAUTION)}</p>"
         "</section>")
 
 

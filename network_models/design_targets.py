@@ -35,6 +35,7 @@ import math
 import re
 from dataclasses import dataclass, field
 
+from .constants import celsius
 from .deformation import Mode
 from .errors import UserError
 from .units import parse_number, parse_quantity
@@ -87,7 +88,7 @@ class Target:
 
     def describe(self) -> str:
         """What the quantity is, in words."""
-        at = "" if self.temperature is None else f" at {self.temperature - 273.15:.4g} °C"
+        at = "" if self.temperature is None else f" at {celsius(self.temperature):.4g} °C"
         if self.kind == "G":
             return "small-strain shear modulus G" + at
         if self.kind == "E":

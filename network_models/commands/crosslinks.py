@@ -7,6 +7,7 @@ M300 or Mooney 2C1), as a table of stated assumptions.
 
 from __future__ import annotations
 
+from ..constants import celsius
 from ..crosslinks import KINDS, from_modulus
 from .fit import CAUTION, format_crosslink_table, json_document, quantity
 
@@ -72,7 +73,7 @@ def run(args):
         print(json_document(doc))
         return 0
     print(f"{args.kind} = {G / 1e6:.4g} MPa → small-strain shear modulus G = {table.G / 1e6:.4g} MPa; "
-          f"polymer {table.polymer}, T = {T - 273.15:.1f} °C, f = {args.functionality:g}")
+          f"polymer {table.polymer}, T = {celsius(T):.1f} °C, f = {args.functionality:g}")
     print("\n".join(format_crosslink_table(table)))
     print()
     print(CAUTION)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..constants import CAUTION, kelvin
 from ..models import MODELS
 from ..network import Network
 
@@ -17,7 +18,7 @@ def add_parser(sub):
 
 
 def run(args):
-    net = Network(polymer=args.polymer, nu=args.nu, T=args.temperature + 273.15)
+    net = Network(polymer=args.polymer, nu=args.nu, T=kelvin(args.temperature))
     print(f"Network: {net.poly.title}; strand density ν = {net.nu:.1f} mol/m³, "
           f"junction density μ_j = {net.junction_density:.1f} mol/m³ (f = {net.f:g}), "
           f"M_c = {net.Mc * 1000:.0f} g/mol, N = {net.N:.1f} ({net.N_source}), T = {args.temperature:g} °C")
@@ -31,5 +32,5 @@ def run(args):
         cells = "  ".join("  past lock" if not np.isfinite(v) else f"{v:9.3f}" for v in P)
         lock_text = "—" if lock is None else f"{lock:.2f}"
         print(f"{name:24s} {m.small_strain_modulus(**p) / 1e6:9.3f} {lock_text:>8s}   {cells}")
-    print("\nModel results support design decisions; they do not replace validation testing of parts.")
+    print("\n" + CAUTION)
     return 0

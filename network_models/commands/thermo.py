@@ -13,7 +13,7 @@ import json
 
 import numpy as np
 
-from ..constants import celsius
+from ..constants import CAUTION, celsius
 from ..materials import add_polymers_option, apply_polymers_option, get_polymer
 from ..testdata import read_force_temperature
 from ..thermo import energetic_fraction
@@ -83,5 +83,5 @@ def run(args):
               "correction)")
     for n in out["notices"]:
         print(f"  note: {n}")
-    print("Caution: model results support design decisions; they do not replace validation testing of parts.")
+    print("Caution: " + CAUTION)
     return 0
