@@ -430,3 +430,17 @@ def test_outlier_is_flagged_once_and_can_be_excluded():
     r2 = compare([a], model="mooney-rivlin", spread_models=(), exclude={"A": {"A-5": "air bubble"}})["A"]
     assert r2.stats["G0"].n == 4 and r2.stats["G0"].mean == pytest.approx(
         np.mean([1.0, 1.01, 0.99, 1.02]) * 2 * 0.25e6, rel=1e-6)
+
+
+def test_entanglement_share_over_100_percent_is_not_a_plain_number():
+    # A soft gum NR (G₀ = 2(C₁ + C₂) = 0.3 MPa with C₂ = 0) read with the neo-Hookean model: the model does not
+    # separate entanglements, so the polymer table's plateau modulus is subtracted; NR's G_N⁰ (≈ 0.58 MPa,
+    # Fetters et al. 1994 [from memory], polymers.toml) exceeds G₀, a "share" above 100 % that must be flagged
+    from network_models.materials import get_polymer
+
+    c = mr_compound("S", 0.15e6, 0.0, planar=False)
+    r = compare([c], model="neo-hookean", spread_models=())["S"]
+    poly = get_polymer("NR")
+    assert poly.plateau_modulus * T23 / poly.plateau_temperature > 0.3e6  # the premise of this check
+    assert "ent_share" not in r.quantities
+    assert any("larger than the whole small-strain modulus" in w for w in r.warnings)

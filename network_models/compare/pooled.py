@@ -16,6 +16,7 @@ import numpy as np
 from ..compounds import Compound
 from ..constants import TRADE_MODULI, R, celsius, t_quantile
 from ..deformation import Mode
+from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..models import ModeNotSupportedError, get_model
 from ..network import get_polymer
 from ..statistics import delta_se
@@ -111,7 +112,8 @@ def split_modulus(model, values: dict, polymer: str, T: float) -> tuple[float, f
     if split.separable:
         return split.crosslink, split.entanglement, split.basis
     Ge = entanglement_modulus_table(polymer, T)
-    return split.total - Ge, Ge, f"G_e = plateau modulus of {get_polymer(polymer).key} (polymer table, ∝ T) subtracted"
+    return split.total - Ge, Ge, (f"G_e = plateau modulus of {get_polymer(polymer).key} (polymer table, ∝ T) "
+                                  f"subtracted — an upper bound: {UPPER_BOUND_NOTE}")
 
 
 def strand_density_from_modulus(Gx: float, T: float) -> float:
@@ -205,11 +207,13 @@ def _modulus_part(res, m, fr, values, T, dof):
     Q["G0"] = Quantity("G0", "small-strain shear modulus G₀", G0, "Pa", *_iv(G0, se, dof),
                        basis=f"at test temperature {celsius(T):.1f} °C", display_unit="MPa", display_scale=1e-6)
     Gx, Ge, how = split_modulus(m, values, poly.key, T)
-    if G0 > 0:
+    share, _, share_notices = entanglement_share(Ge, G0, res.compound.name)
+    res.warnings.extend(f"{res.compound.name}: {n}" for n in share_notices)
+    if share is not None:  # a share over 100 % is never shown as a plain number (the notice says why)
         share_se = (propagate(lambda p: split_modulus(m, p, poly.key, T)[1] / m.small_strain_modulus(**p), fr)
                     if m.modulus_split(values).separable else None)
-        Q["ent_share"] = Quantity("ent_share", "entanglement share G_e/G₀", Ge / G0, "1",
-                                  *_iv(Ge / G0, share_se, dof), basis=how, display_unit="%", display_scale=100.0)
+        Q["ent_share"] = Quantity("ent_share", "entanglement share G_e/G₀", share, "1",
+                                  *_iv(share, share_se, dof), basis=how, display_unit="%", display_scale=100.0)
     if "N" in values:
         pr = next(p for p in res.params if p.name == "N")
         Q["N"] = Quantity("N", "Kuhn segments per strand N", values["N"], "1", pr.low, pr.high, basis="fitted")
