@@ -326,7 +326,7 @@ def test_non_numeric_cells_skipped_and_counted(tmp_path):
     ("ext.csv", b"extension (mm),stress (MPa)\n0,0\n5,1\n10,2\n", "gauge length"),
     ("noheader.csv", b"1,2\n3,4\n5,6\n", "no header row"),
     ("old.xls", b"\xd0\xcf\x11\xe0 whatever", ".xls"),
-    ("broken.xlsx", b"PK\x03\x04 not really a zip", "not a readable .xlsx"),
+    ("broken.xlsx", b"PK\x03\x04 not really a zip", "not a readable workbook"),
     ("huge.csv", b"stretch,stress (MPa)\n1,0\n1e300,1\n2,2\n", "beyond any rubber"),
     ("pct.csv", b"strain,stress (MPa)\n0,0\n100,1\n200,2\n", "strain (%)"),
     ("two.csv", b"stretch,stress (MPa)\n1,0\n2,1\n", "at least 3 points"),
@@ -334,7 +334,7 @@ def test_non_numeric_cells_skipped_and_counted(tmp_path):
     ("badmeta.csv", b"# gauge length: twenty\nextension (mm),force (N)\n0,0\n1,1\n2,2\n", "line 1"),
     ("nounitmeta.csv", b"# width: 4\nstretch,stress (MPa)\n1,0\n2,1\n3,2\n", "has no unit"),
     ("space.txt", b"stretch stress\n1 0\n2 1\n", "separator"),
-    ("order.csv", b"stress (MPa),stretch\n0,1\n1,2\n2,3\n", "before every stretch"),
+    ("nopair.csv", b"stretch,time (s)\n1,0\n2,1\n3,2\n", "no stress or force column"),
     ("commas.csv", b"stretch,stress (MPa)\n1,0,0\n1,5,0,3\n2,0,0,5\n2,5,0,7\n", "decimal commas"),
 ])
 def test_bad_files_raise_one_readable_error(tmp_path, name, data, words):
@@ -356,8 +356,10 @@ def test_missing_file_and_folder(tmp_path):
 
 
 def test_size_limit(tmp_path, monkeypatch):
-    assert td.MAX_FILE_BYTES == 20_000_000  # the documented 20 MB cap
-    monkeypatch.setattr(td, "MAX_FILE_BYTES", 100)
+    from network_models.labfiles import tables
+
+    assert td.MAX_FILE_BYTES == tables.MAX_FILE_BYTES == 20_000_000  # the documented 20 MB cap
+    monkeypatch.setattr(tables, "MAX_FILE_BYTES", 100)
     data = b"stretch,stress (MPa)\n" + b"1,0\n" * 40
     with pytest.raises(DataError, match="limit"):
         read_curves_bytes(data, "big.csv")
@@ -380,7 +382,7 @@ def test_inspect_says_what_is_missing():
     info = td.inspect_bytes(data, "up.csv")
     assert [c["kind"] for c in info.columns] == ["extension", "force", "time"]
     assert info.mode is Mode.PLANAR and info.n_rows == 3
-    assert info.needs == ["gauge_length", "area"]  # thickness alone is missing, so no cross-section yet
+    assert info.needs == ["gauge_length", "thickness"]  # the width is there; thickness and gauge length are not
     assert info.preview[0] == ["extension (mm)", "force (N)", "time (s)"]
     with pytest.raises(DataError):  # and read_curves says the same in a sentence
         read_curves_bytes(data, "up.csv")
