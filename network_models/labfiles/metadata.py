@@ -188,9 +188,10 @@ def missing_sentence(filename: str, missing: list[str], why: dict[str, str]) -> 
     if "thickness" in missing:
         lines.append("'# thickness: 2 mm'")
     joined = "; ".join(names)
-    return (f"{filename}: missing {joined}. Add the line(s) {', '.join(lines)} to the file (or '# area: 8 mm²' for "
-            "the section), or give them as options (gauge length, width, thickness or area), or in a reading "
-            "profile")
+    options = ", ".join(GEOMETRY_WORDS[k] for k in missing) + (" — or area" if section else "")
+    area_line = " (or '# area: 8 mm²' for the section)" if section else ""
+    return (f"{filename}: missing {joined}. Add the line(s) {', '.join(lines)} to the file{area_line}, or give "
+            f"them as options ({options}) or in a reading profile")
 
 
 def resolve_mode(opts: dict, known: dict, filename: str, notices: list) -> tuple[Mode, str]:
