@@ -577,17 +577,24 @@ def test_binary_bytes_are_not_echoed_back(tmp_path):
     assert "\x1a" not in msg
 
 
-def test_german_machine_headers(tmp_path):
-    # German test-machine exports (decimal comma, semicolons): Dehnung = strain, Spannung = stress,
-    # Standardkraft = force, Traversenweg = crosshead travel [common practice in German-language labs]
+def test_german_headers(tmp_path):
+    # German-language headers with decimal commas and semicolons: Dehnung = strain, Spannung = stress,
+    # Kraft = force, Weg = travel (the vocabulary's generic words; compounds such as "Zugspannung" match too)
     f = tmp_path / "zugversuch.csv"
-    f.write_text("Dehnung (%);Spannung (MPa)\n0;0\n50;0,40\n100;0,65\n200;1,05\n", encoding="utf-8")
+    f.write_text("Dehnung (%);Zugspannung (MPa)\n0;0\n50;0,40\n100;0,65\n200;1,05\n", encoding="utf-8")
     (c,) = read_curves(f)
     np.testing.assert_allclose(c.stretch, [1.0, 1.5, 2.0, 3.0])
     np.testing.assert_allclose(c.stress, [0.0, 0.40e6, 0.65e6, 1.05e6])
     g = tmp_path / "kraft.csv"
-    g.write_text("# gauge length: 20 mm\n# width: 4 mm\n# thickness: 2 mm\n"
-                 "Traversenweg (mm);Standardkraft (N)\n0;0\n10;3,2\n20;5,2\n", encoding="utf-8")
+    g.write_text("# Messlänge: 20 mm\n# Breite: 4 mm\n# Dicke: 2 mm\n"
+                 "Weg (mm);Kraft (N)\n0;0\n10;3,2\n20;5,2\n", encoding="utf-8")
     (d,) = read_curves(g)
     np.testing.assert_allclose(d.stretch, [1.0, 1.5, 2.0])
     np.testing.assert_allclose(d.stress, [0.0, 3.2 / 8e-6, 5.2 / 8e-6])
+
+
+def test_notices_have_kinds(tmp_path):
+    p = write(tmp_path, "k.csv", "stretch,stress (MPa)\n1,0\n2,1\n3,2\n4,3\n3,1.5\n")
+    (c,) = read_curves(p)
+    kinds = {n.kind for n in c.notices}
+    assert {"cleanup", "assumed-mode"} <= kinds  # the return branch dropped; the mode defaulted
