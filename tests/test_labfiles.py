@@ -325,3 +325,18 @@ def test_raw_exports_fit_without_editing(name):
                           "--json"], capture_output=True, text=True, cwd=ROOT)
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout)["models"]["neo-hookean"]["parameters"]["G"]["value"] == pytest.approx(g.value)
+
+
+def test_compression_slack_before_contact_is_dropped_and_rezeroed():
+    # the platen travels 0.5 mm of a 10 mm height before it bears load: the specimen's unloaded height is
+    # where contact starts (λ₀ = 0.95), so λ' = λ/λ₀ (same rule as slack in tension)
+    travel = np.array([0.0, 0.2, 0.5, 1.0, 1.5, 2.0])  # mm, compression written positive
+    force = np.array([0.0, 0.01, 0.0, 3.0, 6.5, 10.5])  # N
+    text = "# mode: compression\n# gauge length: 10 mm\n# diameter: 20 mm\ntravel (mm),force (N)\n" + "".join(
+        f"{t:g},{f:g}\n" for t, f in zip(travel, force, strict=True))
+    (c,) = read_curves_bytes(text.encode(), "slack_c.csv")
+    lam_raw = 1 - travel[2:] / 10.0
+    np.testing.assert_allclose(c.stretch, lam_raw / 0.95)
+    area = np.pi * 0.020**2 / 4  # A₀ = π d²/4
+    np.testing.assert_allclose(c.stress, -force[2:] / area)
+    assert any(n.kind == "cleanup" and "re-zeroed" in n for n in c.notices)

@@ -487,12 +487,14 @@ _cell = st.one_of(
 _header = st.one_of(
     st.sampled_from(["stretch", "strain (%)", "strain", "extension (mm)", "stress (MPa)", "Stress [psi]",
                      "force (N)", "Force/N", "true stress (MPa)", "specimen", "time (s)", "stress (zork)",
-                     "kgf/cm2", "stress (N/mm²)", "Load, kgf", "λ", "%", ""]),
+                     "kgf/cm2", "stress (N/mm²)", "Load, kgf", "λ", "%", "", "Kraft (N)", "Weg (mm)",
+                     "Contrainte (MPa)", "应力 (MPa)", "compressive stress (MPa)", "伸び (%)"]),
     st.text(max_size=12),
 )
 _meta = st.sampled_from(["", "# mode: planar\n", "# gauge length: 20 mm\n", "# width: 4 mm\n# thickness: 2 mm\n",
                          "# temperature: 23 C\n", "# area: 0 mm²\n", "# mode: sideways\n", "# temperature: -400 C\n",
-                         "# gauge length: 1e400 mm\n", "#\n", "# : \n"])
+                         "# gauge length: 1e400 mm\n", "#\n", "# : \n", "# mode: compression\n",
+                         "# Prüfart: Druckversuch\n", "# Messlänge: 20 mm\n", "# diameter: 0 mm\n"])
 
 
 @FUZZ
@@ -501,6 +503,26 @@ _meta = st.sampled_from(["", "# mode: planar\n", "# gauge length: 20 mm\n", "# w
 def test_fuzz_structured_tables(meta, headers, rows, delim):
     text = meta + delim.join(headers) + "\n" + "\n".join(delim.join(r) for r in rows) + "\n"
     _read_or_error(text.encode("utf-8"), "fuzz.csv")
+
+
+@FUZZ
+@given(_meta, st.lists(_header, min_size=1, max_size=3), st.lists(st.lists(_cell, min_size=0, max_size=3), max_size=8),
+       st.fixed_dictionaries({}, optional={
+           "mode": st.sampled_from(["compression", "planar", "uniaxial"]),
+           "columns": st.dictionaries(_header, st.sampled_from(["force", "extension", "stress", "strain", "other",
+                                                                "stretch", "true_stress", "specimen"]), max_size=3),
+           "units": st.dictionaries(_header, st.sampled_from(["N", "mm", "MPa", "%", "zork", ""]), max_size=3),
+           "decimal": st.sampled_from(["comma", "point"]), "skip": st.integers(0, 3),
+           "gauge_length": st.sampled_from([0.02, 1e-9]), "width": st.just(0.004), "diameter": st.just(0.02)}))
+def test_fuzz_reader_options(meta, headers, rows, options):
+    # the options a form or a reading profile passes obey the same contract: curves or one DataError
+    text = meta + ";".join(headers) + "\n" + "\n".join(";".join(r) for r in rows) + "\n"
+    try:
+        curves = read_curves_bytes(text.encode("utf-8"), "opts.csv", **options)
+    except DataError as e:
+        assert str(e)
+        return
+    _check_curves(curves)
 
 
 @FUZZ

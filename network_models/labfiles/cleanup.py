@@ -42,22 +42,24 @@ def clean(fn, lam, stress, rows, notices, y, compression: bool = False):
         notices.append(Notice(f"{dropped} row(s) after the {word} stretch λ = {lam[i_ext]:.4g} (line {rows[i_ext]}) "
                        "dropped: unloading/return branch; only the loading branch is kept", "cleanup", fn))
         lam, stress, rows = lam[: i_ext + 1], stress[: i_ext + 1], rows[: i_ext + 1]
-    # slack: leading rows with near-zero or negative stress (tension only)
-    if tension and lam.size:
-        peak = np.max(stress)
+    # slack: leading rows with near-zero stress (in compression: the platen not yet bearing), mirrored so the
+    # same test serves both directions (x grows with loading, s is the load's magnitude)
+    if lam.size:
+        x, s = (lam, stress) if tension else (2.0 - lam, -stress)
+        peak = np.max(s)
         if peak > 0:
             limit = SLACK_FRACTION * peak
-            loaded = np.flatnonzero(stress > limit)
+            loaded = np.flatnonzero(s > limit)
             j = int(loaded[0]) if loaded.size else lam.size
             # keep the last unloaded row (the zero from which loading starts); drop the slack before it —
             # but only when the near-zero rows span more stretch than the initial slope explains
-            if 1 < j < lam.size and is_slack(lam, stress, j, limit, peak):
+            if 1 < j < lam.size and is_slack(x, s, j, limit, peak):
                 lam0 = lam[j - 1]
-                text = (f"{j - 1} leading row(s) with near-zero or negative stress (≤ {SLACK_FRACTION:.1%} of "
+                text = (f"{j - 1} leading row(s) with near-zero or opposite-sign stress (≤ {SLACK_FRACTION:.1%} of "
                         f"the peak: slack before loading) dropped; loading starts at line {rows[j - 1]}")
                 lam, stress, rows = lam[j - 1:], stress[j - 1:], rows[j - 1:]
-                if lam0 > 1.0:
-                    # the specimen's unstretched length is the length where it became taut: λ' = λ/λ₀
+                if (lam0 > 1.0) if tension else (lam0 < 1.0):
+                    # the specimen's unloaded length is the length where it started to bear load: λ' = λ/λ₀
                     lam = lam / lam0
                     text += f", where the stretch is re-zeroed (every stretch divided by {lam0:.4g})"
                 notices.append(Notice(text, "cleanup", fn))
