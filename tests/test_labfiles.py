@@ -340,3 +340,32 @@ def test_compression_slack_before_contact_is_dropped_and_rezeroed():
     area = np.pi * 0.020**2 / 4  # A₀ = π d²/4
     np.testing.assert_allclose(c.stress, -force[2:] / area)
     assert any(n.kind == "cleanup" and "re-zeroed" in n for n in c.notices)
+
+
+def test_vocabulary_covers_every_language():
+    # the data file names every column kind and geometry key in each of the eight languages the issue asks for
+    from network_models.labfiles import vocabulary
+
+    raw = vocabulary.all_words()
+    langs = {"en", "de", "fr", "es", "it", "pt", "zh", "ja"}
+    for kind in ("stress", "strain", "force", "extension", "specimen", "temperature"):
+        assert set(raw["columns"][kind]) == langs, kind
+    for key in ("gauge_length", "width", "thickness", "area", "temperature", "specimen", "speed", "mode"):
+        assert set(raw["keys"][key]) == langs, key
+    assert set(raw["modes"]["compression"]) == langs
+    # a word must not name two preamble keys (the first would silently win)
+    seen = {}
+    for key, by_lang in raw["keys"].items():
+        for words in by_lang.values():
+            for w in words:
+                f = vocabulary.fold(w)
+                assert seen.setdefault(f, key) == key, f"{w!r} is listed under {seen[f]} and {key}"
+
+
+def test_inspect_reports_compression():
+    assert inspect_bytes(_compression_file(True), "c.csv").loading == "compression"
+    assert inspect_bytes(b"compressive strain (%),compressive stress (MPa)\n0,0\n10,0.2\n", "h.csv").loading == \
+        "compression"
+    info = inspect_bytes(b"strain (%),stress (MPa)\n0,0\n10,0.2\n", "t.csv", mode="compression")
+    assert info.loading == "compression" and info.mode is Mode.UNIAXIAL
+    assert inspect_bytes(b"strain (%),stress (MPa)\n0,0\n10,0.2\n", "t.csv").loading == "tension"

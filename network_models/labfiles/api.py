@@ -17,9 +17,10 @@ from ..deformation import Mode
 from ..errors import DataError
 from . import tables
 from .columns import KINDS
-from .metadata import find_header, geometry, missing_geometry, parse_meta
+from .metadata import find_header, geometry, missing_geometry, parse_meta, resolve_mode
 from .reader import curves_from_table, read_header, table_from_bytes
 from .tables import cell_text
+from .vocabulary import X_KINDS, Y_KINDS
 
 OPTIONS = ("mode", "gauge_length", "width", "thickness", "area", "diameter", "temperature", "sheet", "columns",
            "units", "decimal", "skip", "profile")
@@ -167,11 +168,15 @@ def inspect_bytes(data: bytes, filename: str, *, sheet=None, preview_rows: int =
         needs_gauge = gauge is None and "extension" in kinds and not ({"stretch", "strain", "true_strain"} & kinds)
         needs_area = area is None and "force" in kinds and not ({"stress", "true_stress"} & kinds)
         preview = [[cell_text(c) for c in r] for r in table.rows[: header.start + preview_rows]]
+        mode, loading = resolve_mode(opts, known, fn, [])
+        if any(c.compression for c in cols if c.kind in X_KINDS + Y_KINDS):
+            loading = "compression"
         return FileInfo(
             filename=fn, columns=[{"header": c.header, "kind": c.kind, "unit": c.unit} for c in cols],
             metadata=known, extra=extra, needs=missing_geometry(needs_gauge, needs_area, opts, known),
-            mode=known.get("mode"), n_rows=max(len(table.rows) - header.start, 0), preview=preview,
-            notices=list(table.notices), loading=known.get("loading", "tension"), options=opts,
+            mode=known.get("mode") or (mode if opts.get("mode") else None),
+            n_rows=max(len(table.rows) - header.start, 0), preview=preview, notices=list(table.notices),
+            loading=loading, options=opts,
         )
 
     return guarded(fn, work)
