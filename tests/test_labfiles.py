@@ -369,3 +369,15 @@ def test_inspect_reports_compression():
     info = inspect_bytes(b"strain (%),stress (MPa)\n0,0\n10,0.2\n", "t.csv", mode="compression")
     assert info.loading == "compression" and info.mode is Mode.UNIAXIAL
     assert inspect_bytes(b"strain (%),stress (MPa)\n0,0\n10,0.2\n", "t.csv").loading == "tension"
+
+
+def test_compression_curves_written_and_read_back():
+    from network_models.labfiles import curves_to_csv
+
+    (c,) = read_curves_bytes(_compression_file(True), "comp.csv")
+    text = curves_to_csv([c])
+    assert text.startswith("# mode: compression")
+    (back,) = read_curves_bytes(text.encode(), "back.csv")
+    assert back.loading == "compression"
+    np.testing.assert_allclose(back.stretch, c.stretch, rtol=1e-12)
+    np.testing.assert_allclose(back.stress, c.stress, rtol=1e-12)

@@ -110,7 +110,10 @@ def curves_to_csv(curves: list[TestCurve]) -> str:
     if len(modes) > 1 or len(temps) > 1:
         raise ValueError("curves of different test modes or temperatures go in separate files")
     first = curves[0]
-    lines = [f"# mode: {first.mode.value}"]
+    loadings = {c.loading for c in curves}
+    if len(loadings) > 1:
+        raise ValueError("compression and tension curves go in separate files")
+    lines = [f"# mode: {'compression' if loadings == {'compression'} else first.mode.value}"]
     if first.temperature is not None:
         lines.append(f"# temperature: {first.temperature:.6g} K")
     for key, value in (("cycle", first.cycle), ("compound", first.metadata.get("compound"))):
