@@ -381,3 +381,19 @@ def test_compression_curves_written_and_read_back():
     assert back.loading == "compression"
     np.testing.assert_allclose(back.stretch, c.stretch, rtol=1e-12)
     np.testing.assert_allclose(back.stress, c.stress, rtol=1e-12)
+
+
+def test_cli_saves_the_options_as_a_profile(tmp_path):
+    f = tmp_path / "k.csv"
+    f.write_text("Weg (mm);Kraft (N)\n" + "".join(f"{e:g};{x:g}\n".replace(".", ",")
+                                                   for e, x in zip(EXT, FORCE, strict=True)), encoding="utf-8")
+    prof = tmp_path / "saved.toml"
+    cmd = [sys.executable, "-m", "network_models.cli", "fit", str(f), "--model", "neo-hookean", "--json"]
+    out = subprocess.run(cmd + ["--gauge-length", "20mm", "--width", "4mm", "--thickness", "2mm",
+                                "--save-profile", str(prof)], capture_output=True, text=True, cwd=ROOT)
+    assert out.returncode == 0, out.stderr
+    opts = load_profile(prof)
+    assert opts["gauge_length"] == pytest.approx(0.02) and opts["width"] == pytest.approx(0.004)
+    again = subprocess.run(cmd + ["--profile", str(prof)], capture_output=True, text=True, cwd=ROOT)
+    assert again.returncode == 0, again.stderr
+    assert json.loads(again.stdout)["models"] == json.loads(out.stdout)["models"]

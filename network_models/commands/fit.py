@@ -30,6 +30,9 @@ def add_parser(sub):
     p.add_argument("--profile", metavar="FILE",
                    help="reading profile (TOML: columns, units, geometry, mode, decimal, skip) for files of one shape; "
                         "the options given here win over it")
+    p.add_argument("--save-profile", metavar="FILE",
+                   help="save the reading options given here (mode, temperature, geometry, merged over --profile) "
+                        "as a reading profile for the next files of the same shape")
     p.add_argument("--temperature", metavar="T", help="test temperature, e.g. 23C (overrides the files)")
     p.add_argument("--gauge-length", metavar="L", help="gauge length for extension columns, e.g. 20mm")
     p.add_argument("--width", metavar="W", help="specimen width for force columns, e.g. 4mm")
@@ -108,6 +111,12 @@ def _read(args):
     curves = []
     for path in args.files:
         curves.extend(read_curves(path, **opts))
+    if args.save_profile:
+        from ..labfiles import load_profile, save_profile
+
+        given = {k: v for k, v in opts.items() if k != "profile"}
+        base = load_profile(args.profile) if args.profile else {}
+        save_profile(args.save_profile, {**base, **given}, note=f"saved by netstretch fit from {args.files[0]}")
     if not curves:
         raise ValueError("the files hold no test curves")
     return curves
