@@ -397,3 +397,12 @@ def test_cli_saves_the_options_as_a_profile(tmp_path):
     again = subprocess.run(cmd + ["--profile", str(prof)], capture_output=True, text=True, cwd=ROOT)
     assert again.returncode == 0, again.stderr
     assert json.loads(again.stdout)["models"] == json.loads(out.stdout)["models"]
+
+
+def test_long_preamble_without_separators_above_a_semicolon_table():
+    # 14 'Key: value' lines (no semicolons) above a semicolon table with decimal commas
+    preamble = "".join(f"Bemerkung {i}: frei\n" for i in range(11)) + "Messlänge: 20 mm\nBreite: 4 mm\nDicke: 2 mm\n"
+    rows = "".join(f"{f:g};{e:g}\n".replace(".", ",") for f, e in zip(FORCE, EXT, strict=True))
+    (c,) = read_curves_bytes((preamble + "Kraft (N);Weg (mm)\n" + rows).encode(), "lang.txt")
+    np.testing.assert_allclose(c.stretch, 1 + EXT / 20.0)
+    np.testing.assert_allclose(c.stress, FORCE / 8e-6)

@@ -85,9 +85,18 @@ def _meta_text(line: str) -> str | None:
 
 
 def _sniff_delimiter(lines: list[str]) -> str:
-    sample = lines[:30]
+    """Tab or semicolon when most of the top lines hold it, or when the table body at the end of the sample
+    does (below a preamble of 'Key: value' lines that hold none); else comma when any line does."""
+    head, sample = lines[:30], lines[:200]
     for delim in ("\t", ";"):
-        if sample and sum(delim in ln for ln in sample) >= max(1, int(0.8 * len(sample))):
+        if head and sum(delim in ln for ln in head) >= max(1, int(0.8 * len(head))):
+            return delim
+        run = 0
+        for ln in reversed(sample):
+            if delim not in ln:
+                break
+            run += 1
+        if run >= max(3, 0.2 * len(sample)):
             return delim
     if any("," in ln for ln in sample):
         return ","
