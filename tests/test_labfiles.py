@@ -406,3 +406,12 @@ def test_long_preamble_without_separators_above_a_semicolon_table():
     (c,) = read_curves_bytes((preamble + "Kraft (N);Weg (mm)\n" + rows).encode(), "lang.txt")
     np.testing.assert_allclose(c.stretch, 1 + EXT / 20.0)
     np.testing.assert_allclose(c.stress, FORCE / 8e-6)
+
+
+def test_full_width_forms_in_a_japanese_export():
+    text = ("試験片：J-1\n標線間距離：20 mm\n幅：4 mm\n厚さ：2 mm\n荷重（N）,変位（ｍｍ）\n"
+            + "".join(f"{f:g},{e:g}\n" for f, e in zip(FORCE, EXT, strict=True)))
+    (c,) = read_curves_bytes(text.encode("utf-8"), "ja.csv")
+    assert c.specimen == "J-1"
+    np.testing.assert_allclose(c.stretch, 1 + EXT / 20.0)
+    np.testing.assert_allclose(c.stress, FORCE / 8e-6)

@@ -40,6 +40,7 @@ def parse_meta(table: Table, lenient: frozenset[int] = frozenset()) -> tuple[dic
 
 
 def _meta_line(filename, lineno, text, known, extra, comments):
+    text = text.replace("：", ":").replace("＝", "=")  # full-width colon and equals sign (CJK text)
     m = re.match(r"^([^:=]+?)\s*[:=]\s*(.*)$", text)
     if not m:
         if text:
