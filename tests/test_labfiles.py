@@ -415,3 +415,14 @@ def test_full_width_forms_in_a_japanese_export():
     assert c.specimen == "J-1"
     np.testing.assert_allclose(c.stretch, 1 + EXT / 20.0)
     np.testing.assert_allclose(c.stress, FORCE / 8e-6)
+
+
+def test_swelling_table_in_german():
+    from network_models.labfiles import read_swelling
+
+    text = ("Mischung;Probe;Trockenmasse (g);Gequollene Masse (g);Extrahierte Masse (g);Lösungsmittel;Temperatur (°C)\n"
+            "QM-R7;1;0,2000;1,0000;0,1940;Toluol;23\n")
+    (r,) = read_swelling(text.encode("utf-8"), "quellung.csv")
+    assert (r.compound, r.specimen, r.solvent) == ("QM-R7", "1", "Toluol")
+    assert r.dry_mass == pytest.approx(0.2e-3) and r.swollen_mass == pytest.approx(1.0e-3)  # g → kg
+    assert r.extracted_mass == pytest.approx(0.194e-3) and r.temperature == pytest.approx(296.15)

@@ -11,6 +11,7 @@ from ..curves import ForceTemperatureRecord, SwellingResult
 from ..errors import DataError
 from ..units import UnitError, split_header, unit_converter
 from . import tables
+from . import vocabulary as vocab
 from .api import guarded
 from .columns import cell_value, classify
 from .metadata import geometry, parse_meta
@@ -81,17 +82,6 @@ def read_force_temperature(path_or_bytes, filename: str | None = None, *, stretc
     return guarded(fn, work)
 
 
-_SWELL_COLUMNS = {
-    "compound": ("compound", "material"),
-    "specimen": ("specimen", "sample", "piece"),
-    "dry_mass": ("dry mass", "initial mass", "mass before", "dry weight", "initial weight"),
-    "swollen_mass": ("swollen mass", "swollen weight", "wet mass"),
-    "extracted_mass": ("extracted mass", "extracted", "deswollen", "dried mass", "mass after", "final mass"),
-    "solvent": ("solvent",),
-    "temperature": ("temperature", "temp"),
-}
-
-
 def read_swelling(path_or_bytes, filename: str | None = None) -> list[SwellingResult]:
     """Read a swelling table: compound, dry mass (g), swollen mass (g), extracted mass (g), solvent,
     temperature (°C); one row per specimen."""
@@ -101,11 +91,9 @@ def read_swelling(path_or_bytes, filename: str | None = None) -> list[SwellingRe
         where: dict[str, tuple[int, str | None, str]] = {}
         for i, h in enumerate(header):
             label, unit = split_header(h)
-            low = label.lower()
-            for key, words in _SWELL_COLUMNS.items():
-                if key not in where and any(w in low for w in words):
-                    where[key] = (i, unit, h)
-                    break
+            key = vocab.swelling_column(label, taken=where)
+            if key is not None:
+                where[key] = (i, unit, h)
         missing = [k for k in ("compound", "dry_mass", "swollen_mass") if k not in where]
         if missing:
             raise DataError(f"{fn}: a swelling table needs columns 'compound', 'dry mass (g)', 'swollen mass (g)' "

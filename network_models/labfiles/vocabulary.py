@@ -73,6 +73,7 @@ def _load() -> dict:
         "keys": {k: _Words(v, anywhere) for k, v in raw["keys"].items()},
         "modes": {k: _Words(v, anywhere) for k, v in raw["modes"].items()},
         "compression": _Words(raw.get("compression_marks", {}), anywhere),
+        "swelling": {k: _Words(v, anywhere) for k, v in raw.get("swelling", {}).items()},
         "filler": {fold(w) for words in raw.get("filler", {}).values() for w in words},
         "raw": raw,
     }
@@ -85,6 +86,16 @@ def column_kind(label: str) -> str:
         if words.search(f):
             return kind
     return "other"
+
+
+def swelling_column(label: str, taken=()) -> str | None:
+    """The swelling-table column a header names (compound, specimen, dry_mass, swollen_mass,
+    extracted_mass, solvent, temperature), skipping keys already ``taken``; None when none matches."""
+    f = fold(label)
+    for key, words in _load()["swelling"].items():
+        if key not in taken and words.search(f):
+            return key
+    return None
 
 
 def marks_compression(label: str) -> bool:
