@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import math
 import re
+import unicodedata
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -77,6 +78,7 @@ def _tidy_unit_text(text: str) -> str:
     t = t.replace("\u00b2", "**2").replace("\u00b3", "**3").replace("^", "**")
     t = t.replace("\u00b5", "u").replace("\u03bc", "u")  # micro sign / Greek mu -> u
     t = re.sub(r"\bsq\.?\s*(mm|cm|m|in|inch)\b", r"\1**2", t, flags=re.IGNORECASE)
+    t = re.sub(r"\bkp\b", "kgf", t)  # kilopond, the older German name of the kilogram-force [common practice]
     t = re.sub(r"(?<=[A-Za-z])([23])\b", r"**\1", t)  # cm2 -> cm**2, mm3 -> mm**3
     t = re.sub(r"\*\*\*\*", "**", t)
     if t in {"", "-", "1", "–", "—"}:
@@ -108,7 +110,7 @@ _TRADE_BY_LOWER = {u.lower(): u for u in _TRADE_UNITS}
 def _pint_unit(text: str, dimension: str | None):
     """Parse unit text with pint; return a pint Unit.  Raises UnitError."""
     ureg = _registry()
-    raw = text.strip()
+    raw = unicodedata.normalize("NFKC", str(text)).strip()  # full-width forms (％, ｍｍ) as in CJK exports
     low = raw.lower().strip()
     squeezed = re.sub(r"[\s.]", "", low)
     if dimension in (None, "temperature"):
@@ -221,6 +223,7 @@ def parse_quantity(text, dimension: str | None = None, *, default_unit: str | No
     return out
 
 
+_FULLWIDTH_BRACKETS = str.maketrans({"（": "(", "）": ")", "［": "[", "］": "]", "｛": "{", "｝": "}", "／": "/"})
 _BRACKETS = re.compile(r"^(.*?)[\s,]*[\[(\{]\s*([^\]\)\}]*?)\s*[\]\)\}]\s*(.*)$")
 
 
@@ -230,7 +233,7 @@ def split_header(header) -> tuple[str, str | None]:
     Accepts "stress (MPa)", "Stress [psi]", "Force/N", "Force, N", "Force in N", "strain %",
     "Extension mm" (a last word that pint reads as a unit).  A header without a unit gives None.
     """
-    h = " ".join(str(header).split())
+    h = " ".join(str(header).translate(_FULLWIDTH_BRACKETS).split())
     if not h:
         return "", None
     m = _BRACKETS.match(h)

@@ -187,3 +187,19 @@ def test_split_header_total(text):
     label, unit = split_header(text)
     assert isinstance(label, str)
     assert unit is None or isinstance(unit, str)
+
+
+@pytest.mark.parametrize("text,dim,si", [
+    ("kp", "force", sc.g),  # kilopond = kilogram-force = g_n N (scipy.constants.g, standard gravity)
+    ("kp/cm2", "pressure", sc.g / sc.centi**2),
+    ("％", "dimensionless", 0.01),  # full-width forms, as Chinese and Japanese exports write them
+    ("ｍｍ", "length", sc.milli),
+    ("Ｎ", "force", 1.0),
+])
+def test_trade_and_full_width_units(text, dim, si):
+    assert unit_converter(text, dim).factor == pytest.approx(si, rel=1e-12)
+
+
+def test_full_width_brackets_in_headers():
+    assert split_header("荷重（N）") == ("荷重", "N")
+    assert split_header("伸び［％］") == ("伸び", "％")

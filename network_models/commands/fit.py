@@ -7,12 +7,12 @@ statistics, warnings in plain words and the crosslink-density table.
 
 from __future__ import annotations
 
-import json
 import math
 import re
 
 from ..crosslinks import from_fit
 from ..fitting import fit_many
+from ..jsonio import dumps
 from ..models import get_model
 
 CAUTION = ("Caution: model results support design decisions; they do not replace validation testing of parts "
@@ -22,11 +22,17 @@ CAUTION = ("Caution: model results support design decisions; they do not replace
 def add_parser(sub):
     p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 %% intervals, crosslink density)",
                        description="Fit network models to tensile, planar or equibiaxial curves.")
-    p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT or .xlsx)")
+    p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT, .xlsx, .xls or .ods)")
     p.add_argument("--model", action="append", metavar="NAME",
                    help="model to fit (repeat for several; default eight-chain; see `netstretch models`)")
-    p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar"),
-                   help="test mode when the files do not state it")
+    p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar", "compression"),
+                   help="test mode when the files do not state it (compression: uniaxial, λ < 1)")
+    p.add_argument("--profile", metavar="FILE",
+                   help="reading profile (TOML: columns, units, geometry, mode, decimal, skip) for files of one shape; "
+                        "the options given here win over it")
+    p.add_argument("--save-profile", metavar="FILE",
+                   help="save the reading options given here (mode, temperature, geometry, merged over --profile) "
+                        "as a reading profile for the next files of the same shape")
     p.add_argument("--temperature", metavar="T", help="test temperature, e.g. 23C (overrides the files)")
     p.add_argument("--gauge-length", metavar="L", help="gauge length for extension columns, e.g. 20mm")
     p.add_argument("--width", metavar="W", help="specimen width for force columns, e.g. 4mm")
@@ -57,28 +63,8 @@ def quantity(text, dimension, what, example):
 
 
 def json_document(doc: dict) -> str:
-    """One JSON document with no NaN/inf: such numbers become null and a warning says so."""
-    found = []
-
-    def clean(x, path):
-        if isinstance(x, dict):
-            return {str(k): clean(v, f"{path}.{k}" if path else str(k)) for k, v in x.items()}
-        if isinstance(x, (list, tuple)):
-            return [clean(v, f"{path}[{i}]") for i, v in enumerate(x)]
-        if hasattr(x, "item") and not isinstance(x, (str, bytes)):  # numpy scalars
-            x = x.item()
-        if isinstance(x, float) and not math.isfinite(x):
-            found.append(path)
-            return None
-        if hasattr(x, "value") and isinstance(x.value, str):  # enums (Mode)
-            return x.value
-        return x
-
-    out = clean(doc, "")
-    if found:
-        out.setdefault("warnings", []).append(
-            "undefined numbers are given as null: " + ", ".join(found[:8]) + (" …" if len(found) > 8 else ""))
-    return json.dumps(out, indent=2, ensure_ascii=False, allow_nan=False)
+    """One JSON object with no NaN/inf (kept for the commands that import it; the writer is jsonio.dumps)."""
+    return dumps(doc)
 
 
 def _num(x, scale=1.0, digits=4):
@@ -109,9 +95,11 @@ def format_crosslink_table(table) -> list[str]:
 
 # ------------------------------------------------------------------------------------------------
 def _read(args):
-    from ..testdata import read_curves
+    from ..labfiles import read_curves
 
     opts = {}
+    if args.profile:
+        opts["profile"] = args.profile
     if args.mode:
         opts["mode"] = args.mode
     if args.temperature:
@@ -123,6 +111,12 @@ def _read(args):
     curves = []
     for path in args.files:
         curves.extend(read_curves(path, **opts))
+    if args.save_profile:
+        from ..labfiles import load_profile, save_profile
+
+        given = {k: v for k, v in opts.items() if k != "profile"}
+        base = load_profile(args.profile) if args.profile else {}
+        save_profile(args.save_profile, {**base, **given}, note=f"saved by netstretch fit from {args.files[0]}")
     if not curves:
         raise ValueError("the files hold no test curves")
     return curves
@@ -193,7 +187,7 @@ def run(args):
                 doc["models"][name] = d
         if len(ok) > 1:
             doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)
-        print(json_document(doc))
+        print(dumps(doc))
     else:
         modes = {}
         for c in curves:

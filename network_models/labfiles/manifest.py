@@ -1,0 +1,127 @@
+"""The sample-set manifest (``compounds.toml``): compounds, their curve files, swelling and
+force–temperature files.  Moved here unchanged from ``testdata.py``; ``compounds.py`` is taking it over."""
+
+from __future__ import annotations
+
+import tomllib
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..curves import ForceTemperatureRecord, SwellingResult, TestCurve
+from ..deformation import Mode
+from ..errors import DataError
+from .api import read_curves
+from .records import read_force_temperature, read_swelling
+
+#: The bundled sample set's manifest (present in a source checkout).
+SAMPLE_MANIFEST = Path(__file__).resolve().parent.parent.parent / "sample_sets" / "compounds.toml"
+
+
+@dataclass
+class CurveFile:
+    path: Path
+    mode: Mode | None = None  # None: from the file's metadata
+    note: str = ""
+
+
+@dataclass
+class Compound:
+    """One compound of a sample set: its curve files and what the recipe says (read from compounds.toml)."""
+
+    key: str
+    title: str
+    polymer: str = "NR"
+    curve_files: list[CurveFile] = field(default_factory=list)
+    info: dict = field(default_factory=dict)  # cure dose, filler phr, filler volume fraction, notes...
+
+    def curves(self) -> list[TestCurve]:
+        out = []
+        for cf in self.curve_files:
+            out.extend(read_curves(cf.path, mode=cf.mode))
+        return out
+
+    @property
+    def filler_fraction(self) -> float:
+        return float(self.info.get("filler_volume_fraction", 0.0))
+
+
+@dataclass
+class Manifest:
+    path: Path
+    title: str
+    note: str
+    compounds: list[Compound]
+    swelling: Path | None = None
+    force_temperature: list[Path] = field(default_factory=list)
+    info: dict = field(default_factory=dict)
+
+    def __getitem__(self, key: str) -> Compound:
+        for c in self.compounds:
+            if c.key == key:
+                return c
+        raise KeyError(f"no compound {key!r} in {self.path.name}; it lists {', '.join(c.key for c in self.compounds)}")
+
+    def __iter__(self) -> Iterable[Compound]:
+        return iter(self.compounds)
+
+    def swelling_results(self) -> list[SwellingResult]:
+        return read_swelling(self.swelling) if self.swelling else []
+
+    def force_temperature_records(self) -> list[ForceTemperatureRecord]:
+        return [read_force_temperature(p) for p in self.force_temperature]
+
+
+def read_manifest(path=None) -> Manifest:
+    """Read a sample-set manifest (``compounds.toml``; format in sample_sets/README.md).  File paths in it
+    are relative to the manifest.  Default: the bundled sample set.  Raises DataError for a missing or
+    malformed manifest (the files it lists are read later, by ``Compound.curves()``)."""
+    p = Path(path) if path is not None else SAMPLE_MANIFEST
+    try:
+        raw = tomllib.loads(p.read_text("utf-8"))
+    except OSError as e:
+        raise DataError(f"{p}: cannot open the manifest ({e.strerror or e})") from None
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
+        raise DataError(f"{p.name}: not a valid TOML manifest ({e})") from None
+    try:
+        return _manifest_from(raw, p)
+    except DataError:
+        raise
+    except (KeyError, TypeError, AttributeError, ValueError) as e:
+        raise DataError(f"{p.name}: the manifest does not follow the format in sample_sets/README.md "
+                        f"({type(e).__name__}: {e}); every [[compound]] needs a key and files with a path") from None
+
+
+def _manifest_from(raw: dict, p: Path) -> Manifest:
+    base = p.parent
+    scen = raw.get("scenario", {})
+    if not isinstance(scen, dict):
+        raise DataError(f"{p.name}: [scenario] must be a table")
+    compounds = []
+    for i, c in enumerate(raw.get("compound", []), start=1):
+        if not isinstance(c, dict) or "key" not in c:
+            raise DataError(f"{p.name}: compound number {i} has no 'key'")
+        files = []
+        for f in c.get("files", []):
+            if isinstance(f, str):
+                f = {"path": f}
+            if not isinstance(f, dict) or not isinstance(f.get("path"), str):
+                raise DataError(f"{p.name}: compound {c['key']!r}: each file needs a path, e.g. "
+                                '{ path = "A_uniaxial.csv", mode = "uniaxial" }')
+            try:
+                mode = Mode.parse(f["mode"]) if f.get("mode") else None
+            except ValueError as e:
+                raise DataError(f"{p.name}: compound {c['key']!r}: {e}") from None
+            files.append(CurveFile(base / f["path"], mode, str(f.get("note", ""))))
+        info = {k: v for k, v in c.items() if k not in ("key", "title", "polymer", "files")}
+        compounds.append(Compound(str(c["key"]), str(c.get("title", c["key"])), str(c.get("polymer", "NR")),
+                                  files, info))
+    keys = [c.key for c in compounds]
+    if len(set(keys)) != len(keys):
+        raise DataError(f"{p.name}: compound keys must be unique; got {', '.join(keys)}")
+    return Manifest(
+        path=p, title=str(scen.get("title", p.stem)), note=str(scen.get("note", "")), compounds=compounds,
+        swelling=base / raw["swelling"]["path"] if "swelling" in raw else None,
+        force_temperature=[base / r["path"] for r in raw.get("force_temperature", [])],
+        info=scen,
+    )
