@@ -318,6 +318,60 @@ class SwellingEstimate:
         }
 
 
+def _chi_for(poly, sol, chi, T, notes) -> ChiValue:
+    """The χ a swelling estimate uses: the given one (checked) or the table's default, with notices."""
+    if chi is None:
+        cv = default_chi(poly.key, sol.key, T)
+        notes.append(f"χ = {cv.chi:g} from the solvent table [{cv.status}]: {cv.source}"
+                     + (f" ({cv.note})" if cv.note else ""))
+        T_test = LAB_TEMPERATURE if T is None else T
+        if abs(cv.temperature - T_test) > CHI_TEMPERATURE_WINDOW:
+            notes.append(Notice(
+                f"the table's χ for {poly.key}–{sol.key} was measured at {cv.temperature - ZERO_CELSIUS:.0f} °C, "
+                f"far from the swelling test at {T_test - ZERO_CELSIUS:.0f} °C: χ changes with temperature, so give "
+                "χ for your temperature when you have it", kind="chi-temperature", subject=f"{poly.key}–{sol.key}"))
+        if cv.status in ("memory", "estimate"):
+            notes.append(Notice(
+                f"χ for {poly.key}–{sol.key} is "
+                + ("recalled, not re-read" if cv.status == "memory" else "a solubility-parameter estimate")
+                + ": the strand density is only as good as χ — check it before a decision rests on it",
+                kind="chi-unsourced", subject=f"{poly.key}–{sol.key}"))
+    else:
+        if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
+            raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
+        cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
+        notes.append(f"χ = {chi:g} as given")
+    return cv
+
+
+def _network_mass(dry, extracted, initial, notes) -> tuple[float, float | None]:
+    """(network mass, soluble fraction or None) from the masses of one swelling test."""
+    soluble = None
+    network_mass = dry
+    if extracted is not None and initial is not None:
+        raise ValueError("give either the extracted mass (with dry = before swelling) or the initial mass "
+                         "(with dry = re-dried network), not both")
+    if initial is not None:
+        if not (isinstance(initial, (int, float)) and math.isfinite(initial) and initial > 0):
+            raise ValueError(f"initial mass must be a positive number; got {initial!r}")
+        if dry > initial * (1 + 1e-9):
+            raise ValueError(f"the re-dried mass ({dry:g}) exceeds the mass before swelling ({initial:g}); "
+                             "check that the two were not swapped")
+        soluble = (initial - dry) / initial
+    elif extracted is not None:
+        if not (isinstance(extracted, (int, float)) and math.isfinite(extracted) and extracted > 0):
+            raise ValueError(f"extracted mass must be a positive number; got {extracted!r}")
+        if extracted > dry * (1 + 1e-9):
+            raise ValueError(f"the extracted mass ({extracted:g}) exceeds the dry mass before swelling ({dry:g}); "
+                             "check that the two were not swapped and that the piece was fully dried")
+        soluble = (dry - extracted) / dry
+        network_mass = extracted
+    else:
+        notes.append("no extracted (re-dried) mass given: the dry mass before swelling is taken as network, "
+                     "so any soluble fraction is counted as network")
+    return network_mass, soluble
+
+
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
                       chi: float | None = None, f: float = 4.0, T: float | None = None,
                       extracted: float | None = None, initial: float | None = None,
@@ -348,50 +402,8 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                          "give the rubber fraction from the recipe when you have it)")
         else:
             rubber_fraction = 1.0
-    if chi is None:
-        cv = default_chi(poly.key, sol.key, T)
-        notes.append(f"χ = {cv.chi:g} from the solvent table [{cv.status}]: {cv.source}"
-                     + (f" ({cv.note})" if cv.note else ""))
-        T_test = LAB_TEMPERATURE if T is None else T
-        if abs(cv.temperature - T_test) > CHI_TEMPERATURE_WINDOW:
-            notes.append(Notice(
-                f"the table's χ for {poly.key}–{sol.key} was measured at {cv.temperature - ZERO_CELSIUS:.0f} °C, "
-                f"far from the swelling test at {T_test - ZERO_CELSIUS:.0f} °C: χ changes with temperature, so give "
-                "χ for your temperature when you have it", kind="chi-temperature", subject=f"{poly.key}–{sol.key}"))
-        if cv.status in ("memory", "estimate"):
-            notes.append(Notice(
-                f"χ for {poly.key}–{sol.key} is "
-                + ("recalled, not re-read" if cv.status == "memory" else "a solubility-parameter estimate")
-                + ": the strand density is only as good as χ — check it before a decision rests on it",
-                kind="chi-unsourced", subject=f"{poly.key}–{sol.key}"))
-    else:
-        if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
-            raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
-        cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
-        notes.append(f"χ = {chi:g} as given")
-    soluble = None
-    network_mass = dry
-    if extracted is not None and initial is not None:
-        raise ValueError("give either the extracted mass (with dry = before swelling) or the initial mass "
-                         "(with dry = re-dried network), not both")
-    if initial is not None:
-        if not (isinstance(initial, (int, float)) and math.isfinite(initial) and initial > 0):
-            raise ValueError(f"initial mass must be a positive number; got {initial!r}")
-        if dry > initial * (1 + 1e-9):
-            raise ValueError(f"the re-dried mass ({dry:g}) exceeds the mass before swelling ({initial:g}); "
-                             "check that the two were not swapped")
-        soluble = (initial - dry) / initial
-    elif extracted is not None:
-        if not (isinstance(extracted, (int, float)) and math.isfinite(extracted) and extracted > 0):
-            raise ValueError(f"extracted mass must be a positive number; got {extracted!r}")
-        if extracted > dry * (1 + 1e-9):
-            raise ValueError(f"the extracted mass ({extracted:g}) exceeds the dry mass before swelling ({dry:g}); "
-                             "check that the two were not swapped and that the piece was fully dried")
-        soluble = (dry - extracted) / dry
-        network_mass = extracted
-    else:
-        notes.append("no extracted (re-dried) mass given: the dry mass before swelling is taken as network, "
-                     "so any soluble fraction is counted as network")
+    cv = _chi_for(poly, sol, chi, T, notes)
+    network_mass, soluble = _network_mass(dry, extracted, initial, notes)
     phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
     phi = phi_m
     kraus = None
