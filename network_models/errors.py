@@ -88,6 +88,34 @@ class Notice(str):
         return {"kind": self.kind, "text": self.text, "subject": self.subject}
 
 
+def about(subject: str, notice) -> Notice:
+    """``notice`` (a Notice or plain sentence) said of ``subject``: "subject: sentence", same kind."""
+    return Notice(f"{subject}: {notice}", getattr(notice, "kind", "note"), subject)
+
+
+def merge_notices(notices) -> list[str]:
+    """One line per distinct sentence: notices that say the same thing of several subjects (made by
+    :func:`about`) become one line naming them all, e.g. "no planar data were fitted: planar predictions are
+    extrapolations (QM-S1, QM-S3)".  Order of first appearance is kept."""
+    merged: dict[tuple[str, str], list[str]] = {}
+    for n in notices:
+        text, subject = str.__str__(n), getattr(n, "subject", None)
+        prefix = f"{subject}: " if subject else ""
+        if subject and text.startswith(prefix):
+            merged.setdefault((getattr(n, "kind", "note"), text[len(prefix):]), []).append(subject)
+        else:
+            merged.setdefault(("", text), [])
+    out = []
+    for (_, base), subjects in merged.items():
+        if not subjects:
+            out.append(base)
+        elif len(subjects) == 1:
+            out.append(f"{subjects[0]}: {base}")
+        else:
+            out.append(f"{base} ({', '.join(dict.fromkeys(subjects))})")
+    return out
+
+
 def group_notices(notices) -> dict[str, list[Notice]]:
     """Notices grouped by kind, in first-seen order; plain strings are kind ``"note"``."""
     out: dict[str, list[Notice]] = {}
@@ -98,4 +126,4 @@ def group_notices(notices) -> dict[str, list[Notice]]:
 
 
 __all__ = ["NetstretchError", "ParameterError", "UnitError", "DataError", "FitError", "ModeNotSupportedError",
-           "UserError", "Notice", "group_notices"]
+           "UserError", "Notice", "about", "group_notices", "merge_notices"]

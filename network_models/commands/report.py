@@ -10,6 +10,8 @@ a baseline and (report) write the self-contained design-review HTML with CSV and
 
 from __future__ import annotations
 
+from ..errors import merge_notices
+
 #: default model of a comparison: separates crosslink (G_c) and entanglement (G_e) parts and locks
 DEFAULT_MODEL = "extended-tube"
 
@@ -149,7 +151,7 @@ def summary(cmp) -> str:
         lines.append("  ".join(f"{c:<{w}s}" if i == 0 else f"{c:>{w}s}" for i, (c, w) in
                                enumerate(zip(row, widths, strict=True))).rstrip())
     lines += headline_lines(cmp) + verdict_lines(cmp)
-    problems = [r.error for r in cmp.results if r.error] + [w for r in cmp.results for w in r.warnings]
+    problems = [r.error for r in cmp.results if r.error] + merge_notices(w for r in cmp.results for w in r.warnings)
     if problems:
         lines.append("")
         lines.append("Warnings:")

@@ -17,6 +17,7 @@ from ..compounds import Compound
 from ..constants import TRADE_MODULI, R, celsius, t_quantile
 from ..deformation import Mode
 from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
+from ..errors import about
 from ..models import ModeNotSupportedError, get_model
 from ..network import get_polymer
 from ..statistics import delta_se
@@ -181,7 +182,7 @@ def analyse(compound: Compound, model="eight-chain", service_temperature: float 
         res.error = err
         return res
     res.fit = fr
-    res.warnings.extend(f"{compound.name}: {w}" for w in (getattr(fr, "warnings", None) or []))
+    res.warnings.extend(about(compound.name, w) for w in (getattr(fr, "warnings", None) or []))
     res.params = _param_rows(m, fr)
     try:
         values = m.resolve({p.name: p.value for p in res.params})
@@ -208,7 +209,7 @@ def _modulus_part(res, m, fr, values, T, dof):
                        basis=f"at test temperature {celsius(T):.1f} °C", display_unit="MPa", display_scale=1e-6)
     Gx, Ge, how = split_modulus(m, values, poly.key, T)
     share, _, share_notices = entanglement_share(Ge, G0, res.compound.name)
-    res.warnings.extend(f"{res.compound.name}: {n}" for n in share_notices)
+    res.warnings.extend(about(res.compound.name, n) for n in share_notices)
     if share is not None:  # a share over 100 % is never shown as a plain number (the notice says why)
         share_se = (propagate(lambda p: split_modulus(m, p, poly.key, T)[1] / m.small_strain_modulus(**p), fr)
                     if m.modulus_split(values).separable else None)

@@ -19,6 +19,7 @@ from pathlib import Path
 
 from ..compare import TEMPERATURE_NOTE, Comparison
 from ..constants import CAUTION
+from ..errors import merge_notices
 from ..jsonio import dumps
 from ..models import get_model
 from . import sections, tables
@@ -320,7 +321,7 @@ class Report:
         return out
 
     def _warnings_html(self):
-        ws = [w for r in self.cmp.results for w in r.warnings]
+        ws = merge_notices(w for r in self.cmp.results for w in r.warnings)
         errs = [r.error for r in self.cmp.results if r.error]
         out = ["<h2>Warnings</h2>"]
         if not ws and not errs:
