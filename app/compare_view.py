@@ -65,7 +65,7 @@ class CompareView(pn.viewable.Viewer):
                                             css_classes=["ns-cmp-f"])
         self.edit_filler = pn.widgets.FloatInput(name="Filler volume fraction φ", value=0.0, step=0.01, start=0,
                                                  end=0.45, width=170, css_classes=["ns-cmp-filler"])
-        self.edit_save = pn.widgets.Button(name="Keep these values", button_type="light", width=150,
+        self.edit_save = pn.widgets.Button(name="Keep these values", button_type="primary", width=150,
                                            css_classes=["ns-cmp-edit-save"])
         self.edit_save.on_click(lambda e: self._save_compound())
         self.edit_name.param.watch(lambda e: self._show_compound(), "value")

@@ -21,8 +21,8 @@ from network_models.thermo import force_at_fixed_length, inversion_strain
 
 #: Our own colour per model (fixed, so a model keeps its colour in every plot and every session).
 MODEL_COLOURS = {m.name: m.colour for m in MODELS.values()}
-#: Colours for uploaded data sets (markers), cycled.
-DATA_COLOURS = ("#111111", "#4b5a66", "#0b2545", "#5a4632", "#2f4f4f", "#6b6b6b")
+#: Marker colours of the data curves (one per specimen curve, cycled), apart from the model colours.
+DATA_COLOURS = ("#111111", "#8a5a00", "#0f7c8c", "#a0307a", "#5f6f00", "#4b5a66", "#6d4c9f", "#b04a2f")
 
 DEFAULT_MODELS = ["affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube"]
 

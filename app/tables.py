@@ -66,7 +66,7 @@ def parameter_rows(results: dict, units: DisplayUnits | None = None) -> list[dic
             if p.fixed:
                 value, ci = sig(conv(p.value), 4), "held fixed"
             elif _at_bound(r.model_obj, p):
-                value, ci = NOT_DETERMINED, f"ran to its bound {sig(conv(p.value), 4)}: the data do not fix it"
+                value, ci = NOT_DETERMINED, "ran to the edge of its allowed range: the data do not fix it"
             elif not _finite(lo, hi):
                 value, ci = sig(conv(p.value), 4), NOT_DETERMINED
             else:
