@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import json
 import re
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -87,7 +88,7 @@ def test_service_temperature_marks_the_summary_stale_until_recomputed(app_page):
     page.locator(".ns-cmp-dl-json button").first.wait_for(state="visible")
     with page.expect_download(timeout=60000) as dl:
         page.locator(".ns-cmp-dl-json button").first.click()
-    doc = json.loads(open(dl.value.path(), encoding="utf-8").read())
+    doc = json.loads(Path(dl.value.path()).read_text("utf-8"))
     assert doc["service_temperature_K"] == pytest.approx(100.0 + 273.15)
 
 
