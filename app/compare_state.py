@@ -15,7 +15,7 @@ import param
 from network_models.constants import ZERO_CELSIUS
 from network_models.models import MODELS
 
-from .data_state import DataState
+from .data_state import CompoundInfo, DataState, LoadedFile
 
 DEFAULT_MODEL = "extended-tube"
 STALE = "out of date — recompute"
@@ -140,3 +140,38 @@ class CompareState(param.Parameterized):
         if self.stale:
             raise ValueError(f"the comparison is {STALE}: press Compare, then download")
         return make_report(self.comparison, self.title, self.purpose)
+
+    # ----- compounds made in code or from files (kept for scripts and tests written against the old tab) --
+    def _set(self, comps: dict, chosen=None, baseline=None):
+        """Put core ``Compound`` objects into the store (their curves, polymer, f, filler, swelling), then
+        choose ``chosen`` with ``baseline``."""
+        files, infos = list(self.data.files), dict(self.data.compounds)
+        for name, c in comps.items():
+            files = [f for f in files if f.group != name]
+            files.append(LoadedFile(name=f"{name} (curves)", group=name, curves=list(c.curves),
+                                    detected_mode=c.curves[0].mode.value if c.curves else "uniaxial"))
+            infos[name] = CompoundInfo(polymer=c.polymer, f=float(c.f), filler=float(c.filler_fraction),
+                                       notes=c.notes, metadata=dict(c.metadata), swelling=list(c.swelling))
+        self.data._set_files(files, compounds=infos)
+        with param.parameterized.batch_call_watchers(self):
+            if chosen is not None:
+                self.chosen = [n for n in chosen if n in self.param.chosen.objects]
+            if baseline in self.param.baseline.objects:
+                self.baseline = baseline
+
+    def add_uploads(self, name: str, files: list[tuple[str, bytes]], mode: str | None = None, polymer="NR",
+                    f: float = 4.0, filler: float = 0.0, notes: str = ""):
+        """A compound from uploaded files (filename, bytes) with its own recipe; it joins the store (and so
+        the data tab).  Returns the core Compound.  Raises ValueError with a sentence; nothing changes then."""
+        name = (name or "").strip()
+        if not name:
+            raise ValueError("give the new compound a name before adding its files")
+        if name in self.data.compounds:
+            raise ValueError(f"there is already a compound called {name!r}; choose another name")
+        if not files:
+            raise ValueError("choose one or more test files for the new compound first")
+        opts = {"mode": mode} if mode else {}
+        loaded = [self.data.add_upload(fn, data, compound=name, **opts) for fn, data in files]
+        self.data.accept_uploads(loaded, CompoundInfo(polymer=polymer, f=float(f), filler=float(filler),
+                                                      notes=notes))
+        return build_compound(self.data, name)

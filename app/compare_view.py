@@ -227,4 +227,4 @@ class CompareView(pn.viewable.Viewer):
         return self._layout
 
 
-__all__ = ["CompareView"]
+__all__ = ["CompareState", "CompareView"]  # CompareState re-exported: it lived here before

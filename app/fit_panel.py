@@ -148,13 +148,17 @@ class FitPanel(pn.viewable.Viewer):
         pts = s.overlay_points()
         shown = set(s.results)
         data_modes = {c.mode.value for c in s.selected_curves()}
+        k = self.units.s(1e6)  # the state draws MPa; the plots follow the display unit
+        unit = self.units.stress
         with pn.io.hold():
             for mode in MODES:
                 ff = self.figs[mode.value]
-                cols = fc[mode.value]
+                cols = {n: (v if n == "lam" else np.asarray(v) * k) for n, v in fc[mode.value].items()}
                 ff.source.data = cols
-                ff.resid.data = rp[mode.value]
-                ff.data.data = pts[mode.value]
+                ff.resid.data = {**rp[mode.value], "y": [y * k for y in rp[mode.value]["y"]]}
+                ff.data.data = {**pts[mode.value], "y": [y * k for y in pts[mode.value]["y"]]}
+                ff.fig.yaxis.axis_label = f"nominal stress P ({unit})"
+                ff.resid_fig.yaxis.axis_label = f"model − data ({unit})"
                 set_visible_models(ff.lines, shown)
                 ff.fig.x_range.start, ff.fig.x_range.end = 1.0, float(cols["lam"][-1])
                 self._boxes[mode.value].visible = mode.value in data_modes

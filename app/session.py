@@ -66,6 +66,11 @@ class Session:
         d = self.data
         inputs = []
         for f in d.files:
+            if f.data is None and f.path is None:  # curves made in code: kept as one CSV per curve
+                inputs += [ProjectInput(name=f"{f.name} {c.name}.csv", data=curve_csv(c), compound=f.group,
+                                        options={"mode": c.mode.value}, selected=f.name in d.selected)
+                           for c in f.curves]
+                continue
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
                                        selected=f.name in d.selected))
@@ -121,6 +126,13 @@ class Session:
                     problems.append(f"setting {section}.{n} = {values[n]!r} was not restored ({exc})")
         self.compare.comparison = None
         return problems
+
+
+def curve_csv(c) -> bytes:
+    """One curve as a CSV the reader reads back exactly (stretch and nominal stress in Pa, 17 digits)."""
+    head = f"# mode: {c.mode.value}\n" + (f"# temperature: {c.temperature} K\n" if c.temperature else "")
+    rows = "\n".join(f"{a!r},{b!r}" for a, b in zip(c.stretch.tolist(), c.stress.tolist(), strict=True))
+    return (head + "stretch,nominal stress (Pa)\n" + rows + "\n").encode("utf-8")
 
 
 _SWELL_FIELDS = ("dry", "swollen", "solvent", "chi", "extracted", "temperature", "specimen", "source")

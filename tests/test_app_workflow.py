@@ -298,3 +298,35 @@ def test_swelling_prefill_picker_shows_the_specimen():
 
     v = SwellView()
     assert v.sample.value != "—" and v.sample.value == v.state.sample_key
+
+
+def test_fit_plots_follow_the_stress_unit(page):
+    dv = page.ns_data
+    dv.state.selected = ["TRIAL-1_uniaxial.csv"]
+    src = dv.fit.figs["uniaxial"].data
+    y_mpa = list(src.data["y"])
+    dv.fit.units.stress = "psi"
+    try:
+        # 1 MPa = 1e6 Pa / 6894.757… Pa per psi (NIST SP 811; scipy.constants.psi)
+        np.testing.assert_allclose(src.data["y"], np.asarray(y_mpa) * 1e6 / psi, rtol=1e-12)
+        assert "psi" in dv.fit.figs["uniaxial"].fig.yaxis[0].axis_label
+        assert "psi" in dv.fit.params_html.object
+    finally:
+        dv.fit.units.stress = "MPa"
+
+
+def test_curves_made_in_code_survive_a_project_round_trip():
+    from network_models.compounds import Compound
+    from network_models.testdata import TestCurve
+
+    lam = np.linspace(1.0, 2.5, 12)
+    P = 0.4e6 * (lam - lam**-2)  # any smooth curve; checked only for exact round-tripping
+    a = Session()
+    a.compare._set({"C": Compound("C", [TestCurve("planar", lam, P, name="c1", temperature=T23)], f=6.0)},
+                   chosen=["C"], baseline="C")
+    b = Session()
+    b.load_project(a.to_project())
+    (f,) = b.data.compound_files("C")
+    np.testing.assert_array_equal(f.curves[0].stretch, lam)
+    np.testing.assert_allclose(f.curves[0].stress, P, rtol=1e-15)
+    assert f.curves[0].mode.value == "planar" and b.data.compounds["C"].f == 6.0
