@@ -55,8 +55,8 @@ class DataView(pn.viewable.Viewer):
         self.selected = pn.widgets.CheckBoxGroup.from_param(s.param.selected, inline=False,
                                                             css_classes=["ns-file-select"])
         self.files_html = html("", css_classes=["ns-files"])
-        self.edit_file = pn.widgets.Select(name="File", options=[], width=230, css_classes=["ns-edit-file"])
-        self.edit_mode = pn.widgets.Select(name="Test mode", options=[m.value for m in MODES], width=120)
+        self.edit_file = pn.widgets.Select(name="File", options=[], width=190, css_classes=["ns-edit-file"])
+        self.edit_mode = pn.widgets.Select(name="Test mode", options=[m.value for m in MODES], width=110)
         self.edit_gauge = pn.widgets.FloatInput(name="Gauge length (mm)", value=None, width=120, start=0)
         self.edit_width = pn.widgets.FloatInput(name="Width (mm)", value=None, width=100, start=0)
         self.edit_thick = pn.widgets.FloatInput(name="Thickness (mm)", value=None, width=100, start=0)
@@ -271,8 +271,8 @@ class DataView(pn.viewable.Viewer):
                           html("<div class='ns-side-h'>Files in the fit</div>"), self.selected,
                           sizing_mode="stretch_width"),
                 pn.Column(html("<div class='ns-side-h'>Per-file settings and preview</div>"),
-                          pn.Row(self.edit_file, self.edit_mode),
-                          pn.Row(self.edit_compound, self.edit_gauge, self.edit_width, self.edit_thick),
+                          pn.Row(self.edit_file, self.edit_mode, self.edit_compound),
+                          pn.Row(self.edit_gauge, self.edit_width, self.edit_thick),
                           pn.Row(self.apply, self.remove), self.preview, sizing_mode="stretch_width"),
                 sizing_mode="stretch_width"),
             self.files_html,

@@ -99,7 +99,7 @@ def _build_page(load_samples: bool = True):
     main_tabs.param.watch(on_tab, "active")
     on_tab()
     svg = pn.widgets.Checkbox(name="Plots save as SVG (else PNG)", value=False, css_classes=["ns-svg-export"])
-    svg.param.watch(lambda e: set_output_backend(all_figures(explorer, data_view), e.new), "value")
+    svg.param.watch(lambda e: _switch_backend(page, e.new), "value")
     side = pn.Column(controls, pn.Column(svg, margin=(4, 10)), width=340, css_classes=["ns-side"], scroll=True,
                      margin=(0, 8, 0, 0))
     body = pn.Row(side, pn.Column(project, messages, main_tabs, sizing_mode="stretch_width"),
@@ -129,13 +129,13 @@ def _load_samples(session: Session) -> list[str]:
     return [f"Some sample files could not be read: {p}" for p in problems]
 
 
-def all_figures(explorer, data_view) -> list:
-    """Every Bokeh figure of the page (for the PNG/SVG export switch)."""
-    figs = [sf.fig for sf in explorer.stress.values()]
-    figs += [explorer.mooney.fig, explorer.mod_nu.fig, explorer.mod_T.fig, explorer.force.fig]
-    for ff in data_view.fit.figs.values():
-        figs += [ff.fig, ff.resid_fig]
-    return figs + [data_view.fit.rms_fig]
+def _switch_backend(page, svg: bool):
+    """PNG or SVG drawing for every plot of the page: the figures change backend and their panes are
+    re-rendered (a backend change alone does not rebuild a figure already on screen)."""
+    panes = page.select(pn.pane.Bokeh)
+    set_output_backend([p.object for p in panes], svg)
+    for p in panes:
+        p.param.trigger("object")
 
 
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):

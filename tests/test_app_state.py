@@ -206,7 +206,8 @@ def test_swelling_form_matches_the_flory_rehner_balance():
 
 def test_core_cli_and_app_state_do_not_import_panel():
     code = ("import sys, network_models, network_models.cli, network_models.commands.serve, app.state, "
-            "app.data_state; "
+            "app.data_state, app.session, app.compare_state, app.swell_state, app.project_file, app.tables, "
+            "app.display_units; "
             "bad = [m for m in ('panel', 'holoviews', 'bokeh') if m in sys.modules]; print(bad); "
             "sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
