@@ -112,7 +112,9 @@ class CompareView(pn.viewable.Viewer):
         for kind, label, _w in DOWNLOADS:
             dl = self.downloads[kind]
             dl.disabled = stale or self.state.comparison is None
-            dl.label = f"{label} — {STALE}" if stale and kind == "html" else label
+            dl.label = STALE.capitalize() if stale and kind == "html" else label
+        if stale and self.messages.kinds().get("compare") == "success":
+            self.messages.clear("compare")  # "Compared …" no longer describes what is shown
         self.stale_note.object = (
             f"<div class='ns-stale'>The results below are {STALE}: an input changed after the last comparison. "
             "Press Compare; the downloads are off until then.</div>" if stale else "")

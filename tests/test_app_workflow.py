@@ -118,7 +118,8 @@ def test_changing_the_service_temperature_marks_the_comparison_stale_and_blocks_
     assert doc["service_temperature_K"] == pytest.approx(80.0 + 273.15)
     cv.state.service_C = 100.0
     assert cv.state.stale
-    assert cv.downloads["json"].disabled and "out of date" in cv.downloads["html"].label
+    assert cv.downloads["json"].disabled and "out of date" in cv.downloads["html"].label.lower()
+    assert "compare" not in cv.messages.texts()  # the 'Compared …' note no longer describes the results
     assert "out of date" in cv.stale_results.object
     assert cv._file("json") is None and "out of date" in cv.messages.texts()["compare-download"]
     cv._run()

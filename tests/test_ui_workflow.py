@@ -82,7 +82,7 @@ def test_service_temperature_marks_the_summary_stale_until_recomputed(app_page):
     box.press("Enter")
     wait_text(page, ".ns-cmp-stale", "out of date")
     assert page.locator(".ns-cmp-dl-json button").first.is_disabled()
-    assert "out of date" in text(page, ".ns-cmp-dl-html")
+    assert "out of date" in text(page, ".ns-cmp-dl-html").lower()
     page.locator(".ns-cmp-run button").first.click()
     page.wait_for_function(f"() => !({JS})('.ns-cmp-stale').includes('out of date')", timeout=90000)
     page.locator(".ns-cmp-dl-json button").first.wait_for(state="visible")
