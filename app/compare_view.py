@@ -20,7 +20,7 @@ from network_models.models import MODELS
 from network_models.report import CSS as REPORT_CSS
 
 from .compare_state import STALE, CompareState
-from .data_state import MAX_UPLOAD_BYTES, CompoundInfo
+from .data_state import MAX_UPLOAD_BYTES, CompoundInfo, missing_items
 from .messages import Messages, guarded
 from .tables import esc, table_html
 from .ui import html
@@ -33,9 +33,11 @@ DOWNLOADS = (("html", "Download report (HTML)", 230), ("csv", "CSV", 90), ("json
 class CompareView(pn.viewable.Viewer):
     """The Compare tab of one session."""
 
-    def __init__(self, state: CompareState, **params):
+    def __init__(self, state: CompareState, ask_missing=None, **params):
         super().__init__(**params)
         self.state = s = state
+        #: called as ask_missing(name, bytes, missing_items, compound) for a file that lacks geometry
+        self.ask_missing = ask_missing
         self.data = s.data
         self.messages = Messages(area="compare")
         self.chosen = pn.widgets.MultiChoice.from_param(s.param.chosen, sizing_mode="stretch_width",
@@ -174,11 +176,25 @@ class CompareView(pn.viewable.Viewer):
         if name in self.data.compounds:
             raise ValueError(f"there is already a compound called {name!r}; choose another name")
         mode = None if self.new_mode.value == "from the file" else self.new_mode.value
-        loaded = []
+        loaded, waiting = [], []
         for fn, data in zip(names, value, strict=True):
             if data and len(data) > MAX_UPLOAD_BYTES:
                 raise ValueError(f"{fn}: over the {MAX_UPLOAD_BYTES / 1e6:.0f} MB upload limit")
-            loaded.append(self.data.add_upload(fn, data, compound=name, **({"mode": mode} if mode else {})))
+            try:
+                loaded.append(self.data.add_upload(fn, data, compound=name, **({"mode": mode} if mode else {})))
+            except ValueError as exc:
+                miss = missing_items(exc)
+                if not miss or self.ask_missing is None:
+                    raise
+                self.ask_missing(fn, data, miss, name)
+                waiting.append(fn)
+        if waiting:
+            self.messages.show("compare-missing", f"{esc(', '.join(waiting))}: the file(s) lack items such as the "
+                                                  "gauge length or cross-section; type them once in the form under "
+                                                  "'Test data &amp; fits' → 'Load test files' and they join "
+                                                  f"**{esc(name)}**.", "info")
+            if not loaded:
+                return
         recipe = CompoundInfo(polymer=self.edit_polymer.value, f=float(self.edit_f.value),
                               filler=float(self.edit_filler.value or 0.0))
         self.data.accept_uploads(loaded, recipe)

@@ -35,7 +35,8 @@ class DataView(pn.viewable.Viewer):
         #: messages about files (upload, settings), shown beside the upload area
         self.messages = Messages(area="files")
         self._seen: set[tuple[str, int]] = set()
-        self._pending: list[tuple[str, bytes, list[str]]] = []  # files waiting for the missing-items form
+        #: files waiting for the missing-items form: (name, bytes, missing items, compound or None)
+        self._pending: list[tuple[str, bytes, list[str], str | None]] = []
 
         if hasattr(pn.widgets, "FileDropper"):
             self.upload = pn.widgets.FileDropper(
@@ -118,7 +119,7 @@ class DataView(pn.viewable.Viewer):
             except ValueError as exc:
                 miss = missing_items(exc)
                 if miss:
-                    self._pending.append((name, data, miss))
+                    self._pending.append((name, data, miss, None))
                 else:
                     problems.append(str(exc))
             except Exception as exc:
@@ -155,7 +156,7 @@ class DataView(pn.viewable.Viewer):
         if not self._pending:
             self.missing_box.visible = False
             return
-        name, _data, miss = self._pending[0]
+        name, _data, miss, _compound = self._pending[0]
         self.missing_inputs = {}
         for item in miss:
             unit, label = GEOMETRY_ITEMS.get(item, ("mm", item.replace("_", " ").capitalize()))
@@ -168,10 +169,15 @@ class DataView(pn.viewable.Viewer):
         self.missing_box.objects = [self.missing_title, pn.Row(*self.missing_inputs.values()), self.missing_read]
         self.missing_box.visible = True
 
+    def ask_missing(self, name: str, data: bytes, missing: list[str], compound: str | None = None):
+        """Queue a file another tab could not read for lack of ``missing`` items: this tab's form asks."""
+        self._pending.append((name, data, list(missing), compound))
+        self._show_missing_form()
+
     def _read_pending(self):
         if not self._pending:
             return
-        name, data, miss = self._pending[0]
+        name, data, miss, compound = self._pending[0]
         opts = {}
         for item, w in self.missing_inputs.items():
             v = w.value
@@ -179,7 +185,7 @@ class DataView(pn.viewable.Viewer):
                 raise ValueError(f"{name}: type a positive {item.replace('_', ' ')} first")
             unit = GEOMETRY_ITEMS.get(item, ("mm",))[0]
             opts[item] = v * (1e-6 if unit == "mm²" else 1e-3)  # mm, mm² → m, m² for the reader
-        lf = self.state.add_upload(name, data, **opts)
+        lf = self.state.add_upload(name, data, compound=compound, **opts)
         self._pending.pop(0)
         self._report_upload([lf], [])
         self._accept([lf])

@@ -69,7 +69,7 @@ def _build_page(load_samples: bool = True):
     explorer = ExplorerViews(session.network, controls, messages)
     data_view = DataView(session.data, network_state=session.network, explorer=explorer, units=session.units)
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
-    compare = CompareView(session.compare)
+    compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
     if load_samples:
         if problems:

@@ -331,3 +331,26 @@ def test_curves_made_in_code_survive_a_project_round_trip():
     np.testing.assert_array_equal(f.curves[0].stretch, lam)
     np.testing.assert_allclose(f.curves[0].stress, P, rtol=1e-15)
     assert f.curves[0].mode.value == "planar" and b.data.compounds["C"].f == 6.0
+
+
+def test_compare_sends_a_file_lacking_geometry_to_the_form(page, monkeypatch):
+    cv, dv = page.ns_compare, page.ns_data
+    real = dv.state.add_upload
+
+    def fake(name, data, compound=None, **opts):
+        if "gauge_length" not in opts:
+            err = DataError(f"{name}: gauge length is missing")
+            err.fields = {"missing": ["gauge_length"]}
+            raise err
+        return real(name, gauss_csv(110.0), compound, mode="uniaxial")
+
+    monkeypatch.setattr(dv.state, "add_upload", fake)
+    cv.upload.value, cv.upload.filename = [b"force,extension\n0,0\n"], ["RAW-5.csv"]
+    cv.new_name.value = "Trial 5"
+    cv._add()
+    assert "Trial 5" in cv.messages.texts()["compare-missing"]
+    assert dv.missing_box.visible and list(dv.missing_inputs) == ["gauge_length"]
+    dv.missing_inputs["gauge_length"].value = 25.0
+    dv._read_pending()
+    assert dv.state.get("RAW-5.csv").group == "Trial 5"
+    assert "Trial 5" in cv.state.param.chosen.objects
