@@ -1,120 +1,45 @@
-"""The app's Compare tab: choose compounds (bundled sample set or uploads), a baseline, a model and a service
-temperature; see the comparison table and plots; download the review report (HTML) with its CSV and JSON.
+"""The Compare tab: compounds formed from the session's files (each with its own polymer, f and filler),
+a baseline, a model and a service temperature; the comparison table and plots; the review report (HTML)
+with its CSV and JSON.  When an input changes after a comparison, the results and the download buttons say
+"out of date — recompute" and the downloads are off until Compare is pressed again.
 
-``CompareView(messages=None, load_samples=True)`` is a ``pn.viewable.Viewer``; ``app.main`` mounts it as
-its own tab.  State and logic live in :class:`CompareState` (param only, no Panel); the numbers, tables and
-SVG plots come from ``network_models.compare`` and ``network_models.report`` so the tab, the downloaded
-report and ``netstretch report`` agree.
+State and logic: :class:`app.compare_state.CompareState` (no Panel); numbers, tables and SVG plots come
+from ``network_models.compare`` / ``network_models.report`` so the tab, the report and ``netstretch
+report`` agree.
 """
 
 from __future__ import annotations
 
 import io
 import logging
-from pathlib import Path
 
 import panel as pn
-import param
 
-from network_models.compare import Comparison, compare
-from network_models.compounds import Compound, load_manifest
-from network_models.models import MODELS, get_model
+from network_models import get_model, polymers
+from network_models.models import MODELS
 from network_models.report import CSS as REPORT_CSS
-from network_models.report import Report
 
+from .compare_state import STALE, CompareState
+from .data_state import MAX_UPLOAD_BYTES, CompoundInfo, missing_items
 from .messages import Messages, guarded
+from .tables import esc, table_html
 from .ui import html
 
 log = logging.getLogger("netstretch.app")
 
-#: upload cap for one file (uploads travel in one websocket message)
-MAX_UPLOAD_BYTES = 20 * 1024 * 1024
-DEFAULT_MODEL = "extended-tube"
-
-
-class CompareState(param.Parameterized):
-    """Compounds of one session, the comparison choices and the last comparison (no Panel here)."""
-
-    compounds = param.Dict(default={}, doc="name -> Compound")
-    chosen = param.ListSelector(default=[], objects=[], label="Compounds to compare")
-    baseline = param.Selector(default=None, objects=[None], allow_None=True, label="Baseline")
-    model = param.Selector(default=DEFAULT_MODEL, objects=list(MODELS), label="Model fitted to every compound")
-    service_C = param.Number(default=80.0, bounds=(-60.0, 250.0), label="Service temperature (°C)")
-    title = param.String(default="Compound design review", label="Report title")
-    purpose = param.String(default="", label="Purpose of the review (one line)")
-    comparison = param.Parameter(default=None, doc="the last Comparison")
-    scenario = param.String(default="")
-
-    def _set(self, comps: dict, chosen=None, baseline=None):
-        names = list(comps)
-        self.param.chosen.objects = names
-        self.param.baseline.objects = [None, *names]
-        with param.parameterized.batch_call_watchers(self):
-            self.compounds = comps
-            self.chosen = [n for n in (chosen if chosen is not None else self.chosen) if n in names]
-            b = baseline if baseline in names else (self.baseline if self.baseline in names else None)
-            self.baseline = b
-
-    def load_samples(self, path=None):
-        from network_models.testdata import SAMPLE_MANIFEST
-
-        man = load_manifest(path or SAMPLE_MANIFEST)
-        comps = dict(self.compounds)
-        comps.update({c.name: c for c in man.compounds})
-        self.scenario = man.title
-        if man.title and self.title == self.param.title.default:
-            self.title = man.title
-        self._set(comps, chosen=[c.name for c in man.compounds], baseline=man.baseline)
-
-    def add_uploads(self, name: str, files: list[tuple[str, bytes]], mode: str | None = None, polymer="NR",
-                    f: float = 4.0, notes: str = "") -> Compound:
-        """A compound from uploaded files (filename, bytes).  Raises ValueError with a sentence."""
-        from network_models.testdata import read_curves_bytes
-
-        name = (name or "").strip()
-        if not name:
-            raise ValueError("give the new compound a name before adding its files")
-        if name in self.compounds:
-            raise ValueError(f"there is already a compound called {name!r}; choose another name")
-        if not files:
-            raise ValueError("choose one or more test files for the new compound first")
-        curves = []
-        for fn, data in files:
-            if not data:
-                raise ValueError(f"{fn}: the file is empty")
-            if len(data) > MAX_UPLOAD_BYTES:
-                raise ValueError(f"{fn}: {len(data) / 1e6:.1f} MB is over the {MAX_UPLOAD_BYTES / 1e6:.0f} MB "
-                                 "upload limit; export only the test curves")
-            opts = {"mode": mode} if mode else {}
-            curves.extend(read_curves_bytes(bytes(data), Path(fn).name, **opts))
-        comp = Compound(name, curves, polymer=polymer, f=f, notes=notes, metadata={"source": "uploaded"})
-        comps = dict(self.compounds)
-        comps[name] = comp
-        self._set(comps, chosen=[*self.chosen, name])
-        return comp
-
-    def run(self) -> Comparison:
-        if not self.chosen:
-            raise ValueError("choose at least one compound to compare")
-        comps = [self.compounds[n] for n in self.chosen]
-        base = self.baseline if self.baseline in self.chosen else None
-        cmp = compare(comps, model=self.model, baseline=base, service_temperature=self.service_C + 273.15)
-        self.comparison = cmp
-        return cmp
-
-    def report(self) -> Report:
-        if self.comparison is None:
-            raise ValueError("press Compare first: there is no comparison to put in a report yet")
-        return Report(self.comparison, title=self.title, purpose=self.purpose)
+DOWNLOADS = (("html", "Download report (HTML)", 230), ("csv", "CSV", 90), ("json", "JSON", 90))
 
 
 class CompareView(pn.viewable.Viewer):
     """The Compare tab of one session."""
 
-    def __init__(self, messages: Messages | None = None, load_samples: bool = True, **params):
+    def __init__(self, state: CompareState, ask_missing=None, **params):
         super().__init__(**params)
-        self.messages = messages or Messages()
-        self.state = s = CompareState()
+        self.state = s = state
+        #: called as ask_missing(name, bytes, missing_items, compound) for a file that lacks geometry
+        self.ask_missing = ask_missing
+        self.data = s.data
+        self.messages = Messages(area="compare")
         self.chosen = pn.widgets.MultiChoice.from_param(s.param.chosen, sizing_mode="stretch_width",
                                                         css_classes=["ns-cmp-chosen"])
         self.baseline = pn.widgets.Select.from_param(s.param.baseline, width=200, css_classes=["ns-cmp-baseline"])
@@ -125,44 +50,98 @@ class CompareView(pn.viewable.Viewer):
         self.title = pn.widgets.TextInput.from_param(s.param.title, sizing_mode="stretch_width")
         self.purpose = pn.widgets.TextInput.from_param(s.param.purpose, sizing_mode="stretch_width",
                                                        placeholder="e.g. choose the cure dose for the mount")
-        self.run_btn = pn.widgets.Button(name="Compare", button_type="primary", width=140,
-                                         css_classes=["ns-cmp-run"])
+        self.run_btn = pn.widgets.Button(name="Compare", button_type="primary", width=140, css_classes=["ns-cmp-run"])
         self.run_btn.on_click(lambda e: self._run())
-        # new compound from uploads
+        self.downloads = {
+            kind: pn.widgets.FileDownload(callback=(lambda k=kind: self._file(k)), filename=f"review.{kind}",
+                                          label=label, width=w, css_classes=[f"ns-cmp-dl-{kind}"],
+                                          button_type="success" if kind == "html" else "default")
+            for kind, label, w in DOWNLOADS}
+        self.stale_note = html("", css_classes=["ns-cmp-stale"])
+        self.stale_results = html("", css_classes=["ns-cmp-stale-results"])
+        # the compound editor: recipe facts of one compound of the store
+        self.edit_name = pn.widgets.Select(name="Compound", options=[], width=180, css_classes=["ns-cmp-edit"])
+        self.edit_polymer = pn.widgets.Select(name="Polymer", options=list(polymers()), width=110,
+                                              css_classes=["ns-cmp-polymer"])
+        self.edit_f = pn.widgets.FloatInput(name="Functionality f", value=4.0, step=1.0, start=3, end=64, width=120,
+                                            css_classes=["ns-cmp-f"])
+        self.edit_filler = pn.widgets.FloatInput(name="Filler volume fraction φ", value=0.0, step=0.01, start=0,
+                                                 end=0.45, width=170, css_classes=["ns-cmp-filler"])
+        self.edit_save = pn.widgets.Button(name="Keep these values", button_type="primary", width=150,
+                                           css_classes=["ns-cmp-edit-save"])
+        self.edit_save.on_click(lambda e: self._save_compound())
+        self.edit_name.param.watch(lambda e: self._show_compound(), "value")
+        self.compounds_html = html("", css_classes=["ns-cmp-compounds"])
+        # a new compound from files: the files join the store under the name typed here
         self.new_name = pn.widgets.TextInput(name="New compound name", width=200, placeholder="e.g. Trial 7")
         self.new_mode = pn.widgets.Select(name="Test mode (if the files do not say)",
                                           options=["from the file", "uniaxial", "planar", "equibiaxial"], width=220)
         self.upload = pn.widgets.FileInput(multiple=True, sizing_mode="stretch_width", css_classes=["ns-cmp-upload"])
-        self.add_btn = pn.widgets.Button(name="Add compound", button_type="light", width=140)
+        self.add_btn = pn.widgets.Button(name="Add compound", button_type="light", width=140,
+                                         css_classes=["ns-cmp-add"])
         self.add_btn.on_click(lambda e: self._add())
-        # downloads (built on click, from the last comparison)
-        self.dl_html = pn.widgets.FileDownload(callback=lambda: self._file("html"), filename="review.html",
-                                               label="Download report (HTML)", button_type="success", width=230,
-                                               css_classes=["ns-cmp-dl-html"])
-        self.dl_csv = pn.widgets.FileDownload(callback=lambda: self._file("csv"), filename="review.csv",
-                                              label="CSV", width=90, css_classes=["ns-cmp-dl-csv"])
-        self.dl_json = pn.widgets.FileDownload(callback=lambda: self._file("json"), filename="review.json",
-                                               label="JSON", width=90, css_classes=["ns-cmp-dl-json"])
-        # results (panes created once, their .object replaced)
         self.summary = html("", css_classes=["ns-cmp-summary"])
         self.table = html("", css_classes=["ns-cmp-table"])
         self.plots = html("", css_classes=["ns-cmp-plots"])
         self.details = html("", css_classes=["ns-cmp-details"])
+        self.results = pn.Column(self.stale_results, self.summary, self.table, self.plots, self.details,
+                                 sizing_mode="stretch_width", css_classes=["ns-cmp-results"])
         self._run = guarded(self.messages, "compare", "Compare")(self._run)
         self._add = guarded(self.messages, "compare-upload", "New compound")(self._add)
         self._file = guarded(self.messages, "compare-download", "Download")(self._file)
+        self._save_compound = guarded(self.messages, "compare-edit", "Compound")(self._save_compound)
+        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison"])
+        self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
-        if load_samples:
-            try:
-                s.load_samples()
-            except Exception as exc:  # the tab still works with uploads
-                log.exception("sample sets for compare")
-                self.messages.show("compare-samples", f"The bundled sample set could not be loaded ({exc}); "
-                                                      "add compounds from your own files.", "secondary")
-            else:
-                self._run()
+        self._on_store()
 
-    # ----- callbacks ------------------------------------------------------------------------------
+    # ----- the store and stale marks -------------------------------------------------------------------
+    def _on_store(self):
+        names = self.data.compound_names()
+        self.edit_name.options = names
+        if self.edit_name.value not in names and names:
+            self.edit_name.value = names[0]
+        rows = [{"compound": n, "polymer": i.polymer, "f": f"{i.f:g}", "filler φ": f"{i.filler:.3g}",
+                 "files": ", ".join(f.name for f in self.data.compound_files(n)),
+                 "swelling tests": str(len(i.swelling))} for n, i in self.data.compounds.items()]
+        self.compounds_html.object = table_html(rows, "ns-cmp-compound-table")
+        self._show_compound()
+        self._mark()
+
+    def _mark(self):
+        """Say 'out of date' on the results and the downloads whenever an input changed since Compare."""
+        stale = self.state.stale
+        for kind, label, _w in DOWNLOADS:
+            dl = self.downloads[kind]
+            dl.disabled = stale or self.state.comparison is None
+            dl.label = STALE.capitalize() if stale and kind == "html" else label
+        if stale and self.messages.kinds().get("compare") == "success":
+            self.messages.clear("compare")  # "Compared …" no longer describes what is shown
+        self.stale_note.object = (
+            f"<div class='ns-stale'>The results below are {STALE}: an input changed after the last comparison. "
+            "Press Compare; the downloads are off until then.</div>" if stale else "")
+        self.stale_note.visible = stale
+        self.stale_results.object = self.stale_note.object
+        self.stale_results.visible = stale
+        self.results.css_classes = ["ns-cmp-results"] + (["ns-stale-results"] if stale else [])
+
+    def _show_compound(self):
+        info = self.data.compounds.get(self.edit_name.value or "")
+        if info is not None:
+            self.edit_polymer.value = info.polymer if info.polymer in self.edit_polymer.options else "NR"
+            self.edit_f.value, self.edit_filler.value = float(info.f), float(info.filler)
+
+    def _save_compound(self):
+        name = self.edit_name.value
+        if not name:
+            raise ValueError("there is no compound to edit yet: load files first")
+        self.data.set_compound_info(name, polymer=self.edit_polymer.value, f=float(self.edit_f.value),
+                                    filler=float(self.edit_filler.value or 0.0))
+        self.messages.show("compare-edit", f"Compound **{esc(name)}**: {esc(self.edit_polymer.value)}, "
+                                           f"f = {self.edit_f.value:g}, φ = {self.edit_filler.value or 0:g} kept; "
+                                           "press Compare.", "success")
+
+    # ----- actions ---------------------------------------------------------------------------------------
     def _run(self):
         self.run_btn.loading = True
         try:
@@ -178,7 +157,11 @@ class CompareView(pn.viewable.Viewer):
             "warnings", "params", "crosslink", "swelling", "provenance", "model"))
         failed = [r.error for r in cmp.results if r.error]
         if failed:
-            self.messages.show("compare", "**Compare:** " + " · ".join(failed), "warning")
+            self.messages.show("compare", "**Compare:** " + " · ".join(esc(x) for x in failed), "warning")
+        else:
+            self.messages.show("compare", f"Compared {len(cmp.results)} compound(s) with the "
+                                          f"{esc(cmp.model_obj.title)} model.", "success")
+        self._mark()
         return cmp
 
     def _add(self):
@@ -187,45 +170,79 @@ class CompareView(pn.viewable.Viewer):
             raise ValueError("choose one or more test files for the new compound first")
         if not isinstance(value, list):
             value, names = [value], [names]
+        name = (self.new_name.value or "").strip()
+        if not name:
+            raise ValueError("give the new compound a name before adding its files")
+        if name in self.data.compounds:
+            raise ValueError(f"there is already a compound called {name!r}; choose another name")
         mode = None if self.new_mode.value == "from the file" else self.new_mode.value
-        comp = self.state.add_uploads(self.new_name.value, list(zip(names, value, strict=True)), mode=mode)
+        loaded, waiting = [], []
+        for fn, data in zip(names, value, strict=True):
+            if data and len(data) > MAX_UPLOAD_BYTES:
+                raise ValueError(f"{fn}: over the {MAX_UPLOAD_BYTES / 1e6:.0f} MB upload limit")
+            try:
+                loaded.append(self.data.add_upload(fn, data, compound=name, **({"mode": mode} if mode else {})))
+            except ValueError as exc:
+                miss = missing_items(exc)
+                if not miss or self.ask_missing is None:
+                    raise
+                self.ask_missing(fn, data, miss, name)
+                waiting.append(fn)
+        if waiting:
+            self.messages.show("compare-missing", f"{esc(', '.join(waiting))}: the file(s) lack items such as the "
+                                                  "gauge length or cross-section; type them once in the form under "
+                                                  "'Test data &amp; fits' → 'Load test files' and they join "
+                                                  f"**{esc(name)}**.", "info")
+            if not loaded:
+                return
+        recipe = CompoundInfo(polymer=self.edit_polymer.value, f=float(self.edit_f.value),
+                              filler=float(self.edit_filler.value or 0.0))
+        self.data.accept_uploads(loaded, recipe)
         self.new_name.value = ""
-        self.messages.show("compare-upload", f"Compound **{comp.name}** added ({len(comp.curves)} curve(s)); "
-                                             "press Compare.", "success")
+        self.edit_name.value = name
+        self.messages.show("compare-upload", f"Compound **{esc(name)}** added ({sum(len(f.curves) for f in loaded)} "
+                                             f"curve(s); {esc(recipe.polymer)}, f = {recipe.f:g}, φ = "
+                                             f"{recipe.filler:g} — change them above); press Compare.", "success")
 
     def _file(self, kind: str):
         rep = self.state.report()
         text = {"html": rep.to_html, "csv": rep.to_csv, "json": rep.to_json}[kind]()
         return io.BytesIO(text.encode("utf-8"))
 
-    # ----- layout ---------------------------------------------------------------------------------
+    # ----- layout ----------------------------------------------------------------------------------------
     def _build(self):
         intro = html(
             "<div class='ns-small'>Fit the same model to every chosen compound and compare them with the "
             "baseline: strand density ν and junction (crosslink) density μ_j = 2ν/f with 95 % intervals, M_c, N, "
             "locking stretch, entanglement share, G₀ at the service temperature (G ∝ T at a fixed network — "
             "filled compounds often soften with temperature in reality), M100/M300 measured and predicted, and "
-            "swelling where given. The download is one self-contained HTML file (opens offline); CSV and JSON "
-            "hold every number.</div>")
+            "swelling where given. Compounds are the session's files grouped by compound (files uploaded in "
+            "'Test data &amp; fits' appear here). The download is one self-contained HTML file (opens offline); "
+            "CSV and JSON hold every number.</div>")
+        dl = self.downloads
         choose = pn.Column(
             html("<div class='ns-side-h'>Compounds</div>"), self.chosen,
             pn.Row(self.baseline, self.model, self.service, sizing_mode="stretch_width"),
             self.title, self.purpose,
-            pn.Row(self.run_btn, self.dl_html, self.dl_csv, self.dl_json),
+            pn.Row(self.run_btn, dl["html"], dl["csv"], dl["json"]), self.stale_note, self.messages,
             sizing_mode="stretch_width")
+        edit = pn.Card(
+            self.compounds_html,
+            pn.Row(self.edit_name, self.edit_polymer, self.edit_f, self.edit_filler, self.edit_save),
+            html("<div class='ns-small'>Each compound carries its own polymer, junction functionality f and filler "
+                 "volume fraction φ; they enter its crosslink density and the Guth–Gold correction.</div>"),
+            title="Compounds and their recipe facts", collapsed=False, sizing_mode="stretch_width",
+            css_classes=["ns-cmp-editor"])
         add = pn.Card(
             pn.Row(self.new_name, self.new_mode), self.upload, self.add_btn,
+            html("<div class='ns-small'>The new compound takes the polymer, f and φ shown in the editor above; "
+                 "its files are also listed in 'Test data &amp; fits'.</div>"),
             title="Add a compound from your files", collapsed=True, sizing_mode="stretch_width")
-        return pn.Column(intro, choose, add, self.summary, self.table, self.plots, self.details,
-                         sizing_mode="stretch_width", css_classes=["ns-compare"])
+        return pn.Column(intro, choose, edit, add, self.results, sizing_mode="stretch_width",
+                         css_classes=["ns-compare"])
 
     def __panel__(self):
         return self._layout
 
 
-def create_compare_view(messages: Messages | None = None, load_samples: bool = True, **_ignored):
-    """Factory used by ``app.main``."""
-    return CompareView(messages=messages, load_samples=load_samples)
-
-
-__all__ = ["CompareState", "CompareView", "create_compare_view"]
+__all__ = ["CompareState", "CompareView"]  # CompareState re-exported: it lived here before

@@ -1,9 +1,10 @@
-"""Session state for test data, fits, crosslink tables and swelling — no Panel import.
+"""The session's data store (files, compounds) and the fit view's state — no Panel import.
 
-One :class:`DataState` per browser session holds the files the user loaded (bytes kept so per-file
-settings can re-read them), the files chosen for the fit, the fit results and the crosslink table.
-A file that cannot be read raises a ``ValueError`` whose message names the file and what to do;
-the state is left exactly as it was.
+One :class:`DataState` per browser session is the one store every tab reads: the files the user loaded
+(bytes kept so per-file settings can re-read them and a project file can hold them), the compound each file
+belongs to with that compound's polymer, functionality and filler (:class:`CompoundInfo`), the files
+chosen for the fit, the fit results and the crosslink table.  A file that cannot be read raises a
+``ValueError`` whose message names the file and what to do; the state is left exactly as it was.
 """
 
 from __future__ import annotations
@@ -11,7 +12,9 @@ from __future__ import annotations
 import hashlib
 import logging
 import math
-from dataclasses import dataclass, field
+import re
+import tomllib
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -19,7 +22,7 @@ import param
 
 from network_models import MODELS, MODES, Mode, get_model, polymers
 
-from .state import DATA_COLOURS, model_colour, sig
+from .state import DATA_COLOURS, model_colour
 
 log = logging.getLogger("netstretch.app")
 
@@ -27,6 +30,12 @@ log = logging.getLogger("netstretch.app")
 MAX_UPLOAD_BYTES = 20_000_000
 
 DEFAULT_FIT_MODELS = ["eight-chain", "extended-tube", "non-affine-tube", "mooney-rivlin"]
+#: after a fit, the crosslink table (and the explorer) uses the first of these that was fitted (data, in
+#: the one place the app states a preference between models), else the first fitted model
+PREFERRED_TABLE_MODELS = ("extended-tube", "eight-chain", "non-affine-tube")
+#: reader options a user can give for a file (and the missing-items form asks for), with unit and label
+GEOMETRY_ITEMS = {"gauge_length": ("mm", "Gauge length"), "width": ("mm", "Width"),
+                  "thickness": ("mm", "Thickness"), "area": ("mm²", "Cross-section area")}
 
 
 def _testdata():
@@ -37,9 +46,43 @@ def _testdata():
 
 
 @dataclass
+class CompoundInfo:
+    """What the store knows of one compound besides its curves: recipe facts the analysis needs."""
+
+    polymer: str = "NR"
+    f: float = 4.0
+    filler: float = 0.0  # filler volume fraction φ of the dry compound
+    notes: str = ""
+    metadata: dict = field(default_factory=dict)
+    swelling: list = field(default_factory=list)  # network_models.compounds.SwellingTest
+
+
+def compound_from_filename(filename: str, curves=()) -> str:
+    """The compound a file belongs to: the curves' ``compound`` metadata, else the file name up to its
+    first '_' or space ('QM-S3_uniaxial_psi.txt' → 'QM-S3'), else the file name's stem."""
+    for c in curves:
+        v = (getattr(c, "metadata", {}) or {}).get("compound")
+        if v:
+            return str(v).strip()
+    stem = Path(filename).stem
+    stem = re.sub(r"\s*\(\d+\)$", "", stem)
+    head = re.split(r"[_ ]", stem, maxsplit=1)[0]
+    return head or stem or "uploaded"
+
+
+def missing_items(exc) -> list[str] | None:
+    """The items a reader error says are missing (``DataError.fields["missing"]``), or None."""
+    fields = getattr(exc, "fields", None)
+    if not isinstance(fields, dict):
+        return None
+    miss = fields.get("missing")
+    return [str(m) for m in miss] if miss else None
+
+
+@dataclass
 class LoadedFile:
     name: str  # unique display name
-    group: str  # compound key from a manifest, or "uploaded"
+    group: str  # the compound the file belongs to (manifest key, metadata, file-name prefix or the user's)
     curves: list
     detected_mode: str
     data: bytes | None = None  # upload bytes (None: read from ``path``)
@@ -81,6 +124,8 @@ class DataState(param.Parameterized):
     """Loaded test files, fit choices and results of one session."""
 
     files = param.List(default=[], item_type=LoadedFile, doc="loaded files, in load order")
+    compounds = param.Dict(default={}, doc="compound name -> CompoundInfo (every compound a file belongs to)")
+    revision = param.Integer(default=0, doc="counts every change of files or compounds (for stale marks)")
     selected = param.ListSelector(default=[], objects=[], label="Files in the fit")
     fit_models = param.ListSelector(default=list(DEFAULT_FIT_MODELS), objects=list(MODELS), label="Models to fit")
     residual = param.Selector(default="relative", objects=["relative", "absolute"], label="Residual")
@@ -93,6 +138,7 @@ class DataState(param.Parameterized):
     failures = param.Dict(default={}, doc="model name -> sentence why the fit failed")
     manifest_title = param.String(default="")
     manifest_note = param.String(default="")
+    manifest_baseline = param.String(default="", doc="the sample set's baseline compound")
 
     # ----- loading -----------------------------------------------------------------------------
     def _unique(self, name: str) -> str:
@@ -107,13 +153,58 @@ class DataState(param.Parameterized):
                 return cand
             i += 1
 
-    def _set_files(self, files: list[LoadedFile], selected: list[str] | None = None):
+    def _set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
+                   new_info: CompoundInfo | None = None):
         names = [f.name for f in files]
         self.param.selected.objects = names
         sel = [n for n in (selected if selected is not None else self.selected) if n in names]
+        comps = dict(compounds if compounds is not None else self.compounds)
+        for f in files:
+            if f.group not in comps:
+                comps[f.group] = replace(new_info) if new_info is not None else CompoundInfo(
+                    polymer=self.polymer, f=float(self.f), filler=float(self.filler))
+        used = {f.group for f in files}
+        comps = {k: v for k, v in comps.items() if k in used}
         with param.parameterized.batch_call_watchers(self):
+            self.compounds = comps
             self.files = files
             self.selected = sel
+            self.revision += 1
+
+    # ----- compounds ----------------------------------------------------------------------------
+    def compound_names(self) -> list[str]:
+        return list(self.compounds)
+
+    def compound_files(self, name: str) -> list[LoadedFile]:
+        return [f for f in self.files if f.group == name]
+
+    def set_compound_info(self, name: str, **changes):
+        """Change one compound's polymer, f, filler or notes (checked here, so a bad value is a sentence)."""
+        if name not in self.compounds:
+            raise ValueError(f"there is no compound called {name!r}")
+        if "polymer" in changes and changes["polymer"] not in polymers():
+            raise ValueError(f"unknown polymer {changes['polymer']!r}; choose one of {', '.join(polymers())}")
+        if "f" in changes and not (3.0 <= float(changes["f"]) <= 64.0):
+            raise ValueError(f"junction functionality f = {changes['f']} is outside 3…64")
+        if "filler" in changes and not (0.0 <= float(changes["filler"]) < 0.5):
+            raise ValueError(f"filler volume fraction {changes['filler']} is outside 0…0.5")
+        comps = dict(self.compounds)
+        comps[name] = replace(comps[name], **changes)
+        with param.parameterized.batch_call_watchers(self):
+            self.compounds = comps
+            self.revision += 1
+
+    def assign(self, file_name: str, compound: str):
+        """Put one file into another (possibly new) compound: the user's edit of the automatic grouping."""
+        compound = (compound or "").strip()
+        if not compound:
+            raise ValueError("give the compound a name")
+        f = self.get(file_name)
+        comps = dict(self.compounds)
+        if compound not in comps:
+            comps[compound] = replace(comps.get(f.group, CompoundInfo()), swelling=[], metadata={})
+        self._set_files([replace(x, group=compound) if x.name == file_name else x for x in self.files],
+                        compounds=comps)
 
     def load_samples(self, manifest_path=None) -> list[str]:
         """Load the bundled sample sets (or a manifest); select the baseline compound's files.
@@ -122,7 +213,16 @@ class DataState(param.Parameterized):
         man = td.read_manifest(manifest_path)
         self.manifest_title, self.manifest_note = man.title, man.note
         problems, files = [], list(self.files)
+        comps = dict(self.compounds)
+        try:
+            swell = man.swelling_results()
+            raw = tomllib.loads(Path(man.path).read_text("utf-8")).get("swelling", {})
+            chi = raw.get("chi") if isinstance(raw, dict) else None  # the set's stated χ, as `netstretch report`
+        except (ValueError, OSError) as exc:
+            problems.append(str(exc))
+            swell, chi = [], None
         for comp in man:
+            comps[comp.key] = _manifest_info(comp, swell, chi)
             for cf in comp.curve_files:
                 try:
                     curves = td.read_curves(cf.path, mode=cf.mode)
@@ -135,14 +235,16 @@ class DataState(param.Parameterized):
                     options={"mode": cf.mode.value} if cf.mode else {}, polymer=comp.polymer,
                     filler_fraction=comp.filler_fraction))
         baseline = man.info.get("baseline") or (man.compounds[0].key if man.compounds else None)
+        self.manifest_baseline = baseline or ""
         sel = [f.name for f in files if f.group == baseline]
-        self._set_files(files, sel)
+        self._set_files(files, sel, compounds=comps)
         self._prefill_from_selection()
         return problems
 
-    def add_upload(self, filename: str, data: bytes) -> LoadedFile:
-        """Read an uploaded file and add it (selected for the fit on its own with other new uploads).
-        Raises ValueError with a sentence; nothing changes then."""
+    def add_upload(self, filename: str, data: bytes, compound: str | None = None, **options) -> LoadedFile:
+        """Read an uploaded file (``options``: reader options in SI, e.g. the geometry the missing-items
+        form asked for).  Returns the file; :meth:`accept_uploads` adds it.  Raises ValueError with a
+        sentence (a reader error may list ``fields["missing"]``: see :func:`missing_items`)."""
         name = Path(str(filename or "upload.csv")).name or "upload.csv"
         if data is None or len(data) == 0:
             raise ValueError(f"{name}: the file is empty; it needs a header row and rows of numbers")
@@ -151,23 +253,25 @@ class DataState(param.Parameterized):
                              f"{MAX_UPLOAD_BYTES / 1e6:.0f} MB upload limit; export only the test curves")
         digest = _digest(bytes(data))
         for f in self.files:
-            if f.group == "uploaded" and f.digest == digest:
-                return f  # the same file again: nothing new
+            if f.data is not None and f.digest == digest and not options:
+                return f  # the same upload again: nothing new
         td = _testdata()
-        curves = td.read_curves_bytes(bytes(data), name)
+        opts = {k: v for k, v in options.items() if v is not None}
+        curves = td.read_curves_bytes(bytes(data), name, **opts)
         if not curves:
             raise ValueError(f"{name}: no test curve found; the file needs a stretch/strain column and a "
                              "stress/force column")
-        lf = LoadedFile(name=self._unique(name), group="uploaded", curves=curves,
-                        detected_mode=curves[0].mode.value, data=bytes(data), digest=digest)
-        return lf
+        group = (compound or "").strip() or compound_from_filename(name, curves)
+        return LoadedFile(name=self._unique(name), group=group, curves=curves, detected_mode=curves[0].mode.value,
+                          data=bytes(data), digest=digest, options=opts)
 
-    def accept_uploads(self, loaded: list[LoadedFile]):
-        """Add read uploads to the session and make them the fit selection."""
+    def accept_uploads(self, loaded: list[LoadedFile], recipe: CompoundInfo | None = None):
+        """Add read uploads to the store and make them the fit selection; a compound new to the store gets
+        ``recipe`` (polymer, f, filler; default: the fit view's current values)."""
         if not loaded:
             return
         files = list(self.files) + [f for f in loaded if f not in self.files]
-        self._set_files(files, [f.name for f in loaded])
+        self._set_files(files, [f.name for f in loaded], new_info=recipe)
 
     def remove(self, name: str):
         self._set_files([f for f in self.files if f.name != name])
@@ -195,20 +299,34 @@ class DataState(param.Parameterized):
             curves = td.read_curves_bytes(f.data, f.name, **opts)
         else:
             curves = td.read_curves(f.path, **opts)
-        new = LoadedFile(name=f.name, group=f.group, curves=curves, detected_mode=f.detected_mode, data=f.data,
-                         path=f.path, options=opts, polymer=f.polymer, filler_fraction=f.filler_fraction,
-                         digest=f.digest)
+        new = replace(f, curves=curves, options=opts)
         self._set_files([new if x.name == name else x for x in self.files])
         return new
 
-    def _prefill_from_selection(self):
+    def selected_compound(self) -> str | None:
+        """The compound of the fit selection when it is one compound, else None."""
         groups = {f.group for f in self.files if f.name in self.selected}
-        comp = [f for f in self.files if f.name in self.selected and f.polymer]
-        if len(groups) == 1 and comp:
+        return groups.pop() if len(groups) == 1 else None
+
+    @param.depends("selected", "compounds", watch=True)
+    def _prefill_from_selection(self):
+        """The fit view shows the recipe of the compound it fits (kept in step when either changes)."""
+        info = self.compounds.get(self.selected_compound() or "")
+        if info is not None:
             with param.parameterized.batch_call_watchers(self):
-                if comp[0].polymer in self.param.polymer.objects:
-                    self.polymer = comp[0].polymer
-                self.filler = float(comp[0].filler_fraction)
+                if info.polymer in self.param.polymer.objects:
+                    self.polymer = info.polymer
+                self.f = float(info.f)
+                self.filler = float(info.filler)
+
+    @param.depends("polymer", "f", "filler", watch=True)
+    def _recipe_to_compound(self):
+        """The fit view's polymer, f and filler belong to the compound being fitted: keep them with it."""
+        name = self.selected_compound()
+        info = self.compounds.get(name or "")
+        if info is not None and (info.polymer, info.f, info.filler) != (self.polymer, float(self.f),
+                                                                        float(self.filler)):
+            self.set_compound_info(name, polymer=self.polymer, f=float(self.f), filler=float(self.filler))
 
     # ----- what the views draw -------------------------------------------------------------------
     def selected_curves(self) -> list:
@@ -218,19 +336,17 @@ class DataState(param.Parameterized):
                 out.extend(f.curves)
         return out
 
-    def file_colour(self, name: str) -> str:
-        names = [f.name for f in self.files]
-        i = names.index(name) if name in names else 0
-        return DATA_COLOURS[i % len(DATA_COLOURS)]
-
     def overlay_points(self) -> dict:
-        """Selected data per mode, λ and MPa, with a colour per file (for every stress plot)."""
+        """Selected data per mode, λ and MPa, with a colour per specimen curve (cycled) and its label
+        'file · curve' (one legend entry each, for every stress plot)."""
         out = {m.value: {"x": [], "y": [], "color": [], "file": []} for m in MODES}
+        i = 0
         for f in self.files:
             if f.name not in self.selected:
                 continue
-            col = self.file_colour(f.name)
             for c in f.curves:
+                col = DATA_COLOURS[i % len(DATA_COLOURS)]
+                i += 1
                 d = out[c.mode.value]
                 d["x"].extend(c.stretch.tolist())
                 d["y"].extend((c.stress / 1e6).tolist())
@@ -238,14 +354,6 @@ class DataState(param.Parameterized):
                 d["file"].extend([f"{f.name} · {c.name}"] * len(c))
         return out
 
-    def preview_rows(self, name: str, n: int = 8) -> list[dict]:
-        f = self.get(name)
-        rows = []
-        for c in f.curves:
-            for lam, P in list(zip(c.stretch, c.stress, strict=True))[:n]:
-                rows.append({"curve": c.name, "mode": c.mode.value, "stretch λ": f"{lam:.4f}",
-                             "nominal stress (MPa)": f"{P / 1e6:.4f}"})
-        return rows
 
     # ----- fitting ------------------------------------------------------------------------------
     def run_fit(self) -> list[str]:
@@ -286,10 +394,7 @@ class DataState(param.Parameterized):
 
     @staticmethod
     def _preferred(names):
-        for pick in ("extended-tube", "eight-chain", "non-affine-tube"):
-            if pick in names:
-                return pick
-        return names[0] if names else None
+        return next((n for n in PREFERRED_TABLE_MODELS if n in names), names[0] if names else None)
 
     def fitted_curves(self, n: int = 200) -> dict:
         """For each mode: λ grid over the data (a little beyond) and each fitted model's stress (MPa)."""
@@ -329,34 +434,16 @@ class DataState(param.Parameterized):
                 d["model"].extend([r.title] * int(ok.sum()))
         return out
 
-    def parameter_rows(self) -> list[dict]:
-        """One row per fitted parameter (display units), with 95 % interval, plus G₀ and fit quality."""
-        rows = []
-        for _name, r in self.results.items():
-            for p in r.params.values():
-                scale = p.display_scale or 1.0
-                unit = p.display_unit or p.unit
-                lo, hi = p.ci95
-                if lo is None or hi is None or not (np.isfinite(lo) and np.isfinite(hi)):
-                    ci = "not determined"
-                else:
-                    ci = f"{sig(lo * scale, 4)} … {sig(hi * scale, 4)}"
-                rows.append({"model": r.title, "parameter": f"{p.symbol or p.name}",
-                             "meaning": p.meaning, "value": sig(p.value * scale, 4),
-                             "95 % interval": "held fixed" if p.fixed else ci, "unit": "" if unit == "1" else unit})
-            g0 = r.small_strain_modulus
-            rms = ", ".join(f"{m.value} {s.rms / 1e6:.3g}" for m, s in r.modes.items())
-            rows.append({"model": r.title, "parameter": "G₀", "meaning": "small-strain shear modulus (derived)",
-                         "value": sig(g0 / 1e6, 4), "95 % interval": "see crosslink table", "unit": "MPa"})
-            rows.append({"model": r.title, "parameter": "fit", "meaning": f"RMS residual per mode (MPa): {rms}",
-                         "value": f"AIC {r.aic:.4g}", "95 % interval": f"n = {r.n}, k = {r.k}", "unit": ""})
-        return rows
+    def warnings(self) -> list:
+        """The fits' notices (``errors.Notice`` where the core gives one, else plain sentences), each led by
+        its model's name, then the models that could not be fitted (kind 'fit-failed')."""
+        from network_models.errors import Notice
 
-    def warnings(self) -> list[str]:
         out = []
         for r in self.results.values():
-            out.extend(f"{r.title}: {w}" for w in r.warnings)
-        return out + list(self.failures.values())
+            out.extend(Notice(f"{r.title}: {w}", getattr(w, "kind", "note"), getattr(w, "subject", None))
+                       for w in r.warnings)
+        return out + [Notice(t, "fit-failed") for t in self.failures.values()]
 
     def crosslink_table(self):
         """The crosslink-density assumption table from the chosen fit (None without a fit)."""
@@ -368,85 +455,27 @@ class DataState(param.Parameterized):
         return from_fit(r, polymer=self.polymer, f=float(self.f), filler_fraction=float(self.filler))
 
 
-class SwellState(param.Parameterized):
-    """One Flory–Rehner form: masses in grams at the edge, everything else from the core."""
 
-    dry_g = param.Number(default=None, allow_None=True, bounds=(0.0, None), label="Dry mass before swelling (g)")
-    swollen_g = param.Number(default=None, allow_None=True, bounds=(0.0, None), label="Swollen mass (g)")
-    extracted_g = param.Number(default=None, allow_None=True, bounds=(0.0, None),
-                               label="Extracted, re-dried mass (g, optional)")
-    solvent = param.Selector(default="toluene", objects=["toluene"], label="Solvent")
-    polymer = param.Selector(default="NR", objects=list(polymers()), label="Polymer")
-    chi = param.Number(default=None, allow_None=True, bounds=(0.0, 1.5),
-                       label="χ (blank: the solvent table's value)")
-    f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
-    filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ (Kraus correction)")
-    T_C = param.Number(default=23.0, bounds=(-50.0, 200.0), label="Test temperature (°C)")
-    sample_label = param.String(default="")
 
-    def __init__(self, **params):
-        from network_models.swelling import solvents
+def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
+    """A sample-set compound's recipe facts and swelling tests for the store."""
+    from network_models.compounds import SwellingTest
 
-        super().__init__(**params)
-        self.param.solvent.objects = list(solvents())
+    info = dict(comp.info)
+    meta = {"title": comp.title} if comp.title and comp.title != comp.key else {}
+    meta.update({k: v for k, v in info.items() if k not in ("notes", "note", "f", "baseline")})
+    tests = []
+    for r in swell_rows:
+        if r.compound in (comp.key, comp.title):
+            try:
+                tests.append(SwellingTest.from_record(r, chi=chi))
+            except ValueError as exc:  # one bad row does not hide the compound
+                log.info("swelling row skipped: %s", exc)
+    return CompoundInfo(polymer=comp.polymer, f=float(info.get("f", 4.0)), filler=float(comp.filler_fraction),
+                        notes=str(info.get("notes", info.get("note", ""))), metadata=meta, swelling=tests)
 
-    def sample_labels(self) -> list[str]:
-        """One label per row of the bundled sample set's swelling table."""
-        rows = _testdata().read_manifest().swelling_results()
-        return [f"{r.compound} {r.specimen or ''}".strip() for r in rows]
 
-    def load_sample(self, compound: str | None = None, label: str | None = None) -> bool:
-        """Prefill from the bundled sample set's swelling table: the row called ``label``, else the first
-        row of ``compound`` (default: the baseline compound)."""
-        td = _testdata()
-        man = td.read_manifest()
-        rows = man.swelling_results()
-        if not rows:
-            return False
-        want = compound or man.info.get("baseline")
-        labels = [f"{r.compound} {r.specimen or ''}".strip() for r in rows]
-        if label in labels:
-            row = rows[labels.index(label)]
-        else:
-            row = next((r for r in rows if r.compound == want), rows[0])
-        comp = next((c for c in man if c.key == row.compound), None)
-        with param.parameterized.batch_call_watchers(self):
-            self.dry_g, self.swollen_g = row.dry_mass * 1000.0, row.swollen_mass * 1000.0
-            self.extracted_g = None if row.extracted_mass is None else row.extracted_mass * 1000.0
-            if row.solvent and row.solvent in self.param.solvent.objects:
-                self.solvent = row.solvent
-            if comp is not None:
-                self.polymer = comp.polymer
-                self.filler = comp.filler_fraction
-            if row.temperature:
-                self.T_C = row.temperature - 273.15
-            self.sample_label = f"{row.compound} {row.specimen or ''} (invented sample data)".strip()
-        return True
+from .swell_state import SwellState  # noqa: E402  (re-exported: it used to live here)
 
-    def default_chi(self):
-        """The table's χ row for this polymer–solvent pair, or None (then the user must give χ)."""
-        from network_models.swelling import default_chi
-
-        try:
-            return default_chi(self.polymer, self.solvent)
-        except KeyError:
-            return None
-
-    def estimate(self):
-        """The swelling estimate (network_models.swelling.SwellingEstimate); ValueError with a sentence."""
-        from network_models.swelling import swelling_estimate
-
-        if self.dry_g is None or self.swollen_g is None:
-            raise ValueError("enter the dry mass and the swollen mass (grams) to get a swelling estimate")
-        if not (self.dry_g > 0 and self.swollen_g > 0):
-            raise ValueError("masses must be positive numbers of grams")
-        if self.swollen_g <= (self.extracted_g or self.dry_g):
-            raise ValueError(f"the swollen mass ({self.swollen_g:g} g) must exceed the dry mass "
-                             f"({(self.extracted_g or self.dry_g):g} g): check that the two were not swapped")
-        if self.chi is None and self.default_chi() is None:
-            raise ValueError(f"the solvent table has no χ for {self.polymer} in {self.solvent}; type a χ from a "
-                             "source you trust")
-        ext = None if self.extracted_g in (None, 0) else self.extracted_g / 1000.0
-        return swelling_estimate(self.dry_g / 1000.0, self.swollen_g / 1000.0, self.solvent, self.polymer,
-                                 chi=self.chi, f=float(self.f), T=self.T_C + 273.15, extracted=ext,
-                                 filler_fraction=float(self.filler))
+__all__ = ["CompoundInfo", "DataState", "LoadedFile", "MAX_UPLOAD_BYTES", "SwellState", "compound_from_filename",
+           "missing_items"]

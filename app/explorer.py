@@ -13,6 +13,9 @@ from network_models import MODELS, MODES, get_model, polymers
 
 from .messages import Messages, guarded
 from .plots import (
+    DIMENSIONLESS,
+    data_legend_html,
+    empty_points,
     force_T_figure,
     modulus_nu_figure,
     modulus_T_figure,
@@ -22,6 +25,21 @@ from .plots import (
 )
 from .state import NetworkState, fmt, model_colour, polymer_label
 from .ui import html
+
+
+def readable_range(model_arrays, data=(), pad=0.06, floor=None, reach=4.0):
+    """A y-range that keeps the data and the bulk of the model curves readable: a curve shooting up near its
+    locking stretch (or a slider at an extreme) is clipped at ``reach`` × the data's (or the curves' median
+    end) height instead of squashing everything else flat."""
+    data = np.asarray(data, dtype=float).ravel()
+    data = data[np.isfinite(data)]
+    ends = [float(a[np.isfinite(a)][-1]) for a in (np.asarray(m, dtype=float) for m in model_arrays)
+            if np.isfinite(a).any()]
+    ref = float(np.max(np.abs(data))) if data.size else (float(np.median(np.abs(ends))) if ends else None)
+    arrays = [np.asarray(a, dtype=float).ravel() for a in model_arrays] + [data]
+    if ref and ref > 0:
+        arrays = [np.clip(a, -reach * ref, reach * ref) for a in arrays]
+    return _nanrange(arrays, pad, floor)
 
 
 def _nanrange(arrays, pad=0.06, floor=None):
@@ -41,12 +59,13 @@ def _nanrange(arrays, pad=0.06, floor=None):
 log = logging.getLogger("netstretch.app")
 
 
-def legend_html(shown) -> str:
+def legend_html(shown, data_points=None) -> str:
     items = "".join(
         f"<span class='ns-leg-item'><span class='ns-leg-line' style='background:{model_colour(n)}'></span>"
         f"{get_model(n).title}</span>" for n in MODELS if n in shown)
     return (f"<div class='ns-legend-box'>{items}<span class='ns-leg-item ns-note'>"
-            "<span class='ns-leg-dot'></span>locking stretch · ● test data</span></div>")
+            "<span class='ns-leg-dot'></span>locking stretch · ● test data</span></div>"
+            + data_legend_html(data_points or {}))
 
 
 class NetworkControls(pn.viewable.Viewer):
@@ -77,7 +96,7 @@ class NetworkControls(pn.viewable.Viewer):
             fixed_start=s.param.f.bounds[0], fixed_end=s.param.f.bounds[1],
             css_classes=["ns-f-input"], sizing_mode="stretch_width")
         self.filler = pn.widgets.EditableFloatSlider.from_param(
-            s.param.filler, name="Filler volume fraction φ (1)", step=0.01, format="0.00",
+            s.param.filler, name=f"Filler volume fraction φ {DIMENSIONLESS}", step=0.01, format="0.00",
             fixed_start=0.0, fixed_end=s.param.filler.bounds[1], css_classes=["ns-filler-input"],
             sizing_mode="stretch_width")
         self.ent = pn.widgets.Checkbox.from_param(s.param.entanglements, css_classes=["ns-entanglements"])
@@ -85,9 +104,10 @@ class NetworkControls(pn.viewable.Viewer):
             s.param.models, options={get_model(n).title: n for n in MODELS}, inline=False,
             css_classes=["ns-models"])
         self.lam_max = pn.widgets.EditableFloatSlider.from_param(
-            s.param.lam_max, name="Largest stretch shown λ (1)", step=0.1, format="0.0",
+            s.param.lam_max, name=f"Largest stretch shown λ {DIMENSIONLESS}", step=0.1, format="0.0",
             fixed_start=s.param.lam_max.bounds[0], fixed_end=s.param.lam_max.bounds[1],
             css_classes=["ns-lammax-input"], sizing_mode="stretch_width")
+        self.lam_follow = pn.widgets.Checkbox.from_param(s.param.lam_follows_data, css_classes=["ns-lam-follow"])
         self.derived = html("", css_classes=["ns-readout"], sizing_mode="stretch_width",
                                     margin=(0, 10))
         self.polymer_note = html("", css_classes=["ns-polymer-note"], sizing_mode="stretch_width",
@@ -136,7 +156,7 @@ class NetworkControls(pn.viewable.Viewer):
             self.polymer, self.polymer_note, self.nu, self.couple, self.N, self.T, self.f, self.filler,
             self.ent, self.derived,
             html("<div class='ns-side-h'>Models</div>", margin=(8, 10, 0, 10)),
-            self.models, self.lam_max,
+            self.models, self.lam_max, self.lam_follow,
             sizing_mode="stretch_width", css_classes=["ns-controls"],
         )
 
@@ -150,24 +170,27 @@ class ExplorerViews(pn.viewable.Viewer):
         self.stress = {}
         for mode in MODES:
             self.stress[mode.value] = stress_figure(mode.value, initial=state.models)
-        self.mooney, self.mooney_src, self.mooney_data, self.mooney_r = mooney_figure(initial=state.models)
-        self.mod_nu, self.mod_nu_src, self.mod_nu_now, self.mod_nu_r = modulus_nu_figure(initial=state.models)
-        self.mod_T, self.mod_T_src, self.mod_T_r = modulus_T_figure(initial=state.models)
-        self.force, self.force_src, self.force_small = force_T_figure()
+        self.mooney = mooney_figure(initial=state.models)
+        self.mod_nu = modulus_nu_figure(initial=state.models)
+        self.mod_T = modulus_T_figure(initial=state.models)
+        self.force = force_T_figure()
+        #: how many times the force–stretch views were recomputed (tests count one per upload)
+        self.n_updates = 0
         self.legends = [html("", css_classes=["ns-legend"]) for _ in range(3)]
         self.limits = html("", sizing_mode="stretch_width", css_classes=["ns-limits"])
         self.inversion = html("", sizing_mode="stretch_width", css_classes=["ns-inversion"])
         self.clamp = pn.widgets.EditableFloatSlider.from_param(
-            state.param.clamp_stretch, name="Clamped stretch Λ (1)", step=0.01, format="0.00",
+            state.param.clamp_stretch, name=f"Clamped stretch Λ {DIMENSIONLESS}", step=0.01, format="0.00",
             fixed_start=state.param.clamp_stretch.bounds[0], fixed_end=state.param.clamp_stretch.bounds[1],
             width=260)
         self.expansion = pn.widgets.Checkbox.from_param(state.param.expansion)
-        self.stress_row = pn.Row(*(pn.pane.Bokeh(self.stress[m.value][0], sizing_mode="stretch_width")
+        self.stress_row = pn.Row(*(pn.pane.Bokeh(self.stress[m.value].fig, sizing_mode="stretch_width")
                                    for m in MODES),
                                  sizing_mode="stretch_width", css_classes=["ns-stress-plot"])
         self._update_fast = guarded(messages, "network", "Network settings")(self._update_fast)
         self._update_slow = guarded(messages, "moduli", "Moduli and limits")(self._update_slow)
-        fast = ["polymer", "nu", "couple_N", "N_free", "T_C", "f", "filler", "entanglements", "models", "lam_max"]
+        fast = ["polymer", "nu", "couple_N", "N_free", "T_C", "f", "filler", "entanglements", "models", "lam_max",
+                "lam_follows_data"]
         state.param.watch(self._on_change, fast)
         state.param.watch(lambda *e: self._update_slow(), ["clamp_stretch", "expansion"])
         self._data_overlay = {}
@@ -185,16 +208,17 @@ class ExplorerViews(pn.viewable.Viewer):
     def set_data_overlay(self, points: dict):
         """``points[mode] = {"x", "y", "color", "file"}`` in λ and MPa; also draws the Mooney points."""
         self._data_overlay = points
+        xs = [max(d["x"]) for d in points.values() if len(d.get("x", []))]
+        self.state.data_lam_max = max(xs) if xs else None
         for mode in MODES:
-            d = points.get(mode.value, {"x": [], "y": [], "color": [], "file": []})
-            self.stress[mode.value][3].data = dict(d)
-        u = points.get("uniaxial", {"x": [], "y": [], "color": [], "file": []})
+            self.stress[mode.value].data.data = dict(points.get(mode.value, empty_points()))
+        u = points.get("uniaxial", empty_points())
         x = np.asarray(u["x"], dtype=float)
         y = np.asarray(u["y"], dtype=float)
         with np.errstate(all="ignore"):
             keep = x > 1.02
             red = y[keep] / (x[keep] - x[keep] ** -2)
-        self.mooney_data.data = {"x": list(1.0 / x[keep]), "y": list(red),
+        self.mooney.data.data = {"x": list(1.0 / x[keep]), "y": list(red),
                                  "color": list(np.asarray(u["color"])[keep]),
                                  "file": list(np.asarray(u["file"])[keep])}
         self._update_fast()
@@ -245,31 +269,33 @@ class ExplorerViews(pn.viewable.Viewer):
 
     def _update_fast(self):
         s = self.state
+        self.n_updates += 1
         net = self._network()
         res = s.stress_curves(net)
         shown = set(s.models)
         with pn.io.hold():
             for mode in MODES:
-                p, src, locks, data, r = self.stress[mode.value]
+                sf = self.stress[mode.value]
+                p, locks, data = sf.fig, sf.locks, sf.data
                 cols = res["curves"][mode.value]
-                src.data = cols
+                sf.source.data = cols
                 lk = res["locks"][mode.value]
-                arrays = [cols[n] for n in shown] + [np.asarray(data.data.get("y", []), dtype=float)]
-                lo, hi = _nanrange(arrays, floor=0.0)
-                items = [(n, v) for n, v in lk.items() if v is not None and v <= s.lam_max and n in shown]
+                lo, hi = readable_range([cols[n] for n in shown], data.data.get("y", []), floor=0.0)
+                lam_hi = s.lam_shown()
+                items = [(n, v) for n, v in lk.items() if v is not None and v <= lam_hi and n in shown]
                 locks.data = {"x": [v for _, v in items], "y0": [lo] * len(items), "y1": [hi] * len(items),
                               "color": [model_colour(n) for n, _ in items],
                               "model": [get_model(n).title for n, _ in items]}
-                p.x_range.start, p.x_range.end = 1.0, float(s.lam_max)
+                p.x_range.start, p.x_range.end = 1.0, lam_hi
                 p.y_range.start, p.y_range.end = min(lo, 0.0), hi
-                set_visible_models(r, shown, p)
+                set_visible_models(sf.lines, shown, p)
             if self.visible["mooney"]:
                 self._update_mooney(net)
             else:
                 self._dirty.add("mooney")
             self.controls.set_readout(s.readout(net), s.moduli(net))
             for lg in self.legends:
-                lg.object = legend_html(s.models)
+                lg.object = legend_html(s.models, self._data_overlay)
 
     def _update_mooney(self, net=None):
         s = self.state
@@ -277,8 +303,8 @@ class ExplorerViews(pn.viewable.Viewer):
             net = net or s.network()
         except ValueError:
             return  # reported by the stress-plot update
-        self.mooney_src.data = s.mooney_curves(net)
-        set_visible_models(self.mooney_r, set(s.models), self.mooney)
+        self.mooney.source.data = s.mooney_curves(net)
+        set_visible_models(self.mooney.lines, set(s.models), self.mooney.fig)
         self._dirty.discard("mooney")
 
     def set_visible(self, view: str, visible: bool):
@@ -307,21 +333,21 @@ class ExplorerViews(pn.viewable.Viewer):
             key = (s.polymer, s.couple_N, None if s.couple_N else s.N_free, s.T_C, s.f, s.filler,
                    s.entanglements, tuple(s.models))
             if key != self._mod_nu_key:  # the sweep over ν does not depend on the current ν
-                self.mod_nu_src.data = s.modulus_vs_nu(net)
+                self.mod_nu.source.data = s.modulus_vs_nu(net)
                 self._mod_nu_key = key
             g = s.moduli(net)
-            self.mod_nu_now.data = {"x": [net.nu] * len(g), "y": [v / 1e6 for v in g.values()],
+            self.mod_nu.now.data = {"x": [net.nu] * len(g), "y": [v / 1e6 for v in g.values()],
                                     "color": [model_colour(n) for n in g]}
-            set_visible_models(self.mod_nu_r, shown, self.mod_nu)
-            self.mod_T_src.data = s.modulus_vs_T(net)
-            set_visible_models(self.mod_T_r, shown)
+            set_visible_models(self.mod_nu.lines, shown, self.mod_nu.fig)
+            self.mod_T.source.data = s.modulus_vs_T(net)
+            set_visible_models(self.mod_T.lines, shown)
             ft = s.force_vs_T(net)
-            self.force_src.data = {"T": ft["T"], "F": ft["F_rel"], "F_ref": ft["F_rel_noexp"],
+            self.force.source.data = {"T": ft["T"], "F": ft["F_rel"], "F_ref": ft["F_rel_noexp"],
                                    "F_small": ft["F_rel_small"]}
             has_small = ft["eps_small"] is not None
-            self.force_small.visible = has_small
-            for item in self.force.legend[0].items:
-                if self.force_small in item.renderers:
+            self.force.small.visible = has_small
+            for item in self.force.fig.legend[0].items:
+                if self.force.small in item.renderers:
                     item.visible = has_small
             self.limits.object = self._limits_html(net)
             inv = s.inversion(net)
@@ -362,14 +388,14 @@ class ExplorerViews(pn.viewable.Viewer):
                          "A neo-Hookean network is a flat line; the Mooney–Rivlin form a straight line of slope "
                          "2C₂; entanglement (tube) models rise towards 1/λ = 1; locking models turn up at "
                          "small 1/λ.</div>", sizing_mode="stretch_width"),
-            self.legends[1], pn.pane.Bokeh(self.mooney, sizing_mode="stretch_width"), sizing_mode="stretch_width")
+            self.legends[1], pn.pane.Bokeh(self.mooney.fig, sizing_mode="stretch_width"), sizing_mode="stretch_width")
 
     def moduli_tab(self):
         return pn.Column(
             self.legends[2],
-            pn.Row(pn.pane.Bokeh(self.mod_nu, sizing_mode="stretch_width"),
-                   pn.pane.Bokeh(self.mod_T, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
-            pn.Row(pn.Column(pn.pane.Bokeh(self.force, sizing_mode="stretch_width"),
+            pn.Row(pn.pane.Bokeh(self.mod_nu.fig, sizing_mode="stretch_width"),
+                   pn.pane.Bokeh(self.mod_T.fig, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
+            pn.Row(pn.Column(pn.pane.Bokeh(self.force.fig, sizing_mode="stretch_width"),
                              pn.Row(self.clamp, self.expansion), self.inversion, sizing_mode="stretch_width"),
                    pn.Column(self.limits, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-moduli"])

@@ -6,14 +6,19 @@ browser sessions never see each other's settings or uploads.
 
 from __future__ import annotations
 
-import importlib
 import logging
 
 import panel as pn
 
+from .compare_view import CompareView
+from .data_view import DataView
 from .explorer import ExplorerViews, NetworkControls
 from .messages import Messages
-from .state import CAUTION, NetworkState
+from .plots import set_output_backend
+from .project_view import ProjectBar
+from .session import Session
+from .state import CAUTION
+from .swell_view import SwellView
 from .ui import CSS, html
 
 log = logging.getLogger("netstretch.app")
@@ -39,31 +44,6 @@ def configure_panel():
         pn.extension(inline=False)
 
 
-def _optional_view(module: str, factory, **kw):
-    """Build an optional view (e.g. the compare view) if its module exists; None otherwise.
-    ``factory`` is a name or a tuple of names tried in turn; keyword arguments it does not take are dropped."""
-    try:
-        mod = importlib.import_module(module)
-    except ImportError as exc:
-        log.info("optional view %s not available: %s", module, exc)
-        return None
-    names = (factory,) if isinstance(factory, str) else tuple(factory)
-    fn = next((getattr(mod, n) for n in names if callable(getattr(mod, n, None))), None)
-    if fn is None:
-        log.warning("optional view %s has none of %s", module, names)
-        return None
-    try:
-        import inspect
-
-        sig = inspect.signature(fn)
-        if not any(p.kind is p.VAR_KEYWORD for p in sig.parameters.values()):
-            kw = {k: v for k, v in kw.items() if k in sig.parameters}
-        return fn(**kw)
-    except Exception:
-        log.exception("optional view %s failed to build", module)
-        return None
-
-
 def create_app(load_samples: bool = True):
     """One browser session's page.  If building it fails, the page says so in a sentence (the details go
     to the server log), never with a traceback."""
@@ -81,41 +61,34 @@ def create_app(load_samples: bool = True):
 def _build_page(load_samples: bool = True):
     if hasattr(pn.widgets, "FileDropper"):
         pn.extension("filedropper")  # per session: the upload area's code must be in this page
-    messages = Messages()
-    state = NetworkState()
-    controls = NetworkControls(state)
-    explorer = ExplorerViews(state, controls, messages)
-
+    session = Session()
+    if load_samples:
+        problems = _load_samples(session)
+    messages = Messages(area="page")
+    controls = NetworkControls(session.network)
+    explorer = ExplorerViews(session.network, controls, messages)
+    data_view = DataView(session.data, network_state=session.network, explorer=explorer, units=session.units)
+    swell_view = SwellView(session.swell, data=session.data, units=session.units)
+    compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
+    project = ProjectBar(session)
+    if load_samples:
+        if problems:
+            data_view.messages.show("samples", " · ".join(problems), "secondary")
+        compare._run()
     tabs = [
         ("Force–stretch", explorer.stress_tab()),
         ("Mooney plot", explorer.mooney_tab()),
         ("Moduli & limits", explorer.moduli_tab()),
+        ("Test data & fits", data_view),
+        ("Swelling", swell_view),
+        ("Compare", compare),
     ]
-    data_view = _optional_view("app.data_view", "DataView", network_state=state, explorer=explorer,
-                               messages=messages, load_samples=load_samples)
-    if data_view is not None:
-        tabs.append(("Test data & fits", data_view))
-    else:
-        tabs.append(("Test data & fits", pn.pane.Alert("Reading and fitting test data is not available yet.",
-                                                       alert_type="secondary")))
-    swell_view = _optional_view("app.swell_view", "SwellView", network_state=state, messages=messages,
-                                data_view=data_view)
-    if swell_view is not None:
-        tabs.append(("Swelling", swell_view))
-    else:
-        tabs.append(("Swelling", pn.pane.Alert("The swelling (Flory–Rehner) view is not available yet.",
-                                               alert_type="secondary")))
-    compare = _optional_view("app.compare_view", ("create_compare_view", "CompareView", "create_view"),
-                             network_state=state, data_view=data_view, messages=messages)
-    if compare is not None:
-        tabs.append(("Compare", compare))
-
     header = html(
         "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
         "<span class='ns-tag'>rubber network explorer — models, test data, crosslink density</span></div>",
         sizing_mode="stretch_width", margin=0)
     caution = html(f"<div class='ns-caution'>{CAUTION}</div>", sizing_mode="stretch_width",
-                           css_classes=["ns-caution-pane"])
+                   css_classes=["ns-caution-pane"])
     main_tabs = pn.Tabs(*tabs, sizing_mode="stretch_width", css_classes=["ns-tabs"], dynamic=True)
 
     def on_tab(event=None):
@@ -125,15 +98,44 @@ def _build_page(load_samples: bool = True):
 
     main_tabs.param.watch(on_tab, "active")
     on_tab()
-    side = pn.Column(controls, width=340, css_classes=["ns-side"], scroll=True, margin=(0, 8, 0, 0))
-    body = pn.Row(side, pn.Column(messages, main_tabs, sizing_mode="stretch_width"), sizing_mode="stretch_width")
+    svg = pn.widgets.Checkbox(name="Plots save as SVG (else PNG)", value=False, css_classes=["ns-svg-export"])
+    svg.param.watch(lambda e: _switch_backend(page, e.new), "value")
+    side = pn.Column(controls, pn.Column(svg, margin=(4, 10)), width=340, css_classes=["ns-side"], scroll=True,
+                     margin=(0, 8, 0, 0))
+    body = pn.Row(side, pn.Column(project, messages, main_tabs, sizing_mode="stretch_width"),
+                  sizing_mode="stretch_width")
     page = pn.Column(header, body, caution, sizing_mode="stretch_width", stylesheets=[CSS],
                      css_classes=["ns-page"])
     # Handles for tests and scripting (per session, not global).
-    page.ns_state = state
+    page.ns_session = session
+    page.ns_state = session.network
     page.ns_messages = messages
     page.ns_data = data_view
+    page.ns_compare = compare
+    page.ns_swell = swell_view
+    page.ns_explorer = explorer
+    page.ns_project = project
     return page
+
+
+def _load_samples(session: Session) -> list[str]:
+    """The bundled sample sets into the session's store; sentences for what could not be read."""
+    try:
+        problems = session.data.load_samples()
+    except Exception as exc:  # sample sets missing or unreadable: the app still works
+        log.exception("sample sets")
+        return [f"The bundled sample sets could not be loaded ({exc}); upload your own files instead."]
+    session.compare.use_samples_title()
+    return [f"Some sample files could not be read: {p}" for p in problems]
+
+
+def _switch_backend(page, svg: bool):
+    """PNG or SVG drawing for every plot of the page: the figures change backend and their panes are
+    re-rendered (a backend change alone does not rebuild a figure already on screen)."""
+    panes = page.select(pn.pane.Bokeh)
+    set_output_backend([p.object for p in panes], svg)
+    for p in panes:
+        p.param.trigger("object")
 
 
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):

@@ -7,6 +7,8 @@ explicit colour (``state.MODEL_COLOURS``) and a legend entry.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 from bokeh.models import ColumnDataSource, FixedTicker, HoverTool, Range1d
 from bokeh.plotting import figure
@@ -17,6 +19,28 @@ from .state import model_colour
 
 TOOLS = "pan,wheel_zoom,box_zoom,reset,save"
 FONT = "11pt"
+#: axis label for a dimensionless quantity (a dash, not "1")
+DIMENSIONLESS = "(–)"
+#: empty columns of a data-points source (λ, value, colour, label shown in the legend and the hover)
+DATA_COLUMNS = ("x", "y", "color", "file")
+
+
+def empty_points() -> dict:
+    return {k: [] for k in DATA_COLUMNS}
+
+
+def set_output_backend(figures, svg: bool):
+    """PNG (canvas) or SVG drawing for the given figures: the toolbar's save tool then writes that format."""
+    for p in figures:
+        p.output_backend = "svg" if svg else "canvas"
+
+
+def data_scatter(p, source, size=6.0):
+    """Data points coloured per file/specimen; their legend is HTML beside the plot (:func:`data_legend_html`:
+    a Bokeh legend grouped by a column breaks in the browser when the source is replaced)."""
+    r = p.scatter("x", "y", source=source, fill_color="color", line_color="white", line_width=0.6, size=size,
+                  alpha=0.9)
+    return r
 
 
 def _style(p):
@@ -73,38 +97,79 @@ def set_visible_models(renderers, shown, legend_figure=None):
         r.visible = name in shown
 
 
-def stress_figure(mode: str, width=None, height=380, initial=()):
+@dataclass(frozen=True)
+class StressFigure:
+    """One mode's force–stretch figure: model lines (``source``), lock markers, data points."""
+
+    fig: object
+    source: ColumnDataSource
+    locks: ColumnDataSource
+    data: ColumnDataSource
+    lines: ModelLines
+
+
+@dataclass(frozen=True)
+class MooneyFigure:
+    fig: object
+    source: ColumnDataSource
+    data: ColumnDataSource
+    lines: ModelLines
+
+
+@dataclass(frozen=True)
+class ModulusNuFigure:
+    fig: object
+    source: ColumnDataSource
+    now: ColumnDataSource  # the current network's G₀ per model (diamonds)
+    lines: ModelLines
+
+
+@dataclass(frozen=True)
+class ModulusTFigure:
+    fig: object
+    source: ColumnDataSource
+    lines: ModelLines
+
+
+@dataclass(frozen=True)
+class ForceTFigure:
+    fig: object
+    source: ColumnDataSource
+    small: object  # the renderer of the small-clamped-strain line (hidden with expansion off)
+
+
+def stress_figure(mode: str, width=None, height=380, initial=()) -> StressFigure:
     """Nominal stress vs stretch in one mode: model lines, lock markers, data points."""
     src = ColumnDataSource(empty_columns("lam"), name=f"ns-stress-{mode}")
     locks = ColumnDataSource({"x": [], "y0": [], "y1": [], "color": [], "model": []}, name=f"ns-locks-{mode}")
-    data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name=f"ns-data-{mode}")
+    data = ColumnDataSource(empty_points(), name=f"ns-data-{mode}")
     p = figure(title=f"{mode.capitalize()} tension", height=height, sizing_mode="stretch_width",
-               tools=TOOLS, x_axis_label="stretch λ (1)", y_axis_label="nominal stress P (MPa)",
+               tools=TOOLS, x_axis_label=f"stretch λ {DIMENSIONLESS}", y_axis_label="nominal stress P (MPa)",
                x_range=Range1d(1.0, 5.0), y_range=Range1d(0.0, 1.0))
     if width:
         p.width = width
     _style(p)
     r = model_lines(p, src, "lam", initial)
     p.segment("x", "y0", "x", "y1", source=locks, color="color", line_dash="dotted", line_width=1.6)
-    p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
+    pts = data_scatter(p, data)
     p.add_tools(HoverTool(tooltips=[("data", "@file"), ("λ", "@x{0.000}"), ("P (MPa)", "@y{0.000}")],
-                          renderers=[p.renderers[-1]]))
-    return p, src, locks, data, r
+                          renderers=[pts]))
+    return StressFigure(p, src, locks, data, r)
 
 
-def mooney_figure(height=380, initial=()):
+def mooney_figure(height=380, initial=()) -> MooneyFigure:
     src = ColumnDataSource(empty_columns("inv_lam"), name="ns-mooney")
-    data = ColumnDataSource({"x": [], "y": [], "color": [], "file": []}, name="ns-mooney-data")
+    data = ColumnDataSource(empty_points(), name="ns-mooney-data")
     p = figure(title="Mooney plot (uniaxial)", height=height, sizing_mode="stretch_width", tools=TOOLS,
-               x_axis_label="inverse stretch 1/λ (1)", y_axis_label="reduced stress σ* = P/(λ − λ⁻²) (MPa)",
-               x_range=Range1d(0.0, 1.0))
+               x_axis_label=f"inverse stretch 1/λ {DIMENSIONLESS}",
+               y_axis_label="reduced stress σ* = P/(λ − λ⁻²) (MPa)", x_range=Range1d(0.0, 1.0))
     _style(p)
     r = model_lines(p, src, "inv_lam", initial)
-    p.scatter("x", "y", source=data, fill_color="color", line_color="white", line_width=0.6, size=6, alpha=0.9)
-    return p, src, data, r
+    data_scatter(p, data)
+    return MooneyFigure(p, src, data, r)
 
 
-def modulus_nu_figure(height=330, initial=()):
+def modulus_nu_figure(height=330, initial=()) -> ModulusNuFigure:
     src = ColumnDataSource(empty_columns("nu"), name="ns-modulus-nu")
     now = ColumnDataSource({"x": [], "y": [], "color": []})
     p = figure(title="Small-strain shear modulus vs strand density", height=height, sizing_mode="stretch_width",
@@ -114,25 +179,25 @@ def modulus_nu_figure(height=330, initial=()):
     p.xaxis.ticker = FixedTicker(ticks=[1, 2, 5, 10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000])
     r = model_lines(p, src, "nu", initial)
     p.scatter("x", "y", source=now, color="color", size=8, marker="diamond")
-    return p, src, now, r
+    return ModulusNuFigure(p, src, now, r)
 
 
-def modulus_T_figure(height=330, initial=()):
+def modulus_T_figure(height=330, initial=()) -> ModulusTFigure:
     src = ColumnDataSource(empty_columns("T_C"), name="ns-modulus-T")
     p = figure(title="Small-strain shear modulus vs temperature", height=height, sizing_mode="stretch_width",
                tools=TOOLS, x_axis_label="temperature T (°C)", y_axis_label="shear modulus G₀ (MPa)")
     _style(p)
     r = model_lines(p, src, "T_C", initial)
-    return p, src, r
+    return ModulusTFigure(p, src, r)
 
 
-def force_T_figure(height=330):
+def force_T_figure(height=330) -> ForceTFigure:
     """Force at a clamped length relative to its value at the network's temperature, against T (K)."""
     src = ColumnDataSource({"T": np.zeros(2), "F": np.zeros(2), "F_ref": np.zeros(2), "F_small": np.zeros(2)},
                            name="ns-force-T")
     p = figure(title="Force at fixed length vs temperature (Gaussian network)", height=height,
                sizing_mode="stretch_width", tools=TOOLS, x_axis_label="absolute temperature T (K)",
-               y_axis_label="force / force at the set temperature (1)", x_range=Range1d(0.0, 450.0))
+               y_axis_label=f"force / force at the set temperature {DIMENSIONLESS}", x_range=Range1d(0.0, 450.0))
     _style(p)
     p.line("T", "F_ref", source=src, color="#9aa7b1", line_dash="dashed", line_width=1.5,
            legend_label="no expansion: F ∝ T, through 0 K")
@@ -145,4 +210,19 @@ def force_T_figure(height=330):
     lg.padding = 4
     p.add_layout(lg, "below")  # outside the plot: the curves fill every corner
     p.height = height + 70
-    return p, src, small
+    return ForceTFigure(p, src, small)
+
+
+def data_legend_html(points: dict) -> str:
+    """One legend entry per data label (file · curve) with its marker colour, from overlay points."""
+    seen = {}
+    for d in points.values():
+        for label, colour in zip(d.get("file", []), d.get("color", []), strict=False):
+            seen.setdefault(label, colour)
+    if not seen:
+        return ""
+    import html as _html
+
+    items = "".join(f"<span class='ns-leg-item'><span class='ns-leg-marker' style='background:{c}'></span>"
+                    f"{_html.escape(str(lbl))}</span>" for lbl, c in seen.items())
+    return f"<div class='ns-legend-box ns-data-legend'>{items}</div>"

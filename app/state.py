@@ -21,8 +21,8 @@ from network_models.thermo import force_at_fixed_length, inversion_strain
 
 #: Our own colour per model (fixed, so a model keeps its colour in every plot and every session).
 MODEL_COLOURS = {m.name: m.colour for m in MODELS.values()}
-#: Colours for uploaded data sets (markers), cycled.
-DATA_COLOURS = ("#111111", "#4b5a66", "#0b2545", "#5a4632", "#2f4f4f", "#6b6b6b")
+#: Marker colours of the data curves (one per specimen curve, cycled), apart from the model colours.
+DATA_COLOURS = ("#111111", "#8a5a00", "#0f7c8c", "#a0307a", "#5f6f00", "#4b5a66", "#6d4c9f", "#b04a2f")
 
 DEFAULT_MODELS = ["affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube"]
 
@@ -86,6 +86,11 @@ class NetworkState(param.Parameterized):
     entanglements = param.Boolean(default=True, label="Entanglement contribution (tube models, G_e)")
     models = param.ListSelector(default=list(DEFAULT_MODELS), objects=list(MODELS), label="Models shown")
     lam_max = param.Number(default=5.0, bounds=(1.2, 20.0), softbounds=(1.5, 12.0), label="Largest stretch λ")
+    lam_follows_data = param.Boolean(default=True, label="Stretch axis reaches the largest data stretch",
+                                     doc="on: the curves run to the largest stretch of the shown data when it "
+                                         "exceeds 'largest stretch'")
+    data_lam_max = param.Number(default=None, allow_None=True, doc="largest stretch of the data shown (set by "
+                                                                   "the data view), λ")
     clamp_stretch = param.Number(default=1.5, bounds=(1.001, 10.0), softbounds=(1.01, 4.0),
                                  label="Clamped stretch for force vs T")
     expansion = param.Boolean(default=True, label="Thermal expansion on (shows the thermoelastic inversion)")
@@ -110,8 +115,15 @@ class NetworkState(param.Parameterized):
     def selected_models(self):
         return [get_model(n) for n in self.models if n in MODELS]
 
+    def lam_shown(self) -> float:
+        """The largest stretch drawn: 'largest stretch', or a little past the data when they reach further."""
+        hi = float(self.lam_max)
+        if self.lam_follows_data and self.data_lam_max is not None and np.isfinite(self.data_lam_max):
+            hi = max(hi, 1.03 * float(self.data_lam_max))
+        return hi
+
     def lam_grid(self, lo=1.0) -> np.ndarray:
-        return np.linspace(lo, float(self.lam_max), self.n_points)
+        return np.linspace(lo, self.lam_shown(), self.n_points)
 
     # ----- force–stretch ------------------------------------------------------------------------
     def stress_curves(self, net: Network | None = None) -> dict:

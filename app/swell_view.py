@@ -1,32 +1,32 @@
-"""Swelling tab: a Flory–Rehner form, its result with the χ ± 0.05 band, beside the modulus-based estimate."""
+"""Swelling tab: a Flory–Rehner form, its result with the χ ± 0.05 band, beside the modulus-based estimate;
+and a whole table of swelling results uploaded and computed in one go."""
 
 from __future__ import annotations
 
-import html as _html
 import logging
 
-import pandas as pd
 import panel as pn
 
-from .data_state import SwellState
+from .data_state import DataState
+from .display_units import DisplayUnits
 from .messages import Messages, guarded
 from .state import sig
+from .swell_state import SwellState
+from .tables import esc, swelling_rows, table_html
 from .ui import html
 
 log = logging.getLogger("netstretch.app")
-
-
-def _esc(x) -> str:
-    return _html.escape(str(x))
+_esc = esc
 
 
 class SwellView(pn.viewable.Viewer):
-    def __init__(self, network_state=None, messages: Messages | None = None, data_view=None, **params):
+    def __init__(self, state: SwellState | None = None, data: DataState | None = None,
+                 units: DisplayUnits | None = None, **params):
         super().__init__(**params)
-        self.state = SwellState()
-        self.network_state = network_state
-        self.data_view = data_view
-        self.messages = messages or Messages()
+        self.state = state if state is not None else SwellState()
+        self.data = data
+        self.units = units or DisplayUnits()
+        self.messages = Messages(area="swelling")
         s = self.state
         try:
             s.load_sample()
@@ -52,27 +52,67 @@ class SwellView(pn.viewable.Viewer):
         except Exception:  # no sample set: no picker
             labels = []
         self.sample = pn.widgets.Select(name="Prefill from the sample set (invented)", options=["—", *labels],
-                                        value="—", width=260, css_classes=["ns-swell-sample"])
+                                        value=s.sample_key if s.sample_key in labels else "—", width=260,
+                                        css_classes=["ns-swell-sample"])
         self.sample.param.watch(self._pick_sample, "value")
+        self.table_upload = pn.widgets.FileInput(accept=".csv,.tsv,.txt,.xlsx", css_classes=["ns-swell-upload"],
+                                                 sizing_mode="stretch_width")
+        self.table_upload.param.watch(self._on_table, "value")
+        self.table_html = html("", css_classes=["ns-swell-table-result"])
         self.result = html("", css_classes=["ns-swell-result"])
         self.compare = html("", css_classes=["ns-swell-compare"])
         self.chi_note = html("", css_classes=["ns-chi-note"])
         self._update = guarded(self.messages, "swelling", "Swelling")(self._update)
+        self._draw_table = guarded(self.messages, "swelling-table", "Swelling table")(self._draw_table)
         s.param.watch(lambda *e: self._update(),
                       ["dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f", "filler", "T_C"])
-        if data_view is not None:
-            data_view.state.param.watch(lambda *e: self._update(), ["results", "table_model"])
+        s.param.watch(lambda *e: self._draw_table(), ["table_rows", "chi"])
+        self.units.param.watch(lambda *e: (self._update(), self._draw_table()), ["density"])
+        if data is not None:
+            data.param.watch(lambda *e: self._update(), ["results", "table_model"])
+            data.param.watch(lambda *e: self._draw_table(), ["compounds"])
         self._update()
 
     def _pick_sample(self, event):
         if event.new and event.new != "—":
             guarded(self.messages, "swelling", "Swelling sample")(self.state.load_sample)(label=event.new)
 
+    def _on_table(self, event):
+        if not event.new:
+            return
+
+        def load():
+            name = self.table_upload.filename or "swelling.csv"
+            self.state.load_table(event.new, name)
+            self.messages.show("swelling-upload", f"{esc(name)}: {len(self.state.table_rows)} swelling row(s) "
+                                                  "computed below.", "success")
+
+        guarded(self.messages, "swelling-upload", "Swelling table")(load)()
+
+    def _draw_table(self):
+        rows = self.state.table_estimates(self.data.compounds if self.data is not None else None)
+        if not rows:
+            self.table_html.object = ""
+            return
+        du = self.units.density
+        out = []
+        for r in rows:
+            if "problem" in r:
+                out.append({"compound": r["compound"], "specimen": r["specimen"], "v_r (–)": "—",
+                            f"ν affine ({du})": "—", f"ν phantom ({du})": "—", "note": r["problem"]})
+                continue
+            out.append({"compound": r["compound"], "specimen": r["specimen"], "v_r (–)": f"{r['v_r']:.4f}",
+                        f"ν affine ({du})": sig(self.units.d(r["nu_affine"], r["rho"]), 4),
+                        f"ν phantom ({du})": sig(self.units.d(r["nu_phantom"], r["rho"]), 4),
+                        "note": f"{r['polymer']}, f = {r['f']:g}, φ = {r['filler']:g}"})
+        self.table_html.object = (f"<h4 class='ns-h4'>Swelling table {esc(self.state.table_name)}: v_r = rubber "
+                                  "volume fraction in the swollen gel</h4>" + table_html(out, "ns-swell-table-rows"))
+
     def _modulus_table(self):
         """The modulus-based crosslink table: from the current fit if there is one, else none."""
-        if self.data_view is None:
+        if self.data is None:
             return None, ""
-        st = self.data_view.state
+        st = self.data
         t = st.crosslink_table()
         if t is None:
             return None, ""
@@ -86,31 +126,20 @@ class SwellView(pn.viewable.Viewer):
                 f"Table χ for {_esc(s.polymer)}–{_esc(s.solvent)}: <b>{cv.chi:g}</b> [{_esc(cv.status)}] — "
                 f"{_esc(cv.source)}" + (f" ({_esc(cv.note)})" if cv.note else "")
                 if cv is not None else f"No table χ for {_esc(s.polymer)}–{_esc(s.solvent)}: type one.")
-            + (f"<br>Prefilled from {_esc(s.sample_label)}." if s.sample_label else "") + "</div>")
+            + "</div>")
         try:
             est = s.estimate()
         except ValueError:
             self.result.object = "<div class='ns-small'>No swelling result yet.</div>"
             self.compare.object = ""
             raise
-        rows = []
-        for r in est.rows():
-            lo, hi = r["strand_density_band"]
-            jlo, jhi = r["junction_density_band"]
-            band = f"{sig(hi, 3)} … {sig(lo, 3)}" if lo is not None and hi is not None else "—"
-            jband = f"{sig(jhi, 3)} … {sig(jlo, 3)}" if jlo is not None and jhi is not None else "—"
-            rows.append({"assumption": r["assumes"],
-                         "strand density ν (mol/m³)": sig(r["strand_density"], 4),
-                         "ν for χ ± 0.05": band,
-                         "junction density μ_j = 2ν/f (mol/m³)": sig(r["junction_density"], 4),
-                         "μ_j for χ ± 0.05": jband,
-                         "M_c (g/mol)": sig(r["Mc"] * 1000.0, 4)})
+        rows = swelling_rows(est, self.units, est.rho_polymer)
         sol = f", soluble fraction {est.soluble_fraction * 100:.2g} %" if est.soluble_fraction is not None else ""
         notes = "".join(f"<li>{_esc(n)}</li>" for n in est.notes)
         self.result.object = (
             f"<h4 class='ns-h4'>Flory–Rehner result: rubber volume fraction in the swollen gel "
-            f"φ = {est.phi:.4f}{sol}</h4>"
-            + pd.DataFrame(rows).to_html(index=False, classes="ns-table ns-swell-table", border=0)
+            f"v_r = {est.phi:.4f}{sol}</h4>"
+            + table_html(rows, "ns-swell-table")
             + f"<ul class='ns-small'>{notes}</ul>")
         t, what = self._modulus_table()
         if t is None:
@@ -120,13 +149,14 @@ class SwellView(pn.viewable.Viewer):
         from network_models.swelling import compare_with_modulus
 
         comp = compare_with_modulus(est, t)
+        du, rho = self.units.density, est.rho_polymer
         crow = [{"modulus-based row": c["modulus_row"],
-                 "ν from the modulus (mol/m³)": sig(c["modulus_strand_density"], 4),
-                 "ν from swelling, same assumption (mol/m³)": sig(c["swelling_strand_density"], 4),
+                 f"ν from the modulus ({du})": sig(self.units.d(c["modulus_strand_density"], rho), 4),
+                 f"ν from swelling, same assumption ({du})": sig(self.units.d(c["swelling_strand_density"], rho), 4),
                  "swelling / modulus": sig(c["ratio"], 3)} for c in comp]
         self.compare.object = (
             f"<h4 class='ns-h4'>Beside the modulus-based estimate (from {_esc(what)})</h4>"
-            + pd.DataFrame(crow).to_html(index=False, classes="ns-table ns-swell-compare-table", border=0)
+            + table_html(crow, "ns-swell-compare-table")
             + "<div class='ns-small'>The two methods rarely agree exactly: swelling sees every elastically "
               "active strand including trapped entanglements differently, χ is uncertain, and filler restricts "
               "swelling. A ratio far from 1 is a reason to check χ, the extraction and the fit assumptions.</div>")
@@ -138,4 +168,10 @@ class SwellView(pn.viewable.Viewer):
                  "band for χ ± 0.05 (χ is the largest uncertainty).</div>"),
             pn.Row(pn.Column(*self.widgets[:5]), pn.Column(*self.widgets[5:]),
                    pn.Column(self.sample, self.chi_note, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
-            self.result, self.compare, sizing_mode="stretch_width", css_classes=["ns-swelling"])
+            self.messages, self.result, self.compare,
+            html("<div class='ns-side-h'>A whole swelling table</div>"),
+            html("<div class='ns-small'>Upload a table with one row per specimen — compound, specimen, dry mass (g), "
+                 "swollen mass (g), extracted mass (g, optional), solvent, temperature (°C) — and every row is "
+                 "computed at once, with each compound's polymer, f and filler from the session's compounds "
+                 "(else the form's).</div>"),
+            self.table_upload, self.table_html, sizing_mode="stretch_width", css_classes=["ns-swelling"])

@@ -11,6 +11,7 @@ CSS = Path(__file__).with_name("style.css").read_text("utf-8")
 
 def html(text: str = "", **kw) -> pn.pane.HTML:
     """An HTML pane with the app stylesheet inside its shadow root (stretching by default)."""
-    kw.setdefault("sizing_mode", "stretch_width")
+    if "width" not in kw:
+        kw.setdefault("sizing_mode", "stretch_width")
     kw.setdefault("stylesheets", [CSS])
     return pn.pane.HTML(text, **kw)

@@ -206,7 +206,8 @@ def test_swelling_form_matches_the_flory_rehner_balance():
 
 def test_core_cli_and_app_state_do_not_import_panel():
     code = ("import sys, network_models, network_models.cli, network_models.commands.serve, app.state, "
-            "app.data_state; "
+            "app.data_state, app.session, app.compare_state, app.swell_state, app.project_file, app.tables, "
+            "app.display_units; "
             "bad = [m for m in ('panel', 'holoviews', 'bokeh') if m in sys.modules]; print(bad); "
             "sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
@@ -234,7 +235,7 @@ def test_fitted_network_can_be_drawn_in_the_explorer(two_pages):
     dv, st = page.ns_data, page.ns_state
     dv.state.selected = [f.name for f in dv.state.files if f.group == "QM-S2"]
     dv.state.table_model = "extended-tube"
-    dv._send_to_explorer()
+    dv.fit._send_to_explorer()
     row = dv.state.crosslink_table().row("affine-no-entanglement")
     # the explorer's affine modulus is then νRT of that row (R from scipy.constants)
     assert st.nu == pytest.approx(row.nu)
@@ -279,7 +280,7 @@ def test_mixed_upload_keeps_the_good_file_and_names_the_bad_one():
     dv = page.ns_data
     good = b"stretch,stress (MPa)\n1,0\n1.5,0.4\n2,0.7\n2.5,0.9\n"
     dv._on_upload(SimpleNamespace(new={"good.csv": good, "bad.csv": b"\x00\x01zz"}))
-    msg = page.ns_messages.texts()["upload"]
+    msg = dv.messages.texts()["upload"]
     assert "bad.csv" in msg and "good.csv loaded" in msg
     assert dv.state.selected == ["good.csv"]
     assert dv.state.results  # the good file was fitted

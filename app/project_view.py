@@ -1,0 +1,58 @@
+"""Save and reopen a project (the zip of :mod:`app.project_file`): a small bar at the top of the page."""
+
+from __future__ import annotations
+
+import io
+import re
+
+import panel as pn
+
+from .messages import Messages, guarded
+from .session import Session
+from .tables import esc
+from .ui import html
+
+SUFFIX = ".nsproj.zip"
+
+
+def project_filename(title: str) -> str:
+    stem = re.sub(r"[^A-Za-z0-9._-]+", "-", title or "").strip("-")[:60] or "netstretch-project"
+    return stem + SUFFIX
+
+
+class ProjectBar(pn.viewable.Viewer):
+    def __init__(self, session: Session, **params):
+        super().__init__(**params)
+        self.session = session
+        self.messages = Messages(area="project")
+        self.save = pn.widgets.FileDownload(callback=lambda: self._save(), filename="netstretch-project.nsproj.zip",
+                                            label="Save project", button_type="primary", width=150,
+                                            css_classes=["ns-project-save"])
+        self.open = pn.widgets.FileInput(accept=".zip", width=260, css_classes=["ns-project-open"])
+        self.open.param.watch(lambda e: self._open(e.new), "value")
+        self._save = guarded(self.messages, "project", "Save project")(self._save)
+        self._open = guarded(self.messages, "project", "Open project")(self._open)
+        session.compare.param.watch(lambda e: setattr(self.save, "filename", project_filename(e.new)), "title")
+
+    def _save(self):
+        data = self.session.to_project()
+        self.messages.show("project", f"Project saved ({len(self.session.data.files)} input file(s), settings and "
+                                      "a results summary in one zip). Open it again with 'Open project'.",
+                           "success")
+        return io.BytesIO(data)
+
+    def _open(self, value):
+        if not value:
+            return
+        problems = self.session.load_project(bytes(value))
+        name = esc(self.open.filename or "the project")
+        text = (f"Opened {name}: {len(self.session.data.files)} input file(s); the fits were recomputed from them."
+                + (" Not restored: " + " · ".join(esc(p) for p in problems) if problems else ""))
+        self.messages.show("project", text, "warning" if problems else "success")
+
+    def __panel__(self):
+        return pn.Column(
+            pn.Row(html("<div class='ns-side-h'>Project</div>", width=90), self.save,
+                   html("<div class='ns-small'>Open a saved project:</div>", width=150), self.open,
+                   sizing_mode="stretch_width"),
+            self.messages, sizing_mode="stretch_width", css_classes=["ns-project"], margin=(0, 10))
