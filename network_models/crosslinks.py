@@ -365,9 +365,12 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
     X = guth_gold(filler_fraction)
     Ge = Gc = Gc_ci = src = None
     split = m.modulus_split(result.values)
-    if split.separable and split.entanglement is not None and split.entanglement > 0:
+    if split.separable and split.entanglement is not None and split.entanglement >= 0:
         Gc, Gc_ci = _derived(result, lambda p: m.modulus_split(p).crosslink)
         Ge, src = split.entanglement, f"the {result.title} fit ({split.basis})"
+        if split.entanglement == 0:  # the fit put G_e on its lower bound: these data show no entanglement part
+            notes.append(f"the {result.title} fit found no entanglement part (G_e on its lower bound 0): the "
+                         "entanglement-removed rows remove nothing")
     else:
         notes.append(f"{split.basis}: the entanglement-removed rows subtract the polymer's plateau modulus")
     extra = []
