@@ -1,0 +1,355 @@
+"""The optimiser: variable projection of the moduli, a small Levenberg–Marquardt loop for the 1–3
+parameters left, and scipy's ``least_squares`` as the fallback when the small loop fails.
+
+Variable projection (Golub & Pereyra 1973, SIAM J. Numer. Anal. 10:413 [from memory]): the free moduli
+enter the stress linearly, so for given other parameters (N, J_m, δ …) they are solved exactly by a
+1–2 column bounded linear least squares, and the optimiser only moves the others.  Its Jacobian is the
+forward difference of the *projected* residual (moduli re-solved at the stepped point), which is exact to
+the step — the small loop then converges like Gauss–Newton on the reduced problem.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.optimize import least_squares
+
+from ..errors import FitError
+from .evaluate import LinearModuli, bounded_lstsq, fast_evaluator, two_column
+from .problem import Coord, Problem
+
+LOCK_CANDIDATES = (1.3, 2.5, 8.0)  # start multiples of the locking threshold (model's guess when nothing locks)
+_FALLBACK_METHODS = ("lm", "trf")  # MINPACK Levenberg–Marquardt first (least overhead); trf if it fails
+
+
+class Projected:
+    """The fit's weighted residual as a function of the coordinates u of the non-modulus parameters (the
+    free moduli are solved for each u).  ``space="z"``: natural coordinates with box bounds (the small
+    loop clips its steps to them); ``space="x"``: bounds folded into smooth transforms (scipy fallback)."""
+
+    def __init__(self, pr: Problem):
+        m = pr.model
+        self.pr = pr
+        self.ev = fast_evaluator(m, pr.data)
+        names = pr.free_names
+        self.co = [Coord(m.params[nm], pr.p0[nm], pr.G0, pr.lb[nm], pr.ub[nm]) for nm in names]
+        self.lin = lin = LinearModuli(m, self.ev, names, pr.p0, self.co, pr.data)
+        self.L = [nm for nm in names if lin.linear and nm in lin.moduli]
+        self.NL = [nm for nm in names if nm not in self.L]
+        self._nl_co = [self.co[names.index(nm)] for nm in self.NL]
+        self._axes = [_Axis(c, pr.locks.get(nm), pr.lb[nm], pr.ub[nm]) for nm, c in zip(self.NL, self._nl_co,
+                                                                                         strict=True)]
+        self.zlo = np.array([a.lo for a in self._axes])
+        self.zhi = np.array([a.hi for a in self._axes])
+        self.L_lo = np.array([pr.lb[nm] for nm in self.L])
+        self.L_hi = np.array([pr.ub[nm] for nm in self.L])
+        self.fixed_moduli = [nm for nm in lin.moduli if nm not in self.L] if lin.linear else []
+        self.base = dict(pr.p0)
+        self.big = 1e3 * max(1.0, float(np.max(np.abs(pr.wd))))
+        self.nfev = 0
+        self.space = "z"
+        self._memo: dict = {}
+
+    def params_of(self, u):
+        p = self._nl_params(u)
+        L = self.L
+        if not L:
+            return p
+        lin, weight = self.lin, self.pr.weight
+        y = self.pr.wd
+        if self.fixed_moduli:
+            y = y - sum(p[nm] * lin.h(p, nm) for nm in self.fixed_moduli) * weight
+        if len(L) == 1:  # the common case, in scalars: θ = <h, y>/<h, h>, clipped to its bounds
+            hw = lin.h(p, L[0]) * weight
+            a, b = float(np.dot(hw, hw)), float(np.dot(hw, y))
+            t = b / a if a > 0 else 0.0
+            p[L[0]] = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+        elif len(L) == 2:  # two moduli (tube models): the 2 × 2 normal equations in scalars
+            h1, h2 = lin.h(p, L[0]) * weight, lin.h(p, L[1]) * weight
+            A = ((float(np.dot(h1, h1)), float(np.dot(h1, h2))), (0.0, float(np.dot(h2, h2))))
+            b = (float(np.dot(h1, y)), float(np.dot(h2, y)))
+            p[L[0]], p[L[1]] = two_column(A, b, self.L_lo, self.L_hi)
+        else:
+            H = np.column_stack([lin.h(p, nm) for nm in L]) * weight[:, None]
+            theta = bounded_lstsq(H, y, self.L_lo, self.L_hi)
+            for j, nm in enumerate(L):
+                p[nm] = float(theta[j])
+        return p
+
+    def residual(self, u):
+        """(parameters, stress, weighted residual) at u; non-finite residuals become a large number so an
+        optimiser backs away from them.  The last few points are remembered (the optimum is asked again)."""
+        key = (self.space, u.tobytes())
+        hit = self._memo.get(key)
+        if hit is not None:
+            return hit
+        out = self._residual(u)
+        if len(self._memo) >= 3:
+            self._memo.pop(next(iter(self._memo)))
+        self._memo[key] = out
+        return out
+
+    def _residual(self, u):
+        self.nfev += 1
+        p = self.params_of(u)
+        P = self.lin.stress(p)
+        r = P * self.pr.weight - self.pr.wd
+        if not np.isfinite(r).all():
+            r[~np.isfinite(r)] = self.big
+        return p, P, r
+
+    def _nl_params(self, u):
+        p = self.base.copy()
+        in_z = self.space == "z"
+        for nm, c, a, ui in zip(self.NL, self._nl_co, self._axes, u, strict=True):
+            p[nm] = a.v_of(ui) if in_z else c.v_of_x(ui)
+        return p
+
+    def steps(self, u):
+        """The points the forward-difference Jacobian at u evaluates."""
+        out = []
+        for j in range(u.size):
+            h = 1e-7 * max(1.0, abs(u[j]))
+            if self.space == "z" and u[j] + h > self.zhi[j]:
+                h = -h
+            u2 = u.copy()
+            u2[j] += h
+            out.append((u2, h))
+        return out
+
+    def prefetch(self, us):
+        """Evaluate the model at several points in one stacked call (fills the unit-response caches)."""
+        self.lin.prefetch([self._nl_params(u) for u in us])
+
+    def full_jacobian(self, u, p, P):
+        """dP/dz at the optimum for every free parameter (moduli held, not re-solved): modulus columns are
+        the unit responses, the others forward differences over the same steps the optimiser's last
+        Jacobian used (cached, so usually no model call)."""
+        lin, names = self.lin, self.pr.free_names
+        J = np.empty((P.size, len(names)))
+        steps = self.steps(u) if self.space == "z" and u.size else []
+        for i, nm in enumerate(names):
+            c = self.co[i]
+            if lin.linear and nm in lin.moduli:
+                J[:, i] = lin.h(p, nm) * c.dv_dz(p[nm])
+                continue
+            if nm not in self.NL or not steps:
+                J[:, i] = lin.dP_dz(p, P, only=nm)
+                continue
+            v2 = self._axes[self.NL.index(nm)].v_of(steps[self.NL.index(nm)][0][self.NL.index(nm)])
+            q = dict(p)
+            q[nm] = v2
+            dz = c.z_of_v(v2) - c.z_of_v(p[nm])
+            J[:, i] = (lin.stress(q) - P) / dz if dz != 0 else lin.dP_dz(p, P, only=nm)
+        return J
+
+    def residual_ahead(self, u):
+        """The residual at u, with the model evaluated at u and at the Jacobian's steps from u in one call:
+        an accepted step then needs no further model call for its Jacobian."""
+        if (self.space, u.tobytes()) not in self._memo:
+            self.prefetch([u] + [u2 for u2, _ in self.steps(u)])
+        return self.residual(u)[2]
+
+    def jac(self, u, r):
+        """Forward-difference Jacobian of the projected residual (moduli re-solved at each step); in z the
+        step points away from a bound it would cross."""
+        J = np.empty((r.size, u.size))
+        for j, (u2, h) in enumerate(self.steps(u)):
+            J[:, j] = (self.residual(u2)[2] - r) / h
+        J[~np.isfinite(J)] = 0.0
+        return J
+
+    def u_of(self, p):
+        if self.space == "z":
+            return np.array([a.u_of(p[nm]) for nm, a in zip(self.NL, self._axes, strict=True)])
+        return np.array([c.x_of_v(p[nm]) for nm, c in zip(self.NL, self._nl_co, strict=True)])
+
+
+class _Axis:
+    """The small loop's coordinate of one non-modulus parameter, with box bounds.  For a locking parameter
+    it is the log of the distance to the lock threshold (u = ln|v − v_lock|): the stress at the largest
+    stretches grows like 1/(distance to the lock), so in u the residual is nearly linear and Gauss–Newton
+    steps land where they should; otherwise it is the natural coordinate z."""
+
+    __slots__ = ("c", "thr", "sign", "lo", "hi")
+
+    def __init__(self, c: Coord, lock, lb, ub):
+        self.c = c
+        self.thr, self.sign = (None, 0.0) if lock is None else (lock[0], 1.0 if lock[1] == "above" else -1.0)
+        if self.thr is None:
+            self.lo, self.hi = c.zlo, c.zhi
+        else:
+            near, far = (lb, ub) if self.sign > 0 else (ub, lb)
+            self.lo = math.log(max(abs(near - self.thr), 1e-300))
+            self.hi = math.log(abs(far - self.thr)) if math.isfinite(far) and far != self.thr else math.inf
+
+    def v_of(self, u):
+        if self.thr is None:
+            return self.c.v_of_z(u)
+        return self.thr + self.sign * math.exp(min(u, 700.0))
+
+    def u_of(self, v):
+        u = self.c.z_of_v(v) if self.thr is None else math.log(max(self.sign * (v - self.thr), 1e-300))
+        return min(max(u, self.lo), self.hi)
+
+
+def start_point(pj: Projected):
+    """The best start for the optimiser: the model's guess, or for each locking parameter a few candidates
+    placed relative to the value at which the largest data stretch reaches the lock.  Returns (x, r)."""
+    pr = pj.pr
+    cands = []
+    for name, (thr, side) in pr.locks.items():
+        if name in pr.start or name not in pj.NL:
+            continue
+        for c in LOCK_CANDIDATES:
+            v = thr * c if side == "above" else thr / c
+            if pr.lb[name] <= v <= pr.ub[name]:
+                q = dict(pr.p0)
+                q[name] = v
+                cands.append(q)
+    if not cands:
+        cands = [pr.p0]
+    for q in cands:
+        for name in pr.locks:  # keep start values inside the lock bound
+            q[name] = min(max(q[name], pr.lb[name]), pr.ub[name])
+    us = [pj.u_of(q) for q in cands]
+    pj.prefetch(us + [u2 for u in us for u2, _ in pj.steps(u)])  # each start and its Jacobian steps
+    best, best_cost = None, math.inf
+    for x in us:
+        _, _, r = pj.residual(x)
+        c = float(np.dot(r, r))
+        if c < best_cost:
+            best, best_cost = (x, r), c
+    if best is None or not math.isfinite(best_cost):
+        raise FitError(f"the {pr.model.title} model cannot be evaluated at any start value on these data",
+                       kind="no-start")
+    return best
+
+
+def _solve_damped(A, g, mu):
+    """(A + μ·diag(A)) s = −g for 1–3 unknowns (scalars for one; numpy otherwise)."""
+    if A.shape[0] == 1:
+        a = A[0, 0]
+        return np.array([-g[0] / (a + mu * max(a, 1e-300))])
+    d = np.diag(A)
+    D = np.maximum(d, 1e-12 * max(float(d.max()), 1e-300))
+    return np.linalg.solve(A + np.diag(mu * D), -g)
+
+
+def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-9, ftol=1e-14, max_iter=60,
+                        broyden=False):
+    """Minimise ‖fun(x)‖² over a few parameters within the box lo ≤ x ≤ hi.
+
+    Levenberg–Marquardt with Marquardt's diagonal scaling and Nielsen's damping update; between fresh
+    Jacobians (``jac(x, r)``, forward differences) the Jacobian follows Broyden's rank-one secant update,
+    so an iteration costs one residual evaluation — the Jacobian is recomputed when a step fails or before
+    convergence is accepted (Madsen, Nielsen & Tingleff 2004, "Methods for non-linear least squares
+    problems", IMM DTU, §3.2 and §3.4 [from memory]).  A step that would leave the box is clipped to it.
+
+    Returns (x, r, message), or None when it does not converge (the caller then falls back to scipy).
+    Converged: an accepted step below ``xtol`` (relative to |x| + xtol) or a reduction of the sum of
+    squares below ``ftol`` of it, with a fresh Jacobian; or no step at all inside the box."""
+    x = np.array(x0, float)
+    n = x.size
+    lo = np.full(n, -np.inf) if lo is None else np.asarray(lo, float)
+    hi = np.full(n, np.inf) if hi is None else np.asarray(hi, float)
+    r = fun(x) if r0 is None else r0
+    cost = float(np.dot(r, r))
+    J, fresh = jac(x, r), True
+    mu, nu, last = 1e-3, 2.0, 0.0
+    for _ in range(max_iter):
+        A, g = J.T @ J, J.T @ r
+        if not (math.isfinite(cost) and np.all(np.isfinite(A)) and np.all(np.isfinite(g))):
+            return None
+        try:
+            step = _solve_damped(A, g, mu)
+        except np.linalg.LinAlgError:
+            return None
+        x_new = np.minimum(np.maximum(x + step, lo), hi)
+        step = x_new - x
+        size = float(np.max(np.abs(step)))
+        # remaining error after this step ≈ size·ρ/(1 − ρ), ρ = the observed contraction of the steps
+        rate = min(size / last, 0.5) if last > 0 else 0.5
+        small = size * rate / (1.0 - rate) <= xtol * (1.0 + float(np.max(np.abs(x))))
+        if not step.any() or (small and fresh and not _better(fun, x_new, cost)):
+            return x, r, "no smaller sum of squares in any direction within the bounds"
+        r_new = fun(x_new)
+        c_new = float(np.dot(r_new, r_new))
+        if broyden and np.all(np.isfinite(r_new)):
+            J = J + np.outer(r_new - r - J @ step, step) / float(step @ step)
+            fresh = False
+        pred = -float(2.0 * (g @ step) + step @ A @ step)
+        if math.isfinite(c_new) and c_new < cost and pred > 0:
+            rho = (cost - c_new) / pred
+            done = small or cost - c_new <= ftol * cost
+            x, r, cost, last = x_new, r_new, c_new, size
+            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
+            nu = 2.0
+            if done and (fresh or not broyden):
+                return x, r, "the step or the reduction of the sum of squares became negligible"
+            if done or not broyden:
+                J, fresh = jac(x, r), True
+        else:  # a failed step: more damping (the secant update has already taken in what it taught)
+            mu *= nu
+            nu *= 2.0
+    return None
+
+
+def _better(fun, x, cost):
+    return float(np.sum(fun(x) ** 2)) < cost
+
+
+def _scipy(pj: Projected, p_start):
+    pj.space = "x"
+    x0 = pj.u_of(p_start)
+    cache = {}
+
+    def fun(x):
+        r = pj.residual(x)[2]
+        cache["x"], cache["r"] = x.copy(), r
+        return r
+
+    def jac(x):
+        r = cache["r"] if "x" in cache and np.array_equal(cache["x"], x) else pj.residual(x)[2]
+        return pj.jac(x, r)
+
+    failure = ""
+    for method in _FALLBACK_METHODS:
+        cache.clear()
+        try:
+            res = least_squares(fun, x0, jac=jac, method=method, x_scale=1.0, ftol=1e-10, xtol=1e-10,
+                                gtol=1e-10, max_nfev=100 * (x0.size + 1))
+        except (ValueError, FloatingPointError, np.linalg.LinAlgError) as exc:
+            failure = f"failed numerically ({exc})"
+            continue
+        if res.status > 0 and np.all(np.isfinite(res.x)):
+            return res.x, str(res.message), "minpack-lm" if method == "lm" else "trf"
+        failure = f"did not converge ({res.message.rstrip('.')})"
+    raise FitError(f"the {pj.pr.model.title} fit {failure}; try another model, fix a parameter (fixed=...), "
+                   "use relative residuals, or check the data for outliers", kind="no-convergence")
+
+
+def solve(pr: Problem):
+    """Run the fit.  Returns (projected problem, optimiser coordinates, parameter values, stress, residual,
+    message, solver name)."""
+    pj = Projected(pr)
+    if pj.NL:
+        u0, r0 = start_point(pj)
+        p_start = pj.params_of(u0)
+        out = levenberg_marquardt(pj.residual_ahead, pj.jac, u0, r0, lo=pj.zlo, hi=pj.zhi)
+        if out is not None and np.all(np.isfinite(out[0])) and np.all(np.abs(out[1]) < pj.big):
+            xhat, message, solver = out[0], out[2], "levenberg-marquardt"
+        else:
+            xhat, message, solver = _scipy(pj, p_start)
+    else:  # every free parameter is a modulus: the projected problem is solved in closed form
+        xhat, message, solver = np.empty(0), "solved in closed form (the model is linear in its moduli)", "closed-form"
+    values, Pm, r = pj.residual(xhat)
+    values = dict(values)
+    if np.any(np.abs(r) >= pj.big):
+        raise FitError(f"the {pr.model.title} fit ended with data beyond the model's locking stretch; "
+                       "remove the points at the largest stretches or choose a model without a lock",
+                       kind="past-lock")
+    for nm in pr.free_names:  # bounds the transforms keep are met; clip rounding
+        values[nm] = min(max(values[nm], pr.lb[nm]), pr.ub[nm])
+    return pj, xhat, values, Pm, r, message, solver
