@@ -67,6 +67,7 @@ def compare(model, curves, repeats: int = 5) -> dict:
         "fast_rss_Pa2": res.rss,
         "naive_rss_Pa2": cost_naive,
         "fast_nfev": res.nfev,
+        "fast_solver": res.solver,
         "naive_model_evaluations": calls,
         "fast_warnings": list(res.warnings),
         "G0_Pa": estimate_modulus(curves),
@@ -79,10 +80,12 @@ def _profile(curves, repeats: int = 20) -> dict:
     import pstats
 
     fit, _ = _fit_api()
-    stages = {"least_squares": "scipy least_squares (incl. model evaluations)",
-              "approx_derivative": "finite-difference Jacobian (inside least_squares)",
-              "ev": "model evaluations (all)", "_lock_threshold": "lock-bound bisection",
-              "_diagnose": "diagnostics", "estimate_modulus": "start modulus"}
+    stages = {"set_up": "set-up (kinematics, start modulus, lock bounds)",
+              "lock_threshold": "lock-bound root finding (inside set-up)",
+              "start_point": "start candidates (one stacked model call)",
+              "levenberg_marquardt": "small Levenberg–Marquardt loop (incl. model evaluations)",
+              "least_squares": "scipy least_squares fallback (should not appear)",
+              "ev": "model evaluations (all)", "covariance": "covariance", "diagnose": "diagnostics"}
     out = {}
     for name in MODELS:
         fit(name, curves)
