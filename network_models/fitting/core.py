@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 
+from ..errors import FitError
 from ..models import get_model
 from ..testdata import TestCurve
 from .diagnostics import curve_cycle, curve_polymer, diagnose
@@ -29,8 +30,6 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
     m = get_model(model) if isinstance(model, str) else model
     curves = [curves] if isinstance(curves, TestCurve) else list(curves)
     if not curves:
-        from ..errors import FitError
-
         raise FitError("no curves to fit: give at least one test curve", kind="no-data")
     with np.errstate(all="ignore"):  # NaN past a lock is expected inside; it never reaches the result
         pr = set_up(m, curves, residual=residual, free=free, fixed=fixed, start=start)

@@ -57,9 +57,10 @@ class _Tiled:
     """The kinematics of ``data`` repeated ``k`` times (one block per parameter set)."""
 
     def __init__(self, data, k):
+        idx = np.tile(np.arange(data.lam.size), k)
         for a in ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1", "lam"):
-            setattr(self, a, np.tile(getattr(data, a), k))
-        self.masks = {m: np.tile(mask, k) for m, mask in data.masks.items()}
+            setattr(self, a, getattr(data, a)[idx])
+        self.masks = {m: mask[idx] for m, mask in data.masks.items()}
         self.modes = data.modes
 
 

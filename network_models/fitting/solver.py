@@ -227,77 +227,80 @@ def start_point(pj: Projected):
     return best
 
 
-def _solve_damped(A, g, mu):
-    """(A + μ·diag(A)) s = −g for 1–3 unknowns (scalars for one; numpy otherwise)."""
+def _solve_damped(A, D, g, mu):
+    """(A + μ·D) s = −g for 1–3 unknowns (D: Marquardt's diagonal scaling, floored)."""
     if A.shape[0] == 1:
-        a = A[0, 0]
-        return np.array([-g[0] / (a + mu * max(a, 1e-300))])
-    d = np.diag(A)
-    D = np.maximum(d, 1e-12 * max(float(d.max()), 1e-300))
+        return np.array([-g[0] / (A[0, 0] + mu * D[0])])
     return np.linalg.solve(A + np.diag(mu * D), -g)
 
 
-def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-9, ftol=1e-14, max_iter=60,
-                        broyden=False):
+def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, ftol=1e-14, max_iter=60):
     """Minimise ‖fun(x)‖² over a few parameters within the box lo ≤ x ≤ hi.
 
-    Levenberg–Marquardt with Marquardt's diagonal scaling and Nielsen's damping update; between fresh
-    Jacobians (``jac(x, r)``, forward differences) the Jacobian follows Broyden's rank-one secant update,
-    so an iteration costs one residual evaluation — the Jacobian is recomputed when a step fails or before
-    convergence is accepted (Madsen, Nielsen & Tingleff 2004, "Methods for non-linear least squares
-    problems", IMM DTU, §3.2 and §3.4 [from memory]).  A step that would leave the box is clipped to it.
+    Levenberg–Marquardt with Marquardt's diagonal scaling and Nielsen's damping update (Madsen, Nielsen &
+    Tingleff 2004, "Methods for non-linear least squares problems", IMM DTU, §3.2 [from memory]); a step
+    that would leave the box is clipped to it.  ``jac(x, r)`` gives the Jacobian at x; ``r0`` = fun(x0)
+    when already known.  With one unknown the curvature is the secant of the gradient between the last two
+    points when that lies within a factor 5 of the Gauss–Newton JᵀJ: it includes the Σ rᵢ∇²rᵢ term that
+    Gauss–Newton drops, so a fit with a systematic misfit converges superlinearly instead of linearly
+    (the 1-D case of the hybrid methods in the same notes, §3.4).
 
     Returns (x, r, message), or None when it does not converge (the caller then falls back to scipy).
-    Converged: an accepted step below ``xtol`` (relative to |x| + xtol) or a reduction of the sum of
-    squares below ``ftol`` of it, with a fresh Jacobian; or no step at all inside the box."""
+    Converged: the error left after an accepted step, estimated from the contraction of the last two
+    steps, is below ``xtol`` (relative to 1 + |x|), or the step reduced the sum of squares by less than
+    ``ftol`` of it; or no step inside the box reduces it."""
     x = np.array(x0, float)
     n = x.size
     lo = np.full(n, -np.inf) if lo is None else np.asarray(lo, float)
     hi = np.full(n, np.inf) if hi is None else np.asarray(hi, float)
     r = fun(x) if r0 is None else r0
     cost = float(np.dot(r, r))
-    J, fresh = jac(x, r), True
+    J = jac(x, r)
     mu, nu, last = 1e-3, 2.0, 0.0
+    prev = None  # (x, g) at the previous accepted point, for the secant curvature (one unknown)
+    A, g = J.T @ J, J.T @ r
     for _ in range(max_iter):
-        A, g = J.T @ J, J.T @ r
         if not (math.isfinite(cost) and np.all(np.isfinite(A)) and np.all(np.isfinite(g))):
             return None
+        d = np.diag(A)
+        D = np.maximum(d, 1e-12 * max(float(d.max()), 1e-300))
+        H = A
+        if n == 1 and prev is not None:
+            sec = (g[0] - prev[1][0]) / (x[0] - prev[0][0])
+            if 0.2 * A[0, 0] <= sec <= 5.0 * A[0, 0]:
+                H = np.array([[sec]])
         try:
-            step = _solve_damped(A, g, mu)
+            step = _solve_damped(H, D, g, mu)
         except np.linalg.LinAlgError:
             return None
         x_new = np.minimum(np.maximum(x + step, lo), hi)
         step = x_new - x
         size = float(np.max(np.abs(step)))
-        # remaining error after this step ≈ size·ρ/(1 − ρ), ρ = the observed contraction of the steps
+        # error left after this step ≈ size·ρ/(1 − ρ), ρ = the observed contraction of the steps
         rate = min(size / last, 0.5) if last > 0 else 0.5
         small = size * rate / (1.0 - rate) <= xtol * (1.0 + float(np.max(np.abs(x))))
-        if not step.any() or (small and fresh and not _better(fun, x_new, cost)):
+        if not step.any():
             return x, r, "no smaller sum of squares in any direction within the bounds"
         r_new = fun(x_new)
         c_new = float(np.dot(r_new, r_new))
-        if broyden and np.all(np.isfinite(r_new)):
-            J = J + np.outer(r_new - r - J @ step, step) / float(step @ step)
-            fresh = False
-        pred = -float(2.0 * (g @ step) + step @ A @ step)
+        pred = -float(2.0 * (g @ step) + step @ H @ step)
         if math.isfinite(c_new) and c_new < cost and pred > 0:
             rho = (cost - c_new) / pred
             done = small or cost - c_new <= ftol * cost
+            prev = (x, g)
             x, r, cost, last = x_new, r_new, c_new, size
+            if done:
+                return x, r, "the step or the reduction of the sum of squares became negligible"
             mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
             nu = 2.0
-            if done and (fresh or not broyden):
-                return x, r, "the step or the reduction of the sum of squares became negligible"
-            if done or not broyden:
-                J, fresh = jac(x, r), True
-        else:  # a failed step: more damping (the secant update has already taken in what it taught)
+            J = jac(x, r)
+            A, g = J.T @ J, J.T @ r
+        elif small:
+            return x, r, "no smaller sum of squares in any direction"
+        else:
             mu *= nu
             nu *= 2.0
     return None
-
-
-def _better(fun, x, cost):
-    return float(np.sum(fun(x) ** 2)) < cost
 
 
 def _scipy(pj: Projected, p_start):
