@@ -49,12 +49,14 @@ def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
     data, n, k = pr.data, pr.n, pr.k
     mode_stats = {}
     for mode, mask in data.masks.items():
-        e = Pm[mask] - data.P[mask]
-        sst = float(np.sum((data.P[mask] - data.P[mask].mean()) ** 2))
+        Pd = data.P[mask]
+        e = Pm[mask] - Pd
+        k_m = Pd.size
+        dev = Pd - float(Pd.sum()) / k_m
+        sst = float(np.dot(dev, dev))
         ssr = float(np.dot(e, e))
-        lam = data.lam[mask]
-        mode_stats[mode] = ModeStats(mode, int(mask.sum()), math.sqrt(ssr / mask.sum()),
-                                     (1.0 - ssr / sst) if sst > 0 else None, (float(lam.min()), float(lam.max())))
+        mode_stats[mode] = ModeStats(mode, k_m, math.sqrt(ssr / k_m), (1.0 - ssr / sst) if sst > 0 else None,
+                                     data.ranges[mode])
     rss_out = rss * (pr.G0 * pr.G0 if pr.residual == "absolute" else 1.0)  # Pa² for absolute residuals
     if rss_out > 0:
         aic = n * math.log(rss_out / n) + 2 * k

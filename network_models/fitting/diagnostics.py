@@ -71,7 +71,7 @@ def _lock_and_bounds(out, pr, pj, values) -> set:
     m, data = pr.model, pr.data
     for name, (thr, _side) in pr.locks.items():
         v = values[name]
-        top = float(data.lam.max())
+        top = data.top
         gap = abs(math.log(v / thr)) if v > 0 and thr > 0 else abs(v - thr)
         if gap <= 1e-4:
             out.append(Notice(
@@ -105,7 +105,7 @@ def _lock_and_bounds(out, pr, pj, values) -> set:
 def _identifiability(out, result, pr, se_z, corr, at_bound):
     names = pr.free_names
     k = len(names)
-    if k and not np.all(np.isfinite(se_z)):
+    if k and not all(map(math.isfinite, np.asarray(se_z).tolist())):
         out.append(Notice(f"could not estimate uncertainties: the parameters {', '.join(names)} are not all "
                           "identifiable from these data (fix one, or add data in another mode or at larger "
                           "stretch)", "not-identifiable", None))
@@ -129,7 +129,7 @@ def _identifiability(out, result, pr, se_z, corr, at_bound):
 
 def _monotonic(out, m, data, values):
     """Stress must rise with stretch in every supported mode, up to 1.5 × the largest data stretch."""
-    top = max(3.0, math.ceil(3.0 * float(data.lam.max())) / 2.0)
+    top = max(3.0, math.ceil(3.0 * data.top) / 2.0)
     grid, gdata = _grid(top, tuple(md.value for md in m.modes))
     P = fast_evaluator(m, gdata)(values)  # NaN past the lock: those steps are skipped
     for mode in m.modes:
@@ -170,10 +170,9 @@ def _crystallisation(out, pr, polymer):
     if not polymer or polymer.strip().upper() not in STRAIN_CRYSTALLISING:
         return
     data = pr.data
-    mask = data.masks.get(Mode.UNIAXIAL)
-    if mask is None:
+    if Mode.UNIAXIAL not in data.ranges:
         return
-    top = float(data.lam[mask].max())
+    top = data.ranges[Mode.UNIAXIAL][1]
     if top <= CRYSTALLISATION_ONSET:
         return
     out.append(Notice(

@@ -38,31 +38,33 @@ class Data:
     """All curves concatenated, with per-point mode and the precomputed kinematics."""
 
     def __init__(self, curves: list[TestCurve]):
-        lam, P, mode_of = [], [], []
         for c in curves:
             if not isinstance(c, TestCurve):
                 raise TypeError(f"fit expects TestCurve objects, got {type(c).__name__}")
-            s, p = c.stretch, c.stress
-            bad = ~(np.isfinite(s) & np.isfinite(p))
-            if bad.any():
-                i = int(np.flatnonzero(bad)[0])
-                raise FitError(f"curve {c.name!r} has a missing or non-numeric value at point {i + 1}; "
-                               "remove or fix that row and fit again", kind="bad-data")
-            if (s <= 0).any():
-                raise FitError(f"curve {c.name!r} has a stretch ≤ 0; stretch λ = 1 + strain must be positive "
-                               "(did the file hold strain in % or displacement?)", kind="bad-data")
-            lam.append(s)
-            P.append(p)
-            mode_of.append(np.full(s.size, MODES.index(c.mode)))
-        self.lam = np.concatenate(lam)
-        self.P = np.concatenate(P)
-        self.mode_idx = np.concatenate(mode_of)
+        self.lam = np.concatenate([c.stretch for c in curves])
+        self.P = np.concatenate([c.stress for c in curves])
+        self.mode_idx = np.repeat([MODES.index(c.mode) for c in curves], [c.stretch.size for c in curves])
+        if not (math.isfinite(float(np.dot(self.lam, self.lam)) + float(np.dot(self.P, self.P)))
+                and float(self.lam.min()) > 0):
+            _bad_curve(curves)  # raises the sentence
         self._index()
         self._kinematics()
 
     def _index(self):
-        self.modes = [m for i, m in enumerate(MODES) if (self.mode_idx == i).any()]
+        counts = np.bincount(self.mode_idx, minlength=len(MODES)).tolist()
+        self.modes = [m for m, k in zip(MODES, counts, strict=True) if k]
         self.masks = {m: self.mode_idx == MODES.index(m) for m in self.modes}
+        # (min, max) stretch of each mode and the indices where they sit: one sort, no per-mode reductions
+        order = np.lexsort((self.lam, self.mode_idx)).tolist()
+        self.ranges, self.ends = {}, []
+        start = 0
+        for m, k in zip(MODES, counts, strict=True):
+            if k:
+                i, j = order[start], order[start + k - 1]
+                self.ranges[m] = (float(self.lam[i]), float(self.lam[j]))
+                self.ends += [i, j]
+                start += k
+        self.top = max(hi for _, hi in self.ranges.values())
 
     def _kinematics(self):
         if len(self.modes) == 1:
@@ -83,12 +85,7 @@ class Data:
 
     def extremes(self) -> np.ndarray:
         """Indices of the smallest and largest stretch of every mode (where a model's domain ends)."""
-        idx = []
-        for mask in self.masks.values():
-            where = np.flatnonzero(mask)
-            lam = self.lam[where]
-            idx += [int(where[np.argmin(lam)]), int(where[np.argmax(lam)])]
-        return np.array(sorted(set(idx)), dtype=int)
+        return np.array(sorted(set(self.ends)), dtype=int)
 
     def subset(self, keep: np.ndarray) -> Data:
         new = object.__new__(Data)
@@ -97,6 +94,20 @@ class Data:
         for a in _KINEMATICS:
             setattr(new, a, getattr(self, a)[keep])
         return new
+
+
+def _bad_curve(curves):
+    for c in curves:
+        s, p = c.stretch, c.stress
+        bad = ~(np.isfinite(s) & np.isfinite(p))
+        if bad.any():
+            i = int(np.flatnonzero(bad)[0])
+            raise FitError(f"curve {c.name!r} has a missing or non-numeric value at point {i + 1}; "
+                           "remove or fix that row and fit again", kind="bad-data")
+        if (s <= 0).any():
+            raise FitError(f"curve {c.name!r} has a stretch ≤ 0; stretch λ = 1 + strain must be positive "
+                           "(did the file hold strain in % or displacement?)", kind="bad-data")
+    raise FitError("the curves hold values too large to fit; check the stress unit", kind="bad-data")
 
 
 def estimate_modulus(curves) -> float:
@@ -163,8 +174,10 @@ def lock_threshold(model, data: Data, p, name, lo, hi):
         mg = model._margin(*args, q)
         if mg is None:
             return math.inf
-        mn = float(np.min(mg))
-        return mn if math.isfinite(mn) else (-math.inf if np.isnan(mn) else mn)
+        vals = np.asarray(mg, float).ravel().tolist()  # a handful of points: Python's min is cheaper
+        if any(v != v for v in vals):
+            return -math.inf
+        return min(vals)
 
     ga, gb = g(lo), g(hi)
     if not (math.isfinite(ga) or math.isfinite(gb)) or (ga > 0) == (gb > 0):

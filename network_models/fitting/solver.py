@@ -95,7 +95,7 @@ class Projected:
         p = self.params_of(u)
         P = self.lin.stress(p)
         r = P * self.pr.weight - self.pr.wd
-        if not np.isfinite(r).all():
+        if not math.isfinite(float(np.dot(r, r))):  # one BLAS call: NaN/inf anywhere shows in the sum
             r[~np.isfinite(r)] = self.big
         return p, P, r
 
@@ -259,11 +259,11 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
     mu, nu, last = 1e-3, 2.0, 0.0
     prev = None  # (x, g) at the previous accepted point, for the secant curvature (one unknown)
     A, g = J.T @ J, J.T @ r
-    for _ in range(max_iter):
-        if not (math.isfinite(cost) and np.all(np.isfinite(A)) and np.all(np.isfinite(g))):
+    for _ in range(max_iter):  # the k × k pieces are handled as Python floats: numpy reductions cost more
+        if not (math.isfinite(cost) and all(map(math.isfinite, A.ravel().tolist() + g.tolist()))):
             return None
-        d = np.diag(A)
-        D = np.maximum(d, 1e-12 * max(float(d.max()), 1e-300))
+        d = A.diagonal().tolist()
+        D = np.maximum(A.diagonal(), 1e-12 * max(max(d), 1e-300))
         H = A
         if n == 1 and prev is not None:
             sec = (g[0] - prev[1][0]) / (x[0] - prev[0][0])
@@ -275,11 +275,11 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
             return None
         x_new = np.minimum(np.maximum(x + step, lo), hi)
         step = x_new - x
-        size = float(np.max(np.abs(step)))
+        size = max(map(abs, step.tolist()))
         # error left after this step ≈ size·ρ/(1 − ρ), ρ = the observed contraction of the steps
         rate = min(size / last, 0.5) if last > 0 else 0.5
-        small = size * rate / (1.0 - rate) <= xtol * (1.0 + float(np.max(np.abs(x))))
-        if not step.any():
+        small = size * rate / (1.0 - rate) <= xtol * (1.0 + max(map(abs, x.tolist())))
+        if size == 0.0:
             return x, r, "no smaller sum of squares in any direction within the bounds"
         r_new = fun(x_new)
         c_new = float(np.dot(r_new, r_new))
@@ -341,7 +341,7 @@ def solve(pr: Problem):
         u0, r0 = start_point(pj)
         p_start = pj.params_of(u0)
         out = levenberg_marquardt(pj.residual_ahead, pj.jac, u0, r0, lo=pj.zlo, hi=pj.zhi)
-        if out is not None and np.all(np.isfinite(out[0])) and np.all(np.abs(out[1]) < pj.big):
+        if out is not None and all(map(math.isfinite, out[0].tolist())) and float(np.abs(out[1]).max()) < pj.big:
             xhat, message, solver = out[0], out[2], "levenberg-marquardt"
         else:
             xhat, message, solver = _scipy(pj, p_start)
@@ -349,7 +349,7 @@ def solve(pr: Problem):
         xhat, message, solver = np.empty(0), "solved in closed form (the model is linear in its moduli)", "closed-form"
     values, Pm, r = pj.residual(xhat)
     values = dict(values)
-    if np.any(np.abs(r) >= pj.big):
+    if float(np.abs(r).max()) >= pj.big:
         raise FitError(f"the {pr.model.title} fit ended with data beyond the model's locking stretch; "
                        "remove the points at the largest stretches or choose a model without a lock",
                        kind="past-lock")

@@ -31,14 +31,15 @@ def covariance(pj, u_hat, values, Pm, rss):
     z = np.array([c.z_of_v(values[nm]) for c, nm in zip(pj.co, names, strict=True)])
     J = pj.full_jacobian(u_hat, values, Pm) * pr.weight[:, None]  # full Jacobian at the optimum, in z
     cov_z = np.full((k, k), np.nan)
-    if np.all(np.isfinite(J)):
+    if math.isfinite(float(np.sum(J * J))):
         try:  # (JᵀJ)⁻¹ from its eigen-decomposition; singular (condition of J over 1e10) ⇒ no covariance
             w, V = np.linalg.eigh(J.T @ J)
             if w.size and w[-1] > 0 and w[0] > w[-1] * 1e-20:
                 cov_z = (V / w) @ V.T * s2
         except np.linalg.LinAlgError:
             pass
-    se_z = np.sqrt(np.clip(np.diag(cov_z), 0, None)) if np.all(np.isfinite(cov_z)) else np.full(k, np.nan)
+    ok = all(map(math.isfinite, cov_z.ravel().tolist()))
+    se_z = np.sqrt(np.clip(np.diag(cov_z), 0, None)) if ok else np.full(k, np.nan)
     with np.errstate(all="ignore"):
         corr = cov_z / np.outer(se_z, se_z)
     D = np.array([c.dv_dz(values[nm]) for c, nm in zip(pj.co, names, strict=True)])
