@@ -19,7 +19,7 @@ from ..errors import FitError
 from .evaluate import LinearModuli, bounded_lstsq, fast_evaluator, two_column
 from .problem import Coord, Problem
 
-LOCK_CANDIDATES = (1.3, 2.5, 8.0)  # start multiples of the locking threshold (model's guess when nothing locks)
+LOCK_CANDIDATES = (1.1, 1.3, 2.5, 8.0)  # start multiples of the locking threshold (model's guess when nothing locks)
 _FALLBACK_METHODS = ("lm", "trf")  # MINPACK Levenberg–Marquardt first (least overhead); trf if it fails
 
 
