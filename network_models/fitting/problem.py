@@ -21,6 +21,7 @@ _NEO_SHAPE = {  # nominal stress / G for the neo-Hookean solid (physics.md §2 w
     1: lambda x: x - x**-5,  # equibiaxial
     2: lambda x: x - x**-3,  # planar
 }
+_MODE_INDEX = {m: i for i, m in enumerate(MODES)}
 _KINEMATICS = ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1")
 
 
@@ -43,7 +44,7 @@ class Data:
                 raise TypeError(f"fit expects TestCurve objects, got {type(c).__name__}")
         self.lam = np.concatenate([c.stretch for c in curves])
         self.P = np.concatenate([c.stress for c in curves])
-        self.mode_idx = np.repeat([MODES.index(c.mode) for c in curves], [c.stretch.size for c in curves])
+        self.mode_idx = np.repeat([_MODE_INDEX[c.mode] for c in curves], [c.stretch.size for c in curves])
         if not (math.isfinite(float(np.dot(self.lam, self.lam)) + float(np.dot(self.P, self.P)))
                 and float(self.lam.min()) > 0):
             _bad_curve(curves)  # raises the sentence
@@ -53,7 +54,7 @@ class Data:
     def _index(self):
         counts = np.bincount(self.mode_idx, minlength=len(MODES)).tolist()
         self.modes = [m for m, k in zip(MODES, counts, strict=True) if k]
-        self.masks = {m: self.mode_idx == MODES.index(m) for m in self.modes}
+        self.masks = {m: self.mode_idx == _MODE_INDEX[m] for m in self.modes}
         # (min, max) stretch of each mode and the indices where they sit: one sort, no per-mode reductions
         order = np.lexsort((self.lam, self.mode_idx)).tolist()
         self.ranges, self.ends = {}, []
@@ -68,12 +69,12 @@ class Data:
 
     def _kinematics(self):
         if len(self.modes) == 1:
-            l1, l2, l3 = _stretches(MODES.index(self.modes[0]), self.lam)
+            l1, l2, l3 = _stretches(_MODE_INDEX[self.modes[0]], self.lam)
         else:
             n = self.lam.size
             l1, l2, l3 = np.empty(n), np.empty(n), np.empty(n)
             for m, mask in self.masks.items():
-                l1[mask], l2[mask], l3[mask] = _stretches(MODES.index(m), self.lam[mask])
+                l1[mask], l2[mask], l3[mask] = _stretches(_MODE_INDEX[m], self.lam[mask])
         self.l1, self.l2, self.l3 = l1, l2, l3
         a1, a2, a3 = l1 * l1, l2 * l2, l3 * l3
         self.I1 = a1 + a2 + a3
@@ -126,7 +127,7 @@ def estimate_modulus(curves) -> float:
         sel = (lam >= SMALL_STRAIN[0]) & (lam <= SMALL_STRAIN[1])
         if sel.sum() < 3:
             sel = np.argsort(np.abs(lam - 1.0))[:5]
-        g = _NEO_SHAPE[MODES.index(c.mode)](lam[sel])
+        g = _NEO_SHAPE[_MODE_INDEX[c.mode]](lam[sel])
         num += float(np.dot(g, P[sel]))
         den += float(np.dot(g, g))
     G0 = num / den if den > 0 else float("nan")
