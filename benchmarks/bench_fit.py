@@ -57,9 +57,12 @@ def compare(model, curves, repeats: int = 5) -> dict:
     t0 = time.perf_counter()
     naive_fit(model, pairs, guess, bounds)  # warm-up, and the length of one naive fit
     t_one_naive = time.perf_counter() - t0
-    t0 = time.perf_counter()
-    fit(model, curves)
-    block = max(1, min(500, round(t_one_naive / max(time.perf_counter() - t0, 1e-6))))
+    one = []
+    for _ in range(3):
+        t0 = time.perf_counter()
+        fit(model, curves)
+        one.append(time.perf_counter() - t0)
+    block = max(1, min(500, round(t_one_naive / max(min(one), 1e-6))))
     t_fast, t_single, t_naive = [], [], []
     for _ in range(repeats):
         t0 = time.perf_counter()
@@ -134,7 +137,7 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
     curves = three_mode_curves()
     per = {}
     for name in MODELS:
-        per[name] = compare(name, curves, repeats=3 if quick else 9)
+        per[name] = compare(name, curves, repeats=5 if quick else 9)
     fast = sum(v["fast_s"] for v in per.values())
     profile = _profile(curves) if not quick else None
     slow = sum(v["naive_s"] for v in per.values())

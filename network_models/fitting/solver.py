@@ -50,6 +50,9 @@ class Projected:
         self.nfev = 0
         self.space = "z"
         self._memo: dict = {}
+        self._wcache: dict = {}
+        self._fast = bool(lin.linear and not self.fixed_moduli and 1 <= len(self.L) <= 2
+                          and set(self.L) == set(lin.moduli))
 
     def params_of(self, u):
         p = self._nl_params(u)
@@ -90,11 +93,45 @@ class Projected:
         self._memo[key] = out
         return out
 
+    def _weighted(self, p, nm):
+        """(h, h·w, ⟨hw, hw⟩, ⟨hw, y⟩) of one modulus at p, cached with its unit response."""
+        lin = self.lin
+        key = (nm, *(p[j] for j in lin.deps[nm]))
+        hit = self._wcache.get(key)
+        if hit is None:
+            h = lin.h(p, nm)
+            hw = h * self.pr.weight
+            hit = (h, hw, float(np.dot(hw, hw)), float(np.dot(hw, self.pr.wd)))
+            if len(self._wcache) >= 16:
+                self._wcache.pop(next(iter(self._wcache)))
+            self._wcache[key] = hit
+        return hit
+
+    def _projected(self, u):
+        """Moduli solved, stress and residual assembled from the cached weighted unit responses (the common
+        case: one or two moduli, all free)."""
+        p = self._nl_params(u)
+        L = self.L
+        if len(L) == 1:
+            h, hw, hh, hy = self._weighted(p, L[0])
+            t = hy / hh if hh > 0 else 0.0
+            t = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+            p[L[0]] = t
+            return p, t * h, t * hw - self.pr.wd
+        h1, hw1, a11, b1 = self._weighted(p, L[0])
+        h2, hw2, a22, b2 = self._weighted(p, L[1])
+        t1, t2 = two_column(((a11, float(np.dot(hw1, hw2))), (0.0, a22)), (b1, b2), self.L_lo, self.L_hi)
+        p[L[0]], p[L[1]] = t1, t2
+        return p, t1 * h1 + t2 * h2, t1 * hw1 + t2 * hw2 - self.pr.wd
+
     def _residual(self, u):
         self.nfev += 1
-        p = self.params_of(u)
-        P = self.lin.stress(p)
-        r = P * self.pr.weight - self.pr.wd
+        if self._fast:
+            p, P, r = self._projected(u)
+        else:
+            p = self.params_of(u)
+            P = self.lin.stress(p)
+            r = P * self.pr.weight - self.pr.wd
         if not math.isfinite(float(np.dot(r, r))):  # one BLAS call: NaN/inf anywhere shows in the sum
             r[~np.isfinite(r)] = self.big
         return p, P, r

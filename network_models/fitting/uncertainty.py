@@ -22,6 +22,31 @@ def _exp(x: float) -> float:
     return math.exp(x) if x < 709.0 else math.inf
 
 
+def _inverse(A):
+    """(JᵀJ)⁻¹, or NaN when singular (condition of J over 1e10): closed forms for one and two parameters
+    (a LAPACK call costs more than the arithmetic there), the eigen-decomposition otherwise."""
+    k = A.shape[0]
+    nan = np.full((k, k), np.nan)
+    if k == 1:
+        a = float(A[0, 0])
+        return np.array([[1.0 / a]]) if a > 0 else nan
+    if k == 2:
+        a, b, d = float(A[0, 0]), float(A[0, 1]), float(A[1, 1])
+        tr, det = a + d, a * d - b * b
+        hi = tr / 2.0 + math.sqrt(max(tr * tr / 4.0 - det, 0.0))  # the larger eigenvalue
+        lo = det / hi if hi > 0 else 0.0  # the smaller one, without cancellation
+        if not (hi > 0 and det > 0 and lo > hi * 1e-20):
+            return nan
+        return np.array([[d, -b], [-b, a]]) / det
+    try:
+        w, V = np.linalg.eigh(A)
+    except np.linalg.LinAlgError:
+        return nan
+    if w.size and w[-1] > 0 and w[0] > w[-1] * 1e-20:
+        return (V / w) @ V.T
+    return nan
+
+
 def covariance(pj, u_hat, values, Pm, rss):
     """(cov_z, se_z, correlation, cov_SI, z) of the free parameters at the optimum."""
     pr = pj.pr
@@ -32,12 +57,7 @@ def covariance(pj, u_hat, values, Pm, rss):
     J = pj.full_jacobian(u_hat, values, Pm) * pr.weight[:, None]  # full Jacobian at the optimum, in z
     cov_z = np.full((k, k), np.nan)
     if math.isfinite(float(np.sum(J * J))):
-        try:  # (JᵀJ)⁻¹ from its eigen-decomposition; singular (condition of J over 1e10) ⇒ no covariance
-            w, V = np.linalg.eigh(J.T @ J)
-            if w.size and w[-1] > 0 and w[0] > w[-1] * 1e-20:
-                cov_z = (V / w) @ V.T * s2
-        except np.linalg.LinAlgError:
-            pass
+        cov_z = _inverse(J.T @ J) * s2
     ok = all(map(math.isfinite, cov_z.ravel().tolist()))
     se_z = np.sqrt(np.clip(np.diag(cov_z), 0, None)) if ok else np.full(k, np.nan)
     with np.errstate(all="ignore"):
