@@ -290,6 +290,8 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
     n = x.size
     lo = np.full(n, -np.inf) if lo is None else np.asarray(lo, float)
     hi = np.full(n, np.inf) if hi is None else np.asarray(hi, float)
+    if n == 1:
+        return _lm_scalar(fun, jac, float(x[0]), r0, float(lo[0]), float(hi[0]), xtol, ftol, max_iter)
     r = fun(x) if r0 is None else r0
     cost = float(np.dot(r, r))
     J = jac(x, r)
@@ -334,6 +336,53 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
             A, g = J.T @ J, J.T @ r
         elif small:
             return x, r, "no smaller sum of squares in any direction"
+        else:
+            mu *= nu
+            nu *= 2.0
+    return None
+
+
+def _lm_scalar(fun, jac, x, r0, lo, hi, xtol, ftol, max_iter):
+    """:func:`levenberg_marquardt` for one unknown, in Python floats (the same steps and tests; numpy's
+    per-call cost on 1 × 1 arrays is most of an iteration otherwise)."""
+    arr = np.array
+    r = fun(arr([x])) if r0 is None else r0
+    cost = float(np.dot(r, r))
+    J = jac(arr([x]), r)[:, 0]
+    a, g = float(np.dot(J, J)), float(np.dot(J, r))
+    mu, nu, last, prev = 1e-3, 2.0, 0.0, None
+    for _ in range(max_iter):
+        if not (math.isfinite(cost) and math.isfinite(a) and math.isfinite(g)):
+            return None
+        h = a
+        if prev is not None:  # secant curvature of the gradient (takes in the misfit term)
+            sec = (g - prev[1]) / (x - prev[0])
+            if 0.2 * a <= sec <= 5.0 * a:
+                h = sec
+        den = h + mu * max(a, 1e-300)
+        x_new = min(max(x - g / den, lo), hi)
+        step = x_new - x
+        size = abs(step)
+        rate = min(size / last, 0.5) if last > 0 else 0.5
+        small = size * rate / (1.0 - rate) <= xtol * (1.0 + abs(x))
+        if size == 0.0:
+            return arr([x]), r, "no smaller sum of squares in any direction within the bounds"
+        r_new = fun(arr([x_new]))
+        c_new = float(np.dot(r_new, r_new))
+        pred = -(2.0 * g * step + h * step * step)
+        if math.isfinite(c_new) and c_new < cost and pred > 0:
+            rho = (cost - c_new) / pred
+            done = small or cost - c_new <= ftol * cost
+            prev = (x, g)
+            x, r, cost, last = x_new, r_new, c_new, size
+            if done:
+                return arr([x]), r, "the step or the reduction of the sum of squares became negligible"
+            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
+            nu = 2.0
+            J = jac(arr([x]), r)[:, 0]
+            a, g = float(np.dot(J, J)), float(np.dot(J, r))
+        elif small:
+            return arr([x]), r, "no smaller sum of squares in any direction"
         else:
             mu *= nu
             nu *= 2.0
