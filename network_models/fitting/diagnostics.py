@@ -131,15 +131,15 @@ def _monotonic(out, m, data, values):
     """Stress must rise with stretch in every supported mode, up to 1.5 × the largest data stretch."""
     top = max(3.0, math.ceil(3.0 * data.top) / 2.0)
     grid, gdata = _grid(top, tuple(md.value for md in m.modes))
-    P = fast_evaluator(m, gdata)(values)  # NaN past the lock: those steps are skipped
-    for mode in m.modes:
-        dP = np.diff(P[gdata.masks[mode]])
-        bad = np.flatnonzero(np.isfinite(dP) & (dP <= 0))
-        if bad.size:
-            where = grid[bad[0]]
-            out.append(Notice(f"the fitted {m.title} model is unstable in {mode.value}: its stress stops rising "
-                              f"above λ ≈ {where:.3g}; do not use its {mode.value} predictions there",
-                              "unstable", mode.value))
+    P = fast_evaluator(m, gdata)(values).reshape(len(m.modes), grid.size)  # NaN past the lock: skipped
+    dP = np.diff(P, axis=1)
+    falls = (dP <= 0) & np.isfinite(dP)  # one pass over every mode
+    for row in np.flatnonzero(falls.any(axis=1)).tolist():
+        mode = m.modes[row]
+        where = grid[int(np.argmax(falls[row]))]
+        out.append(Notice(f"the fitted {m.title} model is unstable in {mode.value}: its stress stops rising "
+                          f"above λ ≈ {where:.3g}; do not use its {mode.value} predictions there",
+                          "unstable", mode.value))
 
 
 @lru_cache(maxsize=64)

@@ -49,7 +49,11 @@ class Data:
                 and float(self.lam.min()) > 0):
             _bad_curve(curves)  # raises the sentence
         self._index()
-        self._kinematics()
+        parts = [_stretches(_MODE_INDEX[c.mode], c.stretch) for c in curves]  # per curve: no masked writes
+        if len(parts) == 1:
+            self._kinematics(*parts[0])
+        else:
+            self._kinematics(*(np.concatenate([q[i] for q in parts]) for i in range(3)))
 
     def _index(self):
         counts = np.bincount(self.mode_idx, minlength=len(MODES)).tolist()
@@ -67,14 +71,7 @@ class Data:
                 start += k
         self.top = max(hi for _, hi in self.ranges.values())
 
-    def _kinematics(self):
-        if len(self.modes) == 1:
-            l1, l2, l3 = _stretches(_MODE_INDEX[self.modes[0]], self.lam)
-        else:
-            n = self.lam.size
-            l1, l2, l3 = np.empty(n), np.empty(n), np.empty(n)
-            for m, mask in self.masks.items():
-                l1[mask], l2[mask], l3[mask] = _stretches(_MODE_INDEX[m], self.lam[mask])
+    def _kinematics(self, l1, l2, l3):
         self.l1, self.l2, self.l3 = l1, l2, l3
         a1, a2, a3 = l1 * l1, l2 * l2, l3 * l3
         self.I1 = a1 + a2 + a3
