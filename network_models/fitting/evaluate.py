@@ -160,10 +160,15 @@ class LinearModuli:
                 cache[key] = out[b * n:(b + 1) * n]
 
     def _check(self, p):
+        """Linear in the moduli at p?  Points past the lock (NaN) are left out of the comparison — they
+        used to make the scale NaN and the check fail, so the first fit of a model on data past its
+        start lock switched variable projection off for the whole session."""
         P = self.ev(p)
         tot = sum(p[nm] * self._unit_eval(p, nm) for nm in self.moduli)
-        scale = np.max(np.abs(P)) if P.size else 0.0
-        ok = np.isfinite(P)
+        ok = np.isfinite(P) & np.isfinite(tot)
+        if not ok.any():
+            return False
+        scale = float(np.max(np.abs(P[ok])))
         return bool(scale > 0 and np.all(np.abs(tot[ok] - P[ok]) <= 1e-9 * scale))
 
     def _stack_check(self, p, co):

@@ -264,8 +264,16 @@ def start_point(pj: Projected):
     return best
 
 
-def _solve_damped(A, D, g, mu):
-    """(A + μ·D) s = −g for 1–3 unknowns (D: Marquardt's diagonal scaling, floored)."""
+def _solve_damped(A, D, g, mu, free=None):
+    """(A + μ·D) s = −g for 1–3 unknowns (D: Marquardt's diagonal scaling, floored); with ``free`` (a
+    mask) only those unknowns move — the others sit on a bound the gradient pushes them against, and
+    keeping them in the system would bend the step of the rest."""
+    if free is not None and not free.all():
+        s = np.zeros_like(g)
+        if free.any():
+            idx = np.flatnonzero(free)
+            s[idx] = _solve_damped(A[np.ix_(idx, idx)], D[idx], g[idx], mu)
+        return s
     if A.shape[0] == 1:
         return np.array([-g[0] / (A[0, 0] + mu * D[0])])
     return np.linalg.solve(A + np.diag(mu * D), -g)
@@ -276,16 +284,18 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
 
     Levenberg–Marquardt with Marquardt's diagonal scaling and Nielsen's damping update (Madsen, Nielsen &
     Tingleff 2004, "Methods for non-linear least squares problems", IMM DTU, §3.2 [from memory]); a step
-    that would leave the box is clipped to it.  ``jac(x, r)`` gives the Jacobian at x; ``r0`` = fun(x0)
+    that would leave the box goes half way to the bound the first time (a valley may lie between) and to the
+bound the next.  ``jac(x, r)`` gives the Jacobian at x; ``r0`` = fun(x0)
     when already known.  With one unknown the curvature is the secant of the gradient between the last two
     points when that lies within a factor 5 of the Gauss–Newton JᵀJ: it includes the Σ rᵢ∇²rᵢ term that
     Gauss–Newton drops, so a fit with a systematic misfit converges superlinearly instead of linearly
     (the 1-D case of the hybrid methods in the same notes, §3.4).
 
     Returns (x, r, message), or None when it does not converge (the caller then falls back to scipy).
-    Converged: the error left after an accepted step, estimated from the contraction of the last two
-    steps, is below ``xtol`` (relative to 1 + |x|), or the step reduced the sum of squares by less than
-    ``ftol`` of it; or no step inside the box reduces it."""
+    Converged: the undamped (Gauss–)Newton step at the current point, kept inside the box, is below
+    ``xtol`` (relative to 1 + |x|) — it estimates the distance to the optimum, where a damped step can be
+    small far from it; or an accepted step reduced the sum of squares by less than ``ftol`` of it; or no
+    step inside the box reduces it."""
     x = np.array(x0, float)
     n = x.size
     lo = np.full(n, -np.inf) if lo is None else np.asarray(lo, float)
@@ -295,8 +305,7 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
     r = fun(x) if r0 is None else r0
     cost = float(np.dot(r, r))
     J = jac(x, r)
-    mu, nu, last = 1e-3, 2.0, 0.0
-    prev = None  # (x, g) at the previous accepted point, for the secant curvature (one unknown)
+    mu, nu, at_bound = 1e-3, 2.0, False
     A, g = J.T @ J, J.T @ r
     for _ in range(max_iter):  # the k × k pieces are handled as Python floats: numpy reductions cost more
         if not (math.isfinite(cost) and all(map(math.isfinite, A.ravel().tolist() + g.tolist()))):
@@ -304,20 +313,24 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
         d = A.diagonal().tolist()
         D = np.maximum(A.diagonal(), 1e-12 * max(max(d), 1e-300))
         H = A
-        if n == 1 and prev is not None:
-            sec = (g[0] - prev[1][0]) / (x[0] - prev[0][0])
-            if 0.2 * A[0, 0] <= sec <= 5.0 * A[0, 0]:
-                H = np.array([[sec]])
+        tol = xtol * (1.0 + max(map(abs, x.tolist())))
+        free = ~(((x <= lo) & (g > 0)) | ((x >= hi) & (g < 0)))  # not pinned on a bound by the gradient
+        try:  # the undamped step, kept inside the box, estimates the distance to the optimum
+            newton = np.minimum(np.maximum(x + _solve_damped(H, D, g, 0.0, free), lo), hi) - x
+            if max(map(abs, newton.tolist())) <= tol:
+                return x, r, "the Gauss–Newton step became negligible"
+        except np.linalg.LinAlgError:
+            pass
         try:
-            step = _solve_damped(H, D, g, mu)
+            step = _solve_damped(H, D, g, mu, free)
         except np.linalg.LinAlgError:
             return None
         x_new = np.minimum(np.maximum(x + step, lo), hi)
+        hit = bool(np.any(x_new != x + step))
+        if hit and not at_bound:  # the first step into a bound goes half way (a valley may lie between)
+            x_new = x + 0.5 * (x_new - x)
         step = x_new - x
         size = max(map(abs, step.tolist()))
-        # error left after this step ≈ size·ρ/(1 − ρ), ρ = the observed contraction of the steps
-        rate = min(size / last, 0.5) if last > 0 else 0.5
-        small = size * rate / (1.0 - rate) <= xtol * (1.0 + max(map(abs, x.tolist())))
         if size == 0.0:
             return x, r, "no smaller sum of squares in any direction within the bounds"
         r_new = fun(x_new)
@@ -325,16 +338,15 @@ def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, f
         pred = -float(2.0 * (g @ step) + step @ H @ step)
         if math.isfinite(c_new) and c_new < cost and pred > 0:
             rho = (cost - c_new) / pred
-            done = small or cost - c_new <= ftol * cost
-            prev = (x, g)
-            x, r, cost, last = x_new, r_new, c_new, size
-            if done:
-                return x, r, "the step or the reduction of the sum of squares became negligible"
-            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
-            nu = 2.0
+            flat = cost - c_new <= ftol * cost
+            x, r, cost, at_bound = x_new, r_new, c_new, hit
             J = jac(x, r)
             A, g = J.T @ J, J.T @ r
-        elif small:
+            if flat:
+                return x, r, "the reduction of the sum of squares became negligible"
+            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
+            nu = 2.0
+        elif size <= 1e-3 * tol:
             return x, r, "no smaller sum of squares in any direction"
         else:
             mu *= nu
@@ -350,7 +362,7 @@ def _lm_scalar(fun, jac, x, r0, lo, hi, xtol, ftol, max_iter):
     cost = float(np.dot(r, r))
     J = jac(arr([x]), r)[:, 0]
     a, g = float(np.dot(J, J)), float(np.dot(J, r))
-    mu, nu, last, prev = 1e-3, 2.0, 0.0, None
+    mu, nu, prev, at_bound = 1e-3, 2.0, None, None
     for _ in range(max_iter):
         if not (math.isfinite(cost) and math.isfinite(a) and math.isfinite(g)):
             return None
@@ -359,29 +371,32 @@ def _lm_scalar(fun, jac, x, r0, lo, hi, xtol, ftol, max_iter):
             sec = (g - prev[1]) / (x - prev[0])
             if 0.2 * a <= sec <= 5.0 * a:
                 h = sec
-        den = h + mu * max(a, 1e-300)
-        x_new = min(max(x - g / den, lo), hi)
+        # converged when the undamped (Newton) step, kept inside the box, is negligible: it estimates the
+        # distance to the optimum directly (a damped step can be small far from it)
+        if abs(min(max(x - g / h, lo), hi) - x) <= xtol * (1.0 + abs(x)):
+            return arr([x]), r, "the Newton step became negligible"
+        x_new = x - g / (h + mu * max(a, 1e-300))
+        hit = lo if x_new < lo else hi if x_new > hi else None
+        if hit is not None:  # the first step into a bound goes half way (a valley may lie between)
+            x_new = hit if hit == at_bound else x + 0.5 * (hit - x)
         step = x_new - x
-        size = abs(step)
-        rate = min(size / last, 0.5) if last > 0 else 0.5
-        small = size * rate / (1.0 - rate) <= xtol * (1.0 + abs(x))
-        if size == 0.0:
+        if step == 0.0:
             return arr([x]), r, "no smaller sum of squares in any direction within the bounds"
         r_new = fun(arr([x_new]))
         c_new = float(np.dot(r_new, r_new))
         pred = -(2.0 * g * step + h * step * step)
         if math.isfinite(c_new) and c_new < cost and pred > 0:
             rho = (cost - c_new) / pred
-            done = small or cost - c_new <= ftol * cost
+            flat = cost - c_new <= ftol * cost
             prev = (x, g)
-            x, r, cost, last = x_new, r_new, c_new, size
-            if done:
-                return arr([x]), r, "the step or the reduction of the sum of squares became negligible"
-            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
-            nu = 2.0
+            x, r, cost, at_bound = x_new, r_new, c_new, hit
             J = jac(arr([x]), r)[:, 0]
             a, g = float(np.dot(J, J)), float(np.dot(J, r))
-        elif small:
+            if flat:
+                return arr([x]), r, "the reduction of the sum of squares became negligible"
+            mu *= max(1.0 / 3.0, 1.0 - (2.0 * rho - 1.0) ** 3)
+            nu = 2.0
+        elif abs(step) <= 1e-3 * xtol * (1.0 + abs(x)):
             return arr([x]), r, "no smaller sum of squares in any direction"
         else:
             mu *= nu
