@@ -154,7 +154,7 @@ class LinearModuli:
             if ev is None:
                 ev = self._stacked[len(keys)] = stacked_evaluator(self.model, self.data, len(keys))
             out = ev(q)
-            while len(cache) + len(keys) > 8:
+            while cache and len(cache) + len(keys) > 8:  # keep the newest; a large prefetch may exceed 8
                 cache.pop(next(iter(cache)))
             for b, key in enumerate(keys):
                 cache[key] = out[b * n:(b + 1) * n]

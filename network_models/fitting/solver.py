@@ -19,7 +19,8 @@ from ..errors import FitError
 from .evaluate import LinearModuli, bounded_lstsq, fast_evaluator, two_column
 from .problem import Coord, Problem
 
-LOCK_CANDIDATES = (1.1, 1.3, 2.5, 8.0)  # start multiples of the locking threshold (model's guess when nothing locks)
+#: start multiples of the locking threshold (the model's guess when nothing locks); scored in one stacked call
+LOCK_CANDIDATES = (1.05, 1.1, 1.2, 1.3, 1.6, 2.5, 8.0)
 _FALLBACK_METHODS = ("lm", "trf")  # MINPACK Levenberg–Marquardt first (least overhead); trf if it fails
 
 
@@ -51,6 +52,7 @@ class Projected:
         self.space = "z"
         self._memo: dict = {}
         self._wcache: dict = {}
+        self.yy = float(np.dot(pr.wd, pr.wd))
         self._fast = bool(lin.linear and not self.fixed_moduli and 1 <= len(self.L) <= 2
                           and set(self.L) == set(lin.moduli))
 
@@ -123,6 +125,26 @@ class Projected:
         t1, t2 = two_column(((a11, float(np.dot(hw1, hw2))), (0.0, a22)), (b1, b2), self.L_lo, self.L_hi)
         p[L[0]], p[L[1]] = t1, t2
         return p, t1 * h1 + t2 * h2, t1 * hw1 + t2 * hw2 - self.pr.wd
+
+    def cost(self, u):
+        """‖residual‖² at u from the Gram entries alone (no residual vector) in the common case."""
+        if not self._fast:
+            r = self.residual(u)[2]
+            return float(np.dot(r, r))
+        p = self._nl_params(u)
+        L = self.L
+        if len(L) == 1:
+            _, _, hh, hy = self._weighted(p, L[0])
+            t = hy / hh if hh > 0 else 0.0
+            t = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+            c = self.yy - 2.0 * t * hy + t * t * hh
+        else:
+            _, hw1, a11, b1 = self._weighted(p, L[0])
+            _, hw2, a22, b2 = self._weighted(p, L[1])
+            a12 = float(np.dot(hw1, hw2))
+            t1, t2 = two_column(((a11, a12), (0.0, a22)), (b1, b2), self.L_lo, self.L_hi)
+            c = self.yy - 2.0 * (t1 * b1 + t2 * b2) + t1 * t1 * a11 + 2.0 * t1 * t2 * a12 + t2 * t2 * a22
+        return c if math.isfinite(c) else math.inf
 
     def _residual(self, u):
         self.nfev += 1
@@ -252,16 +274,14 @@ def start_point(pj: Projected):
             q[name] = min(max(q[name], pr.lb[name]), pr.ub[name])
     us = [pj.u_of(q) for q in cands]
     pj.prefetch(us + [u2 for u in us for u2, _ in pj.steps(u)])  # each start and its Jacobian steps
-    best, best_cost = None, math.inf
-    for x in us:
-        _, _, r = pj.residual(x)
-        c = float(np.dot(r, r))
-        if c < best_cost:
-            best, best_cost = (x, r), c
-    if best is None or not math.isfinite(best_cost):
+    costs = [pj.cost(x) for x in us]
+    best = min(range(len(us)), key=costs.__getitem__)
+    x = us[best]
+    r = pj.residual(x)[2]
+    if not math.isfinite(float(np.dot(r, r))) or float(np.abs(r).max()) >= pj.big:
         raise FitError(f"the {pr.model.title} model cannot be evaluated at any start value on these data",
                        kind="no-start")
-    return best
+    return x, r
 
 
 def _solve_damped(A, D, g, mu, free=None):
