@@ -273,15 +273,41 @@ def start_point(pj: Projected):
         for name in pr.locks:  # keep start values inside the lock bound
             q[name] = min(max(q[name], pr.lb[name]), pr.ub[name])
     us = [pj.u_of(q) for q in cands]
-    pj.prefetch(us + [u2 for u in us for u2, _ in pj.steps(u)])  # each start and its Jacobian steps
+    one = len(us) > 2 and len(pj.NL) == 1
+    pj.prefetch(us if one else us + [u2 for u in us for u2, _ in pj.steps(u)])
     costs = [pj.cost(x) for x in us]
     best = min(range(len(us)), key=costs.__getitem__)
     x = us[best]
+    if one:  # one unknown: the vertex of the parabola through the best candidate and its neighbours
+        x = _vertex(us, costs, best, pj)
     r = pj.residual(x)[2]
     if not math.isfinite(float(np.dot(r, r))) or float(np.abs(r).max()) >= pj.big:
         raise FitError(f"the {pr.model.title} model cannot be evaluated at any start value on these data",
                        kind="no-start")
     return x, r
+
+
+def _vertex(us, costs, best, pj):
+    """Minimum of the parabola through the best candidate and its two neighbours (ordered by u), when
+    the three bracket a minimum and it is better; else the best candidate.  One stacked model call (the
+    vertex with its Jacobian step), which the optimiser's first iteration needs anyway."""
+    order = sorted(range(len(us)), key=lambda i: float(us[i][0]))
+    k = order.index(best)
+    if k == 0 or k == len(order) - 1:
+        return us[best]
+    (a, fa), (b, fb), (c, fc) = ((float(us[i][0]), costs[i]) for i in order[k - 1:k + 2])
+    if not all(map(math.isfinite, (fa, fb, fc))):
+        return us[best]
+    den = (b - a) * (fb - fc) - (b - c) * (fb - fa)
+    if den == 0.0:
+        return us[best]
+    v = b - 0.5 * ((b - a) ** 2 * (fb - fc) - (b - c) ** 2 * (fb - fa)) / den
+    if not min(a, c) < v < max(a, c):
+        return us[best]
+    x = np.array([v])
+    # the vertex with its Jacobian step, and the best candidate's step in case the vertex is worse: one call
+    pj.prefetch([x] + [u2 for u2, _ in pj.steps(x)] + [u2 for u2, _ in pj.steps(us[best])])
+    return x if pj.cost(x) < fb else us[best]
 
 
 def _solve_damped(A, D, g, mu, free=None):
