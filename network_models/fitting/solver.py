@@ -146,6 +146,31 @@ class Projected:
             c = self.yy - 2.0 * (t1 * b1 + t2 * b2) + t1 * t1 * a11 + 2.0 * t1 * t2 * a12 + t2 * t2 * a22
         return c if math.isfinite(c) else math.inf
 
+    def costs(self, us):
+        """:meth:`cost` at several points, vectorised over them (the unit responses already fetched)."""
+        if not self._fast or len(us) < 2:
+            return [self.cost(u) for u in us]
+        ps = [self._nl_params(u) for u in us]
+        w, y, L = self.pr.weight, self.pr.wd, self.L
+        H1 = np.stack([self.lin.h(p, L[0]) for p in ps]) * w
+        a11, b1 = np.einsum("ij,ij->i", H1, H1).tolist(), (H1 @ y).tolist()
+        if len(L) == 2:
+            H2 = np.stack([self.lin.h(p, L[1]) for p in ps]) * w
+            a22, b2 = np.einsum("ij,ij->i", H2, H2).tolist(), (H2 @ y).tolist()
+            a12 = np.einsum("ij,ij->i", H1, H2).tolist()
+        out = []
+        for i in range(len(us)):
+            if len(L) == 1:
+                t = b1[i] / a11[i] if a11[i] > 0 else 0.0
+                t = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+                c = self.yy - 2.0 * t * b1[i] + t * t * a11[i]
+            else:
+                t1, t2 = two_column(((a11[i], a12[i]), (0.0, a22[i])), (b1[i], b2[i]), self.L_lo, self.L_hi)
+                c = (self.yy - 2.0 * (t1 * b1[i] + t2 * b2[i]) + t1 * t1 * a11[i] + 2.0 * t1 * t2 * a12[i]
+                     + t2 * t2 * a22[i])
+            out.append(c if math.isfinite(c) else math.inf)
+        return out
+
     def _residual(self, u):
         self.nfev += 1
         if self._fast:
@@ -275,7 +300,7 @@ def start_point(pj: Projected):
     us = [pj.u_of(q) for q in cands]
     one = len(us) > 2 and len(pj.NL) == 1
     pj.prefetch(us if one else us + [u2 for u in us for u2, _ in pj.steps(u)])
-    costs = [pj.cost(x) for x in us]
+    costs = pj.costs(us)
     best = min(range(len(us)), key=costs.__getitem__)
     x = us[best]
     if one:  # one unknown: the vertex of the parabola through the best candidate and its neighbours
