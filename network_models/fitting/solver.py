@@ -26,8 +26,9 @@ _FALLBACK_METHODS = ("lm", "trf")  # MINPACK Levenberg–Marquardt first (least 
 
 class Projected:
     """The fit's weighted residual as a function of the coordinates u of the non-modulus parameters (the
-    free moduli are solved for each u).  ``space="z"``: natural coordinates with box bounds (the small
-    loop clips its steps to them); ``space="x"``: bounds folded into smooth transforms (scipy fallback)."""
+    free moduli are solved for each u).  ``space="z"``: the small loop's coordinates with box bounds (log
+    distance to the lock for a locking parameter, else the natural coordinate; see :class:`_Axis`);
+    ``space="x"``: bounds folded into smooth transforms (scipy fallback)."""
 
     def __init__(self, pr: Problem):
         m = pr.model
