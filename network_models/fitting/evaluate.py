@@ -54,14 +54,27 @@ def fast_evaluator(model, data):
 
 
 class _Tiled:
-    """The kinematics of ``data`` repeated ``k`` times (one block per parameter set)."""
+    """The kinematics of ``data`` repeated ``k`` times (one block per parameter set); ``head(j)`` gives the
+    first j blocks as views, so one tiling serves every smaller stack of the fit."""
 
-    def __init__(self, data, k):
-        idx = np.tile(np.arange(data.lam.size), k)
-        for a in ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1", "lam"):
-            setattr(self, a, getattr(data, a)[idx])
-        self.masks = {m: mask[idx] for m, mask in data.masks.items()}
+    _NAMES = ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1", "lam")
+
+    def __init__(self, data, k, arrays=None):
+        if arrays is None:
+            idx = np.tile(np.arange(data.lam.size), k)
+            arrays = {a: getattr(data, a)[idx] for a in self._NAMES}
+            arrays["masks"] = {m: mask[idx] for m, mask in data.masks.items()}
+        for a in self._NAMES:
+            setattr(self, a, arrays[a])
+        self.masks = arrays["masks"]
         self.modes = data.modes
+        self.k, self._data = k, data
+
+    def head(self, j):
+        n = self._data.lam.size * j
+        arrays = {a: getattr(self, a)[:n] for a in self._NAMES}
+        arrays["masks"] = {m: mask[:n] for m, mask in self.masks.items()}
+        return _Tiled(self._data, j, arrays)
 
 
 def stacked_evaluator(model, data, k):
@@ -86,6 +99,7 @@ class LinearModuli:
         self.model, self.data = m, data
         self.n = 0 if data is None else int(data.lam.size)
         self._stacked: dict[int, object] = {}
+        self._tiled = None
         self.free = list(free_names)
         self.co = co
         self.moduli = [q.name for q in m.params if q.unit == "Pa"]
@@ -152,7 +166,7 @@ class LinearModuli:
                 q[j] = np.repeat(np.array([key[i] for key in keys]), n)
             ev = self._stacked.get(len(keys))
             if ev is None:
-                ev = self._stacked[len(keys)] = stacked_evaluator(self.model, self.data, len(keys))
+                ev = self._stacked[len(keys)] = self._stacked_ev(len(keys))
             out = ev(q)
             while cache and len(cache) + len(keys) > 8:  # keep the newest; a large prefetch may exceed 8
                 cache.pop(next(iter(cache)))
@@ -170,6 +184,13 @@ class LinearModuli:
             return False
         scale = float(np.max(np.abs(P[ok])))
         return bool(scale > 0 and np.all(np.abs(tot[ok] - P[ok]) <= 1e-9 * scale))
+
+    def _stacked_ev(self, k):
+        """Evaluator on k stacked blocks: views into one tiling of the data (grown when a larger stack is
+        asked for), so a fit tiles its kinematics once."""
+        if self._tiled is None or self._tiled.k < k:
+            self._tiled = _Tiled(self.data, max(k, 8))
+        return fast_evaluator(self.model, self._tiled.head(k))
 
     def _stack_check(self, p, co):
         """Does a stacked call give what separate calls give (to rounding)?  Checked once per model."""
