@@ -53,6 +53,7 @@ class Projected:
         self.space = "z"
         self._memo: dict = {}
         self._wcache: dict = {}
+        self._pmemo: dict = {}
         self.yy = float(np.dot(pr.wd, pr.wd))
         self._fast = bool(lin.linear and not self.fixed_moduli and 1 <= len(self.L) <= 2
                           and set(self.L) == set(lin.moduli))
@@ -185,11 +186,20 @@ class Projected:
         return p, P, r
 
     def _nl_params(self, u):
+        """The parameter set at u (moduli as in the start set; callers overwrite them).  Remembered for the
+        points of the current iteration: the candidates, the steps and the trial point each come back."""
+        key = (self.space, u.tobytes())
+        hit = self._pmemo.get(key)
+        if hit is not None:
+            return hit.copy()
         p = self.base.copy()
         in_z = self.space == "z"
-        for nm, c, a, ui in zip(self.NL, self._nl_co, self._axes, u, strict=True):
+        for nm, c, a, ui in zip(self.NL, self._nl_co, self._axes, u.tolist(), strict=True):
             p[nm] = a.v_of(ui) if in_z else c.v_of_x(ui)
-        return p
+        if len(self._pmemo) >= 32:
+            self._pmemo.clear()
+        self._pmemo[key] = p
+        return p.copy()
 
     def steps(self, u):
         """The points the forward-difference Jacobian at u evaluates."""
