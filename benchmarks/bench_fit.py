@@ -137,7 +137,7 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
     curves = three_mode_curves()
     per = {}
     for name in MODELS:
-        per[name] = compare(name, curves, repeats=5 if quick else 9)
+        per[name] = compare(name, curves, repeats=7 if quick else 11)
     fast = sum(v["fast_s"] for v in per.values())
     profile = _profile(curves) if not quick else None
     slow = sum(v["naive_s"] for v in per.values())
