@@ -28,7 +28,7 @@ Method
   J_m, δ, κ … (tube and Mooney–Rivlin fits need no iteration at all).  Bounds are folded into smooth
   transforms (as MINUIT and lmfit do), so the optimiser runs unbounded.
 * Start values from the data: G₀ from a neo-Hookean slope over 0.7 ≤ λ ≤ 1.5, ``model.guess(G₀)``, and for
-  locking parameters three candidates placed relative to the value at which the largest data stretch
+  locking parameters seven candidates (1.05 … 8 ×) the value at which the largest data stretch
   reaches the lock.
 * Finite extensibility: a locking parameter is bounded so that every data point stays inside the lock, so
   no prediction is NaN during the fit; a notice says when the optimum sits on or near that bound.
