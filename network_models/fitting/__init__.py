@@ -25,8 +25,9 @@ Method
 * Variable projection (Golub & Pereyra 1973, SIAM J. Numer. Anal. 10:413 [from memory]): every model here is
   linear in its moduli (checked numerically once per model), so the free moduli are solved exactly by a
   small bounded linear least squares for each trial of the other parameters; the optimiser only moves N,
-  J_m, δ, κ … (tube and Mooney–Rivlin fits need no iteration at all).  Bounds are folded into smooth
-  transforms (as MINUIT and lmfit do), so the optimiser runs unbounded.
+  J_m, δ, κ … (tube and Mooney–Rivlin fits need no iteration at all) with a small Levenberg–Marquardt
+  loop inside box bounds; scipy's ``least_squares`` (bounds folded into smooth transforms, as MINUIT and
+  lmfit do) is the fallback.
 * Start values from the data: G₀ from a neo-Hookean slope over 0.7 ≤ λ ≤ 1.5, ``model.guess(G₀)``, and for
   locking parameters seven candidates (1.05 … 8 ×) the value at which the largest data stretch
   reaches the lock.
