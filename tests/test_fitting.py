@@ -240,8 +240,3 @@ def test_fit_many_skips_unsupported_modes_and_keeps_going():
     assert "left out" in out["slip-tube"].warnings[0]
     assert out["eight-chain"].n == 60
 
-
-def test_treloar_1944_eight_chain():
-    # Arruda & Boyce 1993 fit Treloar's 1944 uniaxial data with μ ≈ 0.27 MPa, N = 26.5.  We hold no copy
-    # of Treloar's data read from the original publication, so this check is not run (no invented data).
-    pytest.skip("Treloar 1944 data not available from a primary source in this repository")
