@@ -1,11 +1,8 @@
 """The Design tab: targets as rows, the window of strand density that meets them, which target binds, and a
 feasibility map (ν against filler fraction or against N) on which a click moves the explorer.
 
-Mount it in ``app/main.py`` like the other optional views::
-
-    design = _optional_view("app.design_view", "create_design_view", explorer_state=state, messages=messages)
-    if design is not None:
-        tabs.append(("Design", design))
+``app/main.py`` mounts it as the Design tab with the session's explorer state; its messages appear under
+its Compute button (area ``ns-messages-design``).
 
 ``create_design_view(explorer_state=None, messages=None, on_pick=None)``: with an explorer state (the
 session's :class:`app.state.NetworkState`) the tab takes polymer, temperature, f, filler and N coupling from
@@ -87,7 +84,7 @@ class DesignView(pn.viewable.Viewer):
         super().__init__(**params)
         self.state = DesignState()
         self.explorer_state = explorer_state
-        self.messages = messages or Messages()
+        self.messages = messages or Messages(area="design")
         self.on_pick = on_pick
         s = self.state
         self.rows = pn.Column(sizing_mode="stretch_width", css_classes=["ns-design-targets"])
@@ -134,7 +131,7 @@ class DesignView(pn.viewable.Viewer):
                 pn.widgets.FloatInput.from_param(s.param.compound_nu, width=200, css_classes=["ns-design-nu"]),
                 pn.widgets.TextInput.from_param(s.param.compound_ci, width=200),
                 pn.widgets.Checkbox.from_param(s.param.with_models),
-                self.run_button, width=360),
+                self.run_button, self.messages, width=360),
             pn.Column(self.result, self.map_pane, self.models_pane, sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-design"])
 

@@ -12,6 +12,7 @@ import panel as pn
 
 from .compare_view import CompareView
 from .data_view import DataView
+from .design_view import create_design_view
 from .explorer import ExplorerViews, NetworkControls
 from .messages import Messages
 from .plots import set_output_backend
@@ -71,6 +72,7 @@ def _build_page(load_samples: bool = True):
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
+    design = create_design_view(explorer_state=session.network)
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
@@ -82,6 +84,7 @@ def _build_page(load_samples: bool = True):
         ("Test data & fits", data_view),
         ("Swelling", swell_view),
         ("Compare", compare),
+        ("Design", design),
     ]
     header = html(
         "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
@@ -115,6 +118,7 @@ def _build_page(load_samples: bool = True):
     page.ns_swell = swell_view
     page.ns_explorer = explorer
     page.ns_project = project
+    page.ns_design = design
     return page
 
 

@@ -107,3 +107,13 @@ def test_measured_compounds_are_placed_and_advised():
     assert adv["QM-A"][2] == res.advise(150.0, (140.0, 160.0)).sentence
     assert adv["bad"][0] is None and "cannot be placed" in adv["bad"][2]
     assert "data-compound='QM-A'" in v.result.object
+
+
+def test_the_page_mounts_the_design_tab_on_the_session_explorer():
+    from app.main import create_app
+
+    page = create_app(load_samples=False)
+    assert page.ns_design.explorer_state is page.ns_state
+    page.ns_design.rows.objects = []
+    page.ns_design._add_row("G>=0.3MPa")
+    assert page.ns_design.compute().feasible
