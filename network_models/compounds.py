@@ -338,50 +338,37 @@ def load_manifest(path=None, **read_options) -> Manifest:
 
 def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
     """The sample-set manifest format (``[scenario]`` + ``[[compound]]`` with ``key``, files as
-    ``{ path, mode, note }``, one ``[swelling]`` table, ``[[force_temperature]]``; sample_sets/README.md)."""
+    ``{ path, mode, note }``, one ``[swelling]`` table, ``[[force_temperature]]``; sample_sets/README.md),
+    parsed by its one parser (:func:`network_models.labfiles.manifest.manifest_index`) and read here."""
+    from .labfiles.manifest import manifest_index
     from .testdata import read_swelling
 
-    scen = doc.get("scenario", {})
-    if not isinstance(scen, dict):
-        raise DataError(f"manifest {p.name}: [scenario] must be a table")
+    index = manifest_index(doc, p)
+    scen = index.info
     raw_swell = doc.get("swelling", {})
     if not isinstance(raw_swell, dict):
         raise DataError(f"manifest {p.name}: [swelling] must be one table with a path")
-    swell_path = p.parent / raw_swell["path"] if raw_swell.get("path") else None
-    swell = read_swelling(swell_path) if swell_path is not None else []
+    swell = read_swelling(index.swelling) if index.swelling is not None else []
     comps = []
-    for i, e in enumerate(doc.get("compound", []), 1):
-        if not isinstance(e, dict) or not e.get("key"):
-            raise DataError(f"manifest {p.name}: compound number {i} has no 'key'")
-        key = str(e["key"])
-        info = {k: v for k, v in e.items() if k not in ("key", "title", "polymer", "files")}
+    for entry in index:
+        info = dict(entry.info)
         notes = str(info.pop("notes", info.pop("note", "")))
         baseline = bool(info.pop("baseline", False))
         f = float(info.pop("f", 4.0))
-        title = str(e.get("title", key))
-        meta = ({"title": title} if title != key else {}) | info
+        meta = ({"title": entry.title} if entry.title != entry.key else {}) | info
         curves = []
-        for fe in e.get("files", []):
-            fe = {"path": fe} if isinstance(fe, str) else fe
-            if not isinstance(fe, dict) or not isinstance(fe.get("path"), str):
-                raise DataError(f"manifest {p.name}: compound {key!r}: each file needs a path, e.g. "
-                                '{ path = "A_uniaxial.csv", mode = "uniaxial" }')
-            path = p.parent / fe["path"]
-            if not path.exists():
-                raise DataError(f"manifest {p.name}: compound {key!r} lists {path.name}, which is not there")
-            opts = dict(read_options) | ({"mode": fe["mode"]} if fe.get("mode") else {})
-            curves.extend(_read(path, **opts))
-        tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell if r.compound in (key, title)]
-        comps.append(Compound(name=key, curves=curves, swelling=tests, metadata=meta,
-                              polymer=str(e.get("polymer", scen.get("polymer", "NR"))), f=f, notes=notes,
-                              baseline=baseline))
-    names = [c.name for c in comps]
-    if len(set(names)) != len(names):
-        raise DataError(f"manifest {p.name}: compound keys must be unique; got {', '.join(names)}")
+        for cf in entry.curve_files:
+            if not cf.path.exists():
+                raise DataError(f"manifest {p.name}: compound {entry.key!r} lists {cf.path.name}, which is not there")
+            curves.extend(_read(cf.path, **(dict(read_options) | ({"mode": cf.mode} if cf.mode else {}))))
+        tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell
+                 if r.compound in (entry.key, entry.title)]
+        comps.append(Compound(name=entry.key, curves=curves, swelling=tests, metadata=meta, polymer=entry.polymer,
+                              f=f, notes=notes, baseline=baseline))
     baseline = scen.get("baseline") or next((c.name for c in comps if c.baseline), None)
     return Manifest(comps, title=str(scen.get("title", p.stem)), purpose=str(scen.get("purpose", scen.get("note", ""))),
-                    baseline=baseline, path=str(p), extra=dict(scen), swelling_path=swell_path,
-                    force_temperature=[p.parent / r["path"] for r in doc.get("force_temperature", [])])
+                    baseline=baseline, path=str(p), extra=dict(scen), swelling_path=index.swelling,
+                    force_temperature=list(index.force_temperature))
 
 
 #: file endings treated as lab files when loading a folder

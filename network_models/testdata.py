@@ -13,10 +13,10 @@ from .labfiles import (
     MAX_PLAUSIBLE_STRETCH,
     SAMPLE_MANIFEST,
     SLACK_FRACTION,
-    Compound,
     CurveFile,
     FileInfo,
-    Manifest,
+    ManifestEntry,
+    ManifestIndex,
     curves_to_csv,
     inspect_bytes,
     load_profile,
@@ -29,8 +29,9 @@ from .labfiles import (
 )
 
 __all__ = [
-    "MAX_FILE_BYTES", "MAX_PLAUSIBLE_STRETCH", "SAMPLE_MANIFEST", "SLACK_FRACTION", "Compound", "CurveFile",
-    "DataError", "FileInfo", "ForceTemperatureRecord", "Manifest", "SwellingResult", "TestCurve", "curves_to_csv",
+    "MAX_FILE_BYTES", "MAX_PLAUSIBLE_STRETCH", "SAMPLE_MANIFEST", "SLACK_FRACTION", "CurveFile",
+    "ManifestEntry", "ManifestIndex",
+    "DataError", "FileInfo", "ForceTemperatureRecord", "SwellingResult", "TestCurve", "curves_to_csv",
     "inspect_bytes", "load_profile", "read_curves", "read_curves_bytes", "read_force_temperature", "read_manifest",
     "read_swelling", "save_profile",
 ]

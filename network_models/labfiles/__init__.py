@@ -13,14 +13,15 @@ from ..errors import DataError
 from .api import OPTIONS, FileInfo, curves_to_csv, inspect_bytes, read_curves, read_curves_bytes
 from .cleanup import SLACK_FRACTION
 from .convert import MAX_PLAUSIBLE_STRETCH
-from .manifest import SAMPLE_MANIFEST, Compound, CurveFile, Manifest, read_manifest
+from .manifest import SAMPLE_MANIFEST, CurveFile, ManifestEntry, ManifestIndex, read_manifest
 from .profiles import load_profile, save_profile
 from .records import read_force_temperature, read_swelling
 from .tables import MAX_FILE_BYTES
 
 __all__ = [
-    "MAX_FILE_BYTES", "MAX_PLAUSIBLE_STRETCH", "OPTIONS", "SAMPLE_MANIFEST", "SLACK_FRACTION", "Compound", "CurveFile",
-    "DataError", "FileInfo", "ForceTemperatureRecord", "Manifest", "SwellingResult", "TestCurve", "curves_to_csv",
+    "MAX_FILE_BYTES", "MAX_PLAUSIBLE_STRETCH", "OPTIONS", "SAMPLE_MANIFEST", "SLACK_FRACTION", "CurveFile",
+    "ManifestEntry", "ManifestIndex",
+    "DataError", "FileInfo", "ForceTemperatureRecord", "SwellingResult", "TestCurve", "curves_to_csv",
     "inspect_bytes", "load_profile", "read_curves", "read_curves_bytes", "read_force_temperature", "read_manifest",
     "read_swelling", "save_profile",
 ]

@@ -1,5 +1,7 @@
-"""The sample-set manifest (``compounds.toml``): compounds, their curve files, swelling and
-force–temperature files.  Moved here unchanged from ``testdata.py``; ``compounds.py`` is taking it over."""
+"""The one parser of the sample-set manifest format (``compounds.toml``, sample_sets/README.md): which curve
+files, swelling and force–temperature files belong to which compound — an index, read lazily (no curve is
+read until asked).  :func:`network_models.compounds.load_manifest` builds loaded
+:class:`~network_models.compounds.Compound` objects from it; this module holds no compound of its own."""
 
 from __future__ import annotations
 
@@ -26,8 +28,8 @@ class CurveFile:
 
 
 @dataclass
-class Compound:
-    """One compound of a sample set: its curve files and what the recipe says (read from compounds.toml)."""
+class ManifestEntry:
+    """One compound's entry in a manifest: its curve files and what the recipe says (not yet read)."""
 
     key: str
     title: str
@@ -47,22 +49,24 @@ class Compound:
 
 
 @dataclass
-class Manifest:
+class ManifestIndex:
+    """A manifest's file index: entries per compound, the swelling table and force–temperature files."""
+
     path: Path
     title: str
     note: str
-    compounds: list[Compound]
+    compounds: list[ManifestEntry]
     swelling: Path | None = None
     force_temperature: list[Path] = field(default_factory=list)
     info: dict = field(default_factory=dict)
 
-    def __getitem__(self, key: str) -> Compound:
+    def __getitem__(self, key: str) -> ManifestEntry:
         for c in self.compounds:
             if c.key == key:
                 return c
         raise KeyError(f"no compound {key!r} in {self.path.name}; it lists {', '.join(c.key for c in self.compounds)}")
 
-    def __iter__(self) -> Iterable[Compound]:
+    def __iter__(self) -> Iterable[ManifestEntry]:
         return iter(self.compounds)
 
     def swelling_results(self) -> list[SwellingResult]:
@@ -72,10 +76,10 @@ class Manifest:
         return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def read_manifest(path=None) -> Manifest:
+def read_manifest(path=None) -> ManifestIndex:
     """Read a sample-set manifest (``compounds.toml``; format in sample_sets/README.md).  File paths in it
     are relative to the manifest.  Default: the bundled sample set.  Raises DataError for a missing or
-    malformed manifest (the files it lists are read later, by ``Compound.curves()``)."""
+    malformed manifest (the files it lists are read later, by ``ManifestEntry.curves()``)."""
     p = Path(path) if path is not None else SAMPLE_MANIFEST
     try:
         raw = tomllib.loads(p.read_text("utf-8"))
@@ -84,7 +88,7 @@ def read_manifest(path=None) -> Manifest:
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise DataError(f"{p.name}: not a valid TOML manifest ({e})") from None
     try:
-        return _manifest_from(raw, p)
+        return manifest_index(raw, p)
     except DataError:
         raise
     except (KeyError, TypeError, AttributeError, ValueError) as e:
@@ -92,7 +96,8 @@ def read_manifest(path=None) -> Manifest:
                         f"({type(e).__name__}: {e}); every [[compound]] needs a key and files with a path") from None
 
 
-def _manifest_from(raw: dict, p: Path) -> Manifest:
+def manifest_index(raw: dict, p: Path) -> ManifestIndex:
+    """The index of a parsed manifest document ``raw`` found at ``p`` (paths relative to it)."""
     base = p.parent
     scen = raw.get("scenario", {})
     if not isinstance(scen, dict):
@@ -114,12 +119,12 @@ def _manifest_from(raw: dict, p: Path) -> Manifest:
                 raise DataError(f"{p.name}: compound {c['key']!r}: {e}") from None
             files.append(CurveFile(base / f["path"], mode, str(f.get("note", ""))))
         info = {k: v for k, v in c.items() if k not in ("key", "title", "polymer", "files")}
-        compounds.append(Compound(str(c["key"]), str(c.get("title", c["key"])), str(c.get("polymer", "NR")),
-                                  files, info))
+        compounds.append(ManifestEntry(str(c["key"]), str(c.get("title", c["key"])),
+                                       str(c.get("polymer", scen.get("polymer", "NR"))), files, info))
     keys = [c.key for c in compounds]
     if len(set(keys)) != len(keys):
         raise DataError(f"{p.name}: compound keys must be unique; got {', '.join(keys)}")
-    return Manifest(
+    return ManifestIndex(
         path=p, title=str(scen.get("title", p.stem)), note=str(scen.get("note", "")), compounds=compounds,
         swelling=base / raw["swelling"]["path"] if "swelling" in raw else None,
         force_temperature=[base / r["path"] for r in raw.get("force_temperature", [])],
