@@ -33,10 +33,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-import numpy as np
-
-from .constants import LAB_TEMPERATURE, R, celsius, t_quantile
+from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
+from .fitting.uncertainty import derived
 from .network import get_polymer, guth_gold
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
@@ -288,33 +287,6 @@ def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float
                   notes=notes, sol_fraction=sol_fraction)
 
 
-def _derived(result, fn):
-    """Value and 95 % interval of fn(values) from the fit covariance (delta method, Student t)."""
-    vals = result.values
-    v0 = float(fn(vals))
-    free = list(result.free)
-    cov = np.asarray(result.covariance, float)
-    if not free or not np.all(np.isfinite(cov)):
-        return v0, None
-    g = np.empty(len(free))
-    for i, name in enumerate(free):
-        h = 1e-6 * max(abs(vals[name]), 1e-12)
-        up = dict(vals)
-        dn = dict(vals)
-        up[name] += h
-        dn[name] -= h
-        try:
-            g[i] = (fn(up) - fn(dn)) / (2 * h)
-        except ValueError:  # one side steps outside a bound: one-sided difference
-            g[i] = (fn(up) - v0) / h
-    var = float(g @ cov @ g)
-    if not (var >= 0 and math.isfinite(var)):
-        return v0, None
-    t = t_quantile(max(result.n - result.k, 1))
-    se = math.sqrt(var)
-    return v0, (v0 - t * se, v0 + t * se)
-
-
 def _ci(P, name):
     ci = P[name].ci95
     return None if ci is None or ci[0] is None or ci[1] is None else tuple(ci)
@@ -360,13 +332,13 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
         else:
             T = LAB_TEMPERATURE
             notes.append("the curves state no temperature: 23 °C assumed")
-    G, G_ci = _derived(result, lambda p: m.small_strain_modulus(**p))
+    G, G_ci = derived(result, lambda p: m.small_strain_modulus(**p))
     poly = get_polymer(polymer)
     X = guth_gold(filler_fraction)
     Ge = Gc = Gc_ci = src = None
     split = m.modulus_split(result.values)
     if split.separable and split.entanglement is not None and split.entanglement >= 0:
-        Gc, Gc_ci = _derived(result, lambda p: m.modulus_split(p).crosslink)
+        Gc, Gc_ci = derived(result, lambda p: m.modulus_split(p).crosslink)
         Ge, src = split.entanglement, f"the {result.title} fit ({split.basis})"
         if split.entanglement == 0:  # the fit put G_e on its lower bound: these data show no entanglement part
             notes.append(f"the {result.title} fit found no entanglement part (G_e on its lower bound 0): the "

@@ -227,35 +227,9 @@ def combined_interval(summary: Summary, fit_se, level: float = 0.95) -> tuple[fl
     return (summary.mean - half, summary.mean + half)
 
 
-def delta_se(func, values: dict, free, cov) -> float | None:
-    """Standard error of ``func(values)`` by the delta method: √(gᵀ C g), g the gradient over the ``free``
-    parameters (central differences, one-sided where a step leaves the domain), C their covariance.  The one
-    delta method of the comparison (fitting.derived, when it lands, should replace it)."""
-    free = list(free)
-    cov = np.asarray(cov, dtype=float)
-    if not free or cov.shape != (len(free), len(free)) or not np.all(np.isfinite(cov)):
-        return None
-    f0 = float(func(values))
-    g = np.empty(len(free))
-    for i, name in enumerate(free):
-        h = 1e-6 * max(abs(values[name]), 1e-12)
-        up, dn = dict(values), dict(values)
-        up[name] += h
-        dn[name] -= h
-        try:
-            g[i] = (float(func(up)) - float(func(dn))) / (2 * h)
-        except (ValueError, ZeroDivisionError):
-            try:
-                g[i] = (float(func(up)) - f0) / h
-            except (ValueError, ZeroDivisionError):
-                g[i] = (f0 - float(func(dn))) / h
-    var = float(g @ cov @ g)
-    return math.sqrt(var) if var >= 0 and math.isfinite(var) else None
-
-
 __all__ = [
     "ALPHA", "CANNOT_JUDGE", "DIFFERENT", "MIN_FOR_OUTLIERS", "NOT_DISTINGUISHABLE", "OUTLIER_Z", "POWER",
     "Summary", "VERDICTS",
-    "VERDICT_WORDING", "Verdict", "combined_interval", "delta_se", "detectable_difference", "modified_z", "outliers",
+    "VERDICT_WORDING", "Verdict", "combined_interval", "detectable_difference", "modified_z", "outliers",
     "summarize", "verdict", "welch_dof",
 ]

@@ -18,9 +18,9 @@ from ..constants import TRADE_MODULI, R, celsius, t_quantile
 from ..deformation import Mode
 from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..errors import about
+from ..fitting.uncertainty import derived_se
 from ..models import ModeNotSupportedError, get_model
 from ..network import get_polymer
-from ..statistics import delta_se
 from ..testdata import TestCurve
 from .records import DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, ParamRow, Quantity
 from .specimens import BASIS_TIERS, basis_label, row_key, stress_at
@@ -53,11 +53,10 @@ def fit_safely(m, curves, fitter, who: str):
 
 
 def propagate(func, fr) -> float | None:
-    """Fit standard error of ``func(parameter values)`` (the delta method of :mod:`network_models.statistics`)."""
-    cov = getattr(fr, "covariance", None)
-    if cov is None:
+    """Fit standard error of ``func(parameter values)`` (the core's one delta method, ``fitting.derived_se``)."""
+    if getattr(fr, "covariance", None) is None:
         return None
-    return delta_se(func, dict(fr.values), list(fr.free), cov)
+    return derived_se(fr, func)[1]
 
 
 def _param_rows(model, fr) -> list[ParamRow]:

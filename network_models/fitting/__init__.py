@@ -47,7 +47,8 @@ from .many import fit_many, fit_specimens, specimen_of
 from .problem import estimate_modulus
 from .result import FitResult, ModeStats, ParamEstimate
 from .solver import levenberg_marquardt
-from .uncertainty import derived
+from .uncertainty import derived, derived_se
 
 __all__ = ["FitError", "FitResult", "ModeStats", "Notice", "ParamEstimate", "STRAIN_CRYSTALLISING", "derived",
+           "derived_se",
            "estimate_modulus", "fit", "fit_many", "fit_specimens", "levenberg_marquardt", "specimen_of"]

@@ -94,12 +94,11 @@ def estimates(pj, values, se_z, z) -> dict[str, ParamEstimate]:
     return out
 
 
-def derived(result, fn, *, level: float = 0.95):
-    """Value and interval of a quantity computed from a fit: ``fn(values) -> float`` where ``values`` is
-    the {name: SI value} dict of the fitted model.  Delta method with the fit's covariance (central
-    differences, step 1e-6 relative; one-sided where a step leaves a parameter's domain) and Student's t
-    at n − k degrees of freedom.  Returns ``(value, (lo, hi))``, or ``(value, None)`` when the fit has no
-    usable covariance or the derivative cannot be formed."""
+def derived_se(result, fn) -> tuple[float, float | None]:
+    """Value and standard error of a quantity computed from a fit: ``fn(values) -> float`` where ``values``
+    is the {name: SI value} dict of the fitted model.  The one delta method of the core: gᵀCg with the fit's
+    covariance C and g by central differences (step 1e-6 relative; one-sided where a step leaves a
+    parameter's domain).  ``(value, None)`` when the fit has no usable covariance or g cannot be formed."""
     vals = result.values
     v0 = float(fn(vals))
     free = list(result.free)
@@ -114,7 +113,16 @@ def derived(result, fn, *, level: float = 0.95):
     var = float(g @ cov @ g)
     if not (var >= 0 and math.isfinite(var)):
         return v0, None
-    half = t_quantile(result.n - result.k, level) * math.sqrt(var)
+    return v0, math.sqrt(var)
+
+
+def derived(result, fn, *, level: float = 0.95):
+    """Value and interval of a quantity computed from a fit (:func:`derived_se`) with Student's t at n − k
+    degrees of freedom.  Returns ``(value, (lo, hi))``, or ``(value, None)`` without a usable covariance."""
+    v0, se = derived_se(result, fn)
+    if se is None:
+        return v0, None
+    half = t_quantile(result.n - result.k, level) * se
     return v0, (v0 - half, v0 + half)
 
 
