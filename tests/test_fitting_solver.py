@@ -191,11 +191,12 @@ def test_fit_specimens_groups_by_specimen_then_file():
     loose[0].source = "c.csv"
     bad = TestCurve("uniaxial", [1.1, 1.2], [1e5, 2e5], name="two points", source="d.csv")
     out = fit_specimens("eight-chain", [*a, *b, *loose, bad])
-    assert list(out) == ["S1", "S2", "c.csv #5", "d.csv #6"]
+    # unlabelled curves are named by their file (one file per specimen)
+    assert list(out) == ["S1", "S2", "c.csv", "d.csv"]
     assert out["S1"].values["mu"] == pytest.approx(0.4e6, rel=0.05)
     assert out["S2"].values["mu"] == pytest.approx(0.8e6, rel=0.05)
-    assert out["S1"].n == 36 and out["c.csv #5"].n == 18
-    assert isinstance(out["d.csv #6"], ValueError) and "cannot determine" in str(out["d.csv #6"])
+    assert out["S1"].n == 36 and out["c.csv"].n == 18
+    assert isinstance(out["d.csv"], ValueError) and "cannot determine" in str(out["d.csv"])
 
 
 # ------------------------------------------------------------------------------------------------

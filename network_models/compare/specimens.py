@@ -25,12 +25,12 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
 from ..constants import TRADE_MODULI, t_quantile
 from ..deformation import Mode
+from ..fitting.many import specimen_groups
 from ..network import get_polymer, lock_from_N
 
 #: the headline bases, by tier: (gum row key, filled row key, label) of the crosslink table
@@ -60,21 +60,6 @@ def basis_label(tier: int, filled: bool, filler_fraction: float = 0.0) -> str:
 
 def row_key(tier: int, filled: bool) -> str:
     return BASIS_TIERS[tier][1 if filled else 0]
-
-
-# TODO(fitting): replace by network_models.fitting.fit_specimens once it is on this branch (issue 9)
-def specimen_groups(curves) -> dict[str, list]:
-    """Curves grouped by specimen (module docstring: the grouping rule), in order of first appearance."""
-    groups: dict[str, list] = {}
-    seen: dict[tuple[str, Mode], str] = {}  # (name, mode) -> source that used it first
-    for c in curves:
-        name = c.metadata.get("specimen") or c.specimen or (Path(c.source).name if c.source else c.name)
-        name = str(name)
-        first = seen.setdefault((name, c.mode), c.source)
-        if first != c.source:
-            name = f"{Path(c.source).name or c.name}:{name}"
-        groups.setdefault(name, []).append(c)
-    return groups
 
 
 def main_mode(groups: dict[str, list]) -> Mode | None:

@@ -4,6 +4,8 @@ The CLI, the app and the comparison all go through these."""
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from ..errors import FitError, Notice
 from ..models import get_model
 from ..testdata import TestCurve
@@ -39,27 +41,31 @@ def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str
     return out
 
 
-def specimen_of(curve: TestCurve, index: int) -> str:
-    """The specimen a curve belongs to: ``curve.specimen`` or ``metadata["specimen"]``; else the file it
-    came from and its position ("a.csv #2"), so curves of one file without specimen labels stay apart."""
-    name = getattr(curve, "specimen", None) or curve.metadata.get("specimen")
-    if name:
-        return str(name)
-    src = getattr(curve, "source", "") or curve.metadata.get("file") or curve.name
-    return f"{src} #{index + 1}"
+def specimen_groups(curves) -> dict[str, list[TestCurve]]:
+    """Curves grouped by specimen, in order of first appearance — the one grouping rule: a curve's specimen
+    is its ``specimen`` (specimen column, specimen metadata line, column pairs), else its file (one file per
+    specimen), else its own name; the same name in the same mode from two different files is two specimens
+    (named ``file:specimen``)."""
+    groups: dict[str, list[TestCurve]] = {}
+    seen: dict[tuple, str] = {}  # (name, mode) -> source that used it first
+    for c in curves:
+        src = getattr(c, "source", "") or c.metadata.get("file") or ""
+        name = str(c.specimen or (Path(src).name if src else c.name))
+        first = seen.setdefault((name, c.mode), src)
+        if first != src:
+            name = f"{Path(src).name or c.name}:{name}"
+        groups.setdefault(name, []).append(c)
+    return groups
 
 
 def fit_specimens(model, curves, **kw) -> dict[str, FitResult | FitError]:
     """Fit ``model`` to each specimen alone: ``{specimen: FitResult | FitError}`` in first-seen order.
-    Curves are grouped by :func:`specimen_of` (a specimen tested in several modes is fitted to all of them
-    together).  ``kw`` go to :func:`fit`; a specimen whose fit fails keeps its place with its FitError."""
+    Curves are grouped by :func:`specimen_groups` (a specimen tested in several modes is fitted to all of
+    them together).  ``kw`` go to :func:`fit`; a specimen whose fit fails keeps its place with its FitError."""
     if isinstance(curves, TestCurve):
         curves = [curves]
-    groups: dict[str, list[TestCurve]] = {}
-    for i, c in enumerate(curves):
-        groups.setdefault(specimen_of(c, i), []).append(c)
     out = {}
-    for spec, group in groups.items():
+    for spec, group in specimen_groups(curves).items():
         try:
             out[spec] = fit(model, group, **kw)
         except ValueError as exc:
