@@ -359,7 +359,7 @@ class DataState(param.Parameterized):
     def run_fit(self) -> list[str]:
         """Fit every chosen model to the selected curves.  Returns sentences about models that could not
         be fitted (the others still are)."""
-        from network_models.fitting import fit
+        from network_models.fitting import fit_or_error
 
         curves = self.selected_curves()
         if not curves:
@@ -376,14 +376,11 @@ class DataState(param.Parameterized):
                 failures[name] = (f"{m.title}: defined for {', '.join(x.value for x in m.modes)} only, so it "
                                   f"was not fitted to the {', '.join(missing)} data")
                 continue
-            try:
-                results[name] = fit(m, curves, residual=self.residual)
-            except ValueError as exc:
-                failures[name] = f"{m.title}: {exc}"
-            except Exception as exc:  # a numerical failure inside the fitter must not end the session
-                log.exception("fit of %s failed", name)
-                failures[name] = (f"{m.title}: the fit did not succeed ({type(exc).__name__}: {exc}); "
-                                  "try the other residual choice or fewer models")
+            res = fit_or_error(m, curves, residual=self.residual)
+            if isinstance(res, ValueError):
+                failures[name] = f"{m.title}: {res}"
+            else:
+                results[name] = res
         names = list(results)
         self.param.table_model.objects = names or [None]
         with param.parameterized.batch_call_watchers(self):

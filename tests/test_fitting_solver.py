@@ -294,3 +294,21 @@ def test_small_loop_moves_only_the_free_unknowns_on_a_bound():
     x, _, _ = levenberg_marquardt(fun, jac, np.array([0.0, -3.0]), hi=np.array([1.0, 10.0]))
     assert x[0] == 1.0
     assert x[1] == pytest.approx(1.0, abs=1e-8)
+
+
+# ------------------------------------------------------------------------------------------------
+# the one fit → catch step: never raises for a fit that fails, says which kind of failure it was
+# ------------------------------------------------------------------------------------------------
+@pytest.mark.parametrize(("exc", "kind"), [(ValueError("bad stretch"), "bad-input"),
+                                           (ZeroDivisionError("x"), "numerical"),
+                                           (RuntimeError("boom"), "defect")])
+def test_fit_or_error_turns_every_failure_into_a_sentence(monkeypatch, exc, kind):
+    from network_models.fitting import FitError, fit_or_error
+    from network_models.fitting import many
+
+    def broken(*a, **k):
+        raise exc
+
+    monkeypatch.setattr(many, "fit", broken)
+    res = fit_or_error("eight-chain", _curves({"mu": 0.4e6, "N": 15.0}, 3))
+    assert isinstance(res, FitError) and res.kind == kind and str(res)

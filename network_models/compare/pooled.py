@@ -18,8 +18,9 @@ from ..constants import TRADE_MODULI, R, celsius, t_quantile
 from ..deformation import Mode
 from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..errors import about
+from ..fitting import FitError, fit_or_error
 from ..fitting.uncertainty import derived_se
-from ..models import ModeNotSupportedError, get_model
+from ..models import get_model
 from ..network import get_polymer
 from ..testdata import TestCurve
 from .records import DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, ParamRow, Quantity
@@ -38,18 +39,18 @@ def default_fitter(model, curves):
 
 
 def fit_safely(m, curves, fitter, who: str):
-    """(fit result, None) or (None, error sentence): a failed fit is a sentence, never a traceback."""
-    try:
-        return (fitter or default_fitter)(m, curves), None
-    except (ValueError, RuntimeError, ModeNotSupportedError, np.linalg.LinAlgError) as exc:
-        return None, f"{who}: the {m.title} fit failed — {exc}"
-    except ArithmeticError as exc:  # overflow inside the optimiser: a numerical failure, not the user's
-        return None, (f"{who}: the {m.title} fit broke down numerically ({type(exc).__name__}: {exc}); try another "
-                      "model or fit fewer modes")
-    except Exception as exc:  # a defect, not the user's input: keep the other compounds going, say so
-        log.exception("fit of %s to %s failed unexpectedly", m.name, who)
-        return None, (f"{who}: the {m.title} fit failed unexpectedly ({type(exc).__name__}); the others are "
-                      "compared without it — please report this with the data files")
+    """(fit result, None) or (None, error sentence), through the core's one fit → catch step
+    (``fitting.fit_or_error``); ``fitter`` replaces ``fit`` (tests, custom fitters)."""
+    if fitter is None or fitter is default_fitter:
+        res = fit_or_error(m, curves)
+    else:
+        try:
+            res = fitter(m, curves)
+        except Exception as exc:  # a custom fitter's failure is a sentence too
+            res = FitError(f"{type(exc).__name__}: {exc}")
+    if isinstance(res, FitError):
+        return None, f"{who}: the {m.title} fit failed — {res}"
+    return res, None
 
 
 def propagate(func, fr) -> float | None:

@@ -43,12 +43,12 @@ from __future__ import annotations
 from ..errors import FitError, Notice
 from .core import fit
 from .diagnostics import STRAIN_CRYSTALLISING
-from .many import fit_many, fit_specimens, specimen_groups
+from .many import fit_many, fit_or_error, fit_specimens, specimen_groups
 from .problem import estimate_modulus
 from .result import FitResult, ModeStats, ParamEstimate
 from .solver import levenberg_marquardt
 from .uncertainty import derived, derived_se
 
 __all__ = ["FitError", "FitResult", "ModeStats", "Notice", "ParamEstimate", "STRAIN_CRYSTALLISING", "derived",
-           "derived_se",
-           "estimate_modulus", "fit", "fit_many", "fit_specimens", "levenberg_marquardt", "specimen_groups"]
+           "derived_se", "estimate_modulus", "fit", "fit_many", "fit_or_error", "fit_specimens",
+           "levenberg_marquardt", "specimen_groups"]

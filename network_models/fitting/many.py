@@ -4,13 +4,35 @@ The CLI, the app and the comparison all go through these."""
 
 from __future__ import annotations
 
+import logging
 from pathlib import Path
+
+import numpy as np
 
 from ..errors import FitError, Notice
 from ..models import get_model
 from ..testdata import TestCurve
 from .core import fit
 from .result import FitResult
+
+_log = logging.getLogger("netstretch.fitting")
+
+
+def fit_or_error(model, curves, **kw) -> FitResult | FitError:
+    """The one fit → catch step every caller (CLI, app, comparison) goes through: a FitResult, or a FitError
+    whose sentence says what failed — a user's bad input, a numerical breakdown, or (logged with its
+    traceback on the server, never shown) a defect; it never raises for a fit that fails."""
+    try:
+        return fit(model, curves, **kw)
+    except ValueError as exc:  # FitError, ModeNotSupportedError, ParameterError, DataError
+        return exc if isinstance(exc, FitError) else FitError(str(exc), kind="bad-input")
+    except (ArithmeticError, np.linalg.LinAlgError) as exc:
+        return FitError(f"the fit broke down numerically ({type(exc).__name__}: {exc}); try another model, "
+                        "the other residual choice or fewer modes", kind="numerical")
+    except Exception as exc:  # a defect, not the user's input: keep the session going, say so
+        _log.exception("fit of %s failed unexpectedly", getattr(model, "name", model))
+        return FitError(f"the fit failed unexpectedly ({type(exc).__name__}); please report this with the data "
+                        "files", kind="defect")
 
 
 def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str, FitResult | FitError]:
@@ -28,10 +50,9 @@ def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str
             out[mm.name] = FitError(f"the {mm.title} model covers {', '.join(x.value for x in mm.modes)} only "
                                     "and none of the curves is in that mode", kind="mode-not-supported")
             continue
-        try:
-            res = fit(mm, use, **kw)
-        except ValueError as exc:  # FitError, ModeNotSupportedError, ParameterError
-            out[mm.name] = exc if isinstance(exc, FitError) else FitError(str(exc), kind="bad-input")
+        res = fit_or_error(mm, use, **kw)
+        if isinstance(res, FitError):
+            out[mm.name] = res
             continue
         if left:
             res.warnings.insert(0, Notice(
@@ -64,10 +85,4 @@ def fit_specimens(model, curves, **kw) -> dict[str, FitResult | FitError]:
     them together).  ``kw`` go to :func:`fit`; a specimen whose fit fails keeps its place with its FitError."""
     if isinstance(curves, TestCurve):
         curves = [curves]
-    out = {}
-    for spec, group in specimen_groups(curves).items():
-        try:
-            out[spec] = fit(model, group, **kw)
-        except ValueError as exc:
-            out[spec] = exc if isinstance(exc, FitError) else FitError(str(exc), kind="bad-input")
-    return out
+    return {spec: fit_or_error(model, group, **kw) for spec, group in specimen_groups(curves).items()}
