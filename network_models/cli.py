@@ -14,6 +14,10 @@ import sys
 
 from .constants import CAUTION
 from .errors import UserError
+from .materials import add_polymers_option, apply_polymers_option
+
+#: commands whose results depend on the polymer table (they all accept ``--polymers FILE``)
+_POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch"}
 
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "serve")
@@ -34,6 +38,10 @@ def build_parser() -> argparse.ArgumentParser:
                 continue  # command not built yet
             raise
         mod.add_parser(sub)
+    # every command that names a polymer reads the user's own polymer table the same way
+    for name, sp in sub.choices.items():
+        if name in _POLYMER_COMMANDS and not any("--polymers" in a.option_strings for a in sp._actions):
+            add_polymers_option(sp)
     return parser
 
 
@@ -44,6 +52,7 @@ def main(argv=None) -> int:
         parser.print_help()
         return 0
     try:
+        apply_polymers_option(args)
         return int(args.run(args) or 0)
     except (UserError, ValueError, KeyError, FileNotFoundError, PermissionError, IsADirectoryError) as exc:
         msg = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)

@@ -303,8 +303,7 @@ def test_small_loop_moves_only_the_free_unknowns_on_a_bound():
                                            (ZeroDivisionError("x"), "numerical"),
                                            (RuntimeError("boom"), "defect")])
 def test_fit_or_error_turns_every_failure_into_a_sentence(monkeypatch, exc, kind):
-    from network_models.fitting import FitError, fit_or_error
-    from network_models.fitting import many
+    from network_models.fitting import FitError, fit_or_error, many
 
     def broken(*a, **k):
         raise exc

@@ -323,3 +323,27 @@ def test_default_keeps_to_the_test_temperature():
     assert any(getattr(n, "kind", "") == "chi-unsourced" for n in est.notes)
     hot = swelling_estimate(1.0, 2.5, "toluene", "CR", T=373.15)
     assert hot.chi.chi == 0.14
+
+
+def test_every_polymer_command_takes_the_user_table(tmp_path, capsys):
+    # the CLI adds --polymers to each command that names a polymer; a user plateau modulus changes the
+    # entanglement-removed row of the crosslink table (G − G_e)/(RT) (physics.md §3)
+    from network_models.cli import main
+
+    t = tmp_path / "ours.toml"
+    t.write_text('[NR]\nplateau_MPa = 0.10\nsource = "test table"\n', "utf-8")
+    args = ["crosslinks", "--modulus", "0.55MPa", "--kind", "G", "--temperature", "23C", "--polymer", "NR", "--json"]
+    from network_models.materials import use_polymer_table
+
+    assert main(args) == 0
+    base = json.loads(capsys.readouterr().out)
+    try:
+        assert main([*args, "--polymers", str(t)]) == 0
+        ours = json.loads(capsys.readouterr().out)
+    finally:
+        use_polymer_table(None)  # back to the built-in table for the other tests
+
+    def row(doc):
+        return next(r for r in doc["rows"] if r["key"] == "affine-no-entanglement")["strand_density"]
+
+    assert row(ours) > row(base)
