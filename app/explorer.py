@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import html as _html
 import logging
 import time
 
@@ -136,7 +137,7 @@ class NetworkControls(pn.viewable.Viewer):
              + ")", f"{r['N']:.3g}", r["N_source"]),
             ("affine νRT", fmt(r["affine_MPa"], 3, "MPa"), "crosslink part"),
             ("phantom (1−2/f)νRT", fmt(r["phantom_MPa"], 3, "MPa"), ""),
-            ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), "from the plateau modulus, ∝ T"),
+            ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), r.get("ge_policy", "")),
             ("locking stretch, uniaxial", f"λ = {r['lock_uniaxial']:.3g}", "eight-chain: I₁ = 3N"),
         ]
         body = "".join(f"<tr title='{c}'><td>{a}</td><td class='ns-num'>{b}</td></tr>" for a, b, c in rows)
@@ -144,9 +145,12 @@ class NetworkControls(pn.viewable.Viewer):
             f"<tr data-model='{n}'><td><span class='ns-swatch' style='background:{model_colour(n)}'></span>"
             f"{get_model(n).title}</td><td class='ns-num ns-g0' data-model='{n}'>{v / 1e6:.4g} MPa</td></tr>"
             for n, v in moduli.items())
-        self.derived.object = f"<table class='ns-table'>{body}{g0}</table>"
-        flag = ("<b>from memory</b> — check the constants before a design decision rests on them"
-                if r["polymer_status"] == "memory" else "read in the source")
+        notes = "".join(f"<li>{_html.escape(n)}</li>" for n in dict.fromkeys(r.get("model_notices", [])))
+        self.derived.object = (f"<table class='ns-table'>{body}{g0}</table>"
+                               + (f"<ul class='ns-model-notices ns-small'>{notes}</ul>" if notes else ""))
+        flag = {"memory": "<b>from memory</b> — check the constants before a design decision rests on them",
+                "estimate": "<b>estimated</b> — replace them with measured values (--polymers / NETSTRETCH_POLYMERS)",
+                }.get(r["polymer_status"], f"{r['polymer_status']} (see the source)")
         self.polymer_note.object = (f"<div class='ns-small'>Polymer constants: {flag}.<br>"
                                     f"Source: {r['polymer_source']}</div>")
 

@@ -220,7 +220,10 @@ class FitPanel(pn.viewable.Viewer):
         t = self.state.crosslink_table()
         if t is None or self.network_state is None:
             raise ValueError("no fit yet: load and fit a curve first")
-        row = next((r for r in t.rows if r.key == "affine-no-entanglement"), None)
+        # a filled compound: the explorer multiplies by the filler factor itself, so it takes the row with the
+        # filler reinforcement removed (else X would count twice)
+        key = "affine-no-entanglement-no-filler" if float(self.state.filler) > 0 else "affine-no-entanglement"
+        row = next((r for r in t.rows if r.key == key), None)
         if row is None or row.nu is None or not np.isfinite(row.nu) or row.nu <= 0:
             raise ValueError("the fit leaves no positive crosslink part after removing the entanglement share, "
                              "so there is no strand density to draw; try another model")
@@ -228,7 +231,7 @@ class FitPanel(pn.viewable.Viewer):
         self.network_state.param.update(polymer=s.polymer, filler=float(s.filler), f=float(s.f),
                                         entanglements=True, nu=float(row.nu))
         self.action_messages.show("table", f"The explorer now draws {s.polymer} with strand density "
-                                    f"ν = {sig(row.nu, 4)} mol/m³ (affine, entanglement share removed) from the "
+                                    f"ν = {sig(row.nu, 4)} mol/m³ ({row.label}) from the "
                                     f"{s.results[s.table_model].title} fit.", "info")
 
     # ----- layout ---------------------------------------------------------------------------------------

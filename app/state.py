@@ -16,6 +16,8 @@ import numpy as np
 import param
 
 from network_models import MODELS, MODES, Mode, Network, get_model, polymers
+from network_models.entanglement import G_E_POLICY
+from network_models.network import N_MIN
 from network_models.params import FUNCTIONALITY, STRAND_DENSITY, TEMPERATURE, kuhn_number_param
 from network_models.thermo import force_at_fixed_length, inversion_strain
 
@@ -72,7 +74,7 @@ class NetworkState(param.Parameterized):
     )
     couple_N = param.Boolean(default=True, label="N from ν and the polymer's Kuhn molar mass",
                              doc="coupled: N = M_c / M_K; free: N set by hand")
-    N_free = param.Number(default=_KUHN.default, bounds=(1.05, _KUHN.bounds[1]), softbounds=_KUHN.typical,
+    N_free = param.Number(default=_KUHN.default, bounds=(N_MIN, _KUHN.bounds[1]), softbounds=_KUHN.typical,
                           label="Kuhn segments per strand N (free)")
     T_C = param.Number(
         default=TEMPERATURE.default - _K0, bounds=(TEMPERATURE.bounds[0] - _K0, TEMPERATURE.bounds[1] - _K0),
@@ -83,7 +85,7 @@ class NetworkState(param.Parameterized):
     # Guth–Gold is stated for modest, weakly reinforcing filler: network.guth_gold accepts [0, 0.5).
     filler = param.Number(default=0.0, bounds=(0.0, 0.45), softbounds=(0.0, 0.3), step=0.01,
                           label="Filler volume fraction φ")
-    entanglements = param.Boolean(default=True, label="Entanglement contribution (tube models, G_e)")
+    entanglements = param.Boolean(default=True, label="Entanglement contribution G_e (added to every model)")
     models = param.ListSelector(default=list(DEFAULT_MODELS), objects=list(MODELS), label="Models shown")
     lam_max = param.Number(default=5.0, bounds=(1.2, 20.0), softbounds=(1.5, 12.0), label="Largest stretch λ")
     lam_follows_data = param.Boolean(default=True, label="Stretch axis reaches the largest data stretch",
@@ -262,6 +264,7 @@ class NetworkState(param.Parameterized):
             "phantom_MPa": net.phantom_modulus / 1e6, "Ge_MPa": net.entanglement_modulus / 1e6,
             "poisson": net.poisson_ratio, "K_over_G": net.bulk_to_shear,
             "polymer_status": net.poly.status, "polymer_source": net.poly.source,
-            "lock_uniaxial": net.locking_stretch(Mode.UNIAXIAL),
+            "lock_uniaxial": net.locking_stretch(Mode.UNIAXIAL), "ge_policy": G_E_POLICY,
+            "model_notices": [str(n) for m in self.selected_models() for n in net.model_notices(m)],
         }
 
