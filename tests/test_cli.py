@@ -170,3 +170,23 @@ def test_bad_choice_is_argparse_exit_2(capsys):
         main(["crosslinks", "--modulus", "1MPa", "--kind", "M200"])
     assert exc.value.code == 2
     assert "Traceback" not in capsys.readouterr().err
+
+
+def test_crosslinks_sol_fraction_adds_the_trapped_entanglement_rows(capsys):
+    # trapped entanglements: G_e,trapped = G_N⁰(T)·T_e with T_e = (1 − √w_s)⁴ (Langley 1968; Dossin &
+    # Graessley 1979 [from memory]); affine ν = (G − G_e,trapped)/(RT), R from scipy.constants (CODATA)
+    import math
+
+    from scipy.constants import R, zero_Celsius
+
+    from network_models.cli import main
+    from network_models.materials import get_polymer
+
+    assert main(["crosslinks", "--modulus", "0.55MPa", "--polymer", "NR", "--sol-fraction", "0.05", "--json"]) == 0
+    rows = {r["key"]: r for r in json.loads(capsys.readouterr().out)["rows"]}
+    T = zero_Celsius + 23.0
+    p = get_polymer("NR")
+    Ge_t = p.plateau_modulus * T / p.plateau_temperature * (1 - math.sqrt(0.05)) ** 4
+    assert rows["affine-trapped-entanglements"]["strand_density"] == pytest.approx((0.55e6 - Ge_t) / (R * T), rel=1e-9)
+    assert main(["crosslinks", "--modulus", "0.55MPa", "--sol-fraction", "1.5"]) == 2
+    assert "--sol-fraction" in capsys.readouterr().err

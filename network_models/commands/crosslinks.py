@@ -29,6 +29,9 @@ def add_parser(sub):
     p.add_argument("--filler", type=float, default=0.0, metavar="PHI",
                    help="filler volume fraction, adds a Guth–Gold row (default 0)")
     p.add_argument("--mn", metavar="M", help="primary-chain M_n before crosslinking, e.g. 250kg/mol (dangling ends)")
+    p.add_argument("--sol-fraction", type=float, default=None, metavar="W",
+                   help="sol (extractable) mass fraction 0…1 from extraction: adds rows with only the trapped "
+                        "entanglements removed (Langley trapping factor)")
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
     p.set_defaults(run=run)
 
@@ -66,8 +69,10 @@ def run(args):
             raise ValueError("--c2 goes with --kind 2C1 (the Mooney intercept)")
         c2 = quantity(args.c2, "pressure", "--c2", "0.1MPa")
     Mn = _molar_mass(args.mn) if args.mn else None
+    if args.sol_fraction is not None and not (0.0 <= args.sol_fraction < 1.0):
+        raise ValueError(f"--sol-fraction is a mass fraction between 0 and 1; got {args.sol_fraction:g}")
     table = from_modulus(G, args.kind, polymer=args.polymer, T=T, f=args.functionality,
-                         filler_fraction=args.filler, Mn=Mn, ci95=ci, c2=c2)
+                         filler_fraction=args.filler, Mn=Mn, ci95=ci, c2=c2, sol_fraction=args.sol_fraction)
     if args.json:
         doc = {"command": "crosslinks", **table.to_dict(), "caution": CAUTION}
         print(json_document(doc))

@@ -81,11 +81,12 @@ def _ci(ci, scale=1.0, digits=4):
 
 def format_crosslink_table(table) -> list[str]:
     """Human table: ν (mol/m³ and 10⁻⁴ mol/cm³), μ_j, M_c (g/mol), N, with the assumption beside each row."""
-    lines = [f"  {'assumption':44s} {'ν mol/m³':>9s} {'95 % interval':>19s} {'ν 10⁻⁴mol/cm³':>14s} "
+    w = max([10] + [len(r.label) for r in table])
+    lines = [f"  {'assumption':{w}s} {'ν mol/m³':>9s} {'95 % interval':>19s} {'ν 10⁻⁴mol/cm³':>14s} "
              f"{'μ_j mol/m³':>11s} {'M_c g/mol':>10s} {'N':>7s}"]
     for r in table.rows:
         lines.append(
-            f"  {r.label[:44]:44s} {_num(r.nu):>9s} {_ci(r.nu_ci):>19s} "
+            f"  {r.label:{w}s} {_num(r.nu):>9s} {_ci(r.nu_ci):>19s} "
             f"{_num(r.nu, 1e-2):>14s} {_num(r.junction_density):>11s} {_num(r.Mc, 1e3):>10s} {_num(r.N, 1, 3):>7s}")
         lines.append(f"  {'':4s}assumes: {r.assumes}" + (f"  ({r.note})" if r.note else ""))
     for n in table.notes:
