@@ -16,6 +16,7 @@ import numpy as np
 import param
 
 from network_models import MODELS, MODES, Mode, Network, get_model, polymers
+from network_models.constants import CAUTION  # noqa: F401 (the one caution sentence; views import it here)
 from network_models.entanglement import G_E_POLICY
 from network_models.network import N_MIN
 from network_models.params import FUNCTIONALITY, STRAND_DENSITY, TEMPERATURE, kuhn_number_param
@@ -28,10 +29,6 @@ DATA_COLOURS = ("#111111", "#8a5a00", "#0f7c8c", "#a0307a", "#5f6f00", "#4b5a66"
 
 DEFAULT_MODELS = ["affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube"]
 
-CAUTION = (
-    "Model results support design decisions; they do not replace validation testing of parts. "
-    "Safety-relevant parts follow the applicable standards and licensed engineering practice."
-)
 
 _K0 = 273.15
 _KUHN = kuhn_number_param()

@@ -10,13 +10,13 @@ from __future__ import annotations
 import math
 import re
 
+from ..constants import CAUTION as _CAUTION
 from ..crosslinks import from_fit
 from ..fitting import fit_many
 from ..jsonio import dumps
 from ..models import get_model
 
-CAUTION = ("Caution: model results support design decisions; they do not replace validation testing of parts "
-           "(safety-relevant parts follow the applicable standards).")
+CAUTION = "Caution: " + _CAUTION
 
 
 def add_parser(sub):
