@@ -151,7 +151,9 @@ class CompareView(pn.viewable.Viewer):
         rep = self.state.report()
         style = f"<style>{REPORT_CSS}</style>"
         self.summary.object = style + rep.section_html("summary")
-        self.table.object = style + rep.section_html("comparison")
+        # verdicts, then every specimen as a point per compound with mean and interval (legend tells them
+        # apart, exclusions and outliers listed), then the uncertainty decomposed
+        self.table.object = style + "".join(rep.section_html(n) for n in ("comparison", "specimens", "uncertainty"))
         self.plots.object = style + rep.section_html("plots")
         self.details.object = style + "".join(rep.section_html(n) for n in (
             "warnings", "params", "crosslink", "swelling", "provenance", "model"))

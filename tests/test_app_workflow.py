@@ -358,3 +358,14 @@ def test_compare_sends_a_file_lacking_geometry_to_the_form(page, monkeypatch):
     dv._read_pending()
     assert dv.state.get("RAW-5.csv").group == "Trial 5"
     assert "Trial 5" in cv.state.param.chosen.objects
+
+
+def test_compare_view_shows_every_specimen_and_the_uncertainty_breakdown():
+    # issue: specimens as points per compound with mean and interval, on screen — the sample set's
+    # QM-S1 has five uniaxial specimens S1-1 … S1-5 (invented demo data; only their presence is checked)
+    from app.main import create_app
+
+    page = create_app()
+    shown = page.ns_compare.table.object
+    assert all(f"S1-{i}" in shown for i in range(1, 6))
+    assert "specimen scatter" in shown
