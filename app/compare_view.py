@@ -16,12 +16,13 @@ from pathlib import Path
 import panel as pn
 import param
 
-from network_models.compare import Comparison, compare
-from network_models.compounds import Compound, load_manifest
+from network_models.compare import Comparison
+from network_models.compounds import Compound
 from network_models.models import MODELS, get_model
 from network_models.report import CSS as REPORT_CSS
 from network_models.report import Report
 
+from . import shared  # process-level read-only sample cache (app/shared.py)
 from .messages import Messages, guarded
 from .ui import html
 
@@ -58,7 +59,7 @@ class CompareState(param.Parameterized):
     def load_samples(self, path=None):
         from network_models.testdata import SAMPLE_MANIFEST
 
-        man = load_manifest(path or SAMPLE_MANIFEST)
+        man = shared.sample_manifest(path or SAMPLE_MANIFEST)  # read once per server process (app/shared.py)
         comps = dict(self.compounds)
         comps.update({c.name: c for c in man.compounds})
         self.scenario = man.title
@@ -98,7 +99,7 @@ class CompareState(param.Parameterized):
             raise ValueError("choose at least one compound to compare")
         comps = [self.compounds[n] for n in self.chosen]
         base = self.baseline if self.baseline in self.chosen else None
-        cmp = compare(comps, model=self.model, baseline=base, service_temperature=self.service_C + 273.15)
+        cmp = shared.compare(comps, model=self.model, baseline=base, service_temperature=self.service_C + 273.15)
         self.comparison = cmp
         return cmp
 

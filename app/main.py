@@ -91,21 +91,21 @@ def _build_page(load_samples: bool = True):
         ("Mooney plot", explorer.mooney_tab()),
         ("Moduli & limits", explorer.moduli_tab()),
     ]
-    data_view = _optional_view("app.data_view", "DataView", network_state=state, explorer=explorer,
+    data_view = _optional_view(f"{__package__}.data_view", "DataView", network_state=state, explorer=explorer,
                                messages=messages, load_samples=load_samples)
     if data_view is not None:
         tabs.append(("Test data & fits", data_view))
     else:
         tabs.append(("Test data & fits", pn.pane.Alert("Reading and fitting test data is not available yet.",
                                                        alert_type="secondary")))
-    swell_view = _optional_view("app.swell_view", "SwellView", network_state=state, messages=messages,
+    swell_view = _optional_view(f"{__package__}.swell_view", "SwellView", network_state=state, messages=messages,
                                 data_view=data_view)
     if swell_view is not None:
         tabs.append(("Swelling", swell_view))
     else:
         tabs.append(("Swelling", pn.pane.Alert("The swelling (Flory–Rehner) view is not available yet.",
                                                alert_type="secondary")))
-    compare = _optional_view("app.compare_view", ("create_compare_view", "CompareView", "create_view"),
+    compare = _optional_view(f"{__package__}.compare_view", ("create_compare_view", "CompareView", "create_view"),
                              network_state=state, data_view=data_view, messages=messages)
     if compare is not None:
         tabs.append(("Compare", compare))
@@ -137,20 +137,8 @@ def _build_page(load_samples: bool = True):
 
 
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):
-    """Serve the app (blocking) on ``address:port`` with every asset served locally.
-    ``NETSTRETCH_DEBUG=1`` logs timings and details of the app's callbacks on stderr."""
-    import os
+    """Serve the app (blocking) on ``address:port`` with every asset served locally; see ``app.server.serve``
+    for origins, password and session clean-up.  ``NETSTRETCH_DEBUG=1`` logs timings of the app's callbacks."""
+    from .server import serve as _serve
 
-    handler = logging.StreamHandler()
-    handler.setFormatter(logging.Formatter("%(asctime)s %(name)s %(levelname)s: %(message)s"))
-    log.addHandler(handler)
-    log.setLevel(logging.DEBUG if os.environ.get("NETSTRETCH_DEBUG") == "1" else logging.INFO)
-    configure_panel()
-    allow = kw.pop("allow_websocket_origin", None) or (
-        ["*"] if address in ("0.0.0.0", "::") else [f"{address}:{port}", f"localhost:{port}", f"127.0.0.1:{port}"])
-    return pn.serve(
-        {"/": create_app}, port=port, address=address, show=show, title="netstretch",
-        websocket_origin=allow, websocket_max_message_size=WEBSOCKET_MAX_MESSAGE_SIZE,
-        http_server_kwargs={"max_buffer_size": WEBSOCKET_MAX_MESSAGE_SIZE},
-        **kw,
-    )
+    return _serve(port=port, address=address, show=show, **kw)

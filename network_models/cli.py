@@ -15,7 +15,8 @@ import sys
 from .errors import UserError
 
 #: sub-command modules, in the order ``--help`` lists them
-COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "serve")
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "batch", "samples",
+            "serve")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -24,6 +25,9 @@ def build_parser() -> argparse.ArgumentParser:
         description="Rubber-network models, lab-curve fitting and crosslink density for compound designers.",
         epilog="Results support design decisions; they do not replace validation testing of parts.",
     )
+    from . import __version__
+
+    parser.add_argument("--version", action="version", version=f"netstretch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         try:

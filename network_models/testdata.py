@@ -41,8 +41,8 @@ MAX_FILE_BYTES = 20_000_000
 SLACK_FRACTION = 0.002
 #: Stretch above this is taken as a unit mistake (λ = 50 is 4900 % strain; no rubber gets there).
 MAX_PLAUSIBLE_STRETCH = 50.0
-#: The bundled sample set's manifest (present in a source checkout).
-SAMPLE_MANIFEST = Path(__file__).resolve().parent.parent / "sample_sets" / "compounds.toml"
+#: The bundled sample set's manifest (installed package or source checkout; see network_models.samples).
+from .samples import SAMPLE_MANIFEST  # noqa: E402
 
 _TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".dat", ".asc", ""}
 _EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
