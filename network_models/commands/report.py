@@ -9,8 +9,6 @@ a baseline and (report) write the self-contained design-review HTML with CSV and
 
 from __future__ import annotations
 
-import json
-
 #: default model of a comparison: separates crosslink (G_c) and entanglement (G_e) parts and locks
 DEFAULT_MODEL = "extended-tube"
 
@@ -144,9 +142,9 @@ def summary(cmp) -> str:
 def run_compare(args):
     cmp, _title, _purpose = _compare(args)
     if args.json:
-        from .fit import json_document
+        from ..jsonio import dumps
 
-        print(json.dumps(json_document(cmp.to_dict()), indent=2, ensure_ascii=False))
+        print(dumps(cmp.to_dict()))  # one JSON object (was a JSON-encoded string)
     else:
         print(summary(cmp))
         print("\nModel results support design decisions; they do not replace validation testing of parts.")
