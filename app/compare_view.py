@@ -9,6 +9,7 @@ report and ``netstretch report`` agree.
 
 from __future__ import annotations
 
+import html as _html
 import io
 import logging
 from pathlib import Path
@@ -191,7 +192,8 @@ class CompareView(pn.viewable.Viewer):
         mode = None if self.new_mode.value == "from the file" else self.new_mode.value
         comp = self.state.add_uploads(self.new_name.value, list(zip(names, value, strict=True)), mode=mode)
         self.new_name.value = ""
-        self.messages.show("compare-upload", f"Compound **{comp.name}** added ({len(comp.curves)} curve(s)); "
+        shown = _html.escape(comp.name, quote=False)  # a typed name shows as text, never as HTML
+        self.messages.show("compare-upload", f"Compound **{shown}** added ({len(comp.curves)} curve(s)); "
                                              "press Compare.", "success")
 
     def _file(self, kind: str):
