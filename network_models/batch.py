@@ -29,7 +29,7 @@ from pathlib import Path
 from .errors import UserError
 
 __all__ = ["COLUMNS_FIRST", "COLUMNS_LAST", "HEADLINE_ROW", "READABLE_SUFFIXES", "BatchSummary", "collect_files",
-           "fit_file", "read_results", "run_batch"]
+           "fit_file", "fit_files", "read_results", "run_batch"]
 
 #: suffixes the batch tries to read (the reader says why when it cannot, e.g. an old .xls workbook)
 READABLE_SUFFIXES = (".csv", ".tsv", ".txt", ".dat", ".asc", ".xlsx", ".xlsm", ".xls", ".ods")
@@ -235,14 +235,26 @@ class _Appender:
     def add(self, rows):
         for r in rows:
             self.w.writerow([_cell(r.get(c)) for c in self.cols])
-        self.fh.flush()
-        os.fsync(self.fh.fileno())
+        self.fh.flush()  # in the operating system's hands: survives Ctrl+C or a killed process
 
     def close(self):
+        self.fh.flush()
+        os.fsync(self.fh.fileno())
         self.fh.close()
 
 
 # ----- running -------------------------------------------------------------------------------------------------
+def fit_files(items, model: str, polymer: str = "NR", f: float = 4.0) -> list[dict]:
+    """:func:`fit_file` for several (rel, source) pairs: one task carries a few files, so sending work to a
+    process or a cluster costs little next to the fits."""
+    return [fit_file(rel, src, model, polymer, f) for rel, src in items]
+
+
+def _chunks(tasks, workers: int, most: int = 8):
+    size = max(1, min(most, len(tasks) // (4 * max(1, workers)) or 1))
+    return [tasks[i:i + size] for i in range(0, len(tasks), size)]
+
+
 def _results_local(tasks, model, polymer, f, jobs):
     if jobs <= 1:
         for rel, path in tasks:
@@ -251,9 +263,10 @@ def _results_local(tasks, model, polymer, f, jobs):
     from concurrent.futures import ProcessPoolExecutor, as_completed
 
     with ProcessPoolExecutor(max_workers=jobs) as ex:
-        futs = [ex.submit(fit_file, rel, str(path), model, polymer, f) for rel, path in tasks]
+        futs = [ex.submit(fit_files, [(rel, str(path)) for rel, path in chunk], model, polymer, f)
+                for chunk in _chunks(tasks, jobs)]
         for fut in as_completed(futs):
-            yield fut.result()
+            yield from fut.result()
 
 
 def _results_dask(tasks, model, polymer, f, scheduler):
@@ -270,21 +283,40 @@ def _results_dask(tasks, model, polymer, f, scheduler):
             raise UserError(f"cannot reach the Dask scheduler at {scheduler} ({exc}); start it with "
                             "`dask scheduler` and check the address (tcp://HOST:8786)") from None
     try:
-        futs = []
-        for rel, path in tasks:
-            try:
-                data = path.read_bytes() if path.stat().st_size <= MAX_BYTES else None
-            except OSError as exc:
-                yield {"file": rel, "rows": [], "error": f"{path.name}: cannot open it ({exc.strerror or exc})"}
-                continue
-            if data is None:
-                yield {"file": rel, "rows": [], "error": f"{path.name}: larger than {MAX_BYTES // 1_000_000} MB; "
-                                                        "export only the test curves"}
-                continue
-            futs.append(client.submit(fit_file, rel, data, model, polymer, f, pure=False))
-        for fut in as_completed(futs):
-            yield fut.result()
+        workers = max(1, len(client.scheduler_info().get("workers", {})))
+        chunks = iter(_chunks(tasks, workers))
+        pending = as_completed()
+
+        def submit_next():  # read the next chunk's files here and send their bytes; None when none is left
+            errors = []
+            for chunk in chunks:
+                ready = []
+                for rel, path in chunk:
+                    try:
+                        if path.stat().st_size > MAX_BYTES:
+                            errors.append({"file": rel, "rows": [], "error": f"{path.name}: larger than "
+                                           f"{MAX_BYTES // 1_000_000} MB; export only the test curves"})
+                        else:
+                            ready.append((rel, path.read_bytes()))
+                    except OSError as exc:
+                        errors.append({"file": rel, "rows": [],
+                                       "error": f"{path.name}: cannot open it ({exc.strerror or exc})"})
+                if ready:  # else (every file of the chunk unreadable) go on to the next chunk
+                    pending.add(client.submit(fit_files, ready, model, polymer, f, pure=False))
+                    return errors
+            return errors or None
+
+        for _ in range(4 * workers):  # a bounded number of chunks in flight: an archive never sits in memory
+            errors = submit_next()
+            if errors is None:
+                break
+            yield from errors
+        for fut in pending:
+            yield from fut.result()
             fut.release()
+            errors = submit_next()
+            if errors:
+                yield from errors
     finally:
         if own:
             client.close()
