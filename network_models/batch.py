@@ -29,7 +29,8 @@ from pathlib import Path
 from .errors import UserError
 
 __all__ = ["COLUMNS_FIRST", "COLUMNS_LAST", "HEADLINE_ROW", "READABLE_SUFFIXES", "BatchSummary", "collect_files",
-           "fit_file", "fit_files", "read_results", "run_batch"]
+           "fit_file", "fit_files", "read_results", "run_batch",
+           "to_frame"]
 
 #: suffixes the batch tries to read (the reader says why when it cannot, e.g. an old .xls workbook)
 READABLE_SUFFIXES = (".csv", ".tsv", ".txt", ".dat", ".asc", ".xlsx", ".xlsm", ".xls", ".ods")
@@ -169,6 +170,17 @@ def read_results(path) -> list[dict]:
         return pq.read_table(path).to_pylist()
     with path.open(newline="", encoding="utf-8") as fh:
         return [{k: (v if v != "" else None) for k, v in r.items()} for r in csv.DictReader(fh)]
+
+
+def to_frame(path):
+    """A batch output (CSV or parquet) as a pandas DataFrame, numbers as floats, empty cells as NaN
+    (read ``error`` for why a row has no numbers)."""
+    import pandas as pd
+
+    path = Path(path)
+    if path.suffix.lower() == ".parquet":
+        return pd.read_parquet(path)
+    return pd.read_csv(path, keep_default_na=False, na_values=[""])
 
 
 def _check_existing(rows: list[dict], model: str, path: Path):

@@ -166,3 +166,15 @@ def test_collect_files_names_relative_to_given_folder(tree):
     root, _ = tree
     names = [rel for rel, _ in collect_files([root / "2025"])]
     assert names == sorted(names) and "batch-7/run0.csv" in names and "filled.xlsx" in names
+
+
+def test_to_frame(tree, tmp_path):
+    from network_models.batch import to_frame
+
+    root, Gs = tree
+    out = tmp_path / "res.csv"
+    run_batch([root], "neo-hookean", out, progress=False)
+    df = to_frame(out)
+    assert len(df) == len(read_results(out)) and df["G"].dtype.kind == "f"
+    row = df[df["file"] == "2024/run1.csv"].iloc[0]
+    assert row["G"] == pytest.approx(Gs["2024/run1.csv"], rel=1e-6)  # Treloar's neo-Hookean G, as generated
