@@ -136,6 +136,18 @@ def session_page(build=None):
     return page
 
 
+def _warm_up():
+    """Build one page before the port opens: imports, the sample set and its fits are then ready, so the
+    first colleague does not wait for them.  A failure here is logged and the first session shows it."""
+    from .main import create_app
+
+    try:
+        _release(create_app())
+    except Exception:
+        log.exception("warming up the page failed")
+    gc.collect()
+
+
 # ----- serve ---------------------------------------------------------------------------------------------------
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, allow_origin=None,
           basic_auth: str | None = None, cookie_secret: str | None = None, unused_session_lifetime_ms: int = 15000,
@@ -156,6 +168,7 @@ def serve(port: int = 5006, address: str = "localhost", show: bool = False, allo
     if basic_auth:
         kw.update(basic_auth=basic_auth, cookie_secret=cookie_secret or secrets.token_hex(32),
                   basic_login_template=str(LOGIN_TEMPLATE))
+    _warm_up()
     lifetime = max(1000, int(unused_session_lifetime_ms))
     return pn.serve(
         {"/": session_page}, port=port, address=address, show=show, title="netstretch",
