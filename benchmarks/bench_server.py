@@ -119,9 +119,9 @@ def soak(proc, url: str, rounds: int, per_round: int, settle_s: float = 3.0) -> 
     return out
 
 
-def kept_per_session(rss: list[float], per_round: int) -> float:
-    """MiB kept per closed session after the warm-up round."""
-    return (rss[-1] - rss[0]) / (per_round * (len(rss) - 1))
+def kept_per_session(rss: list[float], per_round: int, warmup: int = 1) -> float:
+    """MiB kept per closed session after the first ``warmup`` rounds (imports, caches, allocator arenas)."""
+    return (rss[-1] - rss[warmup - 1]) / (per_round * (len(rss) - warmup))
 
 
 #: seconds a quick run needs left for this benchmark (server start with its warm-up page, 14 pages on 2 cores);
