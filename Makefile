@@ -4,7 +4,7 @@ VENV := .venv
 PY := $(VENV)/bin/python
 STAMP := $(VENV)/.installed
 
-.PHONY: run test lint bench bench-quick samples clean
+.PHONY: run test lint bench bench-quick samples wheel-smoke clean
 
 $(STAMP): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
@@ -31,5 +31,9 @@ bench-quick: $(STAMP)
 samples: $(STAMP)
 	$(PY) sample_sets/make_samples.py
 
+# build the wheel, install it in a fresh venv outside the checkout and use it there (CI runs this too)
+wheel-smoke: $(STAMP)
+	bash .ci/wheel_smoke.sh $(abspath $(PY))
+
 clean:
-	rm -rf $(VENV) build *.egg-info .pytest_cache .ruff_cache
+	rm -rf $(VENV) build dist *.egg-info .pytest_cache .ruff_cache

@@ -42,10 +42,11 @@ def build_compound(data: DataState, name: str, files=None):
 
 
 def compare_compounds(compounds: list, model: str, baseline: str | None, service_K: float | None):
-    """The one call of :func:`network_models.compare.compare` in the app."""
-    from network_models.compare import compare
+    """The one call of :func:`network_models.compare.compare` in the app (through the process-level cache:
+    a comparison of the bundled sample compounds is made once per server process, not once per session)."""
+    from . import shared
 
-    return compare(compounds, model=model, baseline=baseline, service_temperature=service_K)
+    return shared.compare(compounds, model=model, baseline=baseline, service_temperature=service_K)
 
 
 def make_report(comparison, title: str = "", purpose: str = ""):

@@ -22,6 +22,7 @@ import param
 
 from network_models import MODELS, MODES, Mode, get_model, polymers
 
+from . import shared  # process-level read-only sample cache (app/shared.py)
 from .state import DATA_COLOURS, model_colour
 
 log = logging.getLogger("netstretch.app")
@@ -225,7 +226,7 @@ class DataState(param.Parameterized):
             comps[comp.key] = _manifest_info(comp, swell, chi)
             for cf in comp.curve_files:
                 try:
-                    curves = td.read_curves(cf.path, mode=cf.mode)
+                    curves = shared.sample_curves(cf.path, cf.mode)  # read once per server process
                 except (ValueError, OSError) as exc:
                     problems.append(str(exc))
                     continue
@@ -359,7 +360,7 @@ class DataState(param.Parameterized):
     def run_fit(self) -> list[str]:
         """Fit every chosen model to the selected curves.  Returns sentences about models that could not
         be fitted (the others still are)."""
-        from network_models.fitting import fit_or_error
+        from .shared import fit_or_error  # sample-set fits made once per server process; others fitted here
 
         curves = self.selected_curves()
         if not curves:

@@ -143,20 +143,8 @@ def _switch_backend(page, svg: bool):
 
 
 def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):
-    """Serve the app (blocking) on ``address:port`` with every asset served locally.
-    ``NETSTRETCH_DEBUG=1`` logs timings and details of the app's callbacks on stderr."""
-    import os
+    """Serve the app (blocking) on ``address:port`` with every asset served locally; see ``app.server.serve``
+    for origins, password and session clean-up.  ``NETSTRETCH_DEBUG=1`` logs timings of the app's callbacks."""
+    from .server import serve as _serve
 
-    handler = logging.StreamHandler()
-    handler.setFormatter(logging.Formatter("%(asctime)s %(name)s %(levelname)s: %(message)s"))
-    log.addHandler(handler)
-    log.setLevel(logging.DEBUG if os.environ.get("NETSTRETCH_DEBUG") == "1" else logging.INFO)
-    configure_panel()
-    allow = kw.pop("allow_websocket_origin", None) or (
-        ["*"] if address in ("0.0.0.0", "::") else [f"{address}:{port}", f"localhost:{port}", f"127.0.0.1:{port}"])
-    return pn.serve(
-        {"/": create_app}, port=port, address=address, show=show, title="netstretch",
-        websocket_origin=allow, websocket_max_message_size=WEBSOCKET_MAX_MESSAGE_SIZE,
-        http_server_kwargs={"max_buffer_size": WEBSOCKET_MAX_MESSAGE_SIZE},
-        **kw,
-    )
+    return _serve(port=port, address=address, show=show, **kw)

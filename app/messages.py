@@ -10,6 +10,7 @@ the action runs, so a message the action itself posts — "compound added" — i
 from __future__ import annotations
 
 import functools
+import html
 import logging
 
 import panel as pn
@@ -66,7 +67,8 @@ def guarded(messages: Messages, key: str, what: str):
                 return fn(*args, **kwargs)
             except (ValueError, KeyError, ArithmeticError) as exc:
                 text = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)
-                messages.show(key, f"**{what}:** {text}", "warning")
+                # the sentence may carry an uploaded file's name: escaped, so it shows as text, never as HTML
+                messages.show(key, f"**{what}:** {html.escape(str(text), quote=False)}", "warning")
                 return None
             except Exception as exc:
                 log.exception("unexpected error while %s", what)

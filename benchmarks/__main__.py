@@ -31,9 +31,14 @@ BENCHES = {
     "langevin": ("bench_langevin", ("langevin_max_rel_error", "langevin_speed_vs_cohen", "langevin_speed_vs_brentq")),
     "models": ("bench_models", ("models_eval_ms_median",)),
     "fit": ("bench_fit", ("fit_speedup_vs_naive", "fit_same_optimum")),
-    "batch": ("bench_batch", ("batch_curves_per_s", "batch_peak_mib", "batch_curves")),
+    "batch": ("bench_batch", ("batch_curves_per_s", "batch_peak_mib", "batch_curves", "batch_cmd_curves_per_s_1",
+                              "batch_cmd_curves_per_s_2", "batch_speedup_2_workers", "batch_dask_curves_per_s",
+                              "batch_same_results")),
     # last: the slowest, and the one that stops early when the quick run's time budget runs out
     "app": ("bench_app", ("slider_update_ms_median", "slider_update_ms_p95")),
+    # after the app: in a quick run it only runs if the time budget allows (else null with a note)
+    "server": ("bench_server", ("session_ready_s_1", "session_ready_s_12_median", "session_server_s_12",
+                                "memory_kept_mib_per_session")),
 }
 
 #: key -> (comparison, threshold, text)
@@ -47,6 +52,11 @@ TARGETS = {
     "slider_update_ms_median": ("<=", 150.0, "key press to plot on screen <= 150 ms (median)"),
     "slider_update_ms_p95": ("<=", 300.0, "key press to plot on screen <= 300 ms (p95)"),
     "batch_curves_per_s": (">=", 100.0, ">= 100 curves/s"),
+    "batch_speedup_2_workers": (">=", 1.8, ">= 1.8 x from 1 to 2 local workers (two idle cores)"),
+    "batch_same_results": ("==", True, "1 worker, 2 workers and Dask give identical result files"),
+    "session_ready_s_1": ("<=", 1.0, "a new session ready in <= 1 s of server time"),
+    "session_server_s_12": ("<=", 1.0, "12 sessions at once: <= 1 s of server time each"),
+    "memory_kept_mib_per_session": ("<=", 1.0, "<= 1 MiB kept per closed session"),
 }
 
 

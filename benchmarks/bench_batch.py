@@ -7,6 +7,14 @@ points (``datasets.batch_curves``; quick mode: 100 curves), one after another in
 curves already in memory.  Curves per second = curves / wall time of the whole loop.  A fit that raises
 ``FitError`` counts as done (and is counted in ``failed``).
 
+Then the command's path (``network_models.batch.run_batch``, what ``netstretch batch`` runs): the same kind of
+curves written as one CSV file each into a temporary folder (400 files; quick: 40), fitted with 1 and 2
+local worker processes and through a local Dask cluster (2 worker processes, 1 thread each) when the
+``[cluster]`` extra is installed.  Curves/s = curves / wall time of the whole run (file reading, fitting,
+crosslink table, writing the results, process start-up included).  The three result files must be
+byte-identical.  Target: >= 1.8 x from 1 to 2 workers on two idle cores (the machine is shared: the load
+average is recorded beside the figure).
+
 Memory: ``batch_peak_mib`` is the tracemalloc peak (Python objects and numpy buffers) of a second,
 untimed pass that makes the curves and fits them all, keeping every ``FitResult`` as a batch job would
 (tracemalloc slows allocation, so the timed pass runs without it); the process's peak resident set size
@@ -16,10 +24,13 @@ beside it.
 
 from __future__ import annotations
 
+import os
 import resource
 import sys
+import tempfile
 import time
 import tracemalloc
+from pathlib import Path
 
 import numpy as np
 
@@ -82,10 +93,61 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
     notes = [f"quick mode: {n} curves instead of 1000"] if quick else []
     if failed:
         notes.append(f"{failed} of {n} fits raised FitError")
+    cmd = command_path(40 if quick else 400, deadline)
+    notes.extend(cmd.pop("notes"))
+    detail["command"] = cmd
     return {
+        "batch_cmd_curves_per_s_1": cmd.get("curves_per_s_1"),
+        "batch_cmd_curves_per_s_2": cmd.get("curves_per_s_2"),
+        "batch_speedup_2_workers": cmd.get("speedup_2"),
+        "batch_dask_curves_per_s": cmd.get("curves_per_s_dask"),
+        "batch_same_results": cmd.get("same_results"),
         "batch_curves_per_s": n / wall,
         "batch_peak_mib": (peak - base) / 2**20,
         "batch_curves": n,
         "detail": detail,
         "notes": notes,
     }
+
+
+def _timed_run(folder, out, **kw) -> float:
+    from network_models.batch import run_batch
+
+    t0 = time.perf_counter()
+    run_batch([folder], "eight-chain", out, progress=False, **kw)
+    return time.perf_counter() - t0
+
+
+def command_path(n_files: int, deadline: float | None = None) -> dict:
+    """``run_batch`` over ``n_files`` one-curve CSV files: 1 and 2 local workers, and a local Dask cluster."""
+    from network_models.testdata import curves_to_csv
+
+    out: dict = {"files": n_files, "notes": [], "load_average_1min_before": os.getloadavg()[0]}
+    with tempfile.TemporaryDirectory(prefix="netstretch-bench-batch-") as tmp:
+        folder = Path(tmp) / "archive"
+        folder.mkdir()
+        for i, c in enumerate(batch_curves(n_files, seed=23)):
+            (folder / f"c{i:04d}.csv").write_text(curves_to_csv([c]), encoding="utf-8")
+        files = {}
+        for label, kw in (("1", {"jobs": 1}), ("2", {"jobs": 2})):
+            files[label] = Path(tmp) / f"r{label}.csv"
+            out[f"curves_per_s_{label}"] = n_files / _timed_run(folder, files[label], **kw)
+        out["speedup_2"] = out["curves_per_s_2"] / out["curves_per_s_1"]
+        if deadline is not None and time.monotonic() > deadline - 15:
+            out["notes"].append("Dask cluster run left out: the quick run's time budget is spent")
+        else:
+            try:
+                import distributed
+            except ImportError:
+                out["notes"].append("Dask cluster run left out: distributed is not installed (the [cluster] extra)")
+            else:
+                with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                              dashboard_address=None) as lc:
+                    files["dask"] = Path(tmp) / "rdask.csv"
+                    out["curves_per_s_dask"] = n_files / _timed_run(folder, files["dask"],
+                                                                     scheduler=lc.scheduler_address)
+        texts = {k: p.read_bytes() for k, p in files.items()}
+        out["same_results"] = len(set(texts.values())) == 1
+        out["compared"] = sorted(texts)
+    out["load_average_1min_after"] = os.getloadavg()[0]
+    return out

@@ -20,7 +20,8 @@ from .materials import add_polymers_option, apply_polymers_option
 _POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch"}
 
 #: sub-command modules, in the order ``--help`` lists them
-COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "serve")
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
+            "samples", "serve")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -29,6 +30,9 @@ def build_parser() -> argparse.ArgumentParser:
         description="Rubber-network models, lab-curve fitting and crosslink density for compound designers.",
         epilog=CAUTION,
     )
+    from . import __version__
+
+    parser.add_argument("--version", action="version", version=f"netstretch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         try:

@@ -13,11 +13,9 @@ from pathlib import Path
 from ..curves import ForceTemperatureRecord, SwellingResult, TestCurve
 from ..deformation import Mode
 from ..errors import DataError
+from ..samples import SAMPLE_MANIFEST  # the bundled manifest: installed package or checkout (network_models.samples)
 from .api import read_curves
 from .records import read_force_temperature, read_swelling
-
-#: The bundled sample set's manifest (present in a source checkout).
-SAMPLE_MANIFEST = Path(__file__).resolve().parent.parent.parent / "sample_sets" / "compounds.toml"
 
 
 @dataclass

@@ -1,0 +1,39 @@
+"""``netstretch batch FOLDER|FILE... --model NAME [--jobs N] [--scheduler ADDRESS] -o results.csv``: fit every curve
+of an archive, one row per curve, resumable; unreadable files listed in ``<stem>.failures.csv``."""
+
+from __future__ import annotations
+
+
+def add_parser(sub):
+    p = sub.add_parser(
+        "batch", help="fit every curve in folders of lab files: one row per curve (CSV or parquet), resumable",
+        description="Walk folders (csv, tsv, txt, xlsx and the other formats the reader knows), fit MODEL to every "
+                    "curve and write one row per curve. Files that cannot be read are listed with the reason in "
+                    "<output stem>.failures.csv; the run never stops at a bad file. Re-running with the same "
+                    "output skips files already done.")
+    p.add_argument("inputs", nargs="+", metavar="FOLDER|FILE", help="folders (searched recursively) and files")
+    p.add_argument("--model", required=True, metavar="NAME", help="model to fit (see `netstretch models`)")
+    p.add_argument("-o", "--output", required=True, metavar="FILE.csv|FILE.parquet", help="results file")
+    p.add_argument("--jobs", type=int, default=1, metavar="N", help="local worker processes (default 1)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="send the work to a running Dask distributed scheduler, e.g. tcp://lab-pc-01:8786 "
+                        "(pip install 'netstretch[cluster]')")
+    p.add_argument("--polymer", default="NR", help="polymer for the crosslink density (default NR)")
+    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
+                   help="junction functionality f for the crosslink density (default 4)")
+    p.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
+    p.set_defaults(run=run)
+
+
+def run(args):
+    import sys
+
+    from ..batch import run_batch
+
+    if args.jobs > 1 and args.scheduler:
+        print("netstretch batch: --jobs is ignored with --scheduler (the cluster's workers do the work)",
+              file=sys.stderr)
+    summary = run_batch(args.inputs, args.model, args.output, jobs=args.jobs, scheduler=args.scheduler,
+                        polymer=args.polymer, f=args.functionality, progress=not args.no_progress)
+    print(summary.sentence())
+    return 0
