@@ -129,3 +129,27 @@ def test_a_message_posted_by_a_button_stays_next_to_it(app_page):
     btn = button.bounding_box()
     assert msg is not None and btn is not None
     assert 0 <= msg["y"] - btn["y"] < 200  # right under the button, not at the top of the page
+
+
+def test_a_raw_export_without_geometry_asks_for_it_once_and_then_fits(app_page):
+    # the invented German raw export (force first, decimal commas; sample_sets/make_raw_exports.py, made with a
+    # neo-Hookean G = 0.48 MPa) with its gauge length, width and thickness lines taken out: the page asks for
+    # exactly those three, reads the file with the typed values, and the fit gives back the modulus.
+    # Neo-Hookean small-strain modulus = G (Treloar 1975, ch. 4); tolerance = the export's own noise (1 %).
+    page = app_page
+    raw = (Path(__file__).resolve().parent.parent / "sample_sets" / "raw_exports" / "QM-R7_zugversuch_de.csv")
+    keep = [ln for ln in raw.read_bytes().split(b"\n") if not ln.startswith((b"Messl", b"Breite", b"Dicke"))]
+    open_tab(page, "Test data", ".ns-upload input[type=file]")
+    page.locator(".ns-upload input[type=file]").first.set_input_files(
+        files=[{"name": "QM-R7_ohne_Masse.csv", "mimeType": "text/csv", "buffer": b"\n".join(keep)}])
+    for item, value in (("gauge_length", "20"), ("width", "4"), ("thickness", "2")):
+        box = page.locator(f".ns-missing-{item} input").first
+        box.wait_for(state="visible", timeout=45000)
+        box.fill(value)
+        box.press("Enter")
+    page.locator(".ns-missing-read button").first.click()
+    wait_text(page, ".ns-fit-summary", "QM-R7_ohne_Masse.csv")
+    summary = text(page, ".ns-fit-summary")
+    assert "Fitted to: QM-R7_ohne_Masse.csv (" in summary  # the upload alone, not the sample compounds
+    g0 = [float(v) for v in g0_values(summary)]
+    assert g0 and all(v == pytest.approx(0.48, rel=0.02) for v in g0), g0
