@@ -61,6 +61,18 @@ def _free_port() -> int:
 
 
 @pytest.fixture(scope="session")
+def chromium_path() -> str:
+    """The system Chromium's path (skips where none exists; a failure under NETSTRETCH_REQUIRE_BROWSER=1)."""
+    path = _chromium_path()
+    if path is None:
+        msg = "no Chromium found (set NETSTRETCH_CHROMIUM or install the 'chromium' package)"
+        if _require_browser():
+            pytest.fail(msg + " — NETSTRETCH_REQUIRE_BROWSER=1 makes this a failure")
+        pytest.skip(msg)
+    return path
+
+
+@pytest.fixture(scope="session")
 def chromium_browser():
     """A headless system Chromium (Playwright sync API), shared by the session's browser tests."""
     path = _chromium_path()

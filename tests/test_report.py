@@ -113,7 +113,24 @@ def test_html_numbers_are_the_fit_results(report):
 
 def test_csv_and_json_hold_the_fit_results_and_round_trip(report, tmp_path):
     paths = report.write(tmp_path / "review.html")
-    assert set(paths) == {"html", "csv", "json"} and all(p.exists() for p in paths.values())
+    charts = paths.pop("charts")
+    assert set(paths) == {"html", "csv", "json", "xlsx"} and all(p.exists() for p in paths.values())
+    # each chart of the page is also its own SVG file: well-formed XML, styled inline (no <style> block
+    # and no page stylesheet needed, so it reads the same when copied into another document)
+    import xml.etree.ElementTree as ET
+
+    page_svgs = paths["html"].read_text("utf-8").count("<svg ")
+    assert len(charts) == page_svgs > 0
+    for c in charts:
+        root = ET.fromstring(c.read_text("utf-8").split("\n", 1)[1])
+        assert root.tag.endswith("svg") and "<style" not in c.read_text("utf-8")
+    # the workbook holds the same long table as the CSV (pandas reads both; openpyxl writes the xlsx)
+    import pandas as pd
+
+    xl, cs = pd.read_excel(paths["xlsx"], engine="openpyxl"), pd.read_csv(paths["csv"])
+    assert list(xl.columns) == list(cs.columns) and len(xl) == len(cs)
+    assert np.allclose(pd.to_numeric(xl["value"], errors="coerce").fillna(0),
+                       pd.to_numeric(cs["value"], errors="coerce").fillna(0), rtol=1e-12)
     rows = read_csv(paths["csv"])
     doc = json.loads(paths["json"].read_text("utf-8"))
     by = {(r["section"], r["compound"], r["key"]): r for r in rows}
@@ -308,3 +325,36 @@ def test_app_compare_tab_shows_table_and_downloads_the_report(app_page, deep_tex
     core = compare(man.compounds, model="extended-tube", baseline=man.baseline, service_temperature=353.15)
     for r in core.results:
         assert nu_tab[r.name] == pytest.approx(r.quantities["nu"].value, rel=1e-9)
+
+
+def _two_compound_files(tmp_path):
+    files = []
+    for name, G in (("A", 0.45e6), ("B", 0.55e6)):
+        lam = np.linspace(1.05, 4.0, 40)
+        f = tmp_path / f"{name}.csv"
+        f.write_text("# test: uniaxial\n# temperature: 23 °C\nstretch,nominal stress (MPa)\n" + "\n".join(
+            f"{x:.5f},{y / 1e6:.6f}" for x, y in zip(lam, gent_uniaxial(lam, G, 60.0), strict=True)), "utf-8")
+        files.append(f"{name}={f}")
+    return files
+
+
+@pytest.mark.ui
+def test_cli_report_prints_an_a4_pdf_with_chromium(tmp_path, capsys, chromium_path, monkeypatch):
+    files = _two_compound_files(tmp_path)
+    out = tmp_path / "rev.html"
+    monkeypatch.setenv("NETSTRETCH_CHROMIUM", chromium_path)
+    rc = main(["report", "--compound", files[0], "--compound", files[1], "--model", "gent", "--baseline", "A",
+               "--no-model-spread", "--pdf", "-o", str(out)])
+    assert rc == 0, capsys.readouterr().err
+    assert out.with_suffix(".pdf").read_bytes().startswith(b"%PDF")
+
+
+def test_cli_report_pdf_without_chromium_says_how_to_print(tmp_path, capsys, monkeypatch):
+    files = _two_compound_files(tmp_path)
+    monkeypatch.setenv("NETSTRETCH_CHROMIUM", "")
+    monkeypatch.setenv("PATH", str(tmp_path))  # no chromium anywhere on this PATH
+    out = tmp_path / "rev.html"
+    rc = main(["report", "--compound", files[0], "--compound", files[1], "--model", "gent", "--baseline", "A",
+               "--no-model-spread", "--pdf", "-o", str(out)])
+    err = capsys.readouterr().err
+    assert rc == 2 and "print it to PDF" in err and out.exists()  # the HTML is still written

@@ -47,6 +47,9 @@ def add_parser(sub):
     _common(p)
     p.add_argument("--title", default="", help="report title")
     p.add_argument("--purpose", default="", help="one line: what the review is for")
+    p.add_argument("--pdf", action="store_true",
+                   help="also print the report to FILE.pdf (A4) with a headless Chromium when one is installed "
+                        "(NETSTRETCH_CHROMIUM or 'chromium' on PATH); otherwise says how to print it")
     p.add_argument("-o", "--output", default="review.html", metavar="FILE.html",
                    help="HTML file to write (the .csv and .json go beside it; default review.html)")
     p.set_defaults(run=run_report)
@@ -211,6 +214,32 @@ def run_compare(args):
     return 0 if any(r.ok for r in cmp.results) else 2
 
 
+def _print_pdf(html_path):
+    """FILE.pdf beside the HTML, printed (A4, from the report's print style) by a headless Chromium."""
+    import os
+    import shutil
+    import subprocess
+
+    from ..cli import UserError
+
+    exe = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
+    pdf = html_path.with_suffix(".pdf")
+    how = (f"open {html_path} in a browser and print it to PDF (A4 portrait); the report has a print layout")
+    if not exe:
+        raise UserError(f"--pdf needs a headless Chromium (install the 'chromium' package or set "
+                        f"NETSTRETCH_CHROMIUM); the HTML, CSV, JSON and charts were written — {how}")
+    cmd = [exe, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking",
+           "--no-pdf-header-footer", f"--print-to-pdf={pdf}", html_path.resolve().as_uri()]
+    try:
+        subprocess.run(cmd, check=True, capture_output=True, timeout=120)
+    except (OSError, subprocess.SubprocessError) as exc:
+        raise UserError(f"Chromium could not print the PDF ({type(exc).__name__}); the HTML was written — "
+                        f"{how}") from None
+    if not pdf.exists():
+        raise UserError(f"Chromium wrote no PDF; the HTML was written — {how}")
+    return pdf
+
+
 def run_report(args):
     from ..cli import UserError
     from ..report import Report
@@ -228,7 +257,11 @@ def run_report(args):
     from ..constants import CAUTION
 
     print(summary(cmp))
-    print("\nWrote " + ", ".join(str(p) for p in paths.values()))
+    if args.pdf:
+        paths["pdf"] = _print_pdf(paths["html"])
+    charts = paths.pop("charts", [])
+    print("\nWrote " + ", ".join(str(p) for p in paths.values())
+          + (f" and {len(charts)} chart(s) as SVG in {charts[0].parent}" if charts else ""))
     print(CAUTION)
     return 0
 

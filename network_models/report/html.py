@@ -64,7 +64,10 @@ th{background:#eef2f3;font-weight:600}td.num{text-align:right;font-variant-numer
 small{color:#56656e}
 table.prov{font-size:.82em;width:100%}table.prov td:nth-child(2){white-space:nowrap}
 table.prov td:nth-child(5){min-width:8em}
-@media print{body{background:#fff}main{padding:0}.chart{break-inside:avoid}h2{break-after:avoid}}
+@page{size:A4 portrait;margin:14mm 12mm}
+@media print{body{background:#fff;font-size:9pt}main{padding:0;max-width:none}
+.chart{break-inside:avoid;max-width:100%;height:auto}h2{break-after:avoid}
+table{font-size:8pt;width:100%}td,th{padding:2px 4px}tr{break-inside:avoid}}
 """
 
 
@@ -175,20 +178,20 @@ class Report:
     def _provenance_html(self):
         from pathlib import Path as _P
 
-        folders = sorted({str(_P(p["source"]).parent) for r in self.cmp.results for p in r.compound.provenance()
-                          if p["source"] and not p["source"].startswith("(")})
-        out = ["<h2>Data provenance</h2>"]
-        if folders:
-            out.append("<p><small>Files read from: " + ", ".join(_e(f) for f in folders) + "</small></p>")
-        out.append("<table class='prov'><tr><th>compound</th><th>file</th><th>mode</th>"
-                   "<th>specimen</th><th>cycle</th><th>temperature</th><th>points</th><th>stretch range</th>"
-                   "<th>reader notices</th></tr>")
+        out = ["<h2>Data provenance</h2>",
+               "<p><small>Inputs are named by file name and SHA-256 of their bytes (not by where they were read "
+               "from), so a reviewer can check that a file is the one analysed.</small></p>",
+               "<table class='prov'><tr><th>compound</th><th>file</th><th>SHA-256</th><th>mode</th>"
+               "<th>specimen</th><th>cycle</th><th>temperature</th><th>points</th><th>stretch range</th>"
+               "<th>reader notices</th></tr>"]
         for r in self.cmp.results:
             for p in r.compound.provenance():
                 src = p["source"]
                 name = _P(src).name if src and not src.startswith("(") else src
+                digest = file_sha256(src)
                 out.append(
-                    f"<tr><td>{_e(r.name)}</td><td title='{_e(src)}'>{_e(name)}</td>"
+                    f"<tr><td>{_e(r.name)}</td><td>{_e(name)}</td>"
+                    f"<td><code class='sha'>{_e(digest or '—')}</code></td>"
                     f"<td>{_e(p['mode'])}</td><td>{_e(p['specimen'] or p['curve'])}</td>"
                     f"<td>{_e(p['cycle'] or '—')}</td>"
                     f"<td class='num'>{_temp_c(p['temperature_K']) if p['temperature_K'] else 'not stated'}</td>"
@@ -351,17 +354,64 @@ class Report:
 
     # ----- files ---------------------------------------------------------------------------------------
     def write(self, path) -> dict[str, Path]:
-        """Write ``path`` (HTML) and the CSV and JSON beside it; returns the three paths."""
+        """Write ``path`` (HTML) and beside it the CSV, the JSON, the same table as an Excel workbook
+        (``.xlsx``: opens with decimal commas too) and every chart as its own self-contained SVG file
+        (``<stem>_charts/NN-name.svg``); returns the paths (charts under ``"charts"``, a list)."""
         p = Path(path)
         if p.suffix.lower() not in (".html", ".htm"):
             p = p.with_suffix(".html")
         p.parent.mkdir(parents=True, exist_ok=True)
-        paths = {"html": p, "csv": p.with_suffix(".csv"), "json": p.with_suffix(".json")}
-        paths["html"].write_text(self.to_html(), "utf-8")
-        paths["csv"].write_text(self.to_csv(), "utf-8")
+        paths = {k: p.with_suffix(f".{k}") for k in ("html", "csv", "json", "xlsx")}
+        paths["html"] = p
+        html_text = self.to_html()
+        paths["html"].write_text(html_text, "utf-8")
+        csv_text = self.to_csv()
+        paths["csv"].write_text(csv_text, "utf-8")
         paths["json"].write_text(self.to_json(), "utf-8")
+        write_xlsx(csv_text, paths["xlsx"])
+        paths["charts"] = write_charts(html_text, p.parent / f"{p.stem}_charts")
         return paths
 
+
+def file_sha256(source) -> str | None:
+    """SHA-256 (hex) of a file's bytes, or None when ``source`` is not a readable file (a curve made in code)."""
+    import hashlib
+
+    if not source or str(source).startswith("("):
+        return None
+    try:
+        return hashlib.sha256(Path(source).read_bytes()).hexdigest()
+    except OSError:
+        return None
+
+
+def write_xlsx(csv_text: str, path: Path) -> Path:
+    """The report's long-format CSV as an Excel workbook (one sheet, numbers as numbers)."""
+    import io
+
+    import pandas as pd
+
+    pd.read_csv(io.StringIO(csv_text)).to_excel(path, index=False, sheet_name="netstretch")
+    return path
+
+
+def write_charts(html_text: str, folder: Path) -> list[Path]:
+    """Every inline ``<svg>`` chart of the report as its own file (each carries its own styles, so it reads
+    the same when copied into another document)."""
+    import re
+
+    charts = re.findall(r"<svg\b.*?</svg>", html_text, flags=re.S)
+    if not charts:
+        return []
+    folder.mkdir(parents=True, exist_ok=True)
+    out = []
+    for i, svg in enumerate(charts, 1):
+        label = re.search(r'aria-label="([^"]*)"', svg)
+        slug = re.sub(r"[^A-Za-z0-9]+", "-", label.group(1) if label else "chart").strip("-").lower()[:50] or "chart"
+        f = folder / f"{i:02d}-{slug}.svg"
+        f.write_text('<?xml version="1.0" encoding="UTF-8"?>\n' + svg, "utf-8")
+        out.append(f)
+    return out
 
 
 def build_report(comparison: Comparison, title="", purpose="") -> Report:
