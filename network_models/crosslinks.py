@@ -106,6 +106,22 @@ class CrosslinkTable:
     entanglement_share: float | None = None
     entanglement_share_text: str = "—"
 
+    def to_frame(self):
+        """One row per assumption (ν, its interval, μ_j, M_c, N), as a pandas DataFrame (SI units)."""
+        from .frames import crosslink_frame
+
+        return crosslink_frame(self)
+
+    def __repr__(self):
+        from .frames import table_repr
+
+        return table_repr(self)
+
+    def _repr_html_(self):
+        from .frames import crosslink_frame, html_table, table_repr
+
+        return html_table(crosslink_frame(self), table_repr(self)[1:-1])
+
     def __iter__(self):
         return iter(self.rows)
 

@@ -128,6 +128,29 @@ class Comparison:
     notes: list[str] = field(default_factory=list)
     exclusions: dict = field(default_factory=dict)
 
+    def to_frame(self):
+        """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
+        from ..frames import comparison_frame
+
+        return comparison_frame(self)
+
+    def differences_frame(self):
+        """One row per difference against the baseline, with its verdict, as a pandas DataFrame."""
+        from ..frames import differences_frame
+
+        return differences_frame(self)
+
+    def __repr__(self):
+        from ..frames import comparison_repr
+
+        return comparison_repr(self)
+
+    def _repr_html_(self):
+        from ..frames import comparison_frame, comparison_repr, differences_frame, html_table
+
+        return (html_table(comparison_frame(self), comparison_repr(self)[1:-1])
+                + html_table(differences_frame(self), "Against the baseline"))
+
     def __iter__(self):
         return iter(self.results)
 

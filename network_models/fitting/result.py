@@ -97,6 +97,23 @@ class FitResult:
     #: which optimiser found the optimum: "levenberg-marquardt" (the small one), "minpack-lm", "trf", "closed-form"
     solver: str = ""
 
+    # ----- notebooks and pandas (network_models.frames) ------------------------------------------
+    def to_frame(self):
+        """One row per parameter (value, stderr, 95 % interval, unit), as a pandas DataFrame."""
+        from ..frames import fit_frame
+
+        return fit_frame(self)
+
+    def __repr__(self):
+        from ..frames import fit_repr
+
+        return fit_repr(self)
+
+    def _repr_html_(self):
+        from ..frames import fit_frame, fit_repr, html_table
+
+        return html_table(fit_frame(self), fit_repr(self)[1:-1])
+
     @property
     def values(self) -> dict[str, float]:
         """{name: value} in SI, ready for ``model.nominal_stress``."""
