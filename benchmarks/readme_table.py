@@ -55,6 +55,18 @@ def table(d: dict) -> str:
         (f"Batch: {_f(d['batch_curves'], '{}')} uniaxial curves × 50 points, eight-chain fits",
          _f(d["batch_curves_per_s"], "{:.0f} curves/s") + ", peak " + _f(d["batch_peak_mib"], "{:.1f} MiB"),
          "≥ 100 /s", "batch_curves_per_s"),
+        ("`netstretch batch`: 2 local workers vs 1 (same results; Dask "
+         + _f(d.get("batch_dask_curves_per_s"), "{:.0f} curves/s") + ")",
+         _f(d.get("batch_speedup_2_workers"), "{:.2f}×") + " (" + _f(d.get("batch_cmd_curves_per_s_1"), "{:.0f}")
+         + " → " + _f(d.get("batch_cmd_curves_per_s_2"), "{:.0f} curves/s") + ")", "≥ 1.8×",
+         "batch_speedup_2_workers"),
+        ("Server: a new session ready (server time, one session)", _f(d.get("session_ready_s_1"), "{:.2f} s"),
+         "≤ 1 s", "session_ready_s_1"),
+        ("…12 sessions opened at once, server time each", _f(d.get("session_server_s_12"), "{:.2f} s"), "≤ 1 s",
+         "session_server_s_12"),
+        ("Memory kept per closed session (soak, after clean-up)", _f(d.get("memory_kept_mib_per_session"),
+                                                                     "{:.2f} MiB"), "≤ 1 MiB",
+         "memory_kept_mib_per_session"),
     ]
     out = ["| figure | measured | target | met |", "|---|---|---|---|"]
     out += [f"| {a} | {b} | {c} | {ok(k)} |" for a, b, c, k in rows]
