@@ -231,13 +231,7 @@ def test_svg_chart_skips_nan_and_labels_axes():
 
 
 def test_cli_report_writes_three_files(tmp_path, capsys):
-    files = []
-    for name, G in (("A", 0.45e6), ("B", 0.55e6)):
-        lam = np.linspace(1.05, 4.0, 40)
-        f = tmp_path / f"{name}.csv"
-        f.write_text("# test: uniaxial\n# temperature: 23 °C\nstretch,nominal stress (MPa)\n" + "\n".join(
-            f"{x:.5f},{y / 1e6:.6f}" for x, y in zip(lam, gent_uniaxial(lam, G, 60.0), strict=True)), "utf-8")
-        files.append(f"{name}={f}")
+    files = _two_compound_files(tmp_path)
     out = tmp_path / "rev.html"
     rc = main(["report", "--compound", files[0], "--compound", files[1], "--model", "gent", "--mode", "uniaxial",
                "--baseline", "A", "--service-temperature", "80C", "--purpose", "test", "-o", str(out)])
