@@ -444,3 +444,23 @@ def test_entanglement_share_over_100_percent_is_not_a_plain_number():
     assert poly.plateau_modulus * T23 / poly.plateau_temperature > 0.3e6  # the premise of this check
     assert "ent_share" not in r.quantities
     assert any("larger than the whole small-strain modulus" in w for w in r.warnings)
+
+
+def test_display_units_for_tables_and_report(mr_pair, capsys):
+    # psi = 6894.757… Pa and 10⁻⁴ mol/cm³ = 100 mol/m³ (scipy.constants.psi; SI prefixes); mol/kg = ν/ρ with the
+    # polymer table's density; SI values stay untouched
+    from scipy.constants import psi
+
+    from network_models.display_units import apply_to_comparison
+    from network_models.materials import get_polymer
+
+    apply_to_comparison(mr_pair, stress="psi", density="10⁻⁴ mol/cm³")
+    q = mr_pair["A"].quantities
+    assert q["G0"].display_unit == "psi" and q["G0"].display_scale == pytest.approx(1 / psi, rel=1e-12)
+    assert q["nu"].display_scale == pytest.approx(1e-2, rel=1e-12)
+    assert q["G0"].value == pytest.approx(2 * (0.20e6 + 0.05e6), rel=1e-6)  # still Pa inside
+    apply_to_comparison(mr_pair, density="mol/kg")
+    assert q["nu"].display_scale == pytest.approx(1 / get_polymer("NR").density, rel=1e-12)
+    apply_to_comparison(mr_pair)  # back to MPa and mol/m³ for the other tests of this module
+    with pytest.raises(ValueError, match="psi"):
+        apply_to_comparison(mr_pair, stress="bar")

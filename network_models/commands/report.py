@@ -10,6 +10,7 @@ a baseline and (report) write the self-contained design-review HTML with CSV and
 
 from __future__ import annotations
 
+from ..display_units import DENSITY_UNITS, STRESS_UNITS, apply_to_comparison
 from ..errors import merge_notices
 
 #: default model of a comparison: separates crosslink (G_c) and entanglement (G_e) parts and locks
@@ -36,6 +37,10 @@ def _common(p):
                    help="keep a specimen out of the statistics, with the reason (repeat it); listed in the results")
     p.add_argument("--pool", action="store_true",
                    help="fit files that state different compounds together as one compound (off: they are refused)")
+    p.add_argument("--stress-unit", default="MPa", choices=STRESS_UNITS,
+                   help="unit stresses and moduli are shown in (tables, report; the CSV/JSON keep SI beside it)")
+    p.add_argument("--density-unit", default="mol/m³", choices=DENSITY_UNITS,
+                   help="unit strand and junction densities are shown in (mol/kg divides by the polymer density)")
     p.add_argument("--no-model-spread", action="store_true",
                    help="skip fitting the other models for the model spread beside the headline (faster)")
 
@@ -113,6 +118,7 @@ def _compare(args):
     cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts,
                   exclude=parse_exclusions(args.exclude), pool=args.pool,
                   spread_models=() if args.no_model_spread else None)
+    apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit)
     return cmp, title, purpose
 
 
@@ -138,11 +144,12 @@ def summary(cmp) -> str:
              f"service temperature {celsius(cmp.service_temperature):.1f} °C",
              "ν = strand density, μ_j = junction (crosslink) density = 2ν/f; basis: the headline basis below; "
              "values are specimen means, [95 % interval] from specimen scatter with fit error", ""]
-    cols = (("G0", "G₀ (MPa)"), ("nu", "ν (mol/m³)"), ("mu_j", "μ_j (mol/m³)"), ("Mc", "M_c (g/mol)"),
+    su, du = cmp.display_units["stress"], cmp.display_units["density"]
+    cols = (("G0", f"G₀ ({su})"), ("nu", f"ν ({du})"), ("mu_j", f"μ_j ({du})"), ("Mc", "M_c (g/mol)"),
             ("N", "N"), ("lock", "λ_lock uniaxial"), ("ent_share", "entanglement (%)"),
-            ("G0_service", "G₀ at T_s (MPa)"), ("M100_measured", "M100 meas. (MPa)"),
-            ("M100_predicted", "M100 fit (MPa)"), ("M300_measured", "M300 meas. (MPa)"),
-            ("M300_predicted", "M300 fit (MPa)"), ("nu_swelling", "ν swelling (mol/m³)"))
+            ("G0_service", f"G₀ at T_s ({su})"), ("M100_measured", f"M100 meas. ({su})"),
+            ("M100_predicted", f"M100 fit ({su})"), ("M300_measured", f"M300 meas. ({su})"),
+            ("M300_predicted", f"M300 fit ({su})"), ("nu_swelling", f"ν swelling ({du})"))
     table = [["quantity"] + [r.name + (" (base)" if r.name == cmp.baseline else "") for r in cmp.results],
              ["specimens (n)"] + [str(r.n) if r.ok else "—" for r in cmp.results]]
     for key, label in cols:
@@ -192,7 +199,8 @@ def verdict_lines(cmp) -> list[str]:
         ci = (f"[{d['ci95_percent'][0]:+.1f} … {d['ci95_percent'][1]:+.1f} %]" if d.get("ci95_percent") else "")
         mdd = f"; detectable ≥ {d['detectable_percent']:.1f} %" if d.get("detectable_percent") is not None else ""
         pct = "—" if d["percent"] is None else f"{d['percent']:+7.1f} %"
-        absv = "" if d["absolute"] is None or d["quantity"] != "strand_density" else f" (Δν {fmt(d['absolute'])})"
+        absv = ("" if d["absolute"] is None or d["quantity"] != "strand_density"
+                else f" (Δν {fmt(d['absolute'])} mol/m³)")
         out.append(f"  {d['compound']:{width}s} {d['label']:32s} {pct}{absv} {ci}  {d['verdict'].upper()}"
                    f" (n {d['n']} vs {d['n_baseline']}{mdd})")
     out.append("  " + VERDICT_WORDING)

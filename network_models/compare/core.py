@@ -127,6 +127,8 @@ class Comparison:
     service_temperature: float
     notes: list[str] = field(default_factory=list)
     exclusions: dict = field(default_factory=dict)
+    #: the units stresses and densities are shown in (display_units.apply_to_comparison); values stay SI
+    display_units: dict = field(default_factory=lambda: {"stress": "MPa", "density": "mol/m³"})
 
     def to_frame(self):
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
