@@ -377,7 +377,7 @@ class DataState(param.Parameterized):
                 failures[name] = (f"{m.title}: defined for {', '.join(x.value for x in m.modes)} only, so it "
                                   f"was not fitted to the {', '.join(missing)} data")
                 continue
-            res = fit_or_error(m, curves, residual=self.residual)
+            res = fit_or_error(m, curves, residual=self.residual, polymer=self.polymer)
             if isinstance(res, ValueError):
                 failures[name] = f"{m.title}: {res}"
             else:

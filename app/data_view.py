@@ -78,7 +78,7 @@ class DataView(pn.viewable.Viewer):
         self._read_pending = guarded(self.messages, "upload", "Upload")(self._read_pending)
         # one watcher for the store: an upload changes files and selection together and is drawn once
         s.param.watch(self._on_store, ["files", "selected"])
-        s.param.watch(lambda *e: self._refit(), ["fit_models", "residual"])
+        s.param.watch(lambda *e: self._refit(), ["fit_models", "residual", "polymer"])  # polymer: the fit's notices
         self.units.param.watch(lambda *e: self._show_file(), ["stress"])
         self._built = self._build()
         self._files_changed()

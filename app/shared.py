@@ -60,20 +60,20 @@ def is_shared(curves) -> bool:
         return bool(curves) and all(id(c) in _curve_ids for c in curves)
 
 
-def fit_or_error(model, curves, residual: str = "absolute", **kw):
+def fit_or_error(model, curves, residual: str = "absolute", polymer: str | None = None, **kw):
     """``fitting.fit_or_error`` (a FitResult or a FitError, never raising) with the result for shared sample
     curves made once per process.  Other curves or extra options: a plain fit, not cached."""
     from network_models.fitting import fit_or_error as _fit
 
     curves = list(curves)
     if kw or not is_shared(curves):
-        return _fit(model, curves, residual=residual, **kw)
+        return _fit(model, curves, residual=residual, polymer=polymer, **kw)
     name = model if isinstance(model, str) else model.name
-    key = (name, residual, tuple(id(c) for c in curves))
+    key = (name, residual, polymer, tuple(id(c) for c in curves))
     with _lock:
         hit = _fits.get(key)
         if hit is None:
-            hit = _fit(model, curves, residual=residual)  # a FitError: the same sentence for every session
+            hit = _fit(model, curves, residual=residual, polymer=polymer)  # a FitError: same for every session
             if len(_fits) < MAX_CACHED:
                 _fits[key] = hit
     return hit

@@ -190,3 +190,18 @@ def test_crosslinks_sol_fraction_adds_the_trapped_entanglement_rows(capsys):
     assert rows["affine-trapped-entanglements"]["strand_density"] == pytest.approx((0.55e6 - Ge_t) / (R * T), rel=1e-9)
     assert main(["crosslinks", "--modulus", "0.55MPa", "--sol-fraction", "1.5"]) == 2
     assert "--sol-fraction" in capsys.readouterr().err
+
+
+def test_fit_command_passes_the_polymer_to_the_fit_notices(capsys):
+    # NR strain-crystallises in uniaxial tension above λ ≈ 3 (Toki et al. 2000; Trabelsi et al. 2003 [from
+    # memory]): the invented raw export reaches λ = 3.4, so the NR fit says the upturn may not be the lock
+    from pathlib import Path
+
+    from network_models.cli import main
+
+    f = Path(__file__).resolve().parent.parent / "sample_sets" / "raw_exports" / "QM-R7_zugversuch_de.csv"
+    assert main(["fit", str(f), "--model", "neo-hookean", "--polymer", "NR", "--json"]) == 0
+    nr = capsys.readouterr().out
+    assert main(["fit", str(f), "--model", "neo-hookean", "--polymer", "EPDM", "--json"]) == 0
+    epdm = capsys.readouterr().out
+    assert "strain-crystallisation" in nr and "strain-crystallisation" not in epdm

@@ -39,7 +39,9 @@ def add_parser(sub):
     p.add_argument("--thickness", metavar="H", help="specimen thickness for force columns, e.g. 2mm")
     p.add_argument("--relative", action="store_true",
                    help="relative residuals (each point weighs by its own stress) instead of absolute (Pa)")
-    p.add_argument("--polymer", default="NR", help="polymer for the crosslink table (default NR)")
+    p.add_argument("--polymer", default="NR",
+                   help="polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
+                        "(default NR)")
     p.add_argument("--functionality", type=float, default=4.0, metavar="F",
                    help="junction functionality f for the crosslink table (default 4)")
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
@@ -157,7 +159,7 @@ def run(args):
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
                          f"got {args.functionality:g}")
-    results = fit_many(models, curves, residual="relative" if args.relative else "absolute")
+    results = fit_many(models, curves, residual="relative" if args.relative else "absolute", polymer=args.polymer)
     tables = {}
     for name, r in results.items():
         if isinstance(r, Exception):
