@@ -435,12 +435,11 @@ class DataState(param.Parameterized):
     def warnings(self) -> list:
         """The fits' notices (``errors.Notice`` where the core gives one, else plain sentences), each led by
         its model's name, then the models that could not be fitted (kind 'fit-failed')."""
-        from network_models.errors import Notice
+        from network_models.errors import Notice, about
 
         out = []
         for r in self.results.values():
-            out.extend(Notice(f"{r.title}: {w}", getattr(w, "kind", "note"), getattr(w, "subject", None))
-                       for w in r.warnings)
+            out.extend(about(r.title, w) for w in r.warnings)
         return out + [Notice(t, "fit-failed") for t in self.failures.values()]
 
     def crosslink_table(self):

@@ -10,7 +10,7 @@ import re
 
 import numpy as np
 
-from network_models.errors import group_notices
+from network_models.errors import group_notices, merge_notices
 
 from .display_units import DisplayUnits
 from .state import sig
@@ -194,9 +194,9 @@ def grouped_warnings(notices) -> dict[str, list[str]]:
     for kind, items in group_notices(rest).items():
         title = KIND_TITLES.get(kind, kind.replace("-", " ").capitalize())
         lines = out.setdefault(title, [])
-        for n in items:
-            if str(n) not in lines:
-                lines.append(str(n))
+        for line in merge_notices(items):  # the same sentence from several models: one line naming them
+            if line not in lines:
+                lines.append(line)
     return out
 
 

@@ -369,3 +369,11 @@ def test_compare_view_shows_every_specimen_and_the_uncertainty_breakdown():
     shown = page.ns_compare.table.object
     assert all(f"S1-{i}" in shown for i in range(1, 6))
     assert "specimen scatter" in shown
+
+
+def test_the_same_notice_from_several_models_is_one_line_naming_them():
+    from network_models.errors import about
+
+    n = Notice("NR crystallises under strain above λ ≈ 3", "strain-crystallisation")
+    g = grouped_warnings([about("Eight chain", n), about("Extended tube", n), about("Gent", Notice("other", "x"))])
+    assert g["Strain crystallisation"] == ["NR crystallises under strain above λ ≈ 3 (Eight chain, Extended tube)"]
