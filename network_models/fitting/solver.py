@@ -111,6 +111,11 @@ class Projected:
             self._wcache[key] = hit
         return hit
 
+    def _one_modulus(self, hh, hy):
+        """The one projected modulus: least squares t = ⟨h, y⟩/⟨h, h⟩, clipped to its bounds."""
+        t = hy / hh if hh > 0 else 0.0
+        return min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+
     def _projected(self, u):
         """Moduli solved, stress and residual assembled from the cached weighted unit responses (the common
         case: one or two moduli, all free)."""
@@ -118,8 +123,7 @@ class Projected:
         L = self.L
         if len(L) == 1:
             h, hw, hh, hy = self._weighted(p, L[0])
-            t = hy / hh if hh > 0 else 0.0
-            t = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+            t = self._one_modulus(hh, hy)
             p[L[0]] = t
             return p, t * h, t * hw - self.pr.wd
         h1, hw1, a11, b1 = self._weighted(p, L[0])
@@ -137,8 +141,7 @@ class Projected:
         L = self.L
         if len(L) == 1:
             _, _, hh, hy = self._weighted(p, L[0])
-            t = hy / hh if hh > 0 else 0.0
-            t = min(max(t, self.L_lo[0]), self.L_hi[0]) if math.isfinite(t) else t
+            t = self._one_modulus(hh, hy)
             c = self.yy - 2.0 * t * hy + t * t * hh
         else:
             _, hw1, a11, b1 = self._weighted(p, L[0])
