@@ -23,7 +23,7 @@ from .compare_state import STALE, CompareState
 from .data_state import MAX_UPLOAD_BYTES, CompoundInfo, missing_items
 from .messages import Messages, guarded
 from .tables import esc, table_html
-from .ui import html
+from .ui import Deferred, html
 
 log = logging.getLogger("netstretch.app")
 
@@ -84,8 +84,14 @@ class CompareView(pn.viewable.Viewer):
         self.table = html("", css_classes=["ns-cmp-table"])
         self.plots = html("", css_classes=["ns-cmp-plots"])
         self.details = html("", css_classes=["ns-cmp-details"])
-        self.results = pn.Column(self.stale_results, self.summary, self.table, self.plots, self.details,
-                                 sizing_mode="stretch_width", css_classes=["ns-cmp-results"])
+        #: the linked per-specimen plots (HoloViews), made when the tab is first shown (``show_specimens``)
+        self._specimen_views = None
+        self._svg = False
+        self._specimens_place = Deferred(lambda: [pn.Card(
+            self.specimen_views, title="Specimens one by one: values, residuals, data and fit (linked)",
+            collapsed=False, sizing_mode="stretch_width", css_classes=["ns-cmp-specimens"])])
+        self.results = pn.Column(self.stale_results, self.summary, self.table, self._specimens_place.slot,
+                                 self.plots, self.details, sizing_mode="stretch_width", css_classes=["ns-cmp-results"])
         self._run = guarded(self.messages, "compare", "Compare")(self._run)
         self._add = guarded(self.messages, "compare-upload", "New compound")(self._add)
         self._file = guarded(self.messages, "compare-download", "Download")(self._file)
@@ -94,6 +100,33 @@ class CompareView(pn.viewable.Viewer):
         self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
         self._on_store()
+
+    # ----- the linked specimen plots ---------------------------------------------------------------------
+    @property
+    def specimen_views(self):
+        if self._specimen_views is None:
+            from .specimen_view import SpecimenViews
+
+            self._specimen_views = SpecimenViews()
+            self._specimen_views.svg = self._svg
+            self._specimen_views.set_comparison(self.state.comparison)
+        return self._specimen_views
+
+    def show_specimens(self):
+        """The tab is on screen: build the specimen plots (once; later comparisons redraw them)."""
+        self._specimens_place.ensure()
+
+    @property
+    def svg(self) -> bool:
+        return self._svg
+
+    @svg.setter
+    def svg(self, value: bool):
+        self._svg = bool(value)
+        if self._specimen_views is not None:
+            self._specimen_views.svg = self._svg
+            for overlay_pane in self._specimen_views.plots.select(pn.pane.HoloViews):
+                overlay_pane.param.trigger("object")
 
     # ----- the store and stale marks -------------------------------------------------------------------
     def _on_store(self):
@@ -157,6 +190,8 @@ class CompareView(pn.viewable.Viewer):
         self.plots.object = style + rep.section_html("plots")
         self.details.object = style + "".join(rep.section_html(n) for n in (
             "warnings", "params", "crosslink", "swelling", "provenance", "model"))
+        if self._specimen_views is not None:
+            self._specimen_views.set_comparison(cmp)
         failed = [r.error for r in cmp.results if r.error]
         if failed:
             self.messages.show("compare", "**Compare:** " + " · ".join(esc(x) for x in failed), "warning")

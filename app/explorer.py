@@ -21,11 +21,12 @@ from .plots import (
     modulus_nu_figure,
     modulus_T_figure,
     mooney_figure,
+    set_output_backend,
     set_visible_models,
     stress_figure,
 )
 from .state import NetworkState, fmt, model_colour, polymer_label
-from .ui import html
+from .ui import Deferred, html
 
 
 def readable_range(model_arrays, data=(), pad=0.06, floor=None, reach=4.0):
@@ -174,20 +175,19 @@ class ExplorerViews(pn.viewable.Viewer):
         self.stress = {}
         for mode in MODES:
             self.stress[mode.value] = stress_figure(mode.value, initial=state.models)
-        self.mooney = mooney_figure(initial=state.models)
-        self.mod_nu = modulus_nu_figure(initial=state.models)
-        self.mod_T = modulus_T_figure(initial=state.models)
-        self.force = force_T_figure()
+        #: the Mooney and moduli figures are built when their tab first opens (``set_visible``) or when code
+        #: asks for them (the properties below): a new session pays only for the force–stretch tab it shows
+        self._lazy: dict[str, object] = {}
+        #: SVG drawing for figures built from now on (the page's 'save as SVG' box sets it)
+        self.svg = False
+        self._mooney_view = Deferred(lambda: [pn.pane.Bokeh(self.mooney.fig, sizing_mode="stretch_width")],
+                                     css_classes=["ns-mooney-plot"])
+        self._moduli_view = Deferred(self._moduli_content)
         #: how many times the force–stretch views were recomputed (tests count one per upload)
         self.n_updates = 0
         self.legends = [html("", css_classes=["ns-legend"]) for _ in range(3)]
         self.limits = html("", sizing_mode="stretch_width", css_classes=["ns-limits"])
         self.inversion = html("", sizing_mode="stretch_width", css_classes=["ns-inversion"])
-        self.clamp = pn.widgets.EditableFloatSlider.from_param(
-            state.param.clamp_stretch, name=f"Clamped stretch Λ {DIMENSIONLESS}", step=0.01, format="0.00",
-            fixed_start=state.param.clamp_stretch.bounds[0], fixed_end=state.param.clamp_stretch.bounds[1],
-            width=260)
-        self.expansion = pn.widgets.Checkbox.from_param(state.param.expansion)
         self.stress_row = pn.Row(*(pn.pane.Bokeh(self.stress[m.value].fig, sizing_mode="stretch_width")
                                    for m in MODES),
                                  sizing_mode="stretch_width", css_classes=["ns-stress-plot"])
@@ -200,13 +200,58 @@ class ExplorerViews(pn.viewable.Viewer):
         self._data_overlay = {}
         self._slow_pending = False
         self._mod_nu_key = None
-        # which views are on screen (set by the page from the open tab); hidden ones catch up when opened
-        self.visible = {"mooney": True, "moduli": True}
-        self._dirty: set[str] = set()
+        # which views are on screen (set by the page from the open tab); hidden ones catch up when opened.
+        # The page opens on the force–stretch tab, so both start hidden and are drawn when first shown.
+        self.visible = {"mooney": False, "moduli": False}
+        self._dirty: set[str] = {"mooney", "moduli"}
         for w in (controls.nu, controls.N, controls.T, controls.f, controls.filler, controls.lam_max):
             w.param.watch(self._on_throttled, "value_throttled")
         self._update_fast()
         self._update_slow()
+
+    # -- figures built on first use ----------------------------------------------------------------
+    def _figure(self, key: str, build):
+        if key not in self._lazy:
+            made = build()
+            set_output_backend([made.fig], self.svg)
+            self._lazy[key] = made
+        return self._lazy[key]
+
+    @property
+    def mooney(self):
+        return self._figure("mooney", self._build_mooney)
+
+    @property
+    def mod_nu(self):
+        return self._figure("mod_nu", lambda: modulus_nu_figure(initial=self.state.models))
+
+    @property
+    def mod_T(self):
+        return self._figure("mod_T", lambda: modulus_T_figure(initial=self.state.models))
+
+    @property
+    def force(self):
+        return self._figure("force", force_T_figure)
+
+    def built_figures(self) -> list:
+        """Every Bokeh figure made so far (the page switches their backend)."""
+        return [sf.fig for sf in self.stress.values()] + [f.fig for f in self._lazy.values()]
+
+    def _build_mooney(self):
+        mf = mooney_figure(initial=self.state.models)
+        mf.data.data = self._mooney_points()
+        return mf
+
+    def _mooney_points(self) -> dict:
+        """The uniaxial data overlay as Mooney points (1/λ, reduced stress) for λ > 1.02."""
+        u = self._data_overlay.get("uniaxial", empty_points())
+        x = np.asarray(u["x"], dtype=float)
+        y = np.asarray(u["y"], dtype=float)
+        with np.errstate(all="ignore"):
+            keep = x > 1.02
+            red = y[keep] / (x[keep] - x[keep] ** -2)
+        return {"x": list(1.0 / x[keep]), "y": list(red), "color": list(np.asarray(u["color"])[keep]),
+                "file": list(np.asarray(u["file"])[keep])}
 
     # -- data overlay from the data view (uploaded curves) ------------------------------------
     def set_data_overlay(self, points: dict):
@@ -216,15 +261,8 @@ class ExplorerViews(pn.viewable.Viewer):
         self.state.data_lam_max = max(xs) if xs else None
         for mode in MODES:
             self.stress[mode.value].data.data = dict(points.get(mode.value, empty_points()))
-        u = points.get("uniaxial", empty_points())
-        x = np.asarray(u["x"], dtype=float)
-        y = np.asarray(u["y"], dtype=float)
-        with np.errstate(all="ignore"):
-            keep = x > 1.02
-            red = y[keep] / (x[keep] - x[keep] ** -2)
-        self.mooney.data.data = {"x": list(1.0 / x[keep]), "y": list(red),
-                                 "color": list(np.asarray(u["color"])[keep]),
-                                 "file": list(np.asarray(u["file"])[keep])}
+        if "mooney" in self._lazy:  # else the points are drawn when the Mooney figure is built
+            self.mooney.data.data = self._mooney_points()
         self._update_fast()
 
     #: state parameters set by sliders: their moduli/limits update waits for the slider's value_throttled
@@ -315,6 +353,8 @@ class ExplorerViews(pn.viewable.Viewer):
         """Told by the page which tab is open: hidden views are brought up to date when they open, so a
         slider move only computes what is on screen."""
         self.visible[view] = visible
+        if visible:
+            (self._mooney_view if view == "mooney" else self._moduli_view).ensure()
         if visible and view in self._dirty:
             if view == "mooney":
                 guarded(self.messages, "mooney", "Mooney plot")(self._update_mooney)()
@@ -392,17 +432,27 @@ class ExplorerViews(pn.viewable.Viewer):
                          "A neo-Hookean network is a flat line; the Mooney–Rivlin form a straight line of slope "
                          "2C₂; entanglement (tube) models rise towards 1/λ = 1; locking models turn up at "
                          "small 1/λ.</div>", sizing_mode="stretch_width"),
-            self.legends[1], pn.pane.Bokeh(self.mooney.fig, sizing_mode="stretch_width"), sizing_mode="stretch_width")
+            self.legends[1], self._mooney_view.slot, sizing_mode="stretch_width")
 
     def moduli_tab(self):
-        return pn.Column(
+        return pn.Column(self._moduli_view.slot, sizing_mode="stretch_width", css_classes=["ns-moduli"])
+
+    def _moduli_content(self):
+        # the tab's own widgets are made here, with the tab: a widget made earlier but never placed on the
+        # page would escape the session's clean-up (Panel registers an editable slider's JS link globally)
+        state = self.state
+        self.clamp = pn.widgets.EditableFloatSlider.from_param(
+            state.param.clamp_stretch, name=f"Clamped stretch Λ {DIMENSIONLESS}", step=0.01, format="0.00",
+            fixed_start=state.param.clamp_stretch.bounds[0], fixed_end=state.param.clamp_stretch.bounds[1],
+            width=260)
+        self.expansion = pn.widgets.Checkbox.from_param(state.param.expansion)
+        return [
             self.legends[2],
             pn.Row(pn.pane.Bokeh(self.mod_nu.fig, sizing_mode="stretch_width"),
                    pn.pane.Bokeh(self.mod_T.fig, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
             pn.Row(pn.Column(pn.pane.Bokeh(self.force.fig, sizing_mode="stretch_width"),
                              pn.Row(self.clamp, self.expansion), self.inversion, sizing_mode="stretch_width"),
-                   pn.Column(self.limits, sizing_mode="stretch_width"), sizing_mode="stretch_width"),
-            sizing_mode="stretch_width", css_classes=["ns-moduli"])
+                   pn.Column(self.limits, sizing_mode="stretch_width"), sizing_mode="stretch_width")]
 
     def __panel__(self):
         return self.stress_tab()

@@ -29,6 +29,7 @@ from .plots import (
     empty_columns,
     empty_points,
     model_lines,
+    set_output_backend,
     set_visible_models,
 )
 from .state import model_colour, sig
@@ -42,7 +43,7 @@ from .tables import (
     table_html,
     warnings_html,
 )
-from .ui import html
+from .ui import Deferred, html
 
 log = logging.getLogger("netstretch.app")
 
@@ -124,8 +125,13 @@ class FitPanel(pn.viewable.Viewer):
         self.dl_report = pn.widgets.FileDownload(
             callback=lambda: self._report_file(), filename="fit-report.html", label="Download fit report (HTML)",
             button_type="success", width=250, css_classes=["ns-fit-report"])
-        self.figs = {m.value: fit_figure(m.value, initial=s.fit_models) for m in MODES}
-        self.rms_fig, self.rms_src = rms_figure()
+        #: the fit and residual figures are built when the tab is first shown (``show_figures``) or when code
+        #: asks for ``figs``: a new session does not pay for a tab it has not opened
+        self._figs: dict[str, FitFigure] | None = None
+        self._rms = None
+        #: SVG drawing for figures built from now on (the page's 'save as SVG' box sets it)
+        self.svg = False
+        self._figures_view = Deferred(self._figure_panes)
         self.params_html = html("", css_classes=["ns-param-table"])
         self.quality_html = html("", css_classes=["ns-fit-quality"])
         self.xlink_html = html("", css_classes=["ns-crosslinks"])
@@ -140,14 +146,76 @@ class FitPanel(pn.viewable.Viewer):
         self._boxes = {}
         self._layout = self._build()
 
+    # ----- figures, built on first use ------------------------------------------------------------------
+    @property
+    def figs(self) -> dict[str, FitFigure]:
+        if self._figs is None:
+            self._figs = {m.value: fit_figure(m.value, initial=self.state.fit_models) for m in MODES}
+            self._rms = rms_figure()
+            set_output_backend(self.built_figures(), self.svg)
+            self._draw_figures()
+        return self._figs
+
+    @property
+    def rms_fig(self):
+        self.figs  # noqa: B018  (builds the figures when not yet built)
+        return self._rms[0]
+
+    @property
+    def rms_src(self) -> ColumnDataSource:
+        self.figs  # noqa: B018
+        return self._rms[1]
+
+    def built_figures(self) -> list:
+        """Every Bokeh figure made so far (the page switches their backend)."""
+        if self._figs is None:
+            return []
+        return [f for ff in self._figs.values() for f in (ff.fig, ff.resid_fig)] + [self._rms[0]]
+
+    def show_figures(self):
+        """The tab is on screen: build its figures (once) and put them in the layout."""
+        self._figures_view.ensure()
+
+    def _figure_panes(self):
+        rows = []
+        for mode in MODES:
+            ff = self.figs[mode.value]
+            box = pn.Column(pn.pane.Bokeh(ff.fig, sizing_mode="stretch_width"),
+                            pn.pane.Bokeh(ff.resid_fig, sizing_mode="stretch_width"), sizing_mode="stretch_width",
+                            visible=mode.value in self._data_modes())
+            self._boxes[mode.value] = box
+            rows.append(box)
+        return [pn.Row(*rows, sizing_mode="stretch_width"), pn.pane.Bokeh(self.rms_fig, sizing_mode="stretch_width")]
+
+    def _data_modes(self) -> set[str]:
+        return {c.mode.value for c in self.state.selected_curves()}
+
     # ----- drawing --------------------------------------------------------------------------------------
     def draw(self):
+        s = self.state
+        pts = s.overlay_points()
+        with pn.io.hold():
+            if self._figs is not None:
+                self._draw_figures()
+            self.params_html.object = table_html(parameter_rows(s.results, self.units), "ns-params")
+            self.quality_html.object = table_html(fit_quality_rows(s.results, self.units), "ns-quality")
+            self.warn_html.object = warnings_html(grouped_warnings(s.warnings()))
+            legend = "".join(
+                f"<span class='ns-leg-item'><span class='ns-leg-line' style='background:{model_colour(n)}'></span>"
+                f"{esc(r.title)} (G₀ = {sig(self.units.s(r.small_strain_modulus), 3)} {self.units.stress})</span>"
+                for n, r in s.results.items())
+            files = ", ".join(esc(n) for n in s.selected) or "none"
+            self.summary.object = (f"<div class='ns-small'>Fitted to: {files} ({s.residual} residuals).</div>"
+                                   f"<div class='ns-legend-box'>{legend}</div>" + data_legend_html(pts))
+        self._table()
+
+    def _draw_figures(self):
         s = self.state
         fc = s.fitted_curves()
         rp = s.residual_points()
         pts = s.overlay_points()
         shown = set(s.results)
-        data_modes = {c.mode.value for c in s.selected_curves()}
+        data_modes = self._data_modes()
         k = self.units.s(1e6)  # the state draws MPa; the plots follow the display unit
         unit = self.units.stress
         with pn.io.hold():
@@ -161,32 +229,23 @@ class FitPanel(pn.viewable.Viewer):
                 ff.resid_fig.yaxis.axis_label = f"model − data ({unit})"
                 set_visible_models(ff.lines, shown)
                 ff.fig.x_range.start, ff.fig.x_range.end = 1.0, float(cols["lam"][-1])
-                self._boxes[mode.value].visible = mode.value in data_modes
+                if mode.value in self._boxes:
+                    self._boxes[mode.value].visible = mode.value in data_modes
             self._draw_rms()
-            self.params_html.object = table_html(parameter_rows(s.results, self.units), "ns-params")
-            self.quality_html.object = table_html(fit_quality_rows(s.results, self.units), "ns-quality")
-            self.warn_html.object = warnings_html(grouped_warnings(s.warnings()))
-            legend = "".join(
-                f"<span class='ns-leg-item'><span class='ns-leg-line' style='background:{model_colour(n)}'></span>"
-                f"{esc(r.title)} (G₀ = {sig(self.units.s(r.small_strain_modulus), 3)} {self.units.stress})</span>"
-                for n, r in s.results.items())
-            files = ", ".join(esc(n) for n in s.selected) or "none"
-            self.summary.object = (f"<div class='ns-small'>Fitted to: {files} ({s.residual} residuals).</div>"
-                                   f"<div class='ns-legend-box'>{legend}</div>" + data_legend_html(pts))
-        self._table()
 
     def _draw_rms(self):
         res = self.state.results
         names = sorted(res, key=lambda n: overall_rms(res[n]))
         vals = [self.units.s(overall_rms(res[n])) for n in names]
         titles = [res[n].title for n in names]
-        self.rms_src.data = {"model": titles, "rms": vals, "color": [model_colour(n) for n in names],
-                             "label": [sig(v, 3) for v in vals]}
-        self.rms_fig.y_range.factors = titles[::-1]
-        self.rms_fig.xaxis.axis_label = f"RMS residual ({self.units.stress})"
+        fig, src = self._rms
+        src.data = {"model": titles, "rms": vals, "color": [model_colour(n) for n in names],
+                    "label": [sig(v, 3) for v in vals]}
+        fig.y_range.factors = titles[::-1]
+        fig.xaxis.axis_label = f"RMS residual ({self.units.stress})"
         finite = [v for v in vals if np.isfinite(v)]
-        self.rms_fig.x_range.end = 1.25 * max(finite) if finite else 1.0
-        self.rms_fig.visible = bool(names)
+        fig.x_range.end = 1.25 * max(finite) if finite else 1.0
+        fig.visible = bool(names)
 
     def _table(self):
         s = self.state
@@ -236,13 +295,6 @@ class FitPanel(pn.viewable.Viewer):
 
     # ----- layout ---------------------------------------------------------------------------------------
     def _build(self):
-        rows = []
-        for mode in MODES:
-            ff = self.figs[mode.value]
-            box = pn.Column(pn.pane.Bokeh(ff.fig, sizing_mode="stretch_width"),
-                            pn.pane.Bokeh(ff.resid_fig, sizing_mode="stretch_width"), sizing_mode="stretch_width")
-            self._boxes[mode.value] = box
-            rows.append(box)
         return pn.Column(
             html("<div class='ns-side-h'>Fit</div>"), self.fit_models,
             pn.Row(pn.Column(html("<div class='ns-small'>Residual</div>"), self.residual), self.polymer, self.f,
@@ -250,8 +302,7 @@ class FitPanel(pn.viewable.Viewer):
             pn.Row(html("<div class='ns-small'>Tables show stress in</div>", width=150), self.stress_unit,
                    html("<div class='ns-small'>and crosslink density in</div>", width=170), self.density_unit),
             self.messages,
-            pn.Column(self.summary, pn.Row(*rows, sizing_mode="stretch_width"),
-                      pn.pane.Bokeh(self.rms_fig, sizing_mode="stretch_width"), self.warn_html,
+            pn.Column(self.summary, self._figures_view.slot, self.warn_html,
                       self.xlink_html, pn.Row(self.to_explorer, self.dl_report), self.action_messages,
                       html("<h4 class='ns-h4'>Fitted parameters (95 % intervals)</h4>"), self.params_html,
                       html("<h4 class='ns-h4'>Fit statistics</h4>"), self.quality_html,

@@ -98,11 +98,15 @@ def _build_page(load_samples: bool = True):
         name = tabs[main_tabs.active][0] if 0 <= main_tabs.active < len(tabs) else ""
         explorer.set_visible("mooney", name == "Mooney plot")
         explorer.set_visible("moduli", name == "Moduli & limits")
+        if name == "Test data & fits":
+            data_view.fit.show_figures()
+        if name == "Compare":
+            compare.show_specimens()
 
     main_tabs.param.watch(on_tab, "active")
     on_tab()
     svg = pn.widgets.Checkbox(name="Plots save as SVG (else PNG)", value=False, css_classes=["ns-svg-export"])
-    svg.param.watch(lambda e: _switch_backend(page, e.new), "value")
+    svg.param.watch(lambda e: _switch_backend(page, e.new, (explorer, data_view.fit, compare)), "value")
     side = pn.Column(controls, pn.Column(svg, margin=(4, 10)), width=340, css_classes=["ns-side"], scroll=True,
                      margin=(0, 8, 0, 0))
     body = pn.Row(side, pn.Column(project, messages, main_tabs, sizing_mode="stretch_width"),
@@ -133,9 +137,12 @@ def _load_samples(session: Session) -> list[str]:
     return [f"Some sample files could not be read: {p}" for p in problems]
 
 
-def _switch_backend(page, svg: bool):
+def _switch_backend(page, svg: bool, lazy_views=()):
     """PNG or SVG drawing for every plot of the page: the figures change backend and their panes are
-    re-rendered (a backend change alone does not rebuild a figure already on screen)."""
+    re-rendered (a backend change alone does not rebuild a figure already on screen).  Views that build
+    figures on first use (``lazy_views``, each with an ``svg`` flag) build later ones in the same backend."""
+    for view in lazy_views:
+        view.svg = svg
     panes = page.select(pn.pane.Bokeh)
     set_output_backend([p.object for p in panes], svg)
     for p in panes:

@@ -15,3 +15,23 @@ def html(text: str = "", **kw) -> pn.pane.HTML:
         kw.setdefault("sizing_mode", "stretch_width")
     kw.setdefault("stylesheets", [CSS])
     return pn.pane.HTML(text, **kw)
+
+
+class Deferred:
+    """A place on the page whose content is built the first time it is shown (a hidden tab's figures cost a
+    new session nothing until the tab is opened).  ``slot`` goes into the layout; ``ensure()`` builds."""
+
+    def __init__(self, build, **kw):
+        self._build = build
+        kw.setdefault("sizing_mode", "stretch_width")
+        self.slot = pn.Column(**kw)
+
+    @property
+    def built(self) -> bool:
+        return self._build is None
+
+    def ensure(self):
+        if self._build is not None:
+            build, self._build = self._build, None
+            self.slot.objects = list(build())
+        return self.slot

@@ -99,6 +99,30 @@ def test_released_page_is_collected():
     assert state_ref() is None, "the session's NetworkState outlived its page"
 
 
+@pytest.mark.parametrize("open_tabs", [False, True])
+def test_released_page_frees_its_views(open_tabs):
+    """Every view of a session goes with its page, whether its hidden tabs were never opened (their figures
+    and widgets not yet built) or all opened (built on first view)."""
+    import panel as pn
+
+    from app.main import create_app
+
+    page = create_app()
+    if open_tabs:
+        tabs = page.select(pn.Tabs)[0]
+        for i in range(len(tabs)):
+            tabs.active = i
+        del tabs
+        assert page.ns_data.fit._figs is not None and "mod_nu" in page.ns_explorer._lazy
+    else:
+        assert page.ns_data.fit._figs is None and not page.ns_explorer._lazy  # hidden tabs cost nothing yet
+    refs = [weakref.ref(o) for o in (page.ns_explorer, page.ns_data.fit, page.ns_data, page.ns_session)]
+    server._release(page)
+    del page
+    gc.collect()
+    assert [r() is None for r in refs] == [True] * len(refs)
+
+
 def test_names_in_messages_are_escaped():
     from app.messages import Messages, guarded
 

@@ -122,6 +122,22 @@ def test_garbage_upload_gives_message_and_keeps_data(app_page):
     wait_text(page, ".ns-readout", "100 mol/m³")  # μ_j = 2ν/f at f = 4
 
 
+def test_hidden_tabs_build_on_first_view_and_compare_links_specimens(app_page):
+    """The Mooney, moduli and Compare tabs are built when first opened; on Compare, choosing a specimen in
+    the list selects it in the linked specimen plots (its line names it) without a console error."""
+    page = app_page
+    open_tab(page, "Mooney", ".ns-mooney-plot canvas")
+    open_tab(page, "Moduli", ".ns-lock-table")
+    open_tab(page, "Compare", ".ns-spec-pick select")
+    page.locator(".ns-spec-plots canvas").first.wait_for(state="attached", timeout=30000)
+    sel = page.locator(".ns-spec-pick select").first
+    options = sel.locator("option").all_inner_texts()
+    assert len(options) > 3 and all(" · " in o for o in options)  # "compound · specimen"
+    sel.select_option(label=options[3])
+    wait_text(page, ".ns-spec-info", options[3])
+    assert page.ns_errors == [], f"console errors: {page.ns_errors}"
+
+
 def test_two_sessions_do_not_share_uploads(chromium_browser, app_server):
     ctxs = [chromium_browser.new_context(viewport={"width": 1366, "height": 768}) for _ in range(2)]
     try:

@@ -104,6 +104,8 @@ class SpecimenResult:
     fit_se: dict[str, float | None] = field(default_factory=dict)
     warnings: list[str] = field(default_factory=list)
     note: str = ""
+    #: the specimen's own fitted parameters (SI, as the model names them); empty when its fit failed
+    params: dict[str, float] = field(default_factory=dict)
 
     @property
     def modes(self) -> list[str]:
@@ -136,6 +138,7 @@ def read_specimen(model, fr, compound, T: float, spec: SpecimenResult, propagate
     from ..crosslinks import from_fit
 
     values = fr.values
+    spec.params = {k: float(v) for k, v in values.items()}
     V, S = spec.values, spec.fit_se
     V["G0"] = float(model.small_strain_modulus(**values))
     S["G0"] = propagate(lambda p: model.small_strain_modulus(**p), fr)
