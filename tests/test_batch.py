@@ -178,3 +178,52 @@ def test_to_frame(tree, tmp_path):
     assert len(df) == len(read_results(out)) and df["G"].dtype.kind == "f"
     row = df[df["file"] == "2024/run1.csv"].iloc[0]
     assert row["G"] == pytest.approx(Gs["2024/run1.csv"], rel=1e-6)  # Treloar's neo-Hookean G, as generated
+
+
+@pytest.fixture
+def hundred(tmp_path):
+    """A hundred files over a year/batch folder tree, mixed as an archive is: the sample set's CSV, TXT (psi),
+    XLSX and raw instrument exports (French and German headers), curves made here, and a few that cannot be
+    read."""
+    root = tmp_path / "qc"
+    kinds = sorted(p for p in SAMPLES.glob("*_*.*") if p.suffix in (".csv", ".txt", ".xlsx")
+                   and "force_temperature" not in p.name) + sorted((SAMPLES / "raw_exports").glob("*.csv"))
+    n = 0
+    while n < 92:
+        src = kinds[n % len(kinds)]
+        dest = root / f"20{24 + n % 3}" / f"batch-{n % 7}" / f"{n:03d}-{src.name}"
+        dest.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copy(src, dest)
+        n += 1
+    for i in range(4):
+        _neo_file(root / "made" / f"neo{i}.csv", 0.4e6 + 0.05e6 * i, noise=0.01, seed=i)
+    for i in range(4):
+        (root / "made" / f"broken{i}.csv").write_bytes(b"\x00\xff" * (i + 1))
+    assert sum(1 for p in root.rglob("*") if p.is_file()) == 100
+    return root
+
+
+@pytest.mark.slow
+def test_hundred_mixed_files_same_results_in_one_two_processes_and_dask(hundred, tmp_path):
+    """The archive run of the issue: every readable file fitted, the unreadable ones listed with a sentence,
+    and byte-identical results from 1 process, 2 processes and a Dask cluster."""
+    one, two = tmp_path / "one.csv", tmp_path / "two.csv"
+    run_batch([hundred], "eight-chain", one, progress=False)
+    run_batch([hundred], "eight-chain", two, jobs=2, progress=False)
+    assert two.read_bytes() == one.read_bytes()
+    assert (tmp_path / "two.failures.csv").read_bytes() == (tmp_path / "one.failures.csv").read_bytes()
+    rows = read_results(one)
+    files = {r["file"] for r in rows}
+    swelling = sorted(str(p.relative_to(hundred)) for p in hundred.rglob("*swelling_toluene.csv"))
+    assert swelling  # a swelling table in the archive: not a stress–stretch curve, listed as unreadable
+    assert len(files) == 96 - len(swelling)
+    assert any(f.endswith(".xlsx") for f in files) and any(f.endswith(".txt") for f in files)
+    assert any("zugversuch" in f for f in files) and any("traction" in f for f in files)
+    failed = (tmp_path / "one.failures.csv").read_text("utf-8")
+    assert all(f"made/broken{i}.csv" in failed for i in range(4))
+    assert all(name in failed for name in swelling) and "no stretch, strain or extension column" in failed
+    distributed = pytest.importorskip("distributed", reason="the [cluster] extra is not installed")
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as lc:
+        run_batch([hundred], "eight-chain", tmp_path / "dask.csv", scheduler=lc.scheduler_address, progress=False)
+    assert (tmp_path / "dask.csv").read_bytes() == one.read_bytes()
+    assert (tmp_path / "dask.failures.csv").read_bytes() == (tmp_path / "one.failures.csv").read_bytes()
