@@ -86,6 +86,8 @@ class DesignView(pn.viewable.Viewer):
         self.explorer_state = explorer_state
         self.messages = messages or Messages(area="design")
         self.on_pick = on_pick
+        #: SVG drawing for the map (the page's 'save as SVG' box sets it; the map is made at each run)
+        self.svg = False
         s = self.state
         self.rows = pn.Column(sizing_mode="stretch_width", css_classes=["ns-design-targets"])
         for t in s.targets:
@@ -187,6 +189,7 @@ class DesignView(pn.viewable.Viewer):
         measured = [(n, v[0], s.y_of(v[0])) for n, v in s.compound_advice.items() if v[0] is not None]
         fig, self._cur_source = map_figure(s.map, cur, compound, measured=measured)
         fig.on_event(Tap, self._on_tap)
+        fig.output_backend = "svg" if self.svg else "canvas"
         self.map_pane.object = fig
         self.models_pane.object = self._models_html()
         return res

@@ -106,7 +106,7 @@ def _build_page(load_samples: bool = True):
     main_tabs.param.watch(on_tab, "active")
     on_tab()
     svg = pn.widgets.Checkbox(name="Plots save as SVG (else PNG)", value=False, css_classes=["ns-svg-export"])
-    svg.param.watch(lambda e: _switch_backend(page, e.new, (explorer, data_view.fit, compare)), "value")
+    svg.param.watch(lambda e: _switch_backend(page, e.new, (explorer, data_view.fit, compare, design)), "value")
     side = pn.Column(controls, pn.Column(svg, margin=(4, 10)), width=340, css_classes=["ns-side"], scroll=True,
                      margin=(0, 8, 0, 0))
     body = pn.Row(side, pn.Column(project, messages, main_tabs, sizing_mode="stretch_width"),
@@ -143,7 +143,7 @@ def _switch_backend(page, svg: bool, lazy_views=()):
     figures on first use (``lazy_views``, each with an ``svg`` flag) build later ones in the same backend."""
     for view in lazy_views:
         view.svg = svg
-    panes = page.select(pn.pane.Bokeh)
+    panes = [p for p in page.select(pn.pane.Bokeh) if p.object is not None]  # an empty place has no figure yet
     set_output_backend([p.object for p in panes], svg)
     for p in panes:
         p.param.trigger("object")

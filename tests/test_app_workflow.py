@@ -377,3 +377,26 @@ def test_the_same_notice_from_several_models_is_one_line_naming_them():
     n = Notice("NR crystallises under strain above λ ≈ 3", "strain-crystallisation")
     g = grouped_warnings([about("Eight chain", n), about("Extended tube", n), about("Gent", Notice("other", "x"))])
     assert g["Strain crystallisation"] == ["NR crystallises under strain above λ ≈ 3 (Eight chain, Extended tube)"]
+
+
+def test_svg_box_reaches_figures_built_later():
+    """'Plots save as SVG' switches the figures on screen, and the figures of tabs opened afterwards (built on
+    first view: fit, Mooney, moduli, the specimen plots) are made in SVG too; unticking goes back to canvas."""
+    from app.main import create_app
+
+    pg = create_app()
+    ex, fit = pg.ns_explorer, pg.ns_data.fit
+    assert fit._figs is None and not ex._lazy  # hidden tabs not built yet
+    box = next(w for w in pg.select(pn.widgets.Checkbox) if "ns-svg-export" in w.css_classes)
+    box.value = True
+    assert {sf.fig.output_backend for sf in ex.stress.values()} == {"svg"}
+    tabs = pg.select(pn.Tabs)[0]
+    for i in range(len(tabs)):
+        tabs.active = i
+    later = fit.built_figures() + [ex.mooney.fig, ex.mod_nu.fig, ex.mod_T.fig, ex.force.fig]
+    assert later and {f.output_backend for f in later} == {"svg"}
+    assert pg.ns_compare.specimen_views.svg is True
+    pg.ns_design.compute()  # the design map is made at each run: in SVG too
+    assert pg.ns_design.map_pane.object.output_backend == "svg"
+    box.value = False
+    assert {f.output_backend for f in ex.built_figures() + fit.built_figures()} == {"canvas"}
