@@ -32,13 +32,18 @@ def test_every_core_subpackage_is_listed_for_the_wheel():
     assert PYPROJECT["tool"]["setuptools"]["package-dir"]["netstretch_app"] == "app"
 
 
-def test_every_sample_file_kind_ships():
-    patterns = PYPROJECT["tool"]["setuptools"]["package-data"]["network_models.sample_data"]
+@pytest.mark.parametrize("folder", ["", "raw_exports"])
+def test_every_sample_file_kind_ships(folder):
+    package = "network_models.sample_data" + (f".{folder}" if folder else "")
+    assert package in PYPROJECT["tool"]["setuptools"]["packages"]  # a sub-folder is a package of its own
+    patterns = PYPROJECT["tool"]["setuptools"]["package-data"][package]
     suffixes = {p.removeprefix("*") for p in patterns}
-    data = [p for p in (ROOT / "sample_sets").iterdir() if p.is_file() and p.suffix != ".py"]
+    data = [p for p in (ROOT / "sample_sets" / folder).iterdir() if p.is_file() and p.suffix != ".py"]
     assert data
     for p in data:
-        assert p.suffix in suffixes, f"{p.name}: add '*{p.suffix}' to the sample_data package-data in pyproject.toml"
+        assert p.suffix in suffixes, f"{p.name}: add '*{p.suffix}' to the {package} package-data in pyproject.toml"
+    subfolders = {p.name for p in (ROOT / "sample_sets").iterdir() if p.is_dir() and not p.name.startswith((".", "_"))}
+    assert subfolders <= {"raw_exports"}, f"list {sorted(subfolders)} as packages in pyproject.toml"
 
 
 def test_one_version_string(capsys):
