@@ -2,7 +2,8 @@
 # Wheel smoke check (run by .ci/run, not by `make test`): build the wheel, install it into a fresh virtual
 # environment in a temporary folder OUTSIDE the checkout, and use it there as a new user would:
 #   netstretch --version; netstretch samples DIR; netstretch compare --manifest DIR/compounds.toml --json
-#   (one JSON object); netstretch serve on a free localhost port, page fetched, log free of tracebacks/errors.
+#   (one JSON object); netstretch batch DIR with 1 and 2 processes (identical files); netstretch serve on a free
+#   localhost port, page fetched, log free of tracebacks/errors.
 # Usage: bash .ci/wheel_smoke.sh [PYTHON]   (default python3; the wheel is built with that interpreter's pip)
 set -euo pipefail
 ROOT="$(cd "$(dirname "$0")/.." && pwd)"
@@ -40,6 +41,18 @@ import json, sys
 doc = json.loads(open(sys.argv[1], encoding="utf-8").read())
 assert isinstance(doc, dict), f"compare --json printed a {type(doc).__name__}, not a JSON object"
 print(f"[wheel] compare --json: an object with keys {sorted(doc)[:6]}")
+EOF
+
+# batch over the written samples, one process and two: the same result file, unreadable files listed
+"$WORK/venv/bin/netstretch" batch "$WORK/samples" --model eight-chain -o "$WORK/one.csv" --no-progress
+"$WORK/venv/bin/netstretch" batch "$WORK/samples" --model eight-chain -o "$WORK/two.csv" --jobs 2 --no-progress
+cmp -s "$WORK/one.csv" "$WORK/two.csv" || { echo "[wheel] batch: 1 and 2 processes gave different results"; exit 1; }
+"$VPY" - "$WORK/one.csv" <<'EOF'
+import csv, sys
+rows = list(csv.DictReader(open(sys.argv[1], encoding="utf-8")))
+files = {r["file"] for r in rows}
+assert len(files) >= 10 and all(r["G0"] for r in rows), f"batch fitted {len(files)} sample files"
+print(f"[wheel] batch: {len(rows)} curves from {len(files)} files, identical with --jobs 2")
 EOF
 
 "$VPY" - <<'EOF'

@@ -16,7 +16,8 @@ import importlib.resources
 import shutil
 from pathlib import Path
 
-__all__ = ["SAMPLE_FILE_SUFFIXES", "SAMPLE_MANIFEST", "sample_dir", "sample_files", "write_samples"]
+__all__ = ["SAMPLE_FILE_SUFFIXES", "SAMPLE_MANIFEST", "SAMPLE_SUBFOLDERS", "sample_dir", "sample_files",
+           "write_samples"]
 
 #: what a sample set consists of (the generator script and caches are not copied out)
 SAMPLE_FILE_SUFFIXES = (".csv", ".tsv", ".txt", ".xlsx", ".toml", ".md")
@@ -52,28 +53,37 @@ def _manifest_path() -> Path:
 SAMPLE_MANIFEST: Path = _manifest_path()
 
 
-def sample_files() -> list[Path]:
-    """The sample set's files (data, manifest, README), sorted by name."""
+#: sub-folders of the sample set copied out with it (raw instrument exports with French and German headers)
+SAMPLE_SUBFOLDERS = ("raw_exports",)
+
+
+def sample_files(subfolders: bool = False) -> list[Path]:
+    """The sample set's files (data, manifest, README), sorted by name; with ``subfolders`` also the files
+    of ``SAMPLE_SUBFOLDERS`` (after the top-level ones)."""
     d = sample_dir()
-    return sorted(p for p in d.iterdir() if p.is_file() and p.suffix.lower() in SAMPLE_FILE_SUFFIXES)
+    folders = [d] + ([d / name for name in SAMPLE_SUBFOLDERS if (d / name).is_dir()] if subfolders else [])
+    return [p for f in folders
+            for p in sorted(p for p in f.iterdir() if p.is_file() and p.suffix.lower() in SAMPLE_FILE_SUFFIXES)]
 
 
 def write_samples(dest, overwrite: bool = False) -> list[Path]:
-    """Copy the sample set (files + ``compounds.toml``) into folder ``dest`` (created if needed).
+    """Copy the sample set (files + ``compounds.toml``, and the ``raw_exports/`` sub-folder) into folder
+    ``dest`` (created if needed).
 
     Refuses (FileExistsError with a sentence) to replace a file that differs, unless ``overwrite``.
     Returns the written paths."""
     dest = Path(dest)
     if dest.exists() and not dest.is_dir():
         raise NotADirectoryError(f"{dest} is a file; give a folder to write the sample set into")
-    files = sample_files()
-    clash = [p.name for p in files if (dest / p.name).exists() and (dest / p.name).read_bytes() != p.read_bytes()]
+    root = sample_dir()
+    pairs = [(p, dest / p.relative_to(root)) for p in sample_files(subfolders=True)]
+    clash = [str(t.relative_to(dest)) for p, t in pairs if t.exists() and t.read_bytes() != p.read_bytes()]
     if clash and not overwrite:
         raise FileExistsError(f"{dest} already holds different files called {', '.join(clash)}; choose an empty "
                               "folder or add --overwrite")
-    dest.mkdir(parents=True, exist_ok=True)
     out = []
-    for p in files:
-        shutil.copyfile(p, dest / p.name)
-        out.append(dest / p.name)
+    for p, t in pairs:
+        t.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copyfile(p, t)
+        out.append(t)
     return out

@@ -76,6 +76,10 @@ def test_samples_command_writes_a_usable_set(tmp_path, capsys):
     man = testdata.read_manifest(dest / "compounds.toml")  # the copy reads on its own
     assert {c.key for c in man} == {c.key for c in testdata.read_manifest()}
     assert "compare --manifest" in capsys.readouterr().out
+    # the raw instrument exports come along in their sub-folder and read from there
+    raw = sorted((dest / "raw_exports").glob("*.csv"))
+    assert [p.name for p in raw] == sorted(p.name for p in (samples.sample_dir() / "raw_exports").glob("*.csv"))
+    assert all(testdata.read_curves(p) for p in raw)
     # a second time into the same folder: identical files, nothing refused
     assert main(["samples", str(dest)]) == 0
     (dest / "compounds.toml").write_text("changed", encoding="utf-8")
