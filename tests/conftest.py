@@ -35,21 +35,7 @@ CHROMIUM_ARGS = [
     "--disable-sync", "--no-first-run", "--disable-quic",
 ]
 
-#: JavaScript: the visible text of every element matching a CSS selector, looking inside shadow roots
-#: (Panel/Bokeh render each component in its own shadow DOM); style/script text is left out.
-DEEP_TEXT_JS = """(sel) => {
-  const out = [];
-  const find = (n) => { if (n.matches && n.matches(sel)) out.push(n);
-    if (n.shadowRoot) find(n.shadowRoot); for (const c of n.children || []) find(c); };
-  find(document.body);
-  const text = (n) => { if (n.nodeType === 3) return n.textContent;
-    if (n.nodeType !== 1 && n.nodeType !== 11) return '';
-    if (n.nodeType === 1 && ['STYLE', 'SCRIPT', 'LINK'].includes(n.tagName)) return '';
-    let t = ''; if (n.shadowRoot) t += text(n.shadowRoot);
-    for (const c of n.childNodes) t += text(c);
-    return t + ' '; };
-  return out.map(text).join(' | ').replace(/\\s+/g, ' ');
-}"""
+from _browser import DEEP_TEXT_JS  # noqa: E402  (the one copy; browser helpers live there)
 
 
 def _require_browser() -> bool:

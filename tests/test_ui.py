@@ -10,6 +10,7 @@ from pathlib import Path
 from urllib.parse import urlparse
 
 import pytest
+from _browser import DEEP_TEXT_JS, open_tab, text, wait_text
 from scipy.constants import R
 
 pytestmark = pytest.mark.ui
@@ -21,40 +22,9 @@ STRESS_AT = """(i) => { const s = Bokeh.documents[0].get_model_by_name('ns-stres
                         return [s.data['lam'][i], s.data['affine'][i]]; }"""
 
 
-DEEP_TEXT_JS = ""  # set from the conftest fixture (shared with other browser tests)
-
-
-@pytest.fixture(autouse=True)
-def _deep_text(deep_text_js):
-    global DEEP_TEXT_JS
-    DEEP_TEXT_JS = deep_text_js
-
-
-def text(page, selector: str) -> str:
-    return page.evaluate(DEEP_TEXT_JS, selector)
-
-
-def open_tab(page, label: str, ready: str):
-    """Click a tab until its content (``ready`` selector) is there: a click sent while the page is still
-    settling can be lost, so it is repeated."""
-    for _ in range(10):
-        page.locator(".bk-tab", has_text=label).first.click()
-        try:
-            page.locator(ready).first.wait_for(state="attached", timeout=4000)
-            return
-        except Exception:
-            continue
-    raise AssertionError(f"the tab {label!r} did not open")
-
-
 def open_data_tab(page):
     open_tab(page, "Test data", ".ns-upload input[type=file]")
     page.wait_for_function(f"() => ({DEEP_TEXT_JS})('.ns-fit-summary').includes('Fitted to')", timeout=30000)
-
-
-def wait_text(page, selector: str, needle: str, timeout=30000):
-    page.wait_for_function(
-        f"([sel, n]) => ({DEEP_TEXT_JS})(sel).includes(n)", arg=[selector, needle], timeout=timeout)
 
 
 def test_page_loads_offline_without_console_errors(app_page):

@@ -1,7 +1,7 @@
 """Browser tests of the connected workflow (system Chromium, headless): one data store across tabs, stale
 marks and what a download carries, save → reopen a project, and messages that stay next to their button.
 
-Fixtures (server, browser, DEEP_TEXT_JS) are in conftest.py; helpers as in test_ui.py.
+Fixtures (server, browser) are in conftest.py; the text and tab helpers in _browser.py.
 """
 
 from __future__ import annotations
@@ -12,37 +12,11 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from _browser import DEEP_TEXT_JS as JS
+from _browser import open_tab, text, wait_text
 from scipy.constants import R
 
 pytestmark = pytest.mark.ui
-
-JS = ""
-
-
-@pytest.fixture(autouse=True)
-def _deep_text(deep_text_js):
-    global JS
-    JS = deep_text_js
-
-
-def text(page, selector: str) -> str:
-    return page.evaluate(JS, selector)
-
-
-def wait_text(page, selector: str, needle: str, timeout=45000):
-    page.wait_for_function(f"([sel, n]) => ({JS})(sel).includes(n)", arg=[selector, needle], timeout=timeout)
-
-
-def open_tab(page, label: str, ready: str):
-    for _ in range(10):
-        page.locator(".bk-tab", has_text=label).first.click()
-        try:
-            page.locator(ready).first.wait_for(state="attached", timeout=4000)
-            return
-        except Exception:
-            continue
-    raise AssertionError(f"the tab {label!r} did not open")
-
 
 def gauss_csv(nu: float) -> bytes:
     # affine network P = νRT(λ − λ⁻²) at 23 °C (Treloar 1975, ch. 4); R from scipy.constants (CODATA)
