@@ -30,20 +30,17 @@ from __future__ import annotations
 import contextlib
 import os
 import shutil
-import socket
 import statistics
-import subprocess
-import sys
-import tempfile
 import time
 from pathlib import Path
 
 import numpy as np
 
+from .common import netstretch_server
+
 CHROMIUM = os.environ.get("NETSTRETCH_CHROMIUM", "/usr/bin/chromium")
 FLAGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
          "--disable-sync", "--no-first-run", "--disable-quic"]
-ROOT = Path(__file__).resolve().parent.parent
 WARMUP = 2
 SETTLE_MS = 150
 MIN_BUDGET_S = 12.0  # server start + page load + 22 presses on a quiet machine
@@ -132,51 +129,11 @@ _RESULT = """
 """
 
 
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
-def _wait_port(port: int, proc, timeout: float) -> None:
-    """Wait until the server accepts TCP connections.  (Not an HTTP GET of the page: each GET builds a whole
-    app session, and polling with short timeouts would pile sessions up on a busy machine.)"""
-    t_end = time.monotonic() + timeout
-    while time.monotonic() < t_end:
-        if proc.poll() is not None:
-            raise RuntimeError(f"the app server exited with code {proc.returncode} before serving")
-        try:
-            with socket.create_connection(("127.0.0.1", port), timeout=1):
-                return
-        except OSError:
-            time.sleep(0.2)
-    raise RuntimeError(f"the app server did not listen on port {port} within {timeout:.0f} s")
-
-
 @contextlib.contextmanager
 def app_server(timeout: float = 60.0):
-    """Start ``netstretch serve`` on a free localhost port; yields (url, log path); stops it by its pid."""
-    port = _free_port()
-    log = tempfile.NamedTemporaryFile(  # noqa: SIM115 - kept open for the server's lifetime, closed below
-        "w+", prefix="netstretch-bench-server-", suffix=".log", delete=False)
-    code = ("import sys; from network_models.cli import main; "
-            f"sys.exit(main(['serve', '--port', '{port}', '--address', 'localhost']))")
-    env = dict(os.environ, PYTHONUNBUFFERED="1")
-    proc = subprocess.Popen([sys.executable, "-c", code], cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env)
-    try:
-        url = f"http://localhost:{port}/"
-        _wait_port(port, proc, timeout)
-        yield url, log.name
-    finally:
-        proc.terminate()
-        try:
-            proc.wait(timeout=3)
-        except subprocess.TimeoutExpired:
-            proc.kill()
-            proc.wait(timeout=10)
-        log.close()
-        with contextlib.suppress(OSError):
-            os.unlink(log.name)
+    """``netstretch serve`` on a free localhost port; yields (url, log path); stopped and its log deleted after."""
+    with netstretch_server("localhost", timeout_s=timeout, keep_log=False) as (_proc, url, log_path):
+        yield url, str(log_path)
 
 
 def _unavailable() -> str | None:

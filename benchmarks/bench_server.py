@@ -20,24 +20,12 @@ work shares the 2-core machine: see the load average recorded beside it.
 
 from __future__ import annotations
 
-import contextlib
-import socket
 import statistics
-import subprocess
-import sys
-import tempfile
 import time
 import urllib.request
 from concurrent.futures import ThreadPoolExecutor
-from pathlib import Path
 
-ROOT = Path(__file__).resolve().parent.parent
-
-
-def free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
+from .common import netstretch_server
 
 
 def rss_mib(pid: int) -> float:
@@ -49,35 +37,10 @@ def rss_mib(pid: int) -> float:
     raise OSError(f"no VmRSS for process {pid}")
 
 
-@contextlib.contextmanager
 def served(lifetime_s: float = 1.0, timeout_s: float = 90.0, extra=()):
-    """``netstretch serve`` on a free localhost port; yields (process, url, log path).  Always stopped."""
-    port = free_port()
-    log_path = Path(tempfile.gettempdir()) / f"netstretch_bench_server_{port}.log"
-    with log_path.open("w") as log:
-        proc = subprocess.Popen([sys.executable, "-m", "network_models", "serve", "--port", str(port),
-                                 "--address", "127.0.0.1", "--session-lifetime", str(lifetime_s), *extra],
-                                cwd=ROOT, stdout=log, stderr=subprocess.STDOUT)
-        try:
-            deadline = time.monotonic() + timeout_s
-            while True:
-                if proc.poll() is not None:
-                    raise RuntimeError(f"the server exited with code {proc.returncode}; log: {log_path}")
-                try:
-                    with socket.create_connection(("127.0.0.1", port), timeout=1):
-                        break
-                except OSError:
-                    if time.monotonic() > deadline:
-                        raise RuntimeError(f"the server did not answer within {timeout_s:.0f} s") from None
-                    time.sleep(0.2)
-            yield proc, f"http://127.0.0.1:{port}/", log_path
-        finally:
-            proc.terminate()
-            try:
-                proc.wait(timeout=10)
-            except subprocess.TimeoutExpired:
-                proc.kill()
-                proc.wait(timeout=10)
+    """``netstretch serve`` on a free localhost port with sessions released ``lifetime_s`` after they close;
+    yields (process, url, log path).  Always stopped."""
+    return netstretch_server("127.0.0.1", ("--session-lifetime", str(lifetime_s), *extra), timeout_s)
 
 
 def get_page(url: str, timeout: float = 180.0) -> float:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import os
 import platform
 import statistics
@@ -74,3 +75,54 @@ def percentile(values, q: float) -> float:
     import numpy as np
 
     return float(np.percentile(np.asarray(values, dtype=float), q))
+
+
+def free_port() -> int:
+    import socket
+
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+@contextlib.contextmanager
+def netstretch_server(host: str = "127.0.0.1", extra=(), timeout_s: float = 90.0, keep_log: bool = True):
+    """``netstretch serve`` in a subprocess on a free port of ``host``; yields (process, url, log path) once
+    the port accepts connections (not an HTTP GET: each GET builds a whole session, and polling would pile
+    sessions up on a busy machine).  Always stopped; the log is deleted afterwards unless ``keep_log``."""
+    import socket
+    import subprocess
+    import sys
+    import tempfile
+    from pathlib import Path
+
+    port = free_port()
+    log_path = Path(tempfile.gettempdir()) / f"netstretch_bench_server_{port}.log"
+    root = Path(__file__).resolve().parent.parent
+    env = dict(os.environ, PYTHONUNBUFFERED="1")
+    with log_path.open("w") as log:
+        proc = subprocess.Popen([sys.executable, "-m", "network_models", "serve", "--port", str(port),
+                                 "--address", host, *extra], cwd=root, stdout=log, stderr=subprocess.STDOUT, env=env)
+        try:
+            deadline = time.monotonic() + timeout_s
+            while True:
+                if proc.poll() is not None:
+                    raise RuntimeError(f"the app server exited with code {proc.returncode}; log: {log_path}")
+                try:
+                    with socket.create_connection(("127.0.0.1", port), timeout=1):
+                        break
+                except OSError:
+                    if time.monotonic() > deadline:
+                        raise RuntimeError(f"the app server did not listen on port {port} within "
+                                           f"{timeout_s:.0f} s") from None
+                    time.sleep(0.2)
+            yield proc, f"http://{host}:{port}/", log_path
+        finally:
+            proc.terminate()
+            try:
+                proc.wait(timeout=10)
+            except subprocess.TimeoutExpired:
+                proc.kill()
+                proc.wait(timeout=10)
+            if not keep_log:
+                log_path.unlink(missing_ok=True)
