@@ -146,6 +146,7 @@ class SpecimenViews(pn.viewable.Viewer):
         title = QUANTITIES[q].split(" (")[0] + (" (headline basis)" if q == "nu" else "")
         base = hv.Scatter(rows, kdims=[_dim("compound")], vdims=vdims).opts(
             color="colour", size=9, alpha=0.85, line_color="white", tools=["tap", "hover"],
+            hover_tooltips=[("specimen", "@key"), ("counted", "@status"), (title, f"@{{{q}}}")],
             nonselection_alpha=0.85, title=title, responsive=True, height=250,
             hooks=self._hooks(), default_tools=["save", "reset"])
         self._tap(q, base, rows)
@@ -162,6 +163,7 @@ class SpecimenViews(pn.viewable.Viewer):
         vdims = [_dim("residual"), "key", "mode", "colour"]
         base = hv.Scatter(pts, kdims=[_dim("lam")], vdims=vdims).opts(
             color="colour", size=4, alpha=0.45, tools=["tap", "hover"], nonselection_alpha=0.45,
+            hover_tooltips=[("specimen", "@key"), ("mode", "@mode"), ("λ", "@lam"), ("fit − data (MPa)", "@residual")],
             title="residuals of each specimen's own fit", responsive=True, height=280, hooks=self._hooks(),
             default_tools=["save", "pan", "wheel_zoom", "box_zoom", "reset"])
         self._tap("residual", base, pts)
@@ -178,6 +180,7 @@ class SpecimenViews(pn.viewable.Viewer):
         vdims = [_dim("P_data"), "key", "mode", "colour"]
         base = hv.Scatter(pts, kdims=[_dim("lam")], vdims=vdims).opts(
             color="colour", size=4, alpha=0.3, tools=["tap", "hover"], nonselection_alpha=0.3,
+            hover_tooltips=[("specimen", "@key"), ("mode", "@mode"), ("λ", "@lam"), ("P (MPa)", "@P_data")],
             title="data, and the selected specimen's fit", responsive=True, height=280,
             hooks=self._hooks(), default_tools=["save", "pan", "wheel_zoom", "box_zoom", "reset"])
         self._tap("data", base, pts)
