@@ -22,6 +22,15 @@ STRESS_AT = """(i) => { const s = Bokeh.documents[0].get_model_by_name('ns-stres
                         return [s.data['lam'][i], s.data['affine'][i]]; }"""
 
 
+#: select point k of the strand-density specimen plot in the browser, as a tap does; returns its specimen key
+TAP_SPECIMEN = """(k) => {
+  for (const m of Bokeh.documents[0].all_models) {
+    const d = m.data;
+    if (d && d.key && d.nu && m.selected) { m.selected.indices = [k]; return d.key[k]; }
+  }
+  return null; }"""
+
+
 def open_data_tab(page):
     open_tab(page, "Test data", ".ns-upload input[type=file]")
     page.wait_for_function(f"() => ({DEEP_TEXT_JS})('.ns-fit-summary').includes('Fitted to')", timeout=30000)
@@ -105,6 +114,12 @@ def test_hidden_tabs_build_on_first_view_and_compare_links_specimens(app_page):
     assert len(options) > 3 and all(" · " in o for o in options)  # "compound · specimen"
     sel.select_option(label=options[3])
     wait_text(page, ".ns-spec-info", options[3])
+    # a click on a point selects it in its plot's data source (as Bokeh's tap tool does): the server then
+    # selects that specimen in every plot and in the list
+    tapped = page.evaluate(TAP_SPECIMEN, 7)
+    assert tapped in options and tapped != options[3]
+    wait_text(page, ".ns-spec-info", tapped)
+    assert sel.input_value() == tapped
     assert page.ns_errors == [], f"console errors: {page.ns_errors}"
 
 
