@@ -10,6 +10,7 @@ objects with stable kinds (DEVELOPERS.md lists them):
 ``mixed-temperature`` curves tested at different temperatures fitted with one parameter set
 ``strain-crystallisation``  a strain-crystallising polymer (NR, IR) fitted past λ ≈ 3 in uniaxial tension
 ``stress-softening``  the curves do not state the loading cycle (or state different ones)
+``not-determined``    a free parameter without an interval: the data do not bound it (issue #20)
 (``points-dropped`` and ``curves-left-out`` are raised while setting the fit up.)
 """
 
@@ -60,6 +61,18 @@ def diagnose(result, pj, values, se_z, corr, *, polymer=None) -> list[Notice]:
     _monotonic(out, m, pr.data, values)
     _temperatures(out, pr.curves)
     _crystallisation(out, pr, polymer)
+    return out
+
+
+def undetermined_notices(result) -> list[Notice]:
+    """One ``not-determined`` notice per free parameter the data do not bound (no interval is given)."""
+    out = []
+    for name in result.free:
+        p = result.params[name]
+        if not p.determined:
+            out.append(Notice(f"{p.symbol or name} is not determined by these data: its 95 % interval is unbounded "
+                              "or spans more than a factor 1000, so none is given (fix it from another source, "
+                              "or add data that reach the range where it matters)", "not-determined", name))
     return out
 
 

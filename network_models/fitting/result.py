@@ -42,6 +42,9 @@ class ParamEstimate:
     display_unit: str = ""
     display_scale: float = 1.0
     meaning: str = ""
+    #: False when the data do not bound the parameter (issue #20): no interval (``ci95 = (None, None)``), and
+    #: the JSON says ``"ci95": null, "determined": false``
+    determined: bool = True
 
     @property
     def relative_stderr(self) -> float | None:
@@ -50,9 +53,12 @@ class ParamEstimate:
         return abs(self.stderr / self.value)
 
     def to_dict(self) -> dict:
-        lo, hi = self.ci95
+        lo, hi = self.ci95 if self.ci95 is not None else (None, None)
+        lo, hi = clean(lo), clean(hi)
+        determined = None if self.fixed else bool(self.determined and lo is not None and hi is not None)
         return {"value": clean(self.value), "unit": self.unit, "stderr": clean(self.stderr),
-                "ci95": [clean(lo), clean(hi)], "fixed": self.fixed}
+                "ci95": [lo, hi] if lo is not None and hi is not None else None,
+                "determined": determined, "fixed": self.fixed}
 
 
 @dataclass(frozen=True)
