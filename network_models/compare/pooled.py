@@ -305,7 +305,8 @@ def _trade_part(res, m, fr, values, compound, dof):
                 f"{key}_predicted", f"{key} predicted", pred if ok else None, "Pa",
                 *_iv(pred if ok else None, se if se is not None and math.isfinite(se) else None, dof),
                 basis=f"{m.title} fit at {strain}", display_unit="MPa", display_scale=1e-6,
-                note="" if ok else "past the model's locking stretch")
+                note=(str(fr.range_note("uniaxial", [lam]) or "") if ok and hasattr(fr, "range_note")
+                      else "" if ok else "past the model's locking stretch"))
 
 
 def _swelling_part(res, compound):

@@ -92,4 +92,5 @@ def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
         modes=mode_stats, n=n, k=k, rss=rss_out, aic=aic, bic=bic, residual=pr.residual, converged=True,
         message=message, nfev=pj.nfev, curve_names=[c.name for c in pr.curves],
         temperature=temps.pop() if len(temps) == 1 else None, solver=solver,
+        max_stress=float(np.max(np.abs(data.P))) if data.P.size else None,
     )

@@ -10,6 +10,8 @@ objects with stable kinds (DEVELOPERS.md lists them):
 ``mixed-temperature`` curves tested at different temperatures fitted with one parameter set
 ``strain-crystallisation``  a strain-crystallising polymer (NR, IR) fitted past λ ≈ 3 in uniaxial tension
 ``stress-softening``  the curves do not state the loading cycle (or state different ones)
+``misfit``            the model does not follow a mode's curve: RMS residual over 5 % of its largest stress
+``implausible-unit``  G₀, the strain range or the ratio of two curves' stresses points at a unit mix-up
 ``not-determined``    a free parameter without an interval: the data do not bound it (issue #20)
 (``points-dropped`` and ``curves-left-out`` are raised while setting the fit up.)
 """
@@ -31,6 +33,10 @@ from .problem import Data
 _LOCK_NEAR = 0.05  # |ln(value/threshold)| within which the lock is said to set the parameter
 _POORLY_DETERMINED = 0.5  # relative standard error above which a parameter is called poorly determined
 _CORRELATED = 0.98
+#: RMS residual of a mode, as a fraction of its largest |stress|, above which the model is said not to follow
+#: the curve (a threshold chosen here: a model that follows rubber data leaves about 1 % — eight-chain on
+#: Treloar's 1944 uniaxial data 0.95 % — a neo-Hookean one over λ ≤ 7.6 leaves 13 %; docs/methods.md §fit-quality)
+MISFIT_FRACTION = 0.05
 
 #: Polymers that crystallise under strain at room temperature (natural rubber and its synthetic twin,
 #: cis-1,4-polyisoprene).  Onset in uniaxial tension near λ ≈ 3–4 for ordinary gum NR vulcanisates:
@@ -59,6 +65,7 @@ def diagnose(result, pj, values, se_z, corr, *, polymer=None) -> list[Notice]:
                               "extrapolated-mode", mode.value))
     out.extend(_as_notice(w, "unstable") for w in m.stability_notes(values))
     _monotonic(out, m, pr.data, values)
+    _misfit(out, result, pr.data)
     _temperatures(out, pr.curves)
     _crystallisation(out, pr, polymer)
     return out
@@ -153,6 +160,17 @@ def _monotonic(out, m, data, values):
         out.append(Notice(f"the fitted {m.title} model is unstable in {mode.value}: its stress stops rising "
                           f"above λ ≈ {where:.3g}; do not use its {mode.value} predictions there",
                           "unstable", mode.value))
+
+
+def _misfit(out, result, data):
+    for mode, st in result.modes.items():
+        top = float(np.max(np.abs(data.P[data.masks[mode]]))) if st.n else 0.0
+        if top > 0 and st.rms > MISFIT_FRACTION * top:
+            out.append(Notice(f"the {result.title} model does not follow the {mode.value} curve: its RMS residual "
+                              f"({st.rms / 1e6:.3g} MPa) is {100 * st.rms / top:.0f} % of the largest measured stress "
+                              f"({top / 1e6:.3g} MPa), over {100 * MISFIT_FRACTION:.0f} %; its parameters describe a "
+                              "compromise, not this rubber — use a model that follows the curve's shape",
+                              "misfit", mode.value))
 
 
 @lru_cache(maxsize=64)
