@@ -159,3 +159,56 @@ def test_trapped_entanglement_row_with_filler_removed():
     assert t.row("affine").bound == "upper" and t.row("affine-trapped-entanglements").bound == "upper"
     assert t.row("affine-no-entanglement").bound == "lower"
     assert t.row("affine-no-entanglement").to_dict()["bound"] == "lower"
+
+
+# ------------------------------------------------------------------------------------------------
+# 3. units that cannot be right
+# ------------------------------------------------------------------------------------------------
+PSI_PER_MPA = 1e6 / 6894.757  # NIST SP 811, Appendix B: 1 psi = 6.894 757 kPa
+
+
+def _gum_file(path, *, stress_factor=1.0, strain_factor=100.0):
+    """A 0.40 MPa neo-Hookean gum (P = G(λ − λ⁻²)) written under 'strain (%)' and 'stress (MPa)' headers, with
+    the numbers multiplied by the given factors (100 and 1 are right)."""
+    lam = np.linspace(1.0, 2.5, 16)
+    P = 0.40 * (lam - lam**-2)
+    path.write_text("# cycle: 1\n# mode: uniaxial\nstrain (%),stress (MPa)\n"
+                    + "".join(f"{strain_factor * (a - 1):.6g},{stress_factor * b:.6g}\n"
+                              for a, b in zip(lam, P, strict=True)))
+    return path
+
+
+def test_psi_numbers_under_a_mpa_header_are_named(tmp_path):
+    from network_models.labfiles import read_curves
+
+    res = fit("neo-hookean", read_curves(_gum_file(tmp_path / "psi.csv", stress_factor=PSI_PER_MPA)))
+    notes = res.notices("implausible-unit")
+    assert notes and "plausible" in notes[0] and "psi" in notes[0]
+    # the modulus the notice proposes is the one the numbers were made from: 0.40 MPa
+    assert "G₀ would be 0.4 MPa" in notes[0]
+
+
+def test_fractions_under_a_percent_header_are_named(tmp_path):
+    from network_models.labfiles import read_curves
+
+    res = fit("neo-hookean", read_curves(_gum_file(tmp_path / "frac.csv", strain_factor=1.0)))
+    texts = [str(n) for n in res.notices("implausible-unit")]
+    assert any("largest strain is 1.5 %" in t and "fractions under a % header" in t for t in texts)
+    assert all("plausible" in t for t in texts)
+
+
+def test_the_right_units_raise_no_unit_notice(tmp_path):
+    from network_models.labfiles import read_curves
+
+    res = fit("neo-hookean", read_curves(_gum_file(tmp_path / "ok.csv")))
+    assert not res.notices("implausible-unit")
+    assert res.small_strain_modulus == pytest.approx(0.40e6, rel=1e-3)
+
+
+def test_two_curves_a_unit_factor_apart_are_named():
+    lam = np.linspace(1.05, 2.5, 20)
+    P = 0.40e6 * (lam - lam**-2)
+    a = TestCurve("uniaxial", lam, P, name="A1", cycle="1")
+    b = TestCurve("uniaxial", lam, P * 1000.0 * 1.01, name="A2", cycle="1")  # kPa numbers read as MPa
+    notes = [str(n) for n in fit("neo-hookean", [a, b]).notices("implausible-unit")]
+    assert any("A1 and A2" in t and "1000" in t and "plausible" in t for t in notes)
