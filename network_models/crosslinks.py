@@ -36,6 +36,7 @@ from dataclasses import dataclass, field
 from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
 from .fitting.uncertainty import derived
+from .materials import temperature_notices
 from .network import get_polymer, guth_gold
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
@@ -227,7 +228,7 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
     X = guth_gold(filler_fraction)
     rho, MK = poly.density, poly.kuhn_molar_mass
     ph = 1.0 - 2.0 / f
-    notes = list(notes or [])
+    notes = list(notes or []) + temperature_notices(poly, T, "crosslink table")
     rows = [
         _row("affine", "affine, all of G from crosslinks", "G = νRT; entanglements counted as crosslinks",
              G, G_ci, 1.0, T, f, rho, MK),

@@ -10,6 +10,8 @@ objects with stable kinds (DEVELOPERS.md lists them):
 ``mixed-temperature`` curves tested at different temperatures fitted with one parameter set
 ``strain-crystallisation``  a strain-crystallising polymer (NR, IR) fitted past λ ≈ 3 in uniaxial tension
 ``stress-softening``  the curves do not state the loading cycle (or state different ones)
+``glass``             a test temperature below T_g + 20 K of the named polymer (``service-limit``: above its
+                      upper service temperature) — materials.temperature_notices
 ``misfit``            the model does not follow a mode's curve: RMS residual over 5 % of its largest stress
 ``implausible-unit``  G₀, the strain range or the ratio of two curves' stresses points at a unit mix-up
 ``not-determined``    a free parameter without an interval: the data do not bound it (issue #20)
@@ -68,6 +70,7 @@ def diagnose(result, pj, values, se_z, corr, *, polymer=None) -> list[Notice]:
     _misfit(out, result, pr.data)
     out.extend(unit_plausibility(pr.curves, result.small_strain_modulus))
     _temperatures(out, pr.curves)
+    _glass(out, pr.curves, polymer)
     _crystallisation(out, pr, polymer)
     return out
 
@@ -286,6 +289,14 @@ def _temperatures(out, curves):
         out.append(Notice("the curves were tested at different temperatures (" +
                           ", ".join(f"{celsius(t):.0f} °C" for t in sorted(temps)) +
                           "); one parameter set was fitted to all of them", "mixed-temperature", None))
+
+
+def _glass(out, curves, polymer):
+    """``glass`` / ``service-limit`` notices for test temperatures outside the polymer's rubbery range."""
+    from ..materials import temperature_notices
+
+    for T in sorted({c.temperature for c in curves if c.temperature is not None}):
+        out.extend(temperature_notices(polymer, T, "test temperature"))
 
 
 def curve_polymer(curves, polymer=None) -> str | None:
