@@ -325,3 +325,46 @@ def test_extrapolated_mode_line_names_test_modes_not_models():
                                         "extrapolations", "extrapolated-mode", "equibiaxial"))]
     lines = [x for v in grouped_warnings(ns).values() for x in v]
     assert lines == ["no planar or equibiaxial data: those predictions are extrapolations"]
+
+
+# ------------------------------------------------------------------------------------------------
+# 5. swelling edges
+# ------------------------------------------------------------------------------------------------
+def _fr_nu_affine(phi, chi, V1):
+    """Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, in mpmath: ν = −[ln(1−φ) + φ + χφ²] /
+    [V₁(φ^⅓ − φ/2)] (V₁ in m³/mol → ν in mol/m³)."""
+    import mpmath as mp
+
+    phi = mp.mpf(phi)
+    return float(-(mp.log(1 - phi) + phi + chi * phi**2) / (V1 * (mp.cbrt(phi) - phi / 2)))
+
+
+def test_swelling_within_weighing_error_is_refused(capsys):
+    from network_models.cli import main
+    from network_models.swelling import swelling_estimate
+
+    with pytest.raises(ValueError, match="weighing error"):
+        swelling_estimate(1.000e-3, 1.001e-3, "toluene", "NR")  # swollen/dry = 1.001 (the issue's case)
+    with pytest.raises(ValueError, match="weighing error"):
+        swelling_estimate(50e-6, 50.8e-6, "toluene", "NR")  # 0.8 mg absorbed by a 50 mg piece: 1.6 %, < 1 mg
+    assert main(["swell", "--dry", "1.000g", "--swollen", "1.001g", "--solvent", "toluene", "--polymer", "NR"]) == 2
+    assert "weighing error" in capsys.readouterr().err
+
+
+def test_strand_shorter_than_a_repeat_unit_is_refused():
+    from network_models.network import get_polymer
+    from network_models.swelling import get_solvent, swelling_estimate
+
+    nr, tol = get_polymer("NR"), get_solvent("toluene")
+    dry, swollen = 1.000e-3, 1.015e-3  # 1.5 % absorbed: above weighing error, yet far too little for a rubber
+    phi = (dry / nr.density) / (dry / nr.density + (swollen - dry) / tol.density)
+    chi = swelling_estimate(1e-3, 3e-3, "toluene", "NR").chi.chi  # the table's default χ, whatever it is
+    Mc = nr.density / _fr_nu_affine(phi, chi, tol.molar_volume)
+    M0 = (5 * 12.011 + 8 * 1.008) / 1000  # C5H8, IUPAC atomic weights [from memory]
+    assert Mc < M0  # independent: the Flory–Rehner strand is shorter than one isoprene unit
+    with pytest.raises(ValueError, match="repeat unit"):
+        swelling_estimate(dry, swollen, "toluene", "NR")
+    # an ordinary NR gum (swollen/dry ≈ 4) is accepted and agrees with the formula
+    est = swelling_estimate(1e-3, 4e-3, "toluene", "NR")
+    phi = (1e-3 / nr.density) / (1e-3 / nr.density + 3e-3 / tol.density)
+    assert est.nu_affine == pytest.approx(_fr_nu_affine(phi, est.chi.chi, tol.molar_volume), rel=1e-9)
