@@ -368,3 +368,69 @@ def test_strand_shorter_than_a_repeat_unit_is_refused():
     est = swelling_estimate(1e-3, 4e-3, "toluene", "NR")
     phi = (1e-3 / nr.density) / (1e-3 / nr.density + 3e-3 / tol.density)
     assert est.nu_affine == pytest.approx(_fr_nu_affine(phi, est.chi.chi, tol.molar_volume), rel=1e-9)
+
+
+# ------------------------------------------------------------------------------------------------
+# 8. family-wise verdicts (Holm)
+# ------------------------------------------------------------------------------------------------
+def test_holm_adjusted_p_values_by_hand():
+    from network_models.statistics import holm_adjust
+
+    # Holm 1979 (Scand. J. Statist. 6:65), step-down: sorted 0.005, 0.01, 0.03, 0.04 times 4, 3, 2, 1 →
+    # 0.02, 0.03, 0.06, 0.04 → running maximum 0.02, 0.03, 0.06, 0.06 (worked by hand)
+    assert holm_adjust([0.01, 0.04, 0.03, 0.005]) == pytest.approx([0.03, 0.06, 0.06, 0.02])
+    assert holm_adjust([0.2, None, 0.01]) == [pytest.approx(0.2), None, pytest.approx(0.02)]
+
+
+def test_welch_p_value_matches_scipy():
+    from scipy import stats
+
+    from network_models.statistics import welch_p_value
+
+    rng = np.random.default_rng(7)
+    for _ in range(20):
+        a, b = rng.normal(1.0, 0.1, 4), rng.normal(1.05, 0.2, 6)
+        assert welch_p_value(a, b) == pytest.approx(stats.ttest_ind(a, b, equal_var=False).pvalue, rel=1e-9)
+
+
+def test_holm_keeps_the_family_wise_rate_of_equal_compounds():
+    # seven correlated quantities (ρ = 0.7 between all pairs), five specimens a side, no true difference:
+    # one test per quantity calls *some* quantity different well above 5 % of the time; Holm keeps it ≤ 5 %
+    from network_models.statistics import holm_adjust, welch_p_value
+
+    rng = np.random.default_rng(11)
+    k, n, reps, rho = 7, 5, 1500, 0.7
+    C = np.full((k, k), rho) + (1 - rho) * np.eye(k)
+    L = np.linalg.cholesky(C)
+    any_plain = any_holm = 0
+    for _ in range(reps):
+        a = rng.standard_normal((n, k)) @ L.T
+        b = rng.standard_normal((n, k)) @ L.T
+        p = [welch_p_value(a[:, j], b[:, j]) for j in range(k)]
+        any_plain += min(p) < 0.05
+        any_holm += min(holm_adjust(p)) < 0.05
+    se = math.sqrt(0.05 * 0.95 / reps)
+    assert any_plain / reps > 0.05 + 3 * se
+    assert any_holm / reps < 0.05 + 3 * se
+
+
+def test_cli_compare_holm(tmp_path, capsys):
+    from network_models.cli import main
+
+    specs = []
+    for name, G, factors in (("A", 0.40e6, (0.97, 1.0, 1.03)), ("B", 0.44e6, (0.99, 1.02, 0.98))):
+        lam = np.linspace(1.05, 3.0, 30)
+        f = tmp_path / f"{name}.csv"
+        rows = [f"{name}-{i},{x:.5f},{k * G * (x - x**-2) / 1e6:.7f}" for i, k in enumerate(factors, 1) for x in lam]
+        f.write_text("# mode: uniaxial\n# temperature: 23 °C\n# cycle: 1\nspecimen,stretch,stress (MPa)\n"
+                     + "\n".join(rows), "utf-8")
+        specs += ["--compound", f"{name}={f}"]
+    args = ["compare", *specs, "--baseline", "A", "--model", "neo-hookean", "--no-model-spread", "--json"]
+    assert main(args) == 0
+    plain = json.loads(capsys.readouterr().out)
+    assert main([*args, "--holm"]) == 0
+    holm = json.loads(capsys.readouterr().out)
+    assert plain["family_wise"] is None and holm["family_wise"] == "holm"
+    rows = [d for d in holm["differences"] if d["p_value"] is not None]
+    assert rows and all(d["p_holm"] >= d["p_value"] for d in rows)
+    assert all((d["verdict"] == "different") == (d["p_holm"] < 0.05) for d in rows)
