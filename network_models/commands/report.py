@@ -207,6 +207,10 @@ def verdict_lines(cmp) -> list[str]:
         out.append(f"  {d['compound']:{width}s} {d['label']:32s} {pct}{absv} {ci}  {d['verdict'].upper()}"
                    f" (n {d['n']} vs {d['n_baseline']}{mdd})")
     out.append("  " + VERDICT_WORDING)
+    if getattr(cmp, "family_wise", None) == "holm":
+        from ..compare.core import HOLM_NOTE
+
+        out.append("  " + HOLM_NOTE)
     return out
 
 
