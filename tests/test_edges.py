@@ -434,3 +434,19 @@ def test_cli_compare_holm(tmp_path, capsys):
     rows = [d for d in holm["differences"] if d["p_value"] is not None]
     assert rows and all(d["p_holm"] >= d["p_value"] for d in rows)
     assert all((d["verdict"] == "different") == (d["p_holm"] < 0.05) for d in rows)
+
+
+def test_not_determined_reaches_the_comparison_and_the_report():
+    from network_models.compare import compare
+    from network_models.compounds import Compound
+    from network_models.report import Report
+
+    rng = np.random.default_rng(5)
+    lam = np.linspace(1.02, 1.5, 25)
+    curves = [TestCurve("uniaxial", lam, 0.4e6 * (lam - lam**-2) * (1 + 0.01 * rng.standard_normal(lam.size)),
+                        name=f"S{i}", specimen=f"S{i}", cycle="1") for i in (1, 2, 3)]
+    cmp = compare([Compound("SMALL", curves, polymer="NR")], model="eight-chain", spread_models=())
+    rows = {p.name: p for p in cmp["SMALL"].params}
+    assert rows["N"].determined is False and rows["N"].low is None
+    assert rows["mu"].determined is True and 0 < rows["mu"].low < rows["mu"].high
+    assert "not determined" in Report(cmp).to_html()

@@ -73,7 +73,8 @@ def _param_rows(model, fr) -> list[ParamRow]:
             lo, hi = float(ci[0]), float(ci[1])
         held = bool(est.fixed) or (stderr is None and lo is None)
         rows.append(ParamRow(decl.name, decl.symbol, float(est.value), stderr, lo, hi, decl.unit,
-                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held))
+                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held,
+                             None if held else bool(getattr(est, "determined", True) and lo is not None)))
     return rows
 
 
