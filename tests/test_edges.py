@@ -450,3 +450,12 @@ def test_not_determined_reaches_the_comparison_and_the_report():
     assert rows["N"].determined is False and rows["N"].low is None
     assert rows["mu"].determined is True and 0 < rows["mu"].low < rows["mu"].high
     assert "not determined" in Report(cmp).to_html()
+
+
+def test_psi_and_fractions_together_are_refused_with_both_named(tmp_path, capsys):
+    from network_models.cli import main
+
+    f = _gum_file(tmp_path / "both.csv", stress_factor=PSI_PER_MPA, strain_factor=1.0)
+    assert main(["fit", str(f), "--model", "neo-hookean"]) == 2
+    err = capsys.readouterr().err
+    assert "plausible" in err and "psi under a MPa header and strain fractions under a % header" in err

@@ -229,6 +229,12 @@ def unit_plausibility(curves, G0) -> list[Notice]:
             g = G0 / f if way == "big" else G0 * f
             if (way == "big") == (G0 > hi) and lo <= g <= hi:
                 fixes.append((abs(math.log(g / TYPICAL_G0)), f"{text} (G₀ would be {g / 1e6:.3g} MPa)"))
+            strain_ok = (_units(curves, "stretch") in (None, {"%"}) and _top_strain(curves) < 0.1)
+            if column == "stress" and way == "big" and G0 > hi and strain_ok:  # both columns mixed up
+                g = G0 / f / 100.0
+                if lo <= g <= hi:
+                    fixes.append((abs(math.log(g / TYPICAL_G0)),
+                                  f"{text} and strain fractions under a % header (G₀ would be {g / 1e6:.3g} MPa)"))
         fixes = [t for _, t in sorted(fixes)[:2]]
         what = ("; likely mix-up: " + "; or ".join(fixes)) if fixes else ""
         out.append(Notice(f"G₀ = {G0 / 1e6:.4g} MPa is not a plausible rubber modulus (solid rubbers lie between "
