@@ -459,3 +459,17 @@ def test_psi_and_fractions_together_are_refused_with_both_named(tmp_path, capsys
     assert main(["fit", str(f), "--model", "neo-hookean"]) == 2
     err = capsys.readouterr().err
     assert "plausible" in err and "psi under a MPa header and strain fractions under a % header" in err
+
+
+def test_model_spread_leaves_out_a_model_that_does_not_follow_the_curve():
+    from network_models.compare import compare
+    from network_models.compounds import Compound
+
+    curves = [TestCurve("uniaxial", TRELOAR_LAMBDA, k * TRELOAR_MPA * 1e6, name=f"T{i}", specimen=f"T{i}",
+                        temperature=293.15, cycle="1") for i, k in enumerate((0.98, 1.0, 1.02), 1)]
+    cmp = compare([Compound("TRELOAR", curves, polymer="NR")], model="eight-chain",
+                  spread_models=("affine", "phantom", "eight-chain", "three-chain"))
+    rows = {r["model"]: r for r in cmp["TRELOAR"].headline.uncertainty["model_spread"]["models"]}
+    assert rows["affine"]["used"] is False and "does not follow" in rows["affine"]["why"]
+    assert rows["phantom"]["used"] is False
+    assert rows["eight-chain"]["used"] and rows["three-chain"]["used"]
