@@ -560,6 +560,12 @@ def _extra_notices(ev: _Evaluator, setup: DesignSetup, outcomes: list[TargetOutc
         notes.append(Notice(f"the chain constants of {poly.key} (density, M_K, plateau modulus) are recalled, not "
                             "re-read (polymers.toml): check them before a design decision rests on the window",
                             "memory-values", poly.key))
+    from .materials import temperature_notices
+
+    notes.extend(temperature_notices(poly, setup.T, "design temperature"))
+    for o in outcomes:  # targets read at their own temperature (G@100C …)
+        if o.target.temperature is not None:
+            notes.extend(temperature_notices(poly, o.target.temperature, f"target {o.target.text}"))
     if setup.filler > 0:
         notes.append(Notice(f"filler φ = {setup.filler:g} enters through the network's filler handling "
                             "(Guth–Gold amplification): well-dispersed, weakly reinforcing filler only", "filler"))

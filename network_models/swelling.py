@@ -372,6 +372,41 @@ def _network_mass(dry, extracted, initial, notes) -> tuple[float, float | None]:
     return network_mass, soluble
 
 
+#: weighing error of a lab balance for swelling (issue #20): an absorbed mass below 1 mg, or below 1 % of the
+#: dry mass, cannot be told from the balance's and the blotting's scatter (common practice: 0.1 mg balances,
+#: blotting scatter of a few mg)
+WEIGHING_ERROR_KG = 1e-6
+WEIGHING_ERROR_FRACTION = 0.01
+
+
+def check_absorbed_mass(network_mass: float, swollen: float, *, resolution_kg: float = WEIGHING_ERROR_KG) -> None:
+    """Refuse (ValueError) an absorbed solvent mass within weighing error: below 1 % of the network mass, or
+    below 1 mg when the masses are in kg (SI, as the CLI passes them).  A swollen/dry ratio of 1.001 would
+    otherwise give ν ≈ 10⁵ mol/m³ — a strand shorter than one repeat unit."""
+    absorbed = swollen - network_mass
+    if absorbed < WEIGHING_ERROR_FRACTION * network_mass or absorbed < resolution_kg:
+        raise ValueError(
+            f"the piece absorbed only {absorbed:.3g} (swollen {swollen:.6g} − dry {network_mass:.6g}, same unit): "
+            f"{100 * absorbed / network_mass:.2g} % of its dry mass, within weighing error (below 1 % of the dry "
+            "mass or 1 mg); no strand density can be read from it — check that the piece swelled to equilibrium "
+            "(about 72 h), that the swollen mass was weighed before the solvent evaporated, and the masses' units")
+
+
+def check_repeat_unit(nu_affine: float, nu_phantom: float, rho: float, poly, notes: list) -> None:
+    """Refuse (ValueError) a strand density whose strand molar mass M_c = ρ/ν is below one repeat unit of the
+    polymer (physically impossible); a note when only the phantom reading is."""
+    M0 = poly.monomer_molar_mass
+    Mc = rho / nu_affine if nu_affine > 0 else math.inf
+    if Mc < M0:
+        raise ValueError(
+            f"this swelling gives ν = {nu_affine:.4g} mol/m³ (affine), i.e. M_c = {1000 * Mc:.3g} g/mol — below one "
+            f"repeat unit of {poly.key} ({1000 * M0:.4g} g/mol): impossible for a rubber network; the swollen and dry "
+            "masses are too close (weighing error), or χ, the solvent or the polymer is wrong")
+    if nu_phantom > 0 and rho / nu_phantom < M0:
+        notes.append(f"the phantom reading gives M_c = {1000 * rho / nu_phantom:.3g} g/mol, below one repeat unit of "
+                     f"{poly.key}: use the affine row")
+
+
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
                       chi: float | None = None, f: float = 4.0, T: float | None = None,
                       extracted: float | None = None, initial: float | None = None,
@@ -405,6 +440,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     cv = _chi_for(poly, sol, chi, T, notes)
     network_mass, soluble = _network_mass(dry, extracted, initial, notes)
     phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
+    check_absorbed_mass(network_mass, swollen)
     phi = phi_m
     kraus = None
     if filler_fraction > 0:
@@ -418,6 +454,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                      "density larger than the mechanical one")
     nu_a = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "affine")
     nu_p = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "phantom")
+    check_repeat_unit(nu_a, nu_p, rho_p, poly, notes)
     band = {}
     for net in ("affine", "phantom"):
         vals = []

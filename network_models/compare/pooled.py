@@ -73,7 +73,8 @@ def _param_rows(model, fr) -> list[ParamRow]:
             lo, hi = float(ci[0]), float(ci[1])
         held = bool(est.fixed) or (stderr is None and lo is None)
         rows.append(ParamRow(decl.name, decl.symbol, float(est.value), stderr, lo, hi, decl.unit,
-                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held))
+                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held,
+                             None if held else bool(getattr(est, "determined", True) and lo is not None)))
     return rows
 
 
@@ -305,7 +306,8 @@ def _trade_part(res, m, fr, values, compound, dof):
                 f"{key}_predicted", f"{key} predicted", pred if ok else None, "Pa",
                 *_iv(pred if ok else None, se if se is not None and math.isfinite(se) else None, dof),
                 basis=f"{m.title} fit at {strain}", display_unit="MPa", display_scale=1e-6,
-                note="" if ok else "past the model's locking stretch")
+                note=(str(fr.range_note("uniaxial", [lam]) or "") if ok and hasattr(fr, "range_note")
+                      else "" if ok else "past the model's locking stretch"))
 
 
 def _swelling_part(res, compound):

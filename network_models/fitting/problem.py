@@ -313,6 +313,12 @@ def set_up(m, curves, *, residual, free, fixed, start) -> Problem:
     if not free_names:
         raise FitError("every parameter is fixed: free at least one to fit", kind="bad-option")
     G0 = modulus_from_data(data, curves)
+    if G0 > 1e9:  # past every model's modulus domain: say which unit mix-up would explain it (issue #20)
+        from .diagnostics import unit_plausibility
+
+        why = "; ".join(str(n) for n in unit_plausibility(curves, G0))
+        raise FitError(f"the curves' small-strain modulus is {G0 / 1e6:.4g} MPa, far beyond any rubber: {why}",
+                       kind="bad-input")
     try:
         p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
     except ValueError as exc:

@@ -259,7 +259,8 @@ class Report:
         for r in self.cmp.results:
             for p in r.params:
                 ci = "held fixed" if p.held else (
-                    f"{fmt(p.low * p.display_scale)} – {fmt(p.high * p.display_scale)}" if p.low is not None else "—")
+                    f"{fmt(p.low * p.display_scale)} – {fmt(p.high * p.display_scale)}" if p.low is not None
+                    else "not determined")
                 out.append(f"<tr><td>{_e(r.name)}</td><td>{_e(p.symbol)}</td><td>{_e(p.meaning)}</td>"
                            f"<td class='num' data-compound='{_e(r.name)}' data-key='param:{_e(p.name)}' "
                            f"data-value='{p.value!r}'>{fmt(p.value * p.display_scale)}</td>"
