@@ -1,4 +1,4 @@
-"""Equilibrium swelling: strand density from the Flory–Rehner balance (physics.md §5).
+"""Equilibrium swelling: strand density from the Flory–Rehner balance (docs/methods.md §flory-rehner).
 
     >>> from network_models.swelling import swelling_estimate
     >>> r = swelling_estimate(dry=1.000e-3, swollen=3.20e-3, solvent="toluene", polymer="NR")

@@ -125,7 +125,7 @@ def test_every_polymer_makes_a_network(key):
 
     net = Network(polymer=key, nu=150.0)
     p = get_polymer(key)
-    assert net.Mc == pytest.approx(p.density / 150.0)  # M_c = ρ/ν (physics.md §4)
+    assert net.Mc == pytest.approx(p.density / 150.0)  # M_c = ρ/ν (docs/methods.md §mc-and-n)
     assert net.N == pytest.approx(net.Mc / p.kuhn_molar_mass)
     for m in MODELS.values():
         assert set(net.model_params(m)) == set(m.params.names())
@@ -248,7 +248,8 @@ def test_cli_polymers_option_and_listing(tmp_path, capsys):
 
 # ---- χ rows ---------------------------------------------------------------------------------------
 def _fr_nu(phi, chi, V1, f=4):
-    # Flory & Rehner 1943 (J. Chem. Phys. 11:521) [memory, standard form], affine, physics.md §5, in mpmath
+    # Flory & Rehner 1943 (J. Chem. Phys. 11:521) [memory, standard form], affine,
+    # docs/methods.md §flory-rehner, in mpmath
     phi = mp.mpf(phi)
     return -(mp.log(1 - phi) + phi + chi * phi**2) / (V1 * (mp.cbrt(phi) - 2 * phi / f))
 
@@ -327,7 +328,7 @@ def test_default_keeps_to_the_test_temperature():
 
 def test_every_polymer_command_takes_the_user_table(tmp_path, capsys):
     # the CLI adds --polymers to each command that names a polymer; a user plateau modulus changes the
-    # entanglement-removed row of the crosslink table (G − G_e)/(RT) (physics.md §3)
+    # entanglement-removed row of the crosslink table (G − G_e)/(RT) (docs/methods.md §entanglement-policy)
     from network_models.cli import main
 
     t = tmp_path / "ours.toml"

@@ -24,10 +24,10 @@ def test_affine_and_phantom_moduli_from_R():
 
 @pytest.mark.parametrize(("N", "ratio"), [(5, 1.148587), (10, 1.066313), (26.5, 1.023480), (100, 1.006057)])
 def test_eight_chain_small_strain_modulus_ratio(N, ratio):
-    # physics.md §3 [derived]: μ₀/μ = √N L⁻¹(1/√N)/3; values to 7 digits.
+    # docs/methods.md §eight-chain [derived]: μ₀/μ = √N L⁻¹(1/√N)/3; values to 7 digits.
     m = get_model("eight-chain")
     assert m.small_strain_modulus(mu=1.0e6, N=N) / 1.0e6 == pytest.approx(ratio, abs=6e-7)
-    # and the series 1 + 3/(5N) + 99/(175N²) for large N (physics.md §3)
+    # and the series 1 + 3/(5N) + 99/(175N²) for large N (docs/methods.md §eight-chain)
     if N >= 26.5:
         assert m.small_strain_modulus(mu=1.0, N=N) == pytest.approx(1 + 3 / (5 * N) + 99 / (175 * N**2), rel=5e-5)
 
@@ -47,7 +47,7 @@ def test_eight_chain_against_arruda_boyce_five_term_series():
 
 
 @pytest.mark.parametrize(("mode", "equation"), [
-    # Arruda & Boyce 1993: locking where λ_ch = √N, i.e. I₁ = 3N (physics.md §3)
+    # Arruda & Boyce 1993: locking where λ_ch = √N, i.e. I₁ = 3N (docs/methods.md §eight-chain)
     ("uniaxial", lambda x: x**2 + 2 / x),
     ("equibiaxial", lambda x: 2 * x**2 + x**-4),
     ("planar", lambda x: x**2 + 1 + x**-2),
@@ -60,7 +60,7 @@ def test_eight_chain_locking_stretch(mode, equation):
 
 
 @pytest.mark.parametrize(("lam", "slip", "nonaffine"), [
-    # physics.md §3 check values, G_c = G_e = 0.2 MPa [derived from the printed forms]
+    # docs/methods.md §non-affine-tube and §slip-tube check values, G_c = G_e = 0.2 MPa [derived from the printed forms]
     (1.5, 0.35897, 0.35683), (2.0, 0.32810, 0.32612), (3.0, 0.29000, 0.28819), (5.0, 0.25521, 0.25314),
 ])
 def test_tube_reduced_stress_check_values(lam, slip, nonaffine):
@@ -70,7 +70,8 @@ def test_tube_reduced_stress_check_values(lam, slip, nonaffine):
 
 
 def test_extended_tube_small_strain_modulus_by_differentiating_energy():
-    # physics.md §3: test the small-strain modulus by differentiating W numerically, not by an identity.
+    # docs/methods.md §extended-tube: test the small-strain modulus by differentiating W numerically,
+    # not by an identity.
     # Uniaxial W(λ) ≈ (3/2)G(λ − 1)², so G = W''(1)/3.
     m = get_model("extended-tube")
     for p in ({"Gc": 0.3e6, "Ge": 0.2e6, "delta": 0.1, "beta": 0.2},
@@ -85,7 +86,7 @@ def test_extended_tube_small_strain_modulus_by_differentiating_energy():
 
 
 def test_mooney_rivlin_reduced_stress_is_a_straight_line_in_inverse_stretch():
-    # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (physics.md §2)
+    # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (docs/methods.md §mooney-plot)
     lam = np.linspace(1.1, 4, 20)
     red = get_model("mooney-rivlin").reduced_stress(lam, C1=0.15e6, C2=0.07e6)
     np.testing.assert_allclose(red, 2 * 0.15e6 + 2 * 0.07e6 / lam, rtol=1e-13)
@@ -104,7 +105,8 @@ def test_gent_lock_and_neo_hookean_limit():
 def test_constrained_junction_limits():
     # Flory & Erman 1982: κ → 0 gives the phantom network, κ → ∞ the affine network.  Checked at f = 6: at f = 4
     # the junction density μ_j = 2ν/f and the cycle rank ξ = ν − μ_j coincide, so a model that used the wrong
-    # one would pass.  Affine/phantom = νRT/((1 − 2/f)νRT) = f/(f − 2) = 3/2 (James & Guth 1943; physics.md §3).
+    # one would pass.  Affine/phantom = νRT/((1 − 2/f)νRT) = f/(f − 2) = 3/2
+    # (James & Guth 1943; docs/methods.md §phantom).
     cj = get_model("constrained-junction")
     lam = np.linspace(0.6, 4, 25)
     G_ph, f = 0.2e6, 6.0

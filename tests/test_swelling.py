@@ -19,9 +19,9 @@ from network_models.swelling import (
     swollen_fraction,
 )
 
-V1_TOLUENE = 106.85e-6  # m³/mol, physics.md §5 [derived]
+V1_TOLUENE = 106.85e-6  # m³/mol, docs/methods.md §solvents [derived]
 
-# physics.md §5 check table [derived from Flory & Rehner 1943, J. Chem. Phys. 11:521, affine and phantom
+# docs/methods.md §flory-rehner check table [derived from Flory & Rehner 1943, J. Chem. Phys. 11:521, affine and phantom
 # forms, V₁ = 106.85 cm³/mol]; ν in mol/cm³:
 #   φ: (χ=0.39 affine, χ=0.39 phantom f=4, χ=0.465 affine, χ=0.465 phantom f=4)
 FR_TABLE = {
@@ -44,7 +44,7 @@ def test_flory_rehner_check_table(phi):
 
 
 def test_general_functionality_limits():
-    # Phantom elastic term (1 − 2/f)φ^⅓ → φ^⅓ as f → ∞; affine φ^⅓ − 2φ/f likewise (physics.md §5).
+    # Phantom elastic term (1 − 2/f)φ^⅓ → φ^⅓ as f → ∞; affine φ^⅓ − 2φ/f likewise (docs/methods.md §flory-rehner).
     a = flory_rehner_nu(0.2, 0.39, V1_TOLUENE, 1e9, "affine")
     p = flory_rehner_nu(0.2, 0.39, V1_TOLUENE, 1e9, "phantom")
     assert a == pytest.approx(p, rel=1e-6)
@@ -57,7 +57,7 @@ def test_swollen_fraction_inverts_flory_rehner():
 
 
 @pytest.mark.parametrize("key,v1_cm3", [
-    # physics.md §5: molar volumes at 25 °C from molar mass/density [derived; densities from memory]
+    # docs/methods.md §solvents: molar volumes at 25 °C from molar mass/density [derived; densities from memory]
     ("toluene", 106.85), ("cyclohexane", 108.75), ("benzene", 89.40), ("acetone", 74.03),
     ("2-butanone", 90.17), ("n-heptane", 147.46),
 ])
@@ -80,7 +80,7 @@ def test_solvent_molar_masses_from_formula():
 
 @pytest.mark.parametrize("polymer,solvent,chi", [
     # Orwoll & Arnold, Table 14.1 in Mark (ed.), Physical Properties of Polymers Handbook, 2nd ed. (2007),
-    # as listed in physics.md §5 [handbook]
+    # as listed in docs/methods.md §chi-table [handbook]
     ("NR", "toluene", 0.36), ("NR", "benzene", 0.40), ("NR", "cyclohexane", 0.31),
     ("BR", "cyclohexane", 0.46), ("IIR", "cyclohexane", 0.43), ("PDMS", "toluene", 0.445),
 ])
@@ -91,7 +91,7 @@ def test_handbook_chi_rows(polymer, solvent, chi):
 
 
 def test_recalled_chi_rows_are_flagged():
-    # NR–toluene 0.39 and the SBR/EPDM values are from memory (physics.md §5), never "handbook".
+    # NR–toluene 0.39 and the SBR/EPDM values are from memory (docs/methods.md §chi-table), never "handbook".
     nr = [r for r in chi_values("NR", "toluene") if r.chi == 0.39]
     assert nr and nr[0].status == "memory"
     for p in ("SBR", "EPDM"):
@@ -99,7 +99,8 @@ def test_recalled_chi_rows_are_flagged():
 
 
 def test_volume_fraction_from_masses():
-    # φ = (m_d/ρ_p)/(m_d/ρ_p + (m_s − m_d)/ρ_s), physics.md §5, worked by hand for 1 g dry, 3 g swollen,
+    # φ = (m_d/ρ_p)/(m_d/ρ_p + (m_s − m_d)/ρ_s), docs/methods.md §volume-fraction,
+    # worked by hand for 1 g dry, 3 g swollen,
     # ρ_p = 900, ρ_s = 800 kg/m³: (1/900)/((1/900) + (2/800)) = 0.30769...
     assert polymer_volume_fraction(1.0, 3.0, 900.0, 800.0) == pytest.approx((1 / 900) / (1 / 900 + 2 / 800))
     assert polymer_volume_fraction(1.0, 3.0, 900.0, 800.0) == pytest.approx(0.3076923, rel=1e-6)

@@ -118,7 +118,7 @@ def split_modulus(model, values: dict, polymer: str, T: float) -> tuple[float, f
 
 
 def strand_density_from_modulus(Gx: float, T: float) -> float:
-    """Affine: ν = G_x/(RT), mol/m³ (physics.md §3)."""
+    """Affine: ν = G_x/(RT), mol/m³ (docs/methods.md §affine)."""
     return Gx / (R * T)
 
 
