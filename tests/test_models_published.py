@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import mpmath as mp
 import numpy as np
 import pytest
 from scipy.constants import R
@@ -83,6 +84,42 @@ def test_extended_tube_small_strain_modulus_by_differentiating_energy():
         # and the lock at I₁ − 3 = 1/δ² (Kaliske & Heinrich 1999 [from memory])
         lock = m.stretch_limit("uniaxial", p)
         assert lock**2 + 2 / lock - 3 == pytest.approx(1 / p["delta"] ** 2, rel=1e-10)
+
+
+def _kh_energy(stretches, Gc, Ge, delta, beta):
+    """Kaliske & Heinrich 1999 (Rubber Chem. Technol. 72:602) extended-tube energy written here with "+ ln"
+    (docs/methods.md §extended-tube): (G_c/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)] + (2G_e/β²)Σ(λᵢ^−β − 1),
+    x = I₁ − 3, in mpmath."""
+    x = sum(s * s for s in stretches) - 3
+    d2 = delta * delta
+    u = 1 - d2 * x
+    return Gc / 2 * ((1 - d2) * x / u + mp.log(u)) + 2 * Ge / beta**2 * sum(s**-beta - 1 for s in stretches)
+
+
+# (mode, principal stretches at λ, k) with W ≈ (k/2)·G·(λ − 1)² at small strain: k = 3 uniaxial, 4 planar,
+# 12 equibiaxial [derived: I₁ − 3 ≈ 3ε², 4ε², 12ε² for the three paths of docs/methods.md §test-modes]
+_PATHS = (("uniaxial", lambda L: (L, L**-0.5, L**-0.5), 3), ("planar", lambda L: (L, 1, 1 / L), 4),
+          ("equibiaxial", lambda L: (L, L, L**-2), 12))
+
+
+@pytest.mark.parametrize(("Gc", "Ge", "delta", "beta"), [
+    (0.3e6, 0.2e6, 0.1, 0.2), (0.5e6, 0.05e6, 0.6, 0.7), (1.0e6, 0.0, 0.3, 0.2), (0.2e6, 0.4e6, 0.7, 1.0)])
+def test_extended_tube_modulus_formula_against_finite_differences(Gc, Ge, delta, beta):
+    # issue #20 item 7: with "+ ln" the small-strain modulus is G₀ = G_c(1 − 2δ²) + G_e (derived in
+    # docs/methods.md §extended-tube).  Independent check: a central second difference of the energy written
+    # above from the paper's formula, in mpmath at 50 digits with step 1e-12, along all three test paths.
+    expected = Gc * (1 - 2 * delta**2) + Ge
+    h = mp.mpf("1e-12")
+    with mp.workdps(50):
+        for mode, path, k in _PATHS:
+            W = [_kh_energy(path(1 + s * h), mp.mpf(Gc), mp.mpf(Ge), mp.mpf(delta), mp.mpf(beta)) for s in (-1, 0, 1)]
+            G_fd = float((W[0] - 2 * W[1] + W[2]) / h**2 / k)
+            assert G_fd == pytest.approx(expected, rel=1e-9), mode
+    # and the core agrees with the formula and with its own energy
+    m = get_model("extended-tube")
+    assert m.small_strain_modulus(Gc=Gc, Ge=Ge, delta=delta, beta=beta) == pytest.approx(expected, rel=1e-12)
+    # the "−" sign would give G_c + G_e: the check above separates the two whenever δ > 0
+    assert abs(expected - (Gc + Ge)) > 1e-3 * expected
 
 
 def test_mooney_rivlin_reduced_stress_is_a_straight_line_in_inverse_stretch():

@@ -166,8 +166,8 @@ def test_three_chain_lower_lock_where_the_free_stretch_reaches_root_N(mode, tran
 
 # ----- extended tube: the δ bound and the sign before the logarithm ---------------------------------
 def _mp_W_c(x, d2):
-    # crosslink part as printed (with "+" before the log) in the Hyperelastics.jl documentation of the
-    # extended tube model, citing Kaliske & Heinrich 1999: (1/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)], G_c = 1
+    # crosslink part of the extended tube model (Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602), with
+    # "+" before the log as derived in docs/methods.md §extended-tube: (1/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)], G_c = 1
     return ((1 - d2) * x / (1 - d2 * x) + mp.log(1 - d2 * x)) / 2
 
 
@@ -202,6 +202,23 @@ def test_extended_tube_bound_is_sharp_and_enforced():
         assert mp.diff(lambda s: _mp_W_c(s, d2), 0, 1) < 0
     with pytest.raises(ParameterError, match="delta"):
         get_model("extended-tube").resolve({"delta": 0.72})
+
+
+def test_extended_tube_delta_domain_is_below_one_over_root_two():
+    # issue #20 item 7: δ² < ½ (G₀ = G_c(1 − 2δ²) + G_e > 0, docs/methods.md §extended-tube) is the declared
+    # domain of δ — one source of truth for the fitter, the explorer and the intervals.  1/√2 from math.sqrt.
+    m = get_model("extended-tube")
+    lo, hi = m.params["delta"].bounds
+    assert lo == 0.0 and hi**2 < 0.5 and hi > 1 / math.sqrt(2) - 1e-4
+    m.resolve({"delta": hi})  # the edge itself is accepted, with a positive crosslink modulus
+    assert m.small_strain_modulus(Gc=1.0, Ge=0.0, delta=hi, beta=0.2) > 0
+    with pytest.raises(ParameterError, match="delta"):
+        m.resolve({"delta": 1 / math.sqrt(2) + 1e-9})
+    # every interior value keeps W defined up to its lock: the stress is finite just below I₁ − 3 = 1/δ²
+    lock = m.stretch_limit("uniaxial", {"Gc": 1.0, "Ge": 0.0, "delta": 0.5, "beta": 0.2})
+    assert lock**2 + 2 / lock - 3 == pytest.approx(1 / 0.25, rel=1e-10)
+    assert np.isfinite(m.nominal_stress("uniaxial", lock * (1 - 1e-6), {"Gc": 1.0, "Ge": 0.0, "delta": 0.5,
+                                                                        "beta": 0.2}))
 
 
 def test_extended_tube_mapping_caps_delta_with_a_notice():
