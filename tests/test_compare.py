@@ -222,6 +222,25 @@ def test_swelling_estimate_matches_flory_rehner_table():
     assert q.low > 87.711 and q.high > q.value > q.low
 
 
+def test_swelling_rows_carry_the_chi_in_use_and_its_published_band():
+    # issue #20 item 6 (docs/methods.md §chi): with no χ given, NR–toluene uses the table's 0.39 (common
+    # practice) and the row shows ν at χ ± 0.03, the published spread (handbook 0.36 … 0.42).  Same masses as
+    # above (φ = 0.20); reference: Flory & Rehner 1943, affine f = 4, written here.
+    md = 1.0e-3
+    ms = md + 4.0 * (md / 910.0) * 862.3
+    comp = mr_compound("S", 0.2e6, 0.05e6)
+    comp.swelling = [SwellingTest(dry=md, swollen=ms, solvent="toluene")]
+    row = compare([comp], model="mooney-rivlin")["S"].swelling_rows[0]
+    V1 = 92.141e-3 / 862.3  # toluene M/ρ from the solvent table
+
+    def nu(chi, phi=0.2):
+        return -(math.log(1 - phi) + phi + chi * phi * phi) / (V1 * (phi ** (1 / 3) - phi / 2))
+
+    assert row["chi_used"] == 0.39 and row["chi_spread"] == 0.03
+    assert row["nu_band_chi"] == pytest.approx([nu(0.36), nu(0.42)], rel=1e-9)
+    assert any("χ in use: 0.39" in str(n) for n in row["notes"])  # shown in the report's swelling table
+
+
 def test_bad_swelling_masses_are_refused_with_a_sentence():
     with pytest.raises(DataError, match="must exceed"):
         SwellingTest(dry=2e-3, swollen=1e-3)
