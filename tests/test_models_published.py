@@ -122,6 +122,25 @@ def test_extended_tube_modulus_formula_against_finite_differences(Gc, Ge, delta,
     assert abs(expected - (Gc + Ge)) > 1e-3 * expected
 
 
+@pytest.mark.parametrize("name", ["neo-hookean", "affine", "phantom", "mooney-rivlin", "constrained-junction",
+                                  "eight-chain", "three-chain", "non-affine-tube", "extended-tube", "gent"])
+def test_compression_is_equibiaxial_tension_of_the_same_solid(name):
+    # docs/methods.md §compression [derived]: uniaxial compression at λ_c and equibiaxial tension at
+    # λ_b = λ_c^−½ are one deformation, differing by a hydrostatic pressure, so P_b = −P_c·λ_c^{3/2} for any
+    # isotropic incompressible solid.  Hand check for neo-Hookean: G(λ_b − λ_b⁻⁵) = −G(λ_c − λ_c⁻²)λ_c^{3/2}.
+    m = get_model(name)
+    p = m.params.defaults()
+    lam_c = np.array([0.95, 0.8, 0.65, 0.5])
+    P_c = m.nominal_stress("uniaxial", lam_c, p)
+    P_b = m.nominal_stress("equibiaxial", lam_c**-0.5, p)
+    ok = np.isfinite(P_c) & np.isfinite(P_b)
+    assert ok.sum() >= 2
+    assert P_b[ok] == pytest.approx(-P_c[ok] * lam_c[ok] ** 1.5, rel=1e-9)
+    if name == "neo-hookean":
+        G = p["G"]
+        assert P_c == pytest.approx(G * (lam_c - lam_c**-2), rel=1e-12)
+
+
 def test_mooney_rivlin_reduced_stress_is_a_straight_line_in_inverse_stretch():
     # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (docs/methods.md §mooney-plot)
     lam = np.linspace(1.1, 4, 20)
