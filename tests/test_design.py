@@ -107,6 +107,21 @@ def test_swelling_target_flory_rehner():
     assert any(n.kind == "chi-band" for n in r.notices)
 
 
+def test_swelling_target_uses_the_same_chi_as_a_swelling_result():
+    # one answer per quantity (docs/methods.md §chi): a Q target without χ takes the row a swelling test at the
+    # lab temperature would take.  CR–toluene: the handbook 0.14 was measured at 100 °C (Orwoll & Arnold,
+    # Table 14.1 [handbook]), so at 23 °C the table's estimate row serves — before, design took the 0.14.
+    from network_models.swelling import swelling_estimate
+
+    r = design(["Q(toluene)<=3"], polymer="CR", model="affine")
+    used = swelling_estimate(1.0, 2.5, "toluene", "CR").chi_used
+    assert used != 0.14
+    assert any(f"χ = {used:g} [estimate]" in str(n) for n in r.notices)
+    # NR–toluene: the common-practice default 0.39 in both
+    r = design(["Q(toluene)<=4"], model="eight-chain")
+    assert r.window.lo == pytest.approx(246.63, rel=2e-4)  # §flory-rehner table, φ = 0.25, χ = 0.39, affine
+
+
 def test_trade_units_psi_and_kgf():
     # psi and kgf from scipy.constants (NIST definitions)
     t = parse_target("M100=250psi±5%")
