@@ -5,7 +5,7 @@
     >>> for row in t.rows: print(row.label, row.nu, row.junction_density, row.Mc)
     >>> t = from_fit(fit_result, polymer="NR")                      # intervals from the fit
 
-Relations (physics.md §3–4; R from scipy.constants):
+Relations (docs/methods.md §models and §network; R from scipy.constants):
 
 * affine network: G = νRT;   phantom network: G = (1 − 2/f)νRT;   junction density μ_j = 2ν/f;
 * M_c = ρ/ν;   Kuhn segments per strand N = M_c/M_K (M_K from the polymer table);

@@ -35,7 +35,7 @@ from .design_targets import Target, TargetError, parse_targets
 from .errors import Notice, UserError
 from .models import get_model
 from .network import Network, get_polymer, lock_from_N
-from .swelling import CHI_BAND, KRAUS_C_CARBON_BLACK, chi_values, get_solvent, swollen_fraction
+from .swelling import CHI_BAND, KRAUS_C_CARBON_BLACK, chi_values, default_chi, get_solvent, swollen_fraction
 
 __all__ = ["NU_RANGE", "CAUTION", "DesignResult", "DesignSetup", "Interval",
            "Target", "TargetError", "TargetOutcome", "compare_models", "design", "parse_targets"]
@@ -154,7 +154,7 @@ class _Evaluator:
             if not rows:
                 raise TargetError(f"target {t.text!r}: the solvent table has no χ for {self.setup.polymer}–{sol.key}; "
                                   f"give it in the target, e.g. 'Q({sol.key},chi=0.40)<=3.5'.", kind="design-target")
-            row = next((r for r in rows if r.default), rows[0])
+            row = default_chi(self.setup.polymer, sol.key)  # the swelling module's one rule (docs/methods.md §chi)
             self._chi[key] = (row.chi, row.status)
         return self._chi[key]
 

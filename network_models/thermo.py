@@ -139,7 +139,7 @@ def energetic_fraction(T, force, stretch, expansion=None):
     from a straight-line fit of ln(F/T) on T, with its standard error).  With the volume expansion
     coefficient β the **constant-volume** energetic fraction — the one that measures the energetic part of
     the chains — follows as f_e/f = −T·∂ln(F/T)/∂T|_{p,L} − βT/(λ³ − 1) (Flory, Ciferri & Hoeve 1960
-    [memory]; physics.md §8).  ``expansion=None`` returns the uncorrected constant-pressure value.
+    [memory]; docs/methods.md §thermoelastic).  ``expansion=None`` returns the uncorrected constant-pressure value.
 
     For an ideal network with thermal expansion the constant-pressure value is βT/(λ³ − 1) and the
     constant-volume value ≈ 0.  When λ³ − 1 < 0.5 the correction dominates the result: a notice says so.

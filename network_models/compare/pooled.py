@@ -119,7 +119,7 @@ def split_modulus(model, values: dict, polymer: str, T: float) -> tuple[float, f
 
 
 def strand_density_from_modulus(Gx: float, T: float) -> float:
-    """Affine: ν = G_x/(RT), mol/m³ (physics.md §3)."""
+    """Affine: ν = G_x/(RT), mol/m³ (docs/methods.md §affine)."""
     return Gx / (R * T)
 
 
@@ -327,7 +327,8 @@ def _swelling_part(res, compound):
             "specimen": s.specimen or "", "source": s.source, "solvent": est.solvent.key, "chi": est.chi.chi,
             "chi_status": est.chi.status, "molar_volume_cm3_mol": est.solvent.molar_volume * 1e6,
             "phi": est.phi, "phi_measured": est.phi_measured, "nu": est.nu_affine, "nu_phantom": est.nu_phantom,
-            "nu_chi_minus_0.05": lo_b, "nu_chi_plus_0.05": hi_b, "f": compound.f, "notes": list(est.notes)})
+            "nu_chi_minus_0.05": lo_b, "nu_chi_plus_0.05": hi_b, "f": compound.f, "notes": list(est.notes),
+            "chi_used": est.chi_used, "chi_spread": est.chi_spread, "nu_band_chi": list(est.nu_band_chi["affine"])})
     if sw_vals:
         ends.extend(sw_vals)
         res.quantities["nu_swelling"] = Quantity(

@@ -16,7 +16,7 @@ from ..testdata import TestCurve
 RELATIVE_FLOOR = 0.02  # relative residual denominator floor, fraction of the largest |stress| of a mode
 SMALL_STRAIN = (0.7, 1.5)  # stretch window for the start modulus
 
-_NEO_SHAPE = {  # nominal stress / G for the neo-Hookean solid (physics.md §2 with W₁ = G/2, W₂ = 0)
+_NEO_SHAPE = {  # nominal stress / G, neo-Hookean solid (docs/methods.md §stress-from-energy, W₁ = G/2, W₂ = 0)
     0: lambda x: x - x**-2,  # uniaxial
     1: lambda x: x - x**-5,  # equibiaxial
     2: lambda x: x - x**-3,  # planar
@@ -26,7 +26,7 @@ _KINEMATICS = ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1")
 
 
 def _stretches(mode_index: int, lam: np.ndarray):
-    """(λ₁, λ₂, λ₃) of the incompressible test modes, direction 3 stress-free (physics.md §2)."""
+    """(λ₁, λ₂, λ₃) of the incompressible test modes, direction 3 stress-free (docs/methods.md §test-modes)."""
     if mode_index == 0:
         lt = 1.0 / np.sqrt(lam)
         return lam, lt, lt
