@@ -13,6 +13,7 @@ import math
 
 import numpy as np
 import pytest
+import scipy.constants
 from scipy.constants import R  # CODATA gas constant, J/(mol·K)
 
 from network_models import get_model
@@ -20,13 +21,15 @@ from network_models.fitting import fit
 from network_models.testdata import TestCurve
 
 # Treloar 1944 (Trans. Faraday Soc. 40:59), uniaxial tension of a gum natural-rubber vulcanisate at 20 °C:
-# stretch and nominal stress in MPa as the data set is commonly reprinted (e.g. Steinmann, Hossain & Possart
-# 2012, Arch. Appl. Mech. 82:1183, Table 1) [from memory — the values the hyperelasticity literature
-# circulates; the project carried no copy before this test].
-TRELOAR_LAMBDA = np.array([1.01, 1.12, 1.24, 1.39, 1.61, 1.89, 2.17, 2.42, 3.01, 3.58, 4.03, 4.76, 5.36, 5.76, 6.16,
-                           6.40, 6.62, 6.87, 7.05, 7.16, 7.27, 7.43, 7.50, 7.61])
-TRELOAR_MPA = np.array([0.03, 0.14, 0.23, 0.32, 0.41, 0.50, 0.58, 0.67, 0.85, 1.04, 1.21, 1.58, 1.94, 2.29, 2.67,
-                        3.02, 3.39, 3.75, 4.12, 4.47, 4.85, 5.21, 5.57, 6.30])
+# stretch and nominal stress in kgf/cm² as the table is commonly reprinted (checked against a public reprint
+# of the table), converted with 1 kgf/cm² = 0.0980665 MPa (standard gravity, scipy.constants.g).
+_TRELOAR_KGF = np.array([
+    [1.020, 0.26], [1.125, 1.37], [1.240, 2.30], [1.390, 3.23], [1.585, 4.16], [1.900, 5.10], [2.180, 6.00],
+    [2.420, 6.90], [3.020, 8.80], [3.570, 10.7], [4.030, 12.5], [4.760, 16.2], [5.360, 19.9], [5.750, 23.6],
+    [6.150, 27.4], [6.400, 31.0], [6.600, 34.8], [6.850, 38.5], [7.050, 42.1], [7.150, 45.8], [7.250, 49.6],
+    [7.400, 53.3], [7.500, 57.0], [7.600, 64.4]])
+TRELOAR_LAMBDA = _TRELOAR_KGF[:, 0]
+TRELOAR_MPA = _TRELOAR_KGF[:, 1] * scipy.constants.g / 100.0  # kgf/cm² → MPa: g N per kgf, 1 cm² = 1e-4 m²
 
 
 def _neo_hookean_small_strain(seed=1):
@@ -115,13 +118,13 @@ def test_not_determined_in_fit_json_and_text(tmp_path, capsys):
 # 2. extrapolation past the tested range
 # ------------------------------------------------------------------------------------------------
 def test_extended_tube_on_treloar_cut_at_3_flags_the_prediction_at_6_16():
-    keep = TRELOAR_LAMBDA <= 3.01
+    keep = TRELOAR_LAMBDA <= 3.02
     cut = TestCurve("uniaxial", TRELOAR_LAMBDA[keep], TRELOAR_MPA[keep] * 1e6, name="Treloar 1944, λ ≤ 3")
     res = fit("extended-tube", cut)
-    pred = float(res.predict("uniaxial", np.array([6.16]))[0])
-    measured = 2.67e6  # Treloar 1944 at λ = 6.16
+    pred = float(res.predict("uniaxial", np.array([6.15]))[0])
+    measured = TRELOAR_MPA[TRELOAR_LAMBDA == 6.15][0] * 1e6  # Treloar 1944 at λ = 6.15
     assert pred > 3 * TRELOAR_MPA[keep].max() * 1e6  # the fit does run away (the 3 675 MPa)
-    note = res.range_note("uniaxial", [6.16])
+    note = res.range_note("uniaxial", [6.15])
     assert note is not None and note.kind == "implausible-extrapolation" and "plausible" in note
     # a prediction inside 3× the largest measured stress is only called an extrapolation
     assert res.range_note("uniaxial", [3.3]).kind == "extrapolated-range"
