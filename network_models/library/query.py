@@ -169,10 +169,10 @@ def trend(quantity: str = "strand_density", db=None, *, compound_prefix: str = "
             else:
                 notes.append(f"model: {mname}, the model of the latest study holding these compounds (--model to "
                              "choose another)")
-        q = (select(c.c.name, c.c.tested, c.c.date_source, st.c.id.label("study"), st.c.imported_at, r.c.value,
-                    r.c.ci_low, r.c.ci_high, r.c.n, r.c.basis_label)
-             .select_from(r.join(c, c.c.id == r.c.compound_id).join(st, st.c.id == c.c.study_id))
-             .where(r.c.quantity == quantity, r.c.basis == basis, r.c.model == mname))
+        # each compound's latest import holding this model's results (on any basis) ...
+        q = (select(c.c.id, c.c.name, st.c.id.label("study"), st.c.imported_at)
+             .select_from(c.join(st, st.c.id == c.c.study_id))
+             .where(c.c.id.in_(select(r.c.compound_id).where(r.c.quantity == quantity, r.c.model == mname))))
         if compound_prefix:
             q = q.where(c.c.name.startswith(compound_prefix, autoescape=True))
         latest: dict[str, object] = {}
@@ -180,6 +180,20 @@ def trend(quantity: str = "strand_density", db=None, *, compound_prefix: str = "
             old = latest.get(row.name)
             if old is None or (row.imported_at, row.study) > (old.imported_at, old.study):
                 latest[row.name] = row
+        ids = {row.id for row in latest.values()}
+        # ... and its value on the one basis asked for (an older import is never used in its place)
+        q = (select(c.c.id, c.c.name, c.c.tested, c.c.date_source, st.c.id.label("study"), r.c.value, r.c.ci_low,
+                    r.c.ci_high, r.c.n, r.c.basis_label)
+             .select_from(r.join(c, c.c.id == r.c.compound_id).join(st, st.c.id == c.c.study_id))
+             .where(r.c.quantity == quantity, r.c.basis == basis, r.c.model == mname))
+        if compound_prefix:
+            q = q.where(c.c.name.startswith(compound_prefix, autoescape=True))
+        found = {row.name: row for row in conn.execute(q) if row.id in ids}
+    missing = sorted(set(latest) - set(found))
+    if missing:
+        notes.append(f"left out (their latest import has no value on this basis; no other basis or import is "
+                     f"substituted): {', '.join(missing)}")
+    latest = found
     rows = sorted(latest.values(), key=lambda x: (x.tested, x.name))
     skipped = [x.name for x in rows if x.value is None or (quantity == "strand_density" and x.value <= 0)]
     if skipped:
