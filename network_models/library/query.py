@@ -53,6 +53,23 @@ def _inside(t, x) -> bool:
     return (t.lo is None or x >= t.lo) and (t.hi is None or x <= t.hi)
 
 
+def _passes(r, t, factor):
+    """SQL form of the match rule for one target: the interval inside (n ≥ 2), else the value inside."""
+    from sqlalchemy import and_, or_
+
+    def inside(col):
+        conds = []
+        if t.lo is not None:
+            conds.append(col * factor >= t.lo)
+        if t.hi is not None:
+            conds.append(col * factor <= t.hi)
+        return and_(*conds)
+
+    has_ci = and_(r.c.n >= 2, r.c.ci_low.is_not(None), r.c.ci_high.is_not(None))
+    return or_(and_(has_ci, inside(r.c.ci_low), inside(r.c.ci_high)),
+               and_(~has_ci, r.c.value.is_not(None), inside(r.c.value)))
+
+
 def find(targets, db=None, *, polymer: str | None = None, model: str | None = None, engine=None,
          limit: int | None = None) -> dict:
     """Compounds whose headline values meet every target (see the module doc); ``{"matches": [...]}``.  ``model``
@@ -76,6 +93,8 @@ def find(targets, db=None, *, polymer: str | None = None, model: str | None = No
          .where(r.c.model == mname if mname else r.c.model == st.c.model))
     if polymer:
         q = q.where(and_(c.c.polymer == polymer))
+    for t, qname, factor in wanted:  # the match rule in SQL first (fewer rows); checked again below
+        q = q.where(c.c.id.in_(select(r.c.compound_id).where(r.c.quantity == qname, _passes(r, t, factor))))
     per: dict[int, dict] = {}
     with eng.connect() as conn:
         for row in conn.execute(q):
