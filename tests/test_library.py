@@ -311,20 +311,21 @@ def test_find_matches_by_interval_and_ranks_nearest_first(db):
     d = dt.date(2025, 5, 1)
     _put(db, [
         # nu=250..300 (centre 275) and lock>=6 (centre 6)
-        ("A", d, {"nu": (270.0, 262.0, 278.0, 3), "lock": (6.5, 6.2, 6.8, 3)}),   # match: max(5/275, .5/6)=0.0833
+        ("A", d, {"nu": (270.0, 262.0, 278.0, 3), "lock": (6.5, 6.2, 6.8, 3)}),   # match
         ("B", d, {"nu": (280.0, 240.0, 320.0, 3), "lock": (9.0, 8.0, 10.0, 3)}),  # interval leaves the range
         ("C", d, {"nu": (290.0, None, None, 1), "lock": (6.1, None, None, 1)}),   # n = 1: value inside, flagged
         ("D", d, {"nu": (276.0, 270.0, 282.0, 3), "lock": (5.0, 4.8, 5.2, 3)}),   # fails the lock target
         ("E", d, {"nu": (300.0, 299.0, 301.0, 3), "lock": (6.05, 6.0, 6.1, 3)}),  # upper end 301 > 300: out
-        ("F", d, {"nu": (275.0, 270.0, 280.0, 3), "lock": (6.3, 6.1, 6.5, 3),     # match: max(0, .3/6) = 0.05
+        ("F", d, {"nu": (275.0, 270.0, 280.0, 3), "lock": (6.3, 6.1, 6.5, 3),     # match, at the centre
                   "nu_all": (900.0, 880.0, 920.0, 3)}),                          # another basis: not the headline
     ])
     res = find(["nu=250..300mol/m3", "lock>=6"], db)
     names = [m["compound"] for m in res["matches"]]
-    # hand-computed: F 0.05, C max(15/275, 0.1/6) = 0.05455, A max(5/275, 0.5/6) = 0.08333
-    assert names == ["F", "C", "A"]
+    # hand-computed from the range target's centre 275 (lock>=6 is one-sided: no centre, no distance once met):
+    # F 0/275 = 0, A 5/275 = 0.01818, C 15/275 = 0.05455
+    assert names == ["F", "A", "C"]
     by = {m["compound"]: m for m in res["matches"]}
-    assert by["F"]["distance"] == pytest.approx(0.3 / 6)
+    assert by["F"]["distance"] == 0.0 and by["A"]["distance"] == pytest.approx(5 / 275)
     assert by["C"]["distance"] == pytest.approx(15 / 275) and by["C"]["n1"] is True and by["A"]["n1"] is False
     assert by["A"]["values"]["nu=250..300mol/m3"]["ci95"] == [262.0, 278.0]
     assert by["A"]["date"] == "2025-05-01" and by["A"]["study"] >= 1

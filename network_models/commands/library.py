@@ -119,8 +119,9 @@ def run_find(args):
         _out(res)
         return 0
     m = res["matches"]
-    print(f"{len(m)} compound(s) meet {', '.join(t['text'] for t in res['targets'])} (model: {res['model']}); "
-          "nearest first")
+    shown = f"; the nearest {len(m)} shown" if len(m) < res["total"] else ", nearest first"
+    print(f"{res['total']} compound(s) meet {', '.join(t['text'] for t in res['targets'])} (model: {res['model']})"
+          f"{shown}")
     for x in m:
         vals = "; ".join(_shown(k, v) for k, v in x["values"].items())
         flag = "  [n = 1: scatter unknown]" if x["n1"] else ""

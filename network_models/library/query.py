@@ -2,8 +2,9 @@
 
 **find** — a compound matches when, for every target, its headline 95 % interval of the target's quantity lies
 inside the target's range; with one specimen (no interval) its value must, and the match is flagged ``n = 1``.
-Matches are ranked nearest first: the smallest largest relative distance of the compound's values from the
-targets' centres (a range's midpoint; a one-sided target's bound).
+Matches are ranked nearest first: the smallest largest relative distance |x − c|/|c| of the compound's values
+from the targets' centres c (a range's midpoint; a one-sided target such as ``lock>=6`` has no centre and adds no
+distance once met); ties by date, then compound key.
 
 **trend** — one point per compound (its latest import), in test-date order, all on ONE stated basis; an
 individuals chart with moving-range limits: centre = mean of the points, MR̄ = mean of |xᵢ − xᵢ₋₁|,
@@ -43,10 +44,11 @@ def _target_quantity(t) -> tuple[str, float]:
                        "on one of those, e.g. 'nu=250..300mol/m3' or 'lock>=6'")
 
 
-def _centre(t) -> float:
+def _centre(t) -> float | None:
+    """A range's midpoint; a one-sided target (``lock>=6``) has no centre and adds no distance once met."""
     if t.lo is not None and t.hi is not None:
         return (t.lo + t.hi) / 2.0
-    return t.lo if t.lo is not None else t.hi
+    return None
 
 
 def _inside(t, x) -> bool:
@@ -118,7 +120,8 @@ def find(targets, db=None, *, polymer: str | None = None, model: str | None = No
                     break
                 one = True
             cen = _centre(t)
-            dist = max(dist, abs(v - cen) / abs(cen) if cen else abs(v))
+            if cen is not None:
+                dist = max(dist, abs(v - cen) / abs(cen) if cen else abs(v))
             values[t.text] = {"quantity": t.name, "value": v, "ci95": None if lo is None else [lo, hi],
                               "n": x.n, "unit": "Pa" if t.unit == "MPa" else (t.unit or "1"),
                               "basis": x.basis_label if qname == "strand_density" else
@@ -129,15 +132,16 @@ def find(targets, db=None, *, polymer: str | None = None, model: str | None = No
                             "date": row.tested.isoformat(), "date_source": row.date_source, "polymer": row.polymer,
                             "model": row.model, "n1": one, "distance": dist, "values": values})
     matches.sort(key=lambda m: (m["distance"], m["date"], m["compound"]))
+    total = len(matches)
     if limit:
         matches = matches[:limit]
     notes = ["a compound matches when its 95 % interval of every target's quantity lies inside the target; with "
              "one specimen its value must (flagged n1); nearest first: the smallest largest relative distance from "
-             "the targets' centres"]
+             "the centres of the range targets (a one-sided target adds none once met)"]
     if any(m["n1"] for m in matches):
         notes.append("matches flagged n1 rest on one specimen (or the pooled fit): their scatter is unknown")
     return {"targets": [t.to_dict() for t in tl], "model": mname or "each study's own model",
-            "polymer": polymer, "matches": matches, "notes": notes}
+            "polymer": polymer, "matches": matches, "total": total, "notes": notes}
 
 
 # ----- trend -------------------------------------------------------------------------------------------------------
