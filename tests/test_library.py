@@ -477,3 +477,45 @@ def test_nu_target_in_the_shared_syntax():
     for bad in ("nu<=300", "nu=250..300MPa", "nu@80C>=3mol/m3"):
         with pytest.raises(TargetError):
             parse_target(bad)
+
+
+# ----- the app's Library tab (no browser: the view's actions on a session) --------------------------------------
+def test_library_tab_finds_opens_trends_and_saves_with_the_login_name(tmp_path, monkeypatch):
+    pn = pytest.importorskip("panel")
+    from app.library_view import LibraryView
+    from app.main import _library_tab
+    from app.session import Session
+
+    url = f"sqlite:///{tmp_path / 'app.sqlite'}"
+    monkeypatch.delenv("NETSTRETCH_LIBRARY", raising=False)
+    assert _library_tab(Session(), None) is None  # no library configured: no tab
+    man = _small_manifest(tmp_path, batches=("B13", "B14", "B15"))
+    first = import_study("manifest", man, url)
+    _put(url, [("<b>QM-X</b>", dt.date(2025, 1, 1), {"nu": (140.0, 135.0, 145.0, 3), "lock": (9.0, 8.5, 9.5, 3)})],
+         title="<script>alert(1)</script>")
+    session = Session()
+    opened = []
+    view = LibraryView(session, db=url, on_open=lambda: opened.append(True))
+    view.targets.value = "nu=120..160mol/m3\nlock>=6"
+    res = view.search()
+    assert res["total"] >= 1 and "&lt;b&gt;QM-X&lt;/b&gt;" in view.matches.object
+    assert "<b>QM-X</b>" not in view.matches.object  # a stored name is data, never markup
+    rows = view.list_studies()
+    assert [r["study"] for r in rows] == [first.study, first.study + 1]
+    assert "<script>" not in view.studies.object
+    view.study_id.value = first.study
+    view.open_study()
+    assert opened and {f.name for f in session.data.files} == {f"QM-M7-{b}.csv" for b in ("B13", "B14", "B15")}
+    view.prefix.value = "QM-M7"
+    tr = view.draw_trend()
+    assert len(tr["points"]) == 3 and view.chart.object.startswith("<svg")
+    monkeypatch.setattr(pn.state, "_user", "lab-user-7", raising=False)
+    monkeypatch.setattr(type(pn.state), "user", property(lambda self: "lab-user-7"), raising=False)
+    saved = view.save_session()
+    assert saved.created
+    with connect(url).connect() as conn:
+        who = conn.execute(sa.select(S.studies.c.saved_by).where(S.studies.c.id == saved.study)).scalar()
+    assert who == "lab-user-7"
+    # a bad target is a message beside the form, not an exception
+    view.targets.value = "nu<=300"
+    assert view.search() is None and "library-find" in view.messages.texts()

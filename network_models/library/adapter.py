@@ -116,6 +116,8 @@ def _project_module():
 def study_from(kind: str, path, model: str | None = None) -> StudyInput:
     """THE adapter: a manifest (``kind="manifest"``), a project zip (``"project"``) or a batch output
     (``"batch"``) → the study to store.  ``model`` None: the study's own model, else the comparison default."""
+    if kind == "project" and isinstance(path, (bytes, bytearray, memoryview)):  # a project made in memory (app)
+        return _from_project(bytes(path), model)
     p = Path(path)
     if not p.exists():
         raise LibraryError(f"{path}: no such file; check the path")
@@ -166,12 +168,13 @@ def _from_manifest(p: Path, model):
                       inputs=inputs, compounds=list(man.compounds), baseline=man.baseline)
 
 
-def _from_project(p: Path, model):
+def _from_project(p, model):
     from ..compounds import Compound, SwellingTest
     from ..labfiles import read_curves_bytes
     from ..models import get_model
 
     mod = _project_module()
+    name = "project" if isinstance(p, bytes) else p.name
     try:
         proj = mod.read_project(p)
     except ValueError as exc:
@@ -197,9 +200,10 @@ def _from_project(p: Path, model):
                               polymer=fc.polymer if fc else "NR", f=fc.f if fc else 4.0,
                               notes=fc.notes if fc else ""))
     own = cmp_settings.get("model")
-    name = get_model(model or own or DEFAULT_MODEL).name
+    mname = get_model(model or own or DEFAULT_MODEL).name
     baseline = cmp_settings.get("baseline") if cmp_settings.get("baseline") in chosen else None
-    return StudyInput(kind="project", title=proj.title or p.stem, source=p.name, model=name,
+    title = proj.title or (name if isinstance(p, bytes) else p.stem)
+    return StudyInput(kind="project", title=title, source=name, model=mname,
                       settings=dict(proj.settings), inputs=inputs, compounds=comps, baseline=baseline)
 
 
