@@ -268,9 +268,9 @@ def test_concurrent_imports_of_one_study_store_it_once(db, tmp_path):
     assert orphans == 0
 
 
-def test_concurrent_imports_in_two_processes(tmp_path):
-    url = f"sqlite:///{tmp_path / 'p.sqlite'}"
-    connect(url)
+def test_concurrent_imports_in_two_processes(db, tmp_path):
+    """Two processes on an empty library: both migrate it and import the same study at once."""
+    url = db
     man = _small_manifest(tmp_path, batches=("B07",))
     code = ("import sys, json; from network_models.library import import_study; "
             "r = import_study('manifest', sys.argv[1], sys.argv[2]); print(json.dumps(r.to_dict()))")

@@ -210,9 +210,16 @@ def _from_project(p, model):
 _SWELL = ("dry", "swollen", "solvent", "chi", "extracted", "temperature", "specimen", "source")
 
 
+#: a batch output larger than this is refused (a results file of a million curves is ~200 MB)
+MAX_BATCH_BYTES = 200_000_000
+
+
 def _from_batch(p: Path, model):
     from ..batch import read_results
 
+    if p.stat().st_size > MAX_BATCH_BYTES:
+        raise LibraryError(f"{p.name} is larger than {MAX_BATCH_BYTES // 1_000_000} MB; import the batch output in "
+                           "parts (one folder per run)")
     try:
         rows = read_results(p)
     except Exception as exc:  # a file that is not a batch output: one sentence

@@ -96,6 +96,15 @@ def _result_rows(r, model: str) -> list[dict]:
     return rows
 
 
+def _conditions(c) -> list[dict]:
+    """Test conditions per curve (file by name only — never the folder it was read from)."""
+    from pathlib import PurePath
+
+    return [{"curve": x["curve"], "file": PurePath(str(x["source"])).name, "mode": x["mode"],
+             "specimen": x["specimen"], "cycle": x["cycle"], "temperature_K": x["temperature_K"], "points": x["points"]}
+            for x in c.provenance()]
+
+
 def _analyse(st: StudyInput, today) -> list[dict]:
     """Compare the study's compounds with its model → one dict per compound with specimens and result rows."""
     from ..compare import compare
@@ -112,7 +121,8 @@ def _analyse(st: StudyInput, today) -> list[dict]:
             "name": c.name, "polymer": c.polymer, "f": float(c.f), "filler": float(c.filler_fraction),
             "tested": tested, "date_source": src,
             "metadata": _json({"metadata": c.metadata, "notes": c.notes,
-                               "swelling": [s.to_dict() for s in c.swelling]}),
+                               "swelling": [s.to_dict() for s in c.swelling],
+                               "test_temperature_K": r.test_temperature, "conditions": _conditions(c)}),
             "n": int(r.n), "error": r.error,
             "specimens": [{"name": s.name, "used": bool(s.used), "excluded": s.excluded,
                            "values": _json({k: _num(v) for k, v in s.values.items()})} for s in r.specimens],
