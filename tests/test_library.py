@@ -103,7 +103,12 @@ def pg_server():
                 pytest.fail(f"PostgreSQL is required here (NETSTRETCH_REQUIRE_PG=1): {stop}")
             pytest.skip(f"PostgreSQL tests skipped: {stop}")
     try:
-        pytest.importorskip("psycopg")
+        try:
+            import psycopg  # noqa: F401
+        except ImportError:
+            if os.environ.get("NETSTRETCH_REQUIRE_PG") == "1":
+                pytest.fail("the psycopg driver is missing (pip install -e '.[dev]' or 'netstretch[postgres]')")
+            pytest.skip("PostgreSQL tests skipped: the psycopg driver is not installed")
         yield url
     finally:
         if callable(stop):
@@ -164,6 +169,16 @@ def test_an_unreachable_database_gives_one_sentence_with_the_password_masked(cap
     err = capsys.readouterr().err
     assert "Traceback" not in err and "s3cret-pw" not in err and "cannot reach the library database" in err
     assert masked("postgresql://u:pw@h/db") == "postgresql://u:***@h/db"
+
+
+def test_a_file_that_is_not_a_library_is_refused_with_a_sentence(tmp_path, capsys):
+    bad = tmp_path / "notes.sqlite"
+    bad.write_bytes(b"these are meeting notes, not a database " * 100)
+    with pytest.raises(LibraryError) as e:
+        connect(str(bad))
+    assert "cannot be used" in str(e.value) and "\n" not in str(e.value)
+    assert main(["library", "list", "--db", str(tmp_path / "no-such-folder" / "x.sqlite")]) == 2
+    assert "does not exist" in capsys.readouterr().err
 
 
 def test_migrations_ship_in_the_wheel():

@@ -196,6 +196,9 @@ def connect(db: str | None = None):
     except LibraryError:
         raise
     except DBAPIError as exc:
+        if url.startswith("sqlite"):
+            raise LibraryError(f"the library file {masked(url)} cannot be used ({_reason(exc)}); check that it is a "
+                               "netstretch library you may write to, or give another --db") from None
         raise LibraryError(f"cannot reach the library database {masked(url)} ({_reason(exc)}); check the address, "
                            "that the server is running and the user name and password") from None
     except SQLAlchemyError as exc:
