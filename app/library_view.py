@@ -26,6 +26,10 @@ def _fmt(v, unit) -> str:
     return f"{v / 1e6:.4g}" if unit == "Pa" else f"{v:.4g}"
 
 
+def _raise(exc):
+    raise exc
+
+
 def _login() -> str | None:
     """The name the user logged in with on a shared server; else this machine's user."""
     user = getattr(pn.state, "user", None)
@@ -67,21 +71,75 @@ class LibraryView(pn.viewable.Viewer):
         self.points = html("", css_classes=["ns-lib-points"])
         self.save_btn = pn.widgets.Button(name="Save this session's study to the library", width=300,
                                           css_classes=["ns-lib-save"])
-        self.search = guarded(self.messages, "library-find", "Find")(self.search)
+        # each action: the database work (and for Save the comparison) runs in a worker thread, the page is
+        # updated back on the server's event loop; a user error becomes a message beside the form
+        self._actions = {
+            "search": ("library-find", "Find", self._search_work, self._search_show),
+            "list_studies": ("library-list", "List studies", self._list_work, self._list_show),
+            "draw_trend": ("library-trend", "Trend", self._trend_work, self._trend_show),
+            "save_session": ("library-save", "Save to library", self._save_work, self._save_show),
+        }
         self.open_study = guarded(self.messages, "library-open", "Open study")(self.open_study)
-        self.list_studies = guarded(self.messages, "library-list", "List studies")(self.list_studies)
-        self.draw_trend = guarded(self.messages, "library-trend", "Trend")(self.draw_trend)
-        self.save_session = guarded(self.messages, "library-save", "Save to library")(self.save_session)
-        self.search_btn.on_click(lambda e: self.search())
+        self.search_btn.on_click(self._clicked("search"))
         self.open_btn.on_click(lambda e: self.open_study())
-        self.list_btn.on_click(lambda e: self.list_studies())
-        self.trend_btn.on_click(lambda e: self.draw_trend())
-        self.save_btn.on_click(lambda e: self.save_session())
+        self.list_btn.on_click(self._clicked("list_studies"))
+        self.trend_btn.on_click(self._clicked("draw_trend"))
+        self.save_btn.on_click(self._clicked("save_session"))
 
-    # ----- actions ---------------------------------------------------------------------------------------
+    def _clicked(self, name):
+        key, what, work, show = self._actions[name]
+
+        async def handler(event=None):
+            import asyncio
+
+            self.messages.clear(key)
+            try:
+                args = self._inputs(name)  # widget values read on the event loop
+                result = await asyncio.to_thread(work, *args)
+            except Exception as exc:  # the same sentence (or the logged fallback) as every guarded action
+                guarded(self.messages, key, what)(_raise)(exc)
+                return
+            guarded(self.messages, key, what)(show)(result)
+
+        return handler
+
+    def _run(self, name):
+        """The same action in the caller's thread (scripts, tests): work, then show; None after a message."""
+        key, what, work, show = self._actions[name]
+
+        def both():
+            result = work(*self._inputs(name))
+            show(result)
+            return result
+
+        return guarded(self.messages, key, what)(both)()
+
     def search(self):
-        lines = [x.strip() for x in self.targets.value.splitlines() if x.strip()]
-        res = find(lines, self.db, polymer=self.polymer.value.strip() or None, limit=100)
+        return self._run("search")
+
+    def list_studies(self):
+        return self._run("list_studies")
+
+    def draw_trend(self):
+        return self._run("draw_trend")
+
+    def save_session(self):
+        return self._run("save_session")
+
+    def _inputs(self, name) -> tuple:
+        if name == "search":
+            return ([x.strip() for x in self.targets.value.splitlines() if x.strip()], self.polymer.value.strip())
+        if name == "draw_trend":
+            return (self.quantity.value, self.prefix.value.strip(), self.basis.value)
+        if name == "save_session":
+            return (self.session.to_project(), _login())
+        return ()
+
+    # ----- actions: work (any thread) and show (event loop) -------------------------------------------------
+    def _search_work(self, lines, polymer):
+        return find(lines, self.db, polymer=polymer or None, limit=100)
+
+    def _search_show(self, res):
         rows = []
         for m in res["matches"]:
             row = {"compound": m["compound"], "study": m["study"], "date": m["date"], "model": m["model"]}
@@ -92,16 +150,17 @@ class LibraryView(pn.viewable.Viewer):
                 row[key] = f"{_fmt(v['value'], u)}{ci}" + (f" {shown}" if shown else "")
             row["specimens"] = "1: scatter unknown" if m["n1"] else "≥ 2"
             rows.append(row)
-        head = f"<p>{res['total']} compound(s) meet {esc(', '.join(lines))}; nearest first.</p>"
+        texts = ", ".join(t["text"] for t in res["targets"])
+        head = f"<p>{res['total']} compound(s) meet {esc(texts)}; nearest first.</p>"
         self.matches.object = head + (table_html(rows, "ns-lib-table") if rows else "<p>No compound matches.</p>")
-        return res
 
-    def list_studies(self):
-        rows = [{"study": s["study"], "title": s["title"], "kind": s["kind"], "model": s["model"],
+    def _list_work(self):
+        return [{"study": s["study"], "title": s["title"], "kind": s["kind"], "model": s["model"],
                  "compounds": s["compounds"], "saved": s["imported_at"] or "", "by": s["saved_by"] or ""}
                 for s in studies(self.db)]
+
+    def _list_show(self, rows):
         self.studies.object = table_html(rows, "ns-lib-table") if rows else "<p>The library holds no study yet.</p>"
-        return rows
 
     def open_study(self):
         sid = int(self.study_id.value)
@@ -113,11 +172,13 @@ class LibraryView(pn.viewable.Viewer):
                                            if problems else ""))
         self.messages.show("library-open", text, "warning" if problems else "success")
 
-    def draw_trend(self):
-        q = self.quantity.value
-        tr = trend(q, self.db, compound_prefix=self.prefix.value.strip(),
-                   basis=self.basis.value if q == "strand_density" else None)
-        self.chart.object = trend_svg(tr)
+    def _trend_work(self, q, prefix, basis):
+        tr = trend(q, self.db, compound_prefix=prefix, basis=basis if q == "strand_density" else None)
+        return tr, trend_svg(tr)
+
+    def _trend_show(self, result):
+        tr, svg = result
+        self.chart.object = svg
         rows = [{"date": p["date"], "compound": p["compound"], "value": _fmt(p["value"], tr["unit"]),
                  "95 % interval": (f"{_fmt(p['ci95'][0], tr['unit'])}–{_fmt(p['ci95'][1], tr['unit'])}"
                                    if p["ci95"] else "—"),
@@ -128,14 +189,13 @@ class LibraryView(pn.viewable.Viewer):
                f"</p>")
         notes = "".join(f"<p class='ns-small'>{esc(n)}</p>" for n in tr["notes"])
         self.points.object = lim + table_html(rows, "ns-lib-table") + notes
-        return tr
 
-    def save_session(self):
-        data = self.session.to_project()
-        res = import_study("project", data, self.db, saved_by=_login())
+    def _save_work(self, data, user):
+        return import_study("project", data, self.db, saved_by=user)
+
+    def _save_show(self, res):
         self.messages.show("library-save", esc(res.sentence()).replace("\n", "<br>"),
                            "success" if res.created else "secondary")
-        return res
 
     def __panel__(self):
         return pn.Column(

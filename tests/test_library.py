@@ -522,8 +522,8 @@ def test_library_tab_finds_opens_trends_and_saves_with_the_login_name(tmp_path, 
     view.open_study()
     assert opened and {f.name for f in session.data.files} == {f"QM-M7-{b}.csv" for b in ("B13", "B14", "B15")}
     view.prefix.value = "QM-M7"
-    tr = view.draw_trend()
-    assert len(tr["points"]) == 3 and view.chart.object.startswith("<svg")
+    tr, svg = view.draw_trend()
+    assert len(tr["points"]) == 3 and view.chart.object == svg and svg.startswith("<svg")
     monkeypatch.setattr(pn.state, "_user", "lab-user-7", raising=False)
     monkeypatch.setattr(type(pn.state), "user", property(lambda self: "lab-user-7"), raising=False)
     saved = view.save_session()
@@ -531,6 +531,15 @@ def test_library_tab_finds_opens_trends_and_saves_with_the_login_name(tmp_path, 
     with connect(url).connect() as conn:
         who = conn.execute(sa.select(S.studies.c.saved_by).where(S.studies.c.id == saved.study)).scalar()
     assert who == "lab-user-7"
-    # a bad target is a message beside the form, not an exception
+    # a bad target is a message beside the form, not an exception — also through the button's handler, whose
+    # database work runs in a worker thread
     view.targets.value = "nu<=300"
     assert view.search() is None and "library-find" in view.messages.texts()
+    import asyncio
+
+    view.messages.clear("library-find")
+    asyncio.run(view._clicked("search")())
+    assert "needs a unit" in view.messages.texts()["library-find"]
+    view.targets.value = "nu=120..160mol/m3"
+    asyncio.run(view._clicked("search")())
+    assert "library-find" not in view.messages.texts() and "compound(s) meet" in view.matches.object
