@@ -12,6 +12,7 @@ is not one, a missing PostgreSQL driver.
 
 from __future__ import annotations
 
+import functools
 import os
 import sys
 import threading
@@ -137,16 +138,18 @@ def _alembic_config(connection=None):
     return cfg
 
 
+@functools.lru_cache(maxsize=1)
 def head_revision() -> str:
     from alembic.script import ScriptDirectory
 
     return ScriptDirectory.from_config(_alembic_config()).get_current_head()
 
 
-def known_revisions() -> set[str]:
+@functools.lru_cache(maxsize=1)
+def known_revisions() -> frozenset[str]:
     from alembic.script import ScriptDirectory
 
-    return {s.revision for s in ScriptDirectory.from_config(_alembic_config()).walk_revisions()}
+    return frozenset(s.revision for s in ScriptDirectory.from_config(_alembic_config()).walk_revisions())
 
 
 def current_revision(connection) -> str | None:
