@@ -96,6 +96,14 @@ def _result_rows(r, model: str) -> list[dict]:
     return rows
 
 
+def _recipe(c):
+    """The compound's recipe when the compound carries one (phr per ingredient), as plain data; else None."""
+    rec = getattr(c, "recipe", None)
+    if rec is None:
+        return None
+    return rec.to_dict() if hasattr(rec, "to_dict") else rec
+
+
 def _conditions(c) -> list[dict]:
     """Test conditions per curve (file by name only — never the folder it was read from)."""
     from pathlib import PurePath
@@ -122,7 +130,8 @@ def _analyse(st: StudyInput, today) -> list[dict]:
             "tested": tested, "date_source": src,
             "metadata": _json({"metadata": c.metadata, "notes": c.notes,
                                "swelling": [s.to_dict() for s in c.swelling],
-                               "test_temperature_K": r.test_temperature, "conditions": _conditions(c)}),
+                               "test_temperature_K": r.test_temperature, "conditions": _conditions(c),
+                               "recipe": _recipe(c)}),
             "n": int(r.n), "error": r.error,
             "specimens": [{"name": s.name, "used": bool(s.used), "excluded": s.excluded,
                            "values": _json({k: _num(v) for k, v in s.values.items()})} for s in r.specimens],
