@@ -86,6 +86,9 @@ def _build_page(load_samples: bool = True):
         ("Compare", compare),
         ("Design", design),
     ]
+    library = _library_tab(session, compare)
+    if library is not None:
+        tabs.append(("Library", library))
     header = html(
         "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
         "<span class='ns-tag'>rubber network explorer — models, test data, crosslink density</span></div>",
@@ -123,7 +126,19 @@ def _build_page(load_samples: bool = True):
     page.ns_explorer = explorer
     page.ns_project = project
     page.ns_design = design
+    page.ns_library = library
     return page
+
+
+def _library_tab(session: Session, compare):
+    """The Library tab, only when a results library is configured ($NETSTRETCH_LIBRARY); None otherwise."""
+    from network_models.library.db import configured
+
+    if not configured():
+        return None
+    from .library_view import LibraryView
+
+    return LibraryView(session, on_open=compare._run)
 
 
 def _load_samples(session: Session) -> list[str]:

@@ -34,6 +34,7 @@ BENCHES = {
     "batch": ("bench_batch", ("batch_curves_per_s", "batch_peak_mib", "batch_curves", "batch_cmd_curves_per_s_1",
                               "batch_cmd_curves_per_s_2", "batch_speedup_2_workers", "batch_dask_curves_per_s",
                               "batch_same_results")),
+    "library": ("bench_library", ("library_find_s_10000", "library_trend_s_1000")),
     # last: the slowest, and the one that stops early when the quick run's time budget runs out
     "app": ("bench_app", ("slider_update_ms_median", "slider_update_ms_p95")),
     # after the app: in a quick run it only runs if the time budget allows (else null with a note)
@@ -54,6 +55,8 @@ TARGETS = {
     "batch_curves_per_s": (">=", 100.0, ">= 100 curves/s"),
     "batch_speedup_2_workers": (">=", 1.8, ">= 1.8 x from 1 to 2 local workers (two idle cores)"),
     "batch_same_results": ("==", True, "1 worker, 2 workers and Dask give identical result files"),
+    "library_find_s_10000": ("<=", 0.5, "library find over 10,000 compounds <= 0.5 s (SQLite)"),
+    "library_trend_s_1000": ("<=", 0.5, "library trend over 1,000 points <= 0.5 s (SQLite)"),
     "session_ready_s_1": ("<=", 1.0, "a new session ready in <= 1 s of server time"),
     "session_server_s_12": ("<=", 1.0, "12 sessions at once: <= 1 s of server time each"),
     "memory_kept_mib_per_session": ("<=", 1.0, "<= 1 MiB kept per closed session"),

@@ -21,7 +21,7 @@ _POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "
 
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
-            "samples", "serve")
+            "samples", "serve", "library")
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -162,6 +162,8 @@ class _Evaluator:
         """The target's quantity for strand density ν (SI); NaN where it cannot be evaluated (reason kept)."""
         if t.kind == "Q":
             return self._swelling(t, nu)
+        if t.kind == "nu":  # a strand-density target bounds ν itself
+            return float(nu)
         got = self._net_params(nu, t.temperature if t.temperature is not None else self.setup.T)
         if isinstance(got, Exception):
             self._note(t, str(got))
