@@ -400,3 +400,32 @@ def test_svg_box_reaches_figures_built_later():
     assert pg.ns_design.map_pane.object.output_backend == "svg"
     box.value = False
     assert {f.output_backend for f in ex.built_figures() + fit.built_figures()} == {"canvas"}
+
+
+def test_fit_residual_and_rms_axes_follow_new_data():
+    # two fits whose stresses differ tenfold (affine curves, ν = 600 and 60 mol/m³): after the second upload
+    # the fit, residual and RMS axes must span the new data, not keep the first fit's range
+    from app.main import create_app
+
+    pg = create_app(load_samples=False)
+    dv = pg.ns_data
+    fit = dv.fit
+    fit.show_figures()
+    tops = []
+    for name, nu in (("BIG-1_uniaxial.csv", 600.0), ("SMALL-1_uniaxial.csv", 60.0)):
+        dv._on_upload(SimpleNamespace(new={name: gauss_csv(nu=nu)}))
+        dv.state.selected = [name]
+        ff = fit.figs["uniaxial"]
+        y_max = max(ff.data.data["y"])  # the largest stress shown (MPa)
+        assert y_max == pytest.approx(nu * R * T23 * (3.0 - 3.0**-2) / 1e6, rel=1e-6)
+        # the y axis holds every data point and is not more than ~1.5× taller than the data
+        assert ff.fig.y_range.start <= 0.0 < y_max <= ff.fig.y_range.end <= 1.5 * y_max
+        assert ff.fig.y_range.reset_end == ff.fig.y_range.end  # the toolbar's reset returns to this range
+        res = np.abs(ff.resid.data["y"])
+        assert ff.resid_fig.y_range.end >= res.max() and ff.resid_fig.y_range.start == -ff.resid_fig.y_range.end
+        rms = [v for v in fit.rms_src.data["rms"] if np.isfinite(v)]
+        assert max(rms) <= fit.rms_fig.x_range.end <= 1.5 * max(rms)
+        tops.append((ff.fig.y_range.end, fit.rms_fig.x_range.end, ff.resid_fig.y_range.end))
+    # the second (ten times weaker) network's axes shrank with it
+    assert tops[1][0] < 0.2 * tops[0][0]
+    assert tops[1][1] < tops[0][1] and tops[1][2] < tops[0][2]
