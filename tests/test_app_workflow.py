@@ -429,3 +429,53 @@ def test_fit_residual_and_rms_axes_follow_new_data():
     # the second (ten times weaker) network's axes shrank with it
     assert tops[1][0] < 0.2 * tops[0][0]
     assert tops[1][1] < tops[0][1] and tops[1][2] < tops[0][2]
+
+
+def test_swelling_view_uses_the_manifest_chi_and_only_the_same_compounds_fit():
+    from app.main import create_app
+
+    pg = create_app()  # the invented sample set: its manifest states χ = 0.39 for the toluene swelling tests
+    v, data = pg.ns_swell, pg.ns_data.state
+    v.sample.value = "QM-S2 QM-S2-w1"
+    s = v.state
+    assert s.compound == "QM-S2" and v.compound.value == "QM-S2"
+    assert s.chi == pytest.approx(0.39)  # the manifest's χ, not the solvent table's
+    # Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, with χ = 0.39:
+    # ν = −[ln(1−v_r)+v_r+χv_r²]/(V₁(v_r^⅓ − v_r/2)); v_r from masses and densities (definition)
+    sol, poly = get_solvent("toluene"), get_polymer("NR")
+    dry = (s.extracted_g or s.dry_g) / 1000.0
+    vr = (dry / poly.density) / (dry / poly.density + (s.swollen_g / 1000.0 - dry) / sol.density)
+    nu = -(math.log(1 - vr) + vr + 0.39 * vr**2) / (sol.molar_volume * (vr ** (1 / 3) - vr / 2))
+    assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
+    assert "stated for QM-S2" in v.chi_note.object
+
+    # the fit tab fits another compound: no comparison, a sentence and a button instead
+    data.selected = [f.name for f in data.compound_files("QM-S3")]
+    assert "ns-swell-compare-table" not in v.compare.object
+    assert "not QM-S2" in v.compare.object and v.fit_compound.visible
+    # the button fits QM-S2's own files; the comparison then carries that fit's ν and names its basis
+    v.fit_compound.clicks += 1
+    assert data.selected_compound() == "QM-S2"
+    assert "ns-swell-compare-table" in v.compare.object and "Basis: QM-S2" in v.compare.object
+    affine = data.crosslink_table().row("affine")
+    assert f"{affine.nu:.4g}" in v.compare.object
+    # the specimen's form compound changes: the QM-S2 fit is no longer set beside it
+    v.compound.value = "QM-S3"
+    assert "ns-swell-compare-table" not in v.compare.object and "not QM-S3" in v.compare.object
+
+
+def test_swelling_table_takes_each_compounds_stated_chi():
+    from pathlib import Path
+
+    from app.data_state import DataState
+    from app.swell_state import SwellState
+
+    d = DataState()
+    d.load_samples()
+    s = SwellState()
+    table = (Path(__file__).resolve().parent.parent / "sample_sets" / "swelling_toluene.csv").read_bytes()
+    s.load_table(table, "swelling_toluene.csv")
+    rows = s.table_estimates(d.compounds)
+    # compounds.toml's [swelling] chi = 0.39 (the invented set's stated value), not the table's 0.36
+    assert rows and all(r["chi"] == pytest.approx(0.39) and r["chi_source"] == "stated for the compound"
+                        for r in rows)
