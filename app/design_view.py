@@ -182,6 +182,10 @@ class DesignView(pn.viewable.Viewer):
                             f"{_esc(sentence)}</p>")
         if s.advice is not None:
             parts.insert(0, f"<p class='ns-design-advice'><b>Today's compound:</b> {_esc(s.advice.sentence)}</p>")
+        if not res.feasible:  # a stiffness target below the entanglements alone: say why, not just "not feasible"
+            from .modulus_card import entanglement_floor_sentences
+
+            parts[:0] = [f"<p class='ns-design-floor'>{_esc(x)}</p>" for x in entanglement_floor_sentences(res)]
         self.result.object = "".join(parts)
         compound = None
         if s.compound_nu is not None:
