@@ -53,7 +53,7 @@ def below_entanglements_sentence(table, kind: str, value: float) -> str | None:
     return (f"{kind} = {value / 1e6:.3g} MPa{read} is below the entanglement (plateau) modulus of {table.polymer}, "
             f"G_e = {Ge / 1e6:.3g} MPa at {T_C:.0f} °C" + (" with the filler's Guth–Gold factor" if filler > 0 else "")
             + ": entanglements alone would give this stiffness, so the network's crosslink part cannot be "
-              "separated from this one number and the 'entanglement share removed' rows stay empty. The 'all of "
+              "separated from this one number and the rows with the plateau modulus removed stay empty. The 'all of "
               "G' rows count the entanglements as crosslinks, so they are upper bounds on the crosslink strand "
               "density; a tube-model fit of a whole curve, or a swelling test, separates the two.")
 
