@@ -93,3 +93,4 @@ def test_pdf_download_is_a_pdf(page, chromium_path, monkeypatch):
     monkeypatch.setenv("NETSTRETCH_CHROMIUM", chromium_path)
     data = page.ns_compare._file("pdf").getvalue()
     assert data.startswith(b"%PDF")
+
