@@ -88,6 +88,8 @@ class CompareView(pn.viewable.Viewer):
             for kind, label, w in DOWNLOADS}
         #: no Chromium on this server: no PDF button (the HTML prints to PDF from any browser)
         self.downloads["pdf"].visible = bool(find_chromium())
+        #: Chromium prints in a worker thread: the server's event loop (every session) goes on meanwhile
+        self.downloads["pdf"].callback = self._pdf_file
         self.stale_note = html("", css_classes=["ns-cmp-stale"])
         self.stale_results = html("", css_classes=["ns-cmp-stale-results"])
         # the compound editor: recipe facts of one compound of the store
@@ -301,6 +303,30 @@ class CompareView(pn.viewable.Viewer):
             return io.BytesIO(self._charts_zip(rep.to_html()))
         text = {"html": rep.to_html, "csv": rep.to_csv, "json": rep.to_json}[kind]()
         return io.BytesIO(text.encode("utf-8"))
+
+    async def _pdf_file(self):
+        """The PDF download, printed off the event loop; a refusal or failure is a sentence beside the
+        buttons (as for the other downloads), never a traceback."""
+        import asyncio
+        import html as _html
+
+        from network_models.report.pdf import pdf_bytes
+
+        key = "compare-download"
+        self.messages.clear(key)
+        try:
+            text = self.state.report().to_html()  # refuses while stale
+            data = await asyncio.to_thread(pdf_bytes, text, "download the HTML and print it to PDF from a browser "
+                                                            "(A4 portrait)")
+        except (ValueError, OSError) as exc:
+            self.messages.show(key, f"**Download:** {_html.escape(str(exc), quote=False)}", "warning")
+            return None
+        except Exception as exc:
+            log.exception("PDF download")
+            self.messages.show(key, f"**Download:** an unexpected problem occurred ({type(exc).__name__}); the "
+                                    "HTML download prints to PDF from any browser.", "danger")
+            return None
+        return io.BytesIO(data)
 
     def _charts_zip(self, html_text: str) -> bytes:
         """Every chart of the report as its own SVG file (report.write_charts' names), in one zip."""

@@ -90,7 +90,23 @@ def test_pdf_button_only_with_chromium(page, monkeypatch, tmp_path):
 
 @pytest.mark.ui
 def test_pdf_download_is_a_pdf(page, chromium_path, monkeypatch):
+    import asyncio
+
     monkeypatch.setenv("NETSTRETCH_CHROMIUM", chromium_path)
-    data = page.ns_compare._file("pdf").getvalue()
+    cv = page.ns_compare
+    assert cv.downloads["pdf"].callback == cv._pdf_file  # the button prints off the event loop
+    data = asyncio.run(cv._pdf_file()).getvalue()
     assert data.startswith(b"%PDF")
+
+
+def test_pdf_download_while_stale_is_a_sentence(page):
+    import asyncio
+
+    cv = page.ns_compare
+    cv.state.service_C += 5.0
+    try:
+        assert asyncio.run(cv._pdf_file()) is None
+        assert "out of date" in cv.messages.texts()["compare-download"]
+    finally:
+        cv.state.service_C -= 5.0
 

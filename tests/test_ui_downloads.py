@@ -23,3 +23,10 @@ def test_browser_downloads_carry_the_study_name(app_page, tmp_path):
         dl.value.save_as(path)
         head = path.read_bytes()[:2]
         assert head == b"PK"  # xlsx and zip are both zip containers (PKWARE APPNOTE: local file header)
+    # the PDF (this server has Chromium: the browser fixtures need it), printed off the event loop
+    with page.expect_download(timeout=120000) as dl:
+        page.locator(".ns-cmp-dl-pdf button, .ns-cmp-dl-pdf a").first.click()
+    assert dl.value.suggested_filename.endswith(".pdf")
+    path = tmp_path / "study.pdf"
+    dl.value.save_as(path)
+    assert path.read_bytes()[:5] == b"%PDF-"  # ISO 32000-1 §7.5.2: a PDF file begins with %PDF-
