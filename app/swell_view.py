@@ -48,7 +48,7 @@ class SwellView(pn.viewable.Viewer):
             pn.widgets.FloatInput.from_param(s.param.T_C, name="Test temperature (°C)", step=1.0, **num),
         ]
         try:
-            labels = s.sample_labels()
+            labels = list(self._store_tests()) or s.sample_labels()
         except Exception:  # no sample set: no picker
             labels = []
         self.sample = pn.widgets.Select(name="Prefill from the sample set (invented)", options=["—", *labels],
@@ -96,6 +96,11 @@ class SwellView(pn.viewable.Viewer):
 
     def _refresh_compounds(self):
         self.compound.options = self._compound_options()
+        tests = list(self._store_tests())
+        if tests:
+            keep = self.sample.value if self.sample.value in tests else "—"
+            self.sample.options = ["—", *tests]
+            self.sample.value = keep
         self._update()
 
     def _pick_compound(self, event):
@@ -131,9 +136,42 @@ class SwellView(pn.viewable.Viewer):
         self.data.selected = files
         self.messages.show("swelling", f"'Test data & fits' now fits {esc(name)}'s {len(files)} file(s).", "info")
 
+    def _store_tests(self) -> dict:
+        """label -> (compound, SwellingTest) for every swelling test the session's compounds hold (a manifest's,
+        a reopened project's): the picker offers these, so their χ and recipe are the ones used."""
+        out = {}
+        for name, info in (self.data.compounds.items() if self.data is not None else ()):
+            for i, t in enumerate(info.swelling):
+                out[f"{name} {t.specimen or i + 1}".strip()] = (name, t)
+        return out
+
     def _pick_sample(self, event):
-        if event.new and event.new != "—":
+        if not event.new or event.new == "—":
+            return
+        hit = self._store_tests().get(event.new)
+        if hit is not None:
+            guarded(self.messages, "swelling", "Swelling sample")(self._fill_from_test)(event.new, *hit)
+        else:
             guarded(self.messages, "swelling", "Swelling sample")(self.state.load_sample)(label=event.new)
+
+    def _fill_from_test(self, label: str, compound: str, t):
+        """The form holds one of the session's swelling tests: its compound first (recipe and stated χ), then
+        the test's masses (kg → g), solvent, temperature and its own χ when it states one."""
+        from network_models.constants import ZERO_CELSIUS
+
+        s = self.state
+        s.compound = compound
+        with pn.io.hold():
+            changes = dict(dry_g=t.dry * 1000.0, swollen_g=t.swollen * 1000.0,
+                           extracted_g=None if t.extracted is None else t.extracted * 1000.0,
+                           sample_label=f"{label} (from the session's compounds)", sample_key=label)
+            if t.solvent in s.param.solvent.objects:
+                changes["solvent"] = t.solvent
+            if t.temperature:
+                changes["T_C"] = t.temperature - ZERO_CELSIUS
+            if t.chi is not None:
+                changes["chi"] = float(t.chi)
+            s.param.update(**changes)
 
     def _on_table(self, event):
         if not event.new:

@@ -481,3 +481,27 @@ def test_swelling_table_takes_each_compounds_stated_chi():
     # compounds.toml's [swelling] chi = 0.39 (the invented set's stated value), not the table's 0.36
     assert rows and all(r["chi"] == pytest.approx(0.39) and r["chi_source"] == "stated for the compound"
                         for r in rows)
+
+
+def test_swelling_picker_offers_the_sessions_own_tests_with_their_chi_and_recipe():
+    # a compound made in this session (not the bundled set) with one swelling test stating χ = 0.45
+    from app.main import create_app
+    from network_models.compounds import SwellingTest
+
+    pg = create_app(load_samples=False)
+    dv, v = pg.ns_data, pg.ns_swell
+    dv._on_upload(SimpleNamespace(new={"MIX-9_uniaxial.csv": gauss_csv(nu=150.0)}))
+    dv.state.set_compound_info("MIX-9", polymer="SBR", swelling=[
+        SwellingTest(dry=1.0e-3, swollen=3.2e-3, solvent="toluene", chi=0.45, specimen="w1")])
+    assert "MIX-9 w1" in v.sample.options
+    v.sample.value = "MIX-9 w1"
+    s = v.state
+    assert (s.compound, s.polymer, s.chi, s.dry_g, s.swollen_g) == ("MIX-9", "SBR", 0.45, 1.0, 3.2)
+    # Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, χ = 0.45, SBR density from polymers.toml;
+    # v_r from masses and densities (definition)
+    sol, poly = get_solvent("toluene"), get_polymer("SBR")
+    vr = (1.0e-3 / poly.density) / (1.0e-3 / poly.density + 2.2e-3 / sol.density)
+    nu = -(math.log(1 - vr) + vr + 0.45 * vr**2) / (sol.molar_volume * (vr ** (1 / 3) - vr / 2))
+    assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
+    # and the fit beside it is MIX-9's own (the only compound here, selected on upload)
+    assert "Basis: MIX-9" in v.compare.object
