@@ -505,3 +505,19 @@ def test_swelling_picker_offers_the_sessions_own_tests_with_their_chi_and_recipe
     assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
     # and the fit beside it is MIX-9's own (the only compound here, selected on upload)
     assert "Basis: MIX-9" in v.compare.object
+
+
+def test_the_swelling_forms_compound_and_typed_chi_survive_a_project():
+    from app.main import create_app
+
+    a = create_app(load_samples=False)
+    a.ns_data._on_upload(SimpleNamespace(new={"P-7_uniaxial.csv": gauss_csv(150.0)}))
+    sw = a.ns_swell.state
+    sw.compound = "P-7"
+    sw.param.update(dry_g=1.0, swollen_g=3.0, chi=0.42)  # a χ typed by the user after choosing the compound
+    blob = a.ns_session.to_project()
+    b = create_app(load_samples=False)
+    assert b.ns_session.load_project(blob) == []
+    s = b.ns_swell.state
+    assert (s.compound, s.chi, s.dry_g) == ("P-7", 0.42, 1.0)
+    assert b.ns_swell.compound.value == "P-7"
