@@ -29,8 +29,8 @@ log = logging.getLogger("netstretch.app")
 
 #: the report's downloads (kind, label, width): the same files `netstretch report` writes; the PDF only where a
 #: Chromium is installed (:func:`network_models.report.pdf.find_chromium`), the charts as one zip of SVGs
-DOWNLOADS = (("html", "Download report (HTML)", 230), ("pdf", "PDF", 80), ("xlsx", "Excel (xlsx)", 120),
-             ("csv", "CSV", 80), ("json", "JSON", 80), ("svg", "Charts (SVG, zip)", 160))
+DOWNLOADS = (("html", "Download report (HTML)", 200), ("pdf", "PDF", 64), ("xlsx", "Excel (xlsx)", 110),
+             ("csv", "CSV", 64), ("json", "JSON", 64), ("svg", "Charts (SVG, zip)", 150))
 _STEM_CHARS = 60
 
 
