@@ -136,6 +136,7 @@ class DesignView(pn.viewable.Viewer):
                 self.run_button, self.messages, width=360),
             pn.Column(self.result, self.map_pane, self.models_pane, sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-design"])
+        self._page = pn.Column(self._layout, sizing_mode="stretch_width")
 
     # ----- target rows -------------------------------------------------------------------------
     def _add_row(self, text: str):
@@ -245,8 +246,12 @@ class DesignView(pn.viewable.Viewer):
             cur = self._current()
             self._cur_source.data = {"x": [cur[0]], "y": [cur[1]]}
 
+    def add_below(self, view):
+        """Put another view (e.g. the modulus → strand density card) under the tab's targets and results."""
+        self._page.append(view)
+
     def __panel__(self):
-        return self._layout
+        return self._page
 
 
 def create_design_view(explorer_state=None, messages: Messages | None = None, on_pick=None, network_state=None,

@@ -74,7 +74,8 @@ def _build_page(load_samples: bool = True):
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
     design = create_design_view(explorer_state=session.network)
-    modulus_card = ModulusCard(units=session.units)  # modulus → strand density, on the Design tab
+    modulus_card = ModulusCard(units=session.units)
+    design.add_below(modulus_card)  # modulus → strand density, on the Design tab under the targets
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
@@ -86,7 +87,7 @@ def _build_page(load_samples: bool = True):
         ("Test data & fits", data_view),
         ("Swelling", swell_view),
         ("Compare", compare),
-        ("Design", pn.Column(design, modulus_card, sizing_mode="stretch_width")),
+        ("Design", design),
     ]
     header = html(
         "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
@@ -122,10 +123,10 @@ def _build_page(load_samples: bool = True):
     page.ns_data = data_view
     page.ns_compare = compare
     page.ns_swell = swell_view
+    page.ns_modulus = modulus_card
     page.ns_explorer = explorer
     page.ns_project = project
     page.ns_design = design
-    page.ns_modulus = modulus_card
     return page
 
 
