@@ -136,6 +136,7 @@ class DesignView(pn.viewable.Viewer):
                 self.run_button, self.messages, width=360),
             pn.Column(self.result, self.map_pane, self.models_pane, sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-design"])
+        self._page = pn.Column(self._layout, sizing_mode="stretch_width")
 
     # ----- target rows -------------------------------------------------------------------------
     def _add_row(self, text: str):
@@ -182,6 +183,10 @@ class DesignView(pn.viewable.Viewer):
                             f"{_esc(sentence)}</p>")
         if s.advice is not None:
             parts.insert(0, f"<p class='ns-design-advice'><b>Today's compound:</b> {_esc(s.advice.sentence)}</p>")
+        if not res.feasible:  # a stiffness target below the entanglements alone: say why, not just "not feasible"
+            from .modulus_card import entanglement_floor_sentences
+
+            parts[:0] = [f"<p class='ns-design-floor'>{_esc(x)}</p>" for x in entanglement_floor_sentences(res)]
         self.result.object = "".join(parts)
         compound = None
         if s.compound_nu is not None:
@@ -241,8 +246,12 @@ class DesignView(pn.viewable.Viewer):
             cur = self._current()
             self._cur_source.data = {"x": [cur[0]], "y": [cur[1]]}
 
+    def add_below(self, view):
+        """Put another view (e.g. the modulus → strand density card) under the tab's targets and results."""
+        self._page.append(view)
+
     def __panel__(self):
-        return self._layout
+        return self._page
 
 
 def create_design_view(explorer_state=None, messages: Messages | None = None, on_pick=None, network_state=None,

@@ -15,6 +15,7 @@ from .data_view import DataView
 from .design_view import create_design_view
 from .explorer import ExplorerViews, NetworkControls
 from .messages import Messages
+from .modulus_card import ModulusCard
 from .plots import set_output_backend
 from .project_view import ProjectBar
 from .session import Session
@@ -73,6 +74,8 @@ def _build_page(load_samples: bool = True):
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
     design = create_design_view(explorer_state=session.network)
+    modulus_card = ModulusCard(units=session.units)
+    design.add_below(modulus_card)  # modulus → strand density, on the Design tab under the targets
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
@@ -123,6 +126,7 @@ def _build_page(load_samples: bool = True):
     page.ns_data = data_view
     page.ns_compare = compare
     page.ns_swell = swell_view
+    page.ns_modulus = modulus_card
     page.ns_explorer = explorer
     page.ns_project = project
     page.ns_design = design

@@ -26,7 +26,9 @@ SETTINGS = {
     "fit": ("data", ("fit_models", "residual", "polymer", "f", "filler", "table_model")),
     "compare": ("compare", ("chosen", "baseline", "model", "service_C", "title", "purpose")),
     "display": ("units", ("stress", "density")),
-    "swelling": ("swell", ("dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f", "filler", "T_C")),
+    # compound first: restoring it fills the recipe and stated χ, which the saved form values then override
+    "swelling": ("swell", ("compound", "dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f",
+                           "filler", "T_C")),
 }
 
 

@@ -48,12 +48,11 @@ def fmt(value, digits: int = 3, unit: str = "") -> str:
 
 
 def sig(value, digits: int = 4) -> str:
-    """``digits`` significant digits in plain positional notation (no e+03 in tables a compounder reads)."""
-    if value is None or not np.isfinite(value):
-        return "—"
-    if value != 0 and not (1e-4 <= abs(value) < 1e7):
-        return f"{value:.{digits}g}"
-    return np.format_float_positional(value, precision=digits, unique=False, fractional=False, trim="-")
+    """``digits`` significant digits in plain positional notation (no e+03 in tables a compounder reads): the
+    project's one number formatter, :func:`network_models.formatting.number`, shared with the report."""
+    from network_models.formatting import number
+
+    return number(value, digits)
 
 
 def polymer_label(key: str) -> str:

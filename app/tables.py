@@ -11,9 +11,9 @@ import re
 import numpy as np
 
 from network_models.errors import group_notices, merge_notices
+from network_models.formatting import number as sig  # the report's formatter too
 
 from .display_units import DisplayUnits
-from .state import sig
 
 NOT_DETERMINED = "not determined"
 

@@ -73,9 +73,13 @@ def json_document(doc: dict) -> str:
 
 
 def _num(x, scale=1.0, digits=4):
+    """The project's one number formatter (:func:`network_models.formatting.number`): the CLI's tables print a
+    value as the app and the report do."""
+    from ..formatting import number
+
     if x is None or not math.isfinite(x):
         return "—"
-    return f"{x * scale:.{digits}g}"
+    return number(x * scale, digits)
 
 
 def _ci(ci, scale=1.0, digits=4):

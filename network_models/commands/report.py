@@ -230,29 +230,13 @@ def run_compare(args):
 
 
 def _print_pdf(html_path):
-    """FILE.pdf beside the HTML, printed (A4, from the report's print style) by a headless Chromium."""
-    import os
-    import shutil
-    import subprocess
+    """FILE.pdf beside the HTML, printed (A4, from the report's print style) by a headless Chromium
+    (:func:`network_models.report.pdf.print_pdf`, shared with the app's Compare tab)."""
+    from ..report.pdf import print_pdf
 
-    from ..cli import UserError
-
-    exe = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
-    pdf = html_path.with_suffix(".pdf")
-    how = (f"open {html_path} in a browser and print it to PDF (A4 portrait); the report has a print layout")
-    if not exe:
-        raise UserError(f"--pdf needs a headless Chromium (install the 'chromium' package or set "
-                        f"NETSTRETCH_CHROMIUM); the HTML, CSV, JSON and charts were written — {how}")
-    cmd = [exe, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking",
-           "--no-pdf-header-footer", f"--print-to-pdf={pdf}", html_path.resolve().as_uri()]
-    try:
-        subprocess.run(cmd, check=True, capture_output=True, timeout=120)
-    except (OSError, subprocess.SubprocessError) as exc:
-        raise UserError(f"Chromium could not print the PDF ({type(exc).__name__}); the HTML was written — "
-                        f"{how}") from None
-    if not pdf.exists():
-        raise UserError(f"Chromium wrote no PDF; the HTML was written — {how}")
-    return pdf
+    how = (f"the HTML, CSV, JSON and charts were written — open {html_path} in a browser and print it to PDF "
+           "(A4 portrait); the report has a print layout")
+    return print_pdf(html_path, how=how)
 
 
 def run_report(args):
