@@ -21,6 +21,7 @@ import numpy as np
 import param
 
 from network_models import MODELS, MODES, Mode, get_model, polymers
+from network_models.fitting import DEFAULT_RESIDUAL, RESIDUALS
 
 from . import shared  # process-level read-only sample cache (app/shared.py)
 from .state import DATA_COLOURS, model_colour
@@ -129,7 +130,7 @@ class DataState(param.Parameterized):
     revision = param.Integer(default=0, doc="counts every change of files or compounds (for stale marks)")
     selected = param.ListSelector(default=[], objects=[], label="Files in the fit")
     fit_models = param.ListSelector(default=list(DEFAULT_FIT_MODELS), objects=list(MODELS), label="Models to fit")
-    residual = param.Selector(default="relative", objects=["relative", "absolute"], label="Residual")
+    residual = param.Selector(default=DEFAULT_RESIDUAL, objects=list(RESIDUALS), label="Residual")
     polymer = param.Selector(default="NR", objects=list(polymers()), label="Polymer of the tested compound")
     f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
     filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ")

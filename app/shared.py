@@ -60,11 +60,13 @@ def is_shared(curves) -> bool:
         return bool(curves) and all(id(c) in _curve_ids for c in curves)
 
 
-def fit_or_error(model, curves, residual: str = "absolute", polymer: str | None = None, **kw):
+def fit_or_error(model, curves, residual: str | None = None, polymer: str | None = None, **kw):
     """``fitting.fit_or_error`` (a FitResult or a FitError, never raising) with the result for shared sample
     curves made once per process.  Other curves or extra options: a plain fit, not cached."""
+    from network_models.fitting import DEFAULT_RESIDUAL
     from network_models.fitting import fit_or_error as _fit
 
+    residual = residual or DEFAULT_RESIDUAL
     curves = list(curves)
     if kw or not is_shared(curves):
         return _fit(model, curves, residual=residual, polymer=polymer, **kw)

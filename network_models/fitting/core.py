@@ -10,13 +10,13 @@ from ..errors import FitError
 from ..models import get_model
 from ..testdata import TestCurve
 from .diagnostics import curve_cycle, curve_polymer, diagnose
-from .problem import set_up
+from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats
 from .solver import solve
 from .uncertainty import covariance, estimates
 
 
-def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | None = None,
+def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: dict | None = None,
         start: dict | None = None, polymer: str | None = None) -> FitResult:
     """Fit ``model`` (name or Model) to ``curves`` (TestCurve or list, any mix of modes).
 
