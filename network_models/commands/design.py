@@ -51,6 +51,10 @@ def add_parser(sub):
                    help="also the ν window at each filler fraction 0–0.3 (or at each N 5–200, decoupled from ν)")
     p.add_argument("--current-nu", type=float, metavar="NU",
                    help="today's compound: its strand density ν in mol/m³ (under the same model)")
+    p.add_argument("--current-basis", default="design", choices=("design", "entanglements-removed", "all-of-G"),
+                   help="the basis --current-nu is given on: design (default: the basis this design counts ν on, "
+                        "stated in its output), entanglements-removed (the crosslinks headline: affine, "
+                        "G − G_e = νRT) or all-of-G (affine, G = νRT); converted to the design's basis or refused")
     p.add_argument("--current-ci", metavar="LO..HI", help="95 %% interval of --current-nu, e.g. 235..265")
     p.add_argument("--current", action="append", metavar="FILE",
                    help="today's compound from its lab curves (fitted with --model; repeat for several files)")
@@ -90,15 +94,32 @@ def _current(args, result):
             raise UserError("--current-ci needs --current-nu.")
         return None
     ci = _ci(args.current_ci) if args.current_ci else None
-    return args.current_nu, ci, "as given"
+    from ..design_advice import convert_current
+
+    return convert_current(result.setup, args.current_nu, ci, getattr(args, "current_basis", "design"))
 
 
 def _n(x, digits=4):
     return "—" if x is None or not (isinstance(x, float | int) and math.isfinite(x)) else f"{x:.{digits}g}"
 
 
+def _basis_line(b) -> str:
+    ge = (f"G_e = {b['G_e_Pa'] / 1e6:.3g} MPa from the {b['G_e_source']}" if b["entanglements"]
+          else "no entanglement part (switched off)")
+    return f"How ν is counted: {b['label']}; {ge}"
+
+
+def _advice_json(advice) -> dict:
+    """``advice`` {inside, change_percent [low, high] (negative = lower ν; [0, 0] inside), sentence}."""
+    inside = advice.action == "keep"
+    lo, hi = sorted(100.0 * x for x in advice.change_range)
+    return {"inside": inside, "change_percent": [0.0, 0.0] if inside else [lo, hi], "sentence": advice.sentence}
+
+
 def _table(r) -> list[str]:
-    out = [f"Design window: {r.setup.describe()}"]
+    from ..design_advice import nu_basis
+
+    out = [f"Design window: {r.setup.describe()}", _basis_line(nu_basis(r.setup))]
     if r.feasible:
         w, mc, mj = r.window, r.Mc_window(), r.junction_window()
         out.append(f"  FEASIBLE   strand density ν  {w.lo:.4g} – {w.hi:.4g} mol/m³")
@@ -145,9 +166,13 @@ def run(args):
 
         over = window_over(r.targets, args.over, model=args.model, **kw)
     if args.json:
-        doc = {"command": "design", **r.to_dict()}
+        from ..design_advice import nu_basis
+
+        doc = {"command": "design", **r.to_dict(), "basis": nu_basis(r.setup)}
         if advice is not None:
-            doc["current"] = {**advice.to_dict(), "source": cur[2]}
+            doc["advice"] = {**_advice_json(advice), "basis": doc["basis"]["label"], "strand_density": cur[0],
+                             "source": cur[2]}
+            doc["current"] = {**advice.to_dict(), "source": cur[2]}  # alias of `advice` for one release
         if models is not None:
             doc["model_comparison"] = models.to_dict()
         if over is not None:
