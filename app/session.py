@@ -10,10 +10,11 @@ from __future__ import annotations
 import logging
 from dataclasses import replace
 
+from network_models.project import Project, ProjectCompound, ProjectInput, read_project, write_project
+
 from .compare_state import CompareState
 from .data_state import CompoundInfo, DataState, LoadedFile
 from .display_units import DisplayUnits
-from .project_file import Project, ProjectCompound, ProjectInput, read_project, write_project
 from .state import NetworkState
 from .swell_state import SwellState
 
@@ -74,7 +75,7 @@ class Session:
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
                                        selected=f.name in d.selected))
-        comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler=i.filler, notes=i.notes,
+        comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler_volume_fraction=i.filler, notes=i.notes,
                                  metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling])
                  for n, i in d.compounds.items()]
         return write_project(Project(settings=self.settings(), inputs=inputs, compounds=comps,
@@ -102,7 +103,7 @@ class Session:
         comps = {}
         for c in proj.compounds:
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in c.swelling]
-            comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler, notes=c.notes,
+            comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler_volume_fraction, notes=c.notes,
                                          metadata=dict(c.metadata), swelling=tests)
         problems = []
         d = self.data
