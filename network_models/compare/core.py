@@ -35,7 +35,7 @@ def _pooling_problem(compound) -> str | None:
             f"fit; compare them as separate compounds ({split}), or ask for pooling explicitly (pool=True, --pool)")
 
 
-def model_spread(res, tier: int, models) -> dict:
+def model_spread(res, tier: int, models, fitter=None) -> dict:
     """ν on the headline tier from each model of the declared set that fits the compound's pooled data
     without a serious warning; the spread is their range."""
     from ..crosslinks import from_fit
@@ -48,7 +48,7 @@ def model_spread(res, tier: int, models) -> dict:
         curves = [x for x in c.curves if mm.supports(x.mode)]
         if len(curves) != len(c.curves):
             continue
-        fr, err = fit_safely(mm, curves, None, c.name)
+        fr, err = fit_safely(mm, curves, fitter, c.name)
         if err:
             rows.append({"model": mm.name, "value": None, "used": False, "why": err})
             continue
@@ -67,7 +67,7 @@ def model_spread(res, tier: int, models) -> dict:
                    "fit has no warning beyond untested modes"}
 
 
-def _headline(res, tier: int, why: str, spread_models) -> Headline:
+def _headline(res, tier: int, why: str, spread_models, fitter=None) -> Headline:
     c = res.compound
     s = res.stats.get("strand_density")
     pooled, pooled_ci = res.pooled_nu.get(tier, (None, None))
@@ -91,7 +91,7 @@ def _headline(res, tier: int, why: str, spread_models) -> Headline:
         "headline_note": "headline interval: specimen scatter with fit error",
     }
     if spread_models:
-        unc["model_spread"] = model_spread(res, tier, spread_models)
+        unc["model_spread"] = model_spread(res, tier, spread_models, fitter)
     note = why
     if n == 1:
         note = (note + "; " if note else "") + "one specimen: scatter unknown"
@@ -114,8 +114,69 @@ def analyse_compound(compound, m, service_temperature, fitter=None, exclude=None
     specimen_table(res, tier, why)
     T = res.test_temperature
     _service_part(res, T, T if service_temperature is None else float(service_temperature))
-    res.headline = _headline(res, tier, why, spread_models)
+    res.headline = _headline(res, tier, why, spread_models, fitter)
+    res.pooled = _pooled(res, m, fitter)
     return res
+
+
+def _pooled(res, m, fitter) -> dict | None:
+    """One fit to the compound's counted curves (every curve the model covers, excluded specimens left out):
+    the same fit ``netstretch fit`` makes on those files with that model and the default weighting."""
+    from ..fitting.many import specimen_groups
+
+    excluded = [s.name for s in res.specimens if s.excluded]
+    fr = res.fit
+    curves = [c for c in res.compound.curves if m.supports(c.mode)]
+    if excluded:
+        groups = specimen_groups(curves)
+        curves = [c for name, cs in groups.items() if name not in excluded for c in cs]
+        fr, err = fit_safely(m, curves, fitter, res.name) if curves else (None, "no curves left")
+        if err:
+            return None
+    if fr is None:
+        return None
+    G0 = float(m.small_strain_modulus(**m.resolve(fr.values)))
+    return {"model": m.name, "G0": G0, "residual": getattr(fr, "residual", None), "curves": len(curves),
+            "excluded_specimens": excluded,
+            "basis": "pooled fit: one fit to all of the compound's curves the model covers"
+                     + (f", specimens {', '.join(excluded)} left out" if excluded else "")}
+
+
+def fit_basis(r: CompoundResult, residual: str | None) -> dict:
+    """How each of a compound's G₀ / ν / μ_j numbers was obtained (the JSON's ``compounds[].fit_basis``):
+    statistic (specimen mean or pooled fit), model, residual weighting, entanglement treatment and where G_e
+    came from, filler treatment — and, where two numbers of one quantity are shown together, why they differ."""
+    c = r.compound
+    m = get_model(r.model)
+    phi = c.filler_fraction
+    filler = f"removed (Guth–Gold, φ = {phi:g})" if phi > 0 else "none given (gum or φ not stated)"
+    separable = bool(r.fit is not None and m.modulus_split(r.fit.values).separable)
+    ge_src = f"the {m.title} fit (the model separates G_e)" if separable else \
+        f"the plateau modulus of {c.polymer} (polymer table, ∝ T; an upper bound)"
+    h = r.headline
+    tier = None if h is None else h.tier
+    ent = {0: "removed", 1: "counted as crosslinks (upper bound)"}.get(tier, "—")
+    n = r.n
+    common = {"model": m.name, "residual": residual}
+    mean = "specimen mean" if n >= 1 else "pooled fit (no specimen could be fitted alone)"
+    out = {
+        "G0": {"statistic": mean, "n": n, "main_mode": r.main_mode, **common,
+               "label": f"{mean} of {n} specimen fit(s) ({r.main_mode or '—'}), {m.name}, {residual} residuals"},
+        "pooled": {"statistic": "pooled fit", **common,
+                   "label": f"pooled fit of all curves, {m.name}, {residual} residuals"},
+        "headline": {"statistic": mean, "n": n, **common, "entanglements": ent,
+                     "G_e_source": ge_src if tier == 0 else None, "filler": filler,
+                     "label": f"{mean}, {m.name}, {residual} residuals, entanglements {ent}"
+                              + (f" (G_e from {ge_src})" if tier == 0 else "") + f", filler {filler}"},
+        "crosslink_table": {"statistic": "pooled fit", **common, "G_e_source": ge_src, "filler": filler,
+                            "label": "pooled fit; each row states its entanglement and filler treatment"},
+        "mu_j": {"statistic": mean, "relation": f"μ_j = 2ν/f with f = {c.f:g}, on the headline's basis"},
+        "why_differ": ("G0.mean averages the counted specimens' own fits (each specimen weighs the same); "
+                       "pooled.G0 and the crosslink table come from one fit to all the curves together (each point "
+                       "weighs by the residual weighting, every mode at once), so the two differ by specimen "
+                       "scatter and by how the modes pull the single fit"),
+    }
+    return out
 
 
 # ----- the comparison ----------------------------------------------------------------------------
@@ -129,6 +190,8 @@ class Comparison:
     exclusions: dict = field(default_factory=dict)
     #: the units stresses and densities are shown in (display_units.apply_to_comparison); values stay SI
     display_units: dict = field(default_factory=lambda: {"stress": "MPa", "density": "mol/m³"})
+    #: the residual weighting of every fit in this comparison
+    residual: str = "relative"
 
     def to_frame(self):
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
@@ -231,7 +294,8 @@ class Comparison:
             "notes": list(self.notes),
             "exclusions": [{"compound": c, "specimen": s, "reason": why} for c, d in self.exclusions.items()
                            for s, why in d.items()],
-            "compounds": [result_to_dict(r) for r in self.results],
+            "residual": self.residual,
+            "compounds": [result_to_dict(r, self.residual) for r in self.results],
             "differences": self.differences(),
         }
 
@@ -240,8 +304,10 @@ def _stat_dict(s) -> dict | None:
     return None if s is None else s.to_dict()
 
 
-def result_to_dict(r: CompoundResult) -> dict:
+def result_to_dict(r: CompoundResult, residual: str | None = None) -> dict:
     c = r.compound
+    if residual is None:
+        residual = getattr(r.fit, "residual", None)
     return {
         "name": c.name, "ok": r.ok, "error": r.error, "polymer": c.polymer, "f": c.f, "notes": c.notes,
         "metadata": {k: (v if isinstance(v, (str, int, float, bool)) or v is None else str(v))
@@ -252,6 +318,8 @@ def result_to_dict(r: CompoundResult) -> dict:
         "G0": _stat_dict(r.stats.get("G0")) or {"n": 0, "mean": None, "sd": None, "median": None, "ci95": None},
         "statistics": {k: _stat_dict(v) for k, v in r.stats.items()},
         "headline": None if r.headline is None else r.headline.to_dict(),
+        "pooled": r.pooled,
+        "fit_basis": fit_basis(r, residual) if r.ok else None,
         "provenance": c.provenance(),
         "parameters": [p.to_dict() for p in r.params],
         "quantities": {k: q.to_dict() for k, q in r.quantities.items()},
@@ -281,14 +349,23 @@ def _exclusions(exclude) -> dict[str, dict[str, str]]:
 
 
 def compare(compounds, model="eight-chain", baseline: str | None = None, service_temperature: float | None = None,
-            fitter=None, *, exclude=None, pool: bool = False, spread_models=None) -> Comparison:
+            fitter=None, *, exclude=None, pool: bool = False, spread_models=None,
+            residual: str | None = None) -> Comparison:
     """Fit ``model`` to every compound (pooled and specimen by specimen) and compare with ``baseline``.
 
     ``service_temperature`` in K (None: the test temperature); ``baseline`` defaults to the compound marked
     baseline, else the first.  ``exclude={compound: {specimen: reason}}`` (or a list of specimen names) keeps
     specimens out of the statistics, with the reason recorded.  ``pool=True`` allows files that state
     different compounds to be fitted as one.  ``spread_models``: the models whose spread is shown beside the
-    headline (None: every registered model covering the compound's modes; ``()``: none)."""
+    headline (None: every registered model covering the compound's modes; ``()``: none).  ``residual``: the
+    weighting of every fit (None: ``fitting.DEFAULT_RESIDUAL``, as everywhere); a custom ``fitter`` is
+    expected to use the same weighting."""
+    from ..fitting import DEFAULT_RESIDUAL, fit_or_error
+
+    residual = residual or DEFAULT_RESIDUAL
+    if fitter is None and residual != DEFAULT_RESIDUAL:
+        def fitter(mm, curves):
+            return fit_or_error(mm, curves, residual=residual)
     if not compounds:
         raise ValueError("no compounds to compare; give at least one")
     names = [c.name for c in compounds]
@@ -312,7 +389,7 @@ def compare(compounds, model="eight-chain", baseline: str | None = None, service
     Ts = service_temperature if service_temperature is not None else (
         results[0].test_temperature if results else DEFAULT_TEST_TEMPERATURE)
     return Comparison(model=m.name, results=results, baseline=baseline, service_temperature=float(Ts),
-                      notes=_notes(compounds, results), exclusions=excl)
+                      notes=_notes(compounds, results), exclusions=excl, residual=residual)
 
 
 def _notes(compounds, results) -> list:
@@ -323,7 +400,10 @@ def _notes(compounds, results) -> list:
              "Verdicts against the baseline: " + VERDICT_WORDING,
              "Strand density ν (headline) and junction density μ_j = 2ν/f: basis stated beside every number; "
              "preferred basis: affine, entanglement part removed.",
-             "Swelling ranges are χ ± 0.05, not statistical."]
+             "Swelling ranges are χ ± 0.05, not statistical.",
+             "Two G₀ per compound: the compound table's G₀ is the mean of the specimens' own fits; the crosslink "
+             "table and the pooled G₀ come from one fit to all of the compound's curves — they differ by "
+             "specimen scatter and by how the test modes pull the single fit (basis beside each number)."]
     if any(c.metadata.get("filler_phr") not in (None, 0, "0", "", 0.0) for c in compounds):
         notes.append("Filled compounds: ν is given with the filler reinforcement taken out by the Guth–Gold factor "
                      "where the filler volume fraction is known; Guth–Gold holds for well-dispersed, weakly "
