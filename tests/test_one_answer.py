@@ -134,3 +134,147 @@ def test_design_reads_all_of_G_on_its_basis_and_refuses_below_G_e():
 def test_design_text_states_its_basis():
     rc, out = run_text(["design", "--model", "affine", "--target", "M100=1.7..1.9MPa"])
     assert rc == 0 and "How ν is counted" in out and "G_e = 0.348 MPa" in out
+
+
+# ----- the study: cached results, pooled fit, χ source ----------------------------------------------------------
+SAMPLE = "sample_sets/compounds.toml"
+
+
+@pytest.fixture(scope="module")
+def sample_study():
+    from network_models.study import Study
+
+    return Study.from_manifest(SAMPLE)
+
+
+def _mr_compound(name, C1, C2, T=296.15):
+    """Noise-free Mooney–Rivlin curves (uniaxial P = 2(C₁ + C₂/λ)(λ − λ⁻²), planar P = 2(C₁ + C₂)(λ − λ⁻³);
+    Treloar 1975), three identical uniaxial specimens and one planar curve."""
+    from network_models.compounds import Compound
+    from network_models.testdata import TestCurve
+
+    lam = np.linspace(1.05, 4.0, 50)
+    lp = np.linspace(1.05, 3.0, 30)
+    cs = [TestCurve("uniaxial", lam, 2 * (C1 + C2 / lam) * (lam - lam**-2), name=f"{name} u{i}", temperature=T,
+                    source=f"{name}_u{i}.csv", specimen=f"{name}-{i}") for i in (1, 2, 3)]
+    cs.append(TestCurve("planar", lp, 2 * (C1 + C2) * (lp - lp**-3), name=f"{name} p", temperature=T,
+                        source=f"{name}_p.csv"))
+    return Compound(name, cs)
+
+
+def test_pooled_fit_recovers_the_generating_modulus():
+    from network_models.study import Study
+
+    st = Study([_mr_compound("A", 0.2e6, 0.05e6), _mr_compound("B", 0.25e6, 0.04e6)], )
+    st.update(model="mooney-rivlin", spread_models=())
+    d = st.comparison().to_dict()
+    for c, (C1, C2) in zip(d["compounds"], ((0.2e6, 0.05e6), (0.25e6, 0.04e6)), strict=True):
+        # G₀ = 2(C₁ + C₂) for Mooney–Rivlin (Treloar 1975); the headline ν = 2C₁/(RT), 2C₂ the entanglement part
+        assert c["pooled"]["G0"] == pytest.approx(2 * (C1 + C2), rel=1e-6)
+        assert c["pooled"]["residual"] == "relative" and c["pooled"]["model"] == "mooney-rivlin"
+        assert c["headline"]["value"] == pytest.approx(2 * C1 / (R * 296.15), rel=1e-6)
+        assert c["fit_basis"]["headline"]["entanglements"] == "removed"
+        assert "fit" in c["fit_basis"]["headline"]["G_e_source"]  # Mooney–Rivlin separates G_e (2C₂)
+
+
+def test_a_setting_that_does_not_change_a_fit_does_not_refit(sample_study):
+    st = sample_study
+    st.update(service_temperature=None, exclusions={}, baseline="QM-S2")
+    first = st.comparison()
+    n = st.fits_made
+    assert n > 0
+    st.update(service_temperature=353.15, baseline="QM-S1", design_targets=("M100=1.7..1.9MPa",))
+    second = st.comparison()
+    assert second is not first and st.fits_made == n  # new results, no new fit
+    assert second["QM-S2"].quantities["G0_service"].value == pytest.approx(
+        first["QM-S2"].quantities["G0"].value * 353.15 / first["QM-S2"].test_temperature, rel=1e-12)
+    assert st.comparison() is second  # same settings: the cached result
+    st.update(residual="absolute")
+    st.comparison()
+    assert st.fits_made > n  # the weighting changes every fit
+    st.update(residual="relative", service_temperature=None, baseline="QM-S2", design_targets=())
+
+
+def test_chi_source_manifest_or_table(sample_study):
+    st = sample_study
+    st.update(chi_source="manifest")
+    rows = st.comparison()["QM-S2"].swelling_rows
+    assert rows and all(r["chi"] == 0.39 for r in rows)  # the sample manifest's [swelling] chi = 0.39
+    for r in rows:  # affine Flory–Rehner, f = 4 (Flory & Rehner 1943): ν = −[ln(1−v) + v + χv²]/(V₁(v^⅓ − v/2))
+        v, V1 = r["phi"], r["molar_volume_cm3_mol"] * 1e-6
+        nu = -(np.log(1 - v) + v + 0.39 * v**2) / (V1 * (v ** (1 / 3) - v / 2))
+        assert r["nu"] == pytest.approx(nu, rel=1e-9)
+    n = st.fits_made
+    st.update(chi_source="table")
+    trows = st.comparison()["QM-S2"].swelling_rows
+    assert st.fits_made == n
+    assert all(t["chi"] != 0.39 for t in trows) and trows[0]["nu"] != rows[0]["nu"]
+    st.update(chi_source="manifest")
+
+
+def test_pooled_equals_fit_command_on_the_same_files(sample_study):
+    d = sample_study.comparison().to_dict()
+    c = next(x for x in d["compounds"] if x["name"] == "QM-S2A")
+    files = [f"sample_sets/QM-S2A_uniaxial_A{i}.csv" for i in range(1, 6)]
+    f = run_json(["fit", *files, "--mode", "uniaxial", "--model", c["pooled"]["model"], "--json"])
+    m = f["models"][c["pooled"]["model"]]
+    assert f["residual"] == c["pooled"]["residual"]
+    assert c["pooled"]["G0"] == pytest.approx(m["statistics"]["small_strain_modulus_Pa"], rel=1e-9)
+    assert c["G0"]["mean"] != c["pooled"]["G0"] and c["fit_basis"]["why_differ"]
+
+
+# ----- the project file is the study -----------------------------------------------------------------------------
+def test_project_round_trip_keeps_inputs_settings_and_numbers(tmp_path, sample_study):
+    import zipfile
+    from pathlib import Path
+
+    from network_models.study import Study
+
+    st = sample_study
+    st.update(exclusions={"QM-S1": {"S1-4": "torn at the grip"}}, design_targets=("M100=1.7..1.9MPa",),
+              specifications=("M100=1.6..2.0MPa",), service_temperature=353.15)
+    try:
+        data = st.to_project()
+        with zipfile.ZipFile(io.BytesIO(data)) as z:
+            toml = z.read("project.toml").decode()
+            for inp in st.inputs:  # byte for byte
+                assert z.read(f"inputs/{inp.name}") == Path(f"sample_sets/{inp.name}").read_bytes()
+        assert str(Path("sample_sets").resolve()) not in toml and "filler_volume_fraction" in toml
+        re = Study.from_project(data)
+        assert re.stale is True
+        assert re.settings == st.settings
+        assert re.values() == st.values()
+        assert re.stale is False
+        assert re.design().window is not None
+    finally:
+        st.update(exclusions={}, design_targets=(), specifications=(), service_temperature=None)
+
+
+def test_version_1_project_filler_is_read_as_volume_fraction():
+    from network_models.project import Project, ProjectCompound, manifest_text, read_project
+
+    text = manifest_text(Project(compounds=[ProjectCompound("A", filler_volume_fraction=0.12)]), [])
+    old = text.replace("version = 2", "version = 1").replace("filler_volume_fraction", "filler")
+    import zipfile
+
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w") as z:
+        z.writestr("project.toml", old)
+    assert read_project(buf.getvalue()).compounds[0].filler_volume_fraction == 0.12
+
+
+def test_cli_project_then_compare_gives_the_manifest_numbers_and_options_override(tmp_path):
+    from network_models.study import study_values
+
+    out = tmp_path / "s.zip"
+    rc, _ = run_text(["project", "--manifest", SAMPLE, "--exclude", "QM-S1:S1-4:torn", "--service-temperature",
+                      "80C", "-o", str(out)])
+    assert rc == 0
+    a = run_json(["compare", "--project", str(out), "--json", "--no-model-spread"])
+    b = run_json(["compare", "--manifest", SAMPLE, "--exclude", "QM-S1:S1-4:torn", "--service-temperature", "80C",
+                  "--json", "--no-model-spread"])
+    assert study_values(a) == study_values(b) and a["service_temperature_K"] == pytest.approx(353.15)
+    c = run_json(["compare", "--project", str(out), "--service-temperature", "100C", "--json",
+                  "--no-model-spread"])
+    assert c["service_temperature_K"] == pytest.approx(373.15)  # the command line wins
+    assert [e["specimen"] for e in c["exclusions"]] == ["S1-4"]  # the stored exclusion stays
