@@ -155,8 +155,11 @@ class DataState(param.Parameterized):
                 return cand
             i += 1
 
-    def _set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
-                   new_info: CompoundInfo | None = None):
+    def set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
+                  new_info: CompoundInfo | None = None):
+        """Replace the store's files (and compounds, and the fit selection) in one change: one revision, one
+        redraw.  Compounds no file belongs to any more are dropped; a new group gets ``new_info`` (or the fit
+        view's polymer, f and filler)."""
         names = [f.name for f in files]
         self.param.selected.objects = names
         sel = [n for n in (selected if selected is not None else self.selected) if n in names]
@@ -205,7 +208,7 @@ class DataState(param.Parameterized):
         comps = dict(self.compounds)
         if compound not in comps:
             comps[compound] = replace(comps.get(f.group, CompoundInfo()), swelling=[], metadata={})
-        self._set_files([replace(x, group=compound) if x.name == file_name else x for x in self.files],
+        self.set_files([replace(x, group=compound) if x.name == file_name else x for x in self.files],
                         compounds=comps)
 
     def load_samples(self, manifest_path=None) -> list[str]:
@@ -239,7 +242,7 @@ class DataState(param.Parameterized):
         baseline = man.info.get("baseline") or (man.compounds[0].key if man.compounds else None)
         self.manifest_baseline = baseline or ""
         sel = [f.name for f in files if f.group == baseline]
-        self._set_files(files, sel, compounds=comps)
+        self.set_files(files, sel, compounds=comps)
         self._prefill_from_selection()
         return problems
 
@@ -273,10 +276,10 @@ class DataState(param.Parameterized):
         if not loaded:
             return
         files = list(self.files) + [f for f in loaded if f not in self.files]
-        self._set_files(files, [f.name for f in loaded], new_info=recipe)
+        self.set_files(files, [f.name for f in loaded], new_info=recipe)
 
     def remove(self, name: str):
-        self._set_files([f for f in self.files if f.name != name])
+        self.set_files([f for f in self.files if f.name != name])
 
     def get(self, name: str) -> LoadedFile:
         for f in self.files:
@@ -302,7 +305,7 @@ class DataState(param.Parameterized):
         else:
             curves = td.read_curves(f.path, **opts)
         new = replace(f, curves=curves, options=opts)
-        self._set_files([new if x.name == name else x for x in self.files])
+        self.set_files([new if x.name == name else x for x in self.files])
         return new
 
     def selected_compound(self) -> str | None:

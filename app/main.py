@@ -72,7 +72,7 @@ def _build_page(load_samples: bool = True):
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
-    design = create_design_view(explorer_state=session.network)
+    design = create_design_view(explorer_state=session.network, state=session.design)
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")

@@ -72,6 +72,7 @@ class Settings:
     design_targets: tuple = ()
     design_model: str = "affine"
     specifications: tuple = ()
+    chosen: tuple | None = None  # the compounds compared (None: all, in the study's order)
 
     def __post_init__(self):
         from .models import get_model
@@ -90,6 +91,8 @@ class Settings:
         object.__setattr__(self, "specifications", tuple(str(t) for t in self.specifications))
         if self.spread_models is not None:
             object.__setattr__(self, "spread_models", tuple(self.spread_models))
+        if self.chosen is not None:
+            object.__setattr__(self, "chosen", tuple(str(c) for c in self.chosen))
         if self.service_temperature is not None:
             object.__setattr__(self, "service_temperature", float(self.service_temperature))
 
@@ -107,7 +110,8 @@ class Settings:
                 "baseline": self.baseline, "exclusions": self.exclusion_dict, "pool": self.pool,
                 "spread_models": None if self.spread_models is None else list(self.spread_models),
                 "design_targets": list(self.design_targets), "design_model": self.design_model,
-                "specifications": list(self.specifications)}
+                "specifications": list(self.specifications),
+                "chosen": None if self.chosen is None else list(self.chosen)}
 
     @classmethod
     def from_dict(cls, d: dict) -> Settings:
@@ -119,7 +123,7 @@ class Settings:
         if unknown:
             raise UserError(f"project settings: unknown setting(s) {', '.join(unknown)}; this file was written by "
                             "another version of netstretch")
-        for k in ("design_targets", "specifications", "spread_models"):
+        for k in ("design_targets", "specifications", "spread_models", "chosen"):
             if d.get(k) is not None:
                 d[k] = tuple(d[k])
         return cls(**d)
@@ -130,13 +134,16 @@ class _FitCache:
     """``fitter(model, curves)`` for :func:`network_models.compare.compare`: ``fit_or_error`` with the study's
     residual weighting, each result kept per (model, weighting, curve identities)."""
 
-    def __init__(self, limit: int = 2000):
+    def __init__(self, limit: int = 2000, fit_function=None):
         self._fits: dict = {}
+        self.fit_function = fit_function  # None: fitting.fit_or_error (the app passes its process-level cache)
         self.limit = limit
         self.calls = 0  # fits actually made (the benchmark and the tests read it)
 
     def fitter(self, residual: str):
         from .fitting import fit_or_error
+
+        fit_or_error = self.fit_function or fit_or_error
 
         def fit(model, curves):
             key = (model.name, residual, tuple(id(c) for c in curves))
@@ -165,13 +172,15 @@ class Study:
     stale: bool = False
     #: the results summary a reopened project carried (for showing, marked out of date)
     saved_results: dict = field(default_factory=dict)
+    #: the fit call behind every fit (None: ``fitting.fit_or_error``); same signature and weighting keyword
+    fit_function: object = None
 
     def __post_init__(self):
         names = [c.name for c in self.compounds]
         dup = sorted({n for n in names if names.count(n) > 1})
         if dup:
             raise UserError(f"compound name(s) {', '.join(dup)} appear more than once in the study")
-        self._fits = _FitCache()
+        self._fits = _FitCache(fit_function=self.fit_function)
         self._results: dict = {}
         self._chi_table: dict = {}
 
@@ -211,12 +220,18 @@ class Study:
 
     def _analysed_compounds(self) -> list[Compound]:
         """The compounds as the comparison sees them: with χ from the manifest, or every χ from the table."""
+        comps = self.compounds
+        if self.settings.chosen is not None:
+            missing = [n for n in self.settings.chosen if n not in self.names]
+            if missing:
+                raise UserError(f"compound(s) {', '.join(missing)} chosen for the comparison are not in the study")
+            comps = [self[n] for n in self.settings.chosen]
         if self.settings.chi_source == "manifest":
-            return self.compounds
-        key = tuple(id(c) for c in self.compounds)
+            return comps
+        key = tuple(id(c) for c in comps)
         if self._chi_table.get("key") != key:
             self._chi_table = {"key": key, "compounds": [
-                replace(c, swelling=[replace(s, chi=None) for s in c.swelling]) for c in self.compounds]}
+                replace(c, swelling=[replace(s, chi=None) for s in c.swelling]) for c in comps]}
         return self._chi_table["compounds"]
 
     def comparison(self):
@@ -225,11 +240,18 @@ class Study:
 
         s = self.settings
         key = (s.model, s.residual, s.chi_source, s.service_temperature, s.baseline, s.exclusions, s.pool,
-               s.spread_models, tuple(id(c) for c in self.compounds))
-        return self._cached("comparison", key, lambda: compare(
-            self._analysed_compounds(), model=s.model, baseline=s.baseline,
-            service_temperature=s.service_temperature, fitter=self._fits.fitter(s.residual),
-            exclude=s.exclusion_dict, pool=s.pool, spread_models=s.spread_models, residual=s.residual))
+               s.spread_models, s.chosen, tuple(id(c) for c in self.compounds))
+        def make():
+            comps = self._analysed_compounds()
+            names = {c.name for c in comps}
+            # a baseline outside the app's chosen subset falls back to compare's default; an unknown one is refused
+            base = s.baseline if s.chosen is None or s.baseline in names else None
+            return compare(comps, model=s.model, baseline=base,
+                           service_temperature=s.service_temperature, fitter=self._fits.fitter(s.residual),
+                           exclude={c: d for c, d in s.exclusion_dict.items() if c in names}, pool=s.pool,
+                           spread_models=s.spread_models, residual=s.residual)
+
+        return self._cached("comparison", key, make)
 
     def pooled(self, name: str) -> dict | None:
         """One fit to the compound's counted curves: {model, G0 (Pa), residual, ...} (None when it failed)."""

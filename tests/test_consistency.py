@@ -1,8 +1,9 @@
 """Issue #18's "done when": the sample set walked through the CLI JSON (`compare --json`), the report's JSON
 (`report`), a saved-and-reopened project (`netstretch project` → `compare --project`, and
-`Study.from_project`) and the study object gives, for each compound, one value per (quantity, basis)
-everywhere.  The values are compared between independent routes (different readers of the same inputs:
-files on disk vs the project zip's bytes; different commands), so a view that fits with its own settings fails."""
+`Study.from_project`), the study object and the app's session object (fresh, and saved and reopened) gives,
+for each compound, one value per (quantity, basis) everywhere.  The values are compared between independent
+routes (different readers of the same inputs: files on disk vs the project zip's bytes vs the app's store;
+different commands), so a view that fits with its own settings fails."""
 
 from __future__ import annotations
 
@@ -44,7 +45,17 @@ def routes(tmp_path_factory):
         assert main(["project", "--manifest", SAMPLE, "-o", str(zip_path), *FAST]) == 0
         assert main(["report", "--manifest", SAMPLE, "-o", str(tmp / "review.html"), *FAST]) == 0
     st = Study.from_manifest(SAMPLE, spread_models=())
+    from app.session import Session
+
+    session = Session()
+    assert session.data.load_samples() == []
+    session.compare.run()
+    reopened = Session()
+    assert reopened.load_project(session.to_project()) == []
+    reopened.compare.run()
     return {
+        "app session": study_values(session.compare.comparison.to_dict()),
+        "app session, saved and reopened": study_values(reopened.compare.comparison.to_dict()),
         "cli compare --manifest": study_values(_json(["compare", "--manifest", SAMPLE, "--json", *FAST])),
         "cli compare --project": study_values(_json(["compare", "--project", str(zip_path), "--json", *FAST])),
         "report json": study_values(json.loads((tmp / "review.json").read_text("utf-8"))),
@@ -56,7 +67,7 @@ def routes(tmp_path_factory):
 def test_every_route_gives_one_value_per_quantity_and_basis(routes):
     answers = {name: _one_answer(rows) for name, rows in routes.items()}
     ref_name, ref = next(iter(answers.items()))
-    assert {k[0] for k in ref} == {"QM-S1", "QM-S2", "QM-S3", "QM-S2A", "QM-S2B"}
+    assert {k[0] for k in ref} == {"QM-S1", "QM-S2", "QM-S3", "QM-S2A", "QM-S2B"}, ref_name
     assert {k[1] for k in ref} >= {"G0", "nu", "nu_swelling"}
     for name, ans in answers.items():
         assert ans.keys() == ref.keys(), f"{name} differs from {ref_name} in which numbers it has"
