@@ -303,3 +303,15 @@ def test_app_session_compares_through_its_study_and_keeps_design_in_the_project(
     other.compare.run()
     assert not other.results_out_of_date
     assert other.study().settings.design_targets == ("M100=1.7..1.9MPa", "lock>=5")
+
+
+def test_swelling_form_reads_a_sample_specimen_as_the_comparison_does(sample_study):
+    # issue #18: QM-S2-w1 gave one ν on the Swelling tab (χ from the table) and another in Compare (χ = 0.39 from
+    # the manifest); the form now takes the manifest's χ and f, so the two are one number
+    from app.swell_state import SwellState
+
+    sw = SwellState()
+    assert sw.load_sample(label="QM-S2 QM-S2-w1")
+    assert sw.chi == 0.39
+    row = next(r for r in sample_study.comparison()["QM-S2"].swelling_rows if r["specimen"] == "QM-S2-w1")
+    assert sw.estimate().nu_affine == pytest.approx(row["nu"], rel=1e-12)
