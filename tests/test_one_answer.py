@@ -218,7 +218,8 @@ def test_pooled_equals_fit_command_on_the_same_files(sample_study):
     files = [f"sample_sets/QM-S2A_uniaxial_A{i}.csv" for i in range(1, 6)]
     f = run_json(["fit", *files, "--mode", "uniaxial", "--model", c["pooled"]["model"], "--json"])
     m = f["models"][c["pooled"]["model"]]
-    assert f["residual"] == c["pooled"]["residual"]
+    assert f["residual"] == c["pooled"]["residual"] == m["fit_basis"]["residual"]
+    assert m["fit_basis"]["statistic"] == "pooled fit"
     assert c["pooled"]["G0"] == pytest.approx(m["statistics"]["small_strain_modulus_Pa"], rel=1e-9)
     assert c["G0"]["mean"] != c["pooled"]["G0"] and c["fit_basis"]["why_differ"]
 
@@ -315,3 +316,16 @@ def test_swelling_form_reads_a_sample_specimen_as_the_comparison_does(sample_stu
     assert sw.chi == 0.39
     row = next(r for r in sample_study.comparison()["QM-S2"].swelling_rows if r["specimen"] == "QM-S2-w1")
     assert sw.estimate().nu_affine == pytest.approx(row["nu"], rel=1e-12)
+
+
+def test_report_says_why_its_two_G0_differ(sample_study):
+    from network_models.report import Report
+
+    rep = Report(sample_study.comparison())
+    r = sample_study.comparison()["QM-S2"]
+    rows = [x for x in rep.csv_rows() if x["compound"] == "QM-S2" and x["key"] in ("G0", "G0_pooled")]
+    assert {x["key"] for x in rows} == {"G0", "G0_pooled"}
+    pooled = next(x for x in rows if x["key"] == "G0_pooled")
+    assert pooled["value"] == r.pooled["G0"] and "pooled fit" in pooled["basis"]
+    html = rep.to_html()
+    assert "mean of 4 specimen fit(s)" in html and "differ by specimen scatter" in html

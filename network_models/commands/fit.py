@@ -191,6 +191,10 @@ def run(args):
             else:
                 d = r.to_dict()
                 d["network"] = tables[name].to_dict() if name in tables else None
+                d["fit_basis"] = {"statistic": "pooled fit", "model": name, "residual": args.residual,
+                                  "curves": len(curves),
+                                  "label": f"one fit of {name} to all {len(curves)} curve(s), {args.residual} "
+                                           "residuals (statistics.small_strain_modulus_Pa)"}
                 doc["models"][name] = d
         if len(ok) > 1:
             doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)

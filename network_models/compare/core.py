@@ -116,6 +116,14 @@ def analyse_compound(compound, m, service_temperature, fitter=None, exclude=None
     _service_part(res, T, T if service_temperature is None else float(service_temperature))
     res.headline = _headline(res, tier, why, spread_models, fitter)
     res.pooled = _pooled(res, m, fitter)
+    g = res.stats.get("G0")
+    if res.fit is not None and g is not None and g.mean is not None:  # where both G₀ are shown, say why
+        G0p = float(m.small_strain_modulus(**m.resolve(res.fit.values)))
+        res.crosslink_notes.append(
+            f"this table reads the pooled fit (G₀ = {G0p / 1e6:.4g} MPa: one fit to all the compound's curves, "
+            f"{getattr(res.fit, 'residual', '')} residuals); the compound's G₀ = {g.mean / 1e6:.4g} MPa elsewhere is "
+            f"the mean of {g.n} specimen fit(s) — they differ by specimen scatter and by how the test modes pull "
+            "the single fit")
     return res
 
 
