@@ -68,7 +68,7 @@ class Session:
                 except ValueError:  # a compound without curves yet: not part of the comparison
                     continue
             self._study = (d.revision, Study(comps, title=c.title, purpose=c.purpose,
-                                             fit_function=shared.fit_or_error))
+                                             fit_function=shared.fit_or_error, compare_function=shared.compare))
         st = self._study[1]
         from network_models.constants import ZERO_CELSIUS
 

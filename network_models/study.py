@@ -174,6 +174,9 @@ class Study:
     saved_results: dict = field(default_factory=dict)
     #: the fit call behind every fit (None: ``fitting.fit_or_error``); same signature and weighting keyword
     fit_function: object = None
+    #: the comparison call (None: ``compare.compare``); the app passes its process-level cache of the
+    #: sample set's comparisons (same keywords, ``fitter`` included)
+    compare_function: object = None
 
     def __post_init__(self):
         names = [c.name for c in self.compounds]
@@ -246,10 +249,10 @@ class Study:
             names = {c.name for c in comps}
             # a baseline outside the app's chosen subset falls back to compare's default; an unknown one is refused
             base = s.baseline if s.chosen is None or s.baseline in names else None
-            return compare(comps, model=s.model, baseline=base,
-                           service_temperature=s.service_temperature, fitter=self._fits.fitter(s.residual),
-                           exclude={c: d for c, d in s.exclusion_dict.items() if c in names}, pool=s.pool,
-                           spread_models=s.spread_models, residual=s.residual)
+            return (self.compare_function or compare)(
+                comps, model=s.model, baseline=base, service_temperature=s.service_temperature,
+                fitter=self._fits.fitter(s.residual), exclude={c: d for c, d in s.exclusion_dict.items() if c in names},
+                pool=s.pool, spread_models=s.spread_models, residual=s.residual)
 
         return self._cached("comparison", key, make)
 
