@@ -147,6 +147,8 @@ class Session:
         proj = read_project(source)
         files, seen = [], set()
         for inp in proj.inputs:
+            if inp.kind != "curves":  # a swelling table or force–temperature record: its rows are in [[compound]]
+                continue
             curves = read_curves_bytes(inp.data, inp.name, **inp.options)
             name = inp.name
             while name in seen:
@@ -180,6 +182,19 @@ class Session:
                     obj.param.update(**{n: values[n]})
                 except (ValueError, TypeError) as exc:
                     problems.append(f"setting {section}.{n} = {values[n]!r} was not restored ({exc})")
+        study = proj.settings.get("study", {})
+        if study and "compare" not in proj.settings:  # a project the command line wrote: its study settings
+            from network_models.constants import ZERO_CELSIUS
+
+            try:
+                self.compare.param.update(**{k: v for k, v in (
+                    ("model", study.get("model")), ("baseline", study.get("baseline")),
+                    ("service_C", None if study.get("service_temperature_K") is None
+                     else float(study["service_temperature_K"]) - ZERO_CELSIUS)) if v is not None})
+                if study.get("design_targets"):
+                    self.design.targets = list(study["design_targets"])
+            except (ValueError, TypeError) as exc:
+                problems.append(f"the project's study settings were not all restored ({exc})")
         self.compare.comparison = None  # nothing of the old session stays on screen
         self.design.param.update(result=None, map=None, advice=None, models=None)
         self.saved_results = dict(proj.results)  # shown out of date until the comparison is recomputed

@@ -53,7 +53,11 @@ def routes(tmp_path_factory):
     reopened = Session()
     assert reopened.load_project(session.to_project()) == []
     reopened.compare.run()
+    from_cli = Session()  # the project `netstretch project` wrote, opened in the app
+    assert from_cli.load_project(zip_path.read_bytes()) == []
+    from_cli.compare.run()
     return {
+        "app session, CLI project opened": study_values(from_cli.compare.comparison.to_dict()),
         "app session": study_values(session.compare.comparison.to_dict()),
         "app session, saved and reopened": study_values(reopened.compare.comparison.to_dict()),
         "cli compare --manifest": study_values(_json(["compare", "--manifest", SAMPLE, "--json", *FAST])),

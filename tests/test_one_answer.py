@@ -329,3 +329,17 @@ def test_report_says_why_its_two_G0_differ(sample_study):
     assert pooled["value"] == r.pooled["G0"] and "pooled fit" in pooled["basis"]
     html = rep.to_html()
     assert "mean of 4 specimen fit(s)" in html and "differ by specimen scatter" in html
+
+
+def test_app_opens_a_project_the_command_line_wrote(tmp_path):
+    from app.session import Session
+
+    out = tmp_path / "s.zip"
+    rc, _ = run_text(["project", "--manifest", SAMPLE, "--baseline", "QM-S1", "--service-temperature", "100C",
+                      "--target", "lock>=5", "-o", str(out)])
+    assert rc == 0
+    s = Session()
+    assert s.load_project(out.read_bytes()) == []
+    assert s.compare.baseline == "QM-S1" and s.compare.service_C == pytest.approx(100.0)
+    assert s.design.targets == ["lock>=5"]
+    assert sorted(s.data.compound_names()) == sorted(["QM-S1", "QM-S2", "QM-S3", "QM-S2A", "QM-S2B"])
