@@ -444,6 +444,12 @@ class DataState(param.Parameterized):
         out = []
         for r in self.results.values():
             out.extend(about(r.title, w) for w in r.warnings)
+            # the plotted predictions past the data (fitted_curves' grid): flagged when implausible (issue #20)
+            for mode in r.model_obj.modes:
+                tops = [float(np.max(c.stretch)) for c in self.selected_curves() if c.mode is mode]
+                loud = r.extrapolation_note(mode, np.linspace(1.0, max(tops, default=3.0) * 1.05, 50))
+                if loud is not None:
+                    out.append(about(r.title, loud))
         return out + [Notice(t, "fit-failed") for t in self.failures.values()]
 
     def crosslink_table(self):

@@ -73,6 +73,7 @@ class Settings:
     design_model: str = "affine"
     specifications: tuple = ()
     chosen: tuple | None = None  # the compounds compared (None: all, in the study's order)
+    holm: bool = False  # family-wise verdicts over each compound's quantities (Holm)
 
     def __post_init__(self):
         from .models import get_model
@@ -111,7 +112,7 @@ class Settings:
                 "spread_models": None if self.spread_models is None else list(self.spread_models),
                 "design_targets": list(self.design_targets), "design_model": self.design_model,
                 "specifications": list(self.specifications),
-                "chosen": None if self.chosen is None else list(self.chosen)}
+                "chosen": None if self.chosen is None else list(self.chosen), "holm": self.holm}
 
     @classmethod
     def from_dict(cls, d: dict) -> Settings:
@@ -243,7 +244,7 @@ class Study:
 
         s = self.settings
         key = (s.model, s.residual, s.chi_source, s.service_temperature, s.baseline, s.exclusions, s.pool,
-               s.spread_models, s.chosen, tuple(id(c) for c in self.compounds))
+               s.spread_models, s.chosen, s.holm, tuple(id(c) for c in self.compounds))
         def make():
             comps = self._analysed_compounds()
             names = {c.name for c in comps}
@@ -252,7 +253,7 @@ class Study:
             return (self.compare_function or compare)(
                 comps, model=s.model, baseline=base, service_temperature=s.service_temperature,
                 fitter=self._fits.fitter(s.residual), exclude={c: d for c, d in s.exclusion_dict.items() if c in names},
-                pool=s.pool, spread_models=s.spread_models, residual=s.residual)
+                pool=s.pool, spread_models=s.spread_models, residual=s.residual, **({"holm": True} if s.holm else {}))
 
         return self._cached("comparison", key, make)
 

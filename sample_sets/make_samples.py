@@ -237,7 +237,8 @@ def write_xlsx(path: Path, meta, table):
 # ---------------------------------------------------------------------------------------------------
 
 def flory_rehner_phi(nu, chi=0.39, V1=106.85e-6, f=4):
-    """Swollen polymer volume fraction φ for strand density ν (mol/m³), affine Flory–Rehner (physics.md §5)."""
+    """Swollen polymer volume fraction φ for strand density ν (mol/m³), affine Flory–Rehner
+    (docs/methods.md §flory-rehner)."""
     def g(phi):
         return -(np.log(1 - phi) + phi + chi * phi * phi) - V1 * nu * (phi ** (1 / 3) - 2 * phi / f)
     return brentq(g, 1e-4, 0.95)

@@ -95,7 +95,8 @@ def test_relative_residuals_with_relative_noise():
 
 
 def test_start_modulus_from_small_strain_slope():
-    # Neo-Hookean curves: G = P/(λ − λ⁻²) uniaxial, P/(λ − λ⁻⁵) equibiaxial, P/(λ − λ⁻³) planar (physics.md §2).
+    # Neo-Hookean curves: G = P/(λ − λ⁻²) uniaxial, P/(λ − λ⁻⁵) equibiaxial, P/(λ − λ⁻³) planar
+    # (docs/methods.md §neo-hookean).
     m = get_model("neo-hookean")
     assert estimate_modulus(curves_from(m, {"G": 0.4e6})) == pytest.approx(0.4e6, rel=1e-12)
 
@@ -117,7 +118,7 @@ def test_fit_uniaxial_predict_planar_and_equibiaxial():
 
 
 def test_planar_initial_slope_is_four_thirds_of_uniaxial():
-    # Small-strain check (Treloar 1944, Trans. Faraday Soc. 40:59 [paper, via physics.md §2]): the planar
+    # Small-strain check (Treloar 1944, Trans. Faraday Soc. 40:59 [docs/methods.md §small-strain]): the planar
     # initial slope dP/dλ at λ = 1 is 4/3 of the uniaxial one (uniaxial 3G, planar 4G).
     res = fit("neo-hookean", curves_from(get_model("neo-hookean"), {"G": 0.5e6}, tops={"uniaxial": 1.5}))
     h = 1e-5

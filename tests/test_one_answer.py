@@ -195,21 +195,27 @@ def test_a_setting_that_does_not_change_a_fit_does_not_refit(sample_study):
     st.update(residual="relative", service_temperature=None, baseline="QM-S2", design_targets=())
 
 
-def test_chi_source_manifest_or_table(sample_study):
-    st = sample_study
-    st.update(chi_source="manifest")
-    rows = st.comparison()["QM-S2"].swelling_rows
-    assert rows and all(r["chi"] == 0.39 for r in rows)  # the sample manifest's [swelling] chi = 0.39
-    for r in rows:  # affine Flory–Rehner, f = 4 (Flory & Rehner 1943): ν = −[ln(1−v) + v + χv²]/(V₁(v^⅓ − v/2))
-        v, V1 = r["phi"], r["molar_volume_cm3_mol"] * 1e-6
-        nu = -(np.log(1 - v) + v + 0.39 * v**2) / (V1 * (v ** (1 / 3) - v / 2))
-        assert r["nu"] == pytest.approx(nu, rel=1e-9)
-    n = st.fits_made
-    st.update(chi_source="table")
-    trows = st.comparison()["QM-S2"].swelling_rows
-    assert st.fits_made == n
-    assert all(t["chi"] != 0.39 for t in trows) and trows[0]["nu"] != rows[0]["nu"]
-    st.update(chi_source="manifest")
+def test_chi_source_manifest_or_table():
+    from network_models.compounds import SwellingTest
+    from network_models.study import Settings, Study
+    from network_models.swelling import default_chi
+
+    c = _mr_compound("A", 0.2e6, 0.05e6)
+    c.swelling = [SwellingTest(dry=1.0e-3, swollen=4.2e-3, solvent="toluene", chi=0.45, specimen="A-w1")]
+    st = Study([c], settings=Settings(model="mooney-rivlin", spread_models=()))
+    table_chi = default_chi("NR", "toluene").chi
+    assert table_chi != 0.45
+    for source, chi in (("manifest", 0.45), ("table", table_chi)):
+        n = st.fits_made
+        st.update(chi_source=source)
+        (row,) = st.comparison()["A"].swelling_rows
+        assert row["chi"] == chi
+        if source == "table":
+            assert st.fits_made == n  # χ never refits the curves
+        # affine Flory–Rehner, f = 4 (Flory & Rehner 1943): ν = −[ln(1−v) + v + χv²]/(V₁(v^⅓ − v/2))
+        v, V1 = row["phi"], row["molar_volume_cm3_mol"] * 1e-6
+        assert row["nu"] == pytest.approx(-(np.log(1 - v) + v + chi * v**2) / (V1 * (v ** (1 / 3) - v / 2)),
+                                          rel=1e-9)
 
 
 def test_pooled_equals_fit_command_on_the_same_files(sample_study):

@@ -48,6 +48,9 @@ def add_parser(sub):
                         "(default NR)")
     p.add_argument("--functionality", type=float, default=4.0, metavar="F",
                    help="junction functionality f for the crosslink table (default 4)")
+    p.add_argument("--intervals", choices=("transformed", "profile"), default="transformed",
+                   help="95 %% intervals: 'transformed' (default; linearised on log/logit of the parameter, always "
+                        "inside its domain) or 'profile' (profile likelihood; slower)")
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
     p.set_defaults(run=run)
 
@@ -136,8 +139,9 @@ def _format_result(res, table) -> list[str]:
         scale = p.display_scale if p.display_unit else 1.0
         unit = p.display_unit or ("—" if p.unit == "1" else p.unit)
         tag = "  (fixed)" if p.fixed else ""
+        ci = _ci(p.ci95, scale) if p.fixed or getattr(p, "determined", True) else "not determined"
         out.append(f"  {(p.symbol or p.name):10s} {_num(p.value, scale):>11s} {_num(p.stderr, scale, 2):>13s} "
-                   f"{_ci(p.ci95, scale):>25s}  {unit}{tag}")
+                   f"{ci:>25s}  {unit}{tag}")
     out.append(f"  small-strain shear modulus G₀ = {res.small_strain_modulus / 1e6:.4g} MPa")
     out.append(f"  {'mode':12s} {'n':>4s} {'RMS / MPa':>10s} {'R²':>8s}   tested λ")
     for m, s in res.modes.items():
@@ -163,7 +167,8 @@ def run(args):
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
                          f"got {args.functionality:g}")
-    results = fit_many(models, curves, residual=args.residual, polymer=args.polymer)
+    results = fit_many(models, curves, residual=args.residual, polymer=args.polymer,
+                       intervals=getattr(args, "intervals", "transformed"))
     tables = {}
     for name, r in results.items():
         if isinstance(r, Exception):

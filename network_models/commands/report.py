@@ -47,6 +47,9 @@ def _common(p):
                    help="unit strand and junction densities are shown in (mol/kg divides by the polymer density)")
     p.add_argument("--no-model-spread", action="store_true",
                    help="skip fitting the other models for the model spread beside the headline (faster)")
+    p.add_argument("--holm", action="store_true",
+                   help="family-wise verdicts: judge each compound's quantities together (Holm), so equal compounds "
+                        "show any 'different' in at most 5 %% of comparisons (default: 5 %% per quantity)")
 
 
 def add_parser(sub):
@@ -99,6 +102,8 @@ def settings_from_args(args) -> dict:
         out["pool"] = True
     if getattr(args, "no_model_spread", False):
         out["spread_models"] = ()
+    if getattr(args, "holm", False):
+        out["holm"] = True
     return out
 
 
@@ -241,6 +246,10 @@ def verdict_lines(cmp) -> list[str]:
         out.append(f"  {d['compound']:{width}s} {d['label']:32s} {pct}{absv} {ci}  {d['verdict'].upper()}"
                    f" (n {d['n']} vs {d['n_baseline']}{mdd})")
     out.append("  " + VERDICT_WORDING)
+    if getattr(cmp, "family_wise", None) == "holm":
+        from ..compare.core import HOLM_NOTE
+
+        out.append("  " + HOLM_NOTE)
     return out
 
 

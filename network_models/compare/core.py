@@ -8,7 +8,17 @@ from dataclasses import dataclass, field
 from ..constants import celsius
 from ..errors import Notice
 from ..models import MODELS, get_model
-from ..statistics import CANNOT_JUDGE, DIFFERENT, VERDICT_WORDING, combined_interval, verdict
+from ..statistics import (
+    ALPHA,
+    CANNOT_JUDGE,
+    DIFFERENT,
+    NOT_DISTINGUISHABLE,
+    VERDICT_WORDING,
+    combined_interval,
+    holm_adjust,
+    verdict,
+    welch_p_value,
+)
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
 from .specimens import SPECIMEN_QUANTITIES, analyse_specimens, basis_label, row_key, specimen_table
@@ -200,6 +210,9 @@ class Comparison:
     display_units: dict = field(default_factory=lambda: {"stress": "MPa", "density": "mol/m³"})
     #: the residual weighting of every fit in this comparison
     residual: str = "relative"
+    #: family-wise verdicts: "holm" adjusts each compound's verdict quantities together (Holm 1979), None keeps
+    #: one test per quantity at α = 0.05 (issue #20)
+    family_wise: str | None = None
 
     def to_frame(self):
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
@@ -264,10 +277,10 @@ class Comparison:
         for r in self.results:
             if r is base or not r.ok:
                 continue
-            for q in VERDICT_QUANTITIES:
-                row = self._difference(r, base, q)
-                if row is not None:
-                    out.append(row)
+            rows = [row for q in VERDICT_QUANTITIES if (row := self._difference(r, base, q)) is not None]
+            if self.family_wise == "holm":
+                _holm(rows)
+            out.extend(rows)
         return out
 
     def _difference(self, r, base, q):
@@ -284,6 +297,7 @@ class Comparison:
             return None
         v = verdict(a, b)
         d = v.to_dict()
+        d["p_value"] = welch_p_value(a, b) if v.verdict != CANNOT_JUDGE else None
         d.update({"compound": r.name, "baseline": base.name, "quantity": q, "label": label, "unit": unit,
                   "basis": basis, "key": "nu" if q == "strand_density" else q,
                   "styled": v.verdict == DIFFERENT})
@@ -305,7 +319,21 @@ class Comparison:
             "residual": self.residual,
             "compounds": [result_to_dict(r, self.residual) for r in self.results],
             "differences": self.differences(),
+            "family_wise": self.family_wise,
         }
+
+
+def _holm(rows) -> None:
+    """Holm's family-wise verdicts over one compound's quantities (statistics.holm_adjust): each row gains
+    ``p_holm`` and its verdict follows p_holm < α; the Welch interval stays the per-quantity 95 % one."""
+    adj = holm_adjust([d.get("p_value") for d in rows])
+    m = sum(p is not None for p in adj)
+    for d, p in zip(rows, adj, strict=True):
+        d["p_holm"] = p
+        d["family"] = f"Holm over the {m} judged quantities of this compound (family-wise α = {ALPHA:g})"
+        if p is not None:
+            d["verdict"] = DIFFERENT if p < ALPHA else NOT_DISTINGUISHABLE
+            d["styled"] = d["verdict"] == DIFFERENT
 
 
 def _stat_dict(s) -> dict | None:
@@ -357,7 +385,7 @@ def _exclusions(exclude) -> dict[str, dict[str, str]]:
 
 
 def compare(compounds, model="eight-chain", baseline: str | None = None, service_temperature: float | None = None,
-            fitter=None, *, exclude=None, pool: bool = False, spread_models=None,
+            fitter=None, *, exclude=None, pool: bool = False, spread_models=None, holm: bool = False,
             residual: str | None = None) -> Comparison:
     """Fit ``model`` to every compound (pooled and specimen by specimen) and compare with ``baseline``.
 
@@ -365,7 +393,8 @@ def compare(compounds, model="eight-chain", baseline: str | None = None, service
     baseline, else the first.  ``exclude={compound: {specimen: reason}}`` (or a list of specimen names) keeps
     specimens out of the statistics, with the reason recorded.  ``pool=True`` allows files that state
     different compounds to be fitted as one.  ``spread_models``: the models whose spread is shown beside the
-    headline (None: every registered model covering the compound's modes; ``()``: none).  ``residual``: the
+    headline (None: every registered model covering the compound's modes; ``()``: none).  ``holm=True``: verdicts
+    family-wise over each compound's quantities (Holm), instead of one test per quantity at 5 %.  ``residual``: the
     weighting of every fit (None: ``fitting.DEFAULT_RESIDUAL``, as everywhere); a custom ``fitter`` is
     expected to use the same weighting."""
     from ..fitting import DEFAULT_RESIDUAL, fit_or_error
@@ -397,7 +426,14 @@ def compare(compounds, model="eight-chain", baseline: str | None = None, service
     Ts = service_temperature if service_temperature is not None else (
         results[0].test_temperature if results else DEFAULT_TEST_TEMPERATURE)
     return Comparison(model=m.name, results=results, baseline=baseline, service_temperature=float(Ts),
-                      notes=_notes(compounds, results), exclusions=excl, residual=residual)
+                      notes=_notes(compounds, results) + ([HOLM_NOTE] if holm else []), exclusions=excl,
+                      family_wise="holm" if holm else None, residual=residual)
+
+
+#: the note a Holm comparison carries (README "Comparing compounds")
+HOLM_NOTE = ("Family-wise verdicts (--holm): each compound's quantities against the baseline are judged together "
+             "with Holm's step-down correction (Holm 1979), so the chance that equal compounds show any "
+             "'different' stays at most 5 %; the intervals shown remain the per-quantity 95 % Welch intervals.")
 
 
 def _notes(compounds, results) -> list:

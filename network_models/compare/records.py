@@ -66,6 +66,8 @@ class ParamRow:
     display_scale: float
     meaning: str
     held: bool = False
+    #: False when the data do not bound the parameter (no interval; issue #20), None for held parameters
+    determined: bool | None = None
 
     def to_dict(self):
         return dict(self.__dict__)
