@@ -76,7 +76,7 @@ def _build_page(load_samples: bool = True):
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
-        compare._run()
+        compare.run()
     tabs = [
         ("Force–stretch", explorer.stress_tab()),
         ("Mooney plot", explorer.mooney_tab()),
