@@ -42,6 +42,9 @@ class Session:
     def __init__(self):
         self.network = NetworkState()
         self.data = DataState()
+        #: the file store role of ``data`` (FileStore API: files, compounds, set_files, ...); compare, swelling
+        #: and the study read the store through it, the fit tab through ``data``
+        self.store = self.data
         self.compare = CompareState(data=self.data)
         self.swell = SwellState()
         self.design = DesignState()
