@@ -210,6 +210,10 @@ class CompareView(pn.viewable.Viewer):
                                            "press Compare.", "success")
 
     # ----- actions ---------------------------------------------------------------------------------------
+    def run(self):
+        """Compare now (what the Compare button does); the page calls it once for the sample set."""
+        return self._run()
+
     def _run(self):
         self.run_btn.loading = True
         try:

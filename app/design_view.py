@@ -80,9 +80,9 @@ def map_figure(dmap, current=None, compound=None, height=360, measured=None):
 class DesignView(pn.viewable.Viewer):
     """The Design tab (one per session)."""
 
-    def __init__(self, explorer_state=None, messages: Messages | None = None, on_pick=None, **params):
+    def __init__(self, explorer_state=None, messages: Messages | None = None, on_pick=None, state=None, **params):
         super().__init__(**params)
-        self.state = DesignState()
+        self.state = state if state is not None else DesignState()  # the session's (Session.design)
         self.explorer_state = explorer_state
         self.messages = messages or Messages(area="design")
         self.on_pick = on_pick
@@ -92,6 +92,8 @@ class DesignView(pn.viewable.Viewer):
         self.rows = pn.Column(sizing_mode="stretch_width", css_classes=["ns-design-targets"])
         for t in s.targets:
             self._add_row(t)
+        # the rows and the session's DesignState.targets follow each other (a reopened project sets the targets)
+        s.param.watch(lambda e: self._targets_set(e.new), "targets")
         self.new_target = pn.widgets.TextInput(placeholder="e.g. Q(toluene)<=3.5 or planar@2>=1.1MPa", width=260,
                                                css_classes=["ns-design-new"])
         add = pn.widgets.Button(name="Add target", width=110, css_classes=["ns-design-add"])
@@ -144,11 +146,32 @@ class DesignView(pn.viewable.Viewer):
         remove = pn.widgets.Button(name="✕", width=40, css_classes=["ns-design-remove"])
         row = pn.Row(box, remove)
         remove.on_click(lambda e: self._remove_row(row))
+        box.param.watch(lambda e: self._rows_changed(), "value")
         self.rows.append(row)
+        self._rows_changed()
         return row
 
     def _remove_row(self, row):
         self.rows.objects = [r for r in self.rows.objects if r is not row]
+        self._rows_changed()
+
+    def _rows_changed(self):
+        if getattr(self, "_syncing", False):
+            return
+        texts = self.target_texts()
+        if texts != list(self.state.targets):
+            self.state.targets = texts
+
+    def _targets_set(self, targets):
+        if list(targets) == self.target_texts():
+            return
+        self._syncing = True
+        try:
+            self.rows.objects = []
+            for t in targets:
+                self._add_row(t)
+        finally:
+            self._syncing = False
 
     def _add_clicked(self):
         from network_models.design_targets import parse_target
@@ -255,7 +278,8 @@ class DesignView(pn.viewable.Viewer):
 
 
 def create_design_view(explorer_state=None, messages: Messages | None = None, on_pick=None, network_state=None,
-                       **_ignored) -> DesignView:
-    """One session's Design tab.  ``network_state`` is accepted as another name for ``explorer_state``."""
+                       state=None, **_ignored) -> DesignView:
+    """One session's Design tab.  ``network_state`` is accepted as another name for ``explorer_state``;
+    ``state``: the session's :class:`DesignState` (``Session.design``), so a project file keeps the targets."""
     return DesignView(explorer_state=explorer_state if explorer_state is not None else network_state,
-                      messages=messages, on_pick=on_pick)
+                      messages=messages, on_pick=on_pick, state=state)

@@ -73,13 +73,13 @@ def _build_page(load_samples: bool = True):
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
-    design = create_design_view(explorer_state=session.network)
+    design = create_design_view(explorer_state=session.network, state=session.design)
     modulus_card = ModulusCard(units=session.units)
     design.add_below(modulus_card)  # modulus → strand density, on the Design tab under the targets
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
-        compare._run()
+        compare.run()
     tabs = [
         ("Force–stretch", explorer.stress_tab()),
         ("Mooney plot", explorer.mooney_tab()),

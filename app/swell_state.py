@@ -61,7 +61,18 @@ class SwellState(param.Parameterized):
         else:
             row = next((r for r in rows if r.compound == want), rows[0])
         comp = next((c for c in man if c.key == row.compound), None)
+        # the manifest's values win (χ stated with the swelling data, the compound's f): the same reading the
+        # comparison, the report and the study make of this specimen (issue #18: one answer)
+        from network_models.testdata import SAMPLE_MANIFEST
+
+        from . import shared
+
+        core = next((c for c in shared.sample_manifest(SAMPLE_MANIFEST).compounds if c.name == row.compound), None)
+        test = None if core is None else next((t for t in core.swelling if t.specimen == row.specimen), None)
         with param.parameterized.batch_call_watchers(self):
+            self.chi = None if test is None else test.chi
+            if core is not None:
+                self.f = float(core.f)
             self.dry_g, self.swollen_g = row.dry_mass * 1000.0, row.swollen_mass * 1000.0
             self.extracted_g = None if row.extracted_mass is None else row.extracted_mass * 1000.0
             if row.solvent and row.solvent in self.param.solvent.objects:

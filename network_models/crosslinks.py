@@ -139,8 +139,34 @@ class CrosslinkTable:
                 return r
         raise KeyError(f"no row {key!r}; rows: {[r.key for r in self.rows]}")
 
+    @property
+    def filler_fraction(self) -> float:
+        return float(self.inputs.get("filler_fraction", 0.0) or 0.0)
+
+    def headline(self) -> dict:
+        """The one strand density a designer quotes from this table, by the comparison's headline rule
+        (:mod:`network_models.compare.specimens`): the affine row with the entanglement part removed (and the
+        filler removed when a filler fraction is given); when no positive crosslink modulus is left, the affine
+        row with entanglements counted, and the basis says why.  ``design --model affine`` counts ν on the
+        first basis by default.  ``{"value": mol/m³ or None, "row": key, "basis": label, "tier": 0|1}``."""
+        from .compare.specimens import basis_label, row_key
+
+        phi = self.filler_fraction
+        for tier in (0, 1):
+            key = row_key(tier, phi > 0)
+            row = next((r for r in self.rows if r.key == key), None)
+            if row is not None and row.nu is not None and row.nu > 0:
+                basis = basis_label(tier, phi > 0, phi)
+                if tier == 1:
+                    basis += " — the entanglement estimate is as large as the modulus, so no crosslink part is left"
+                return {"value": row.nu, "ci95": None if row.nu_ci is None else list(row.nu_ci), "row": key,
+                        "basis": basis, "tier": tier, "unit": "mol/m³"}
+        return {"value": None, "ci95": None, "row": None, "basis": "no positive strand density on any basis",
+                "tier": None, "unit": "mol/m³"}
+
     def to_dict(self) -> dict:
         return {
+            "headline": self.headline(),
             "polymer": self.polymer, "temperature_K": self.T, "functionality": self.f,
             "shear_modulus_Pa": self.G, "shear_modulus_ci95": None if self.G_ci is None else list(self.G_ci),
             "inputs": self.inputs,
@@ -329,7 +355,8 @@ def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float
         else:
             notes.append("2C₁ used as G (lower end of the Mooney bracket, without the 2C₂ share)")
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
-                  Ge_source=Ge_src, Gc=Gc, Gc_ci=Gc_ci, inputs={"value_Pa": value, "kind": k, "ci95": ci95},
+                  Ge_source=Ge_src, Gc=Gc, Gc_ci=Gc_ci, inputs={"value_Pa": value, "kind": k, "ci95": ci95,
+                                                          "filler_fraction": filler_fraction},
                   notes=notes, sol_fraction=sol_fraction)
 
 
@@ -400,7 +427,8 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
             notes.append("fit caution: " + w)
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
                   Ge_source=src, Gc=Gc, Gc_ci=Gc_ci, extra_rows=extra, sol_fraction=sol_fraction,
-                  inputs={"fit_model": result.model, "small_strain_modulus_Pa": G}, notes=notes)
+                  inputs={"fit_model": result.model, "small_strain_modulus_Pa": G,
+                          "filler_fraction": filler_fraction}, notes=notes)
 
 
 def crosslink_table(source, kind: str = "G", **kw) -> CrosslinkTable:

@@ -12,7 +12,7 @@ import re
 
 from ..constants import CAUTION as _CAUTION
 from ..crosslinks import from_fit
-from ..fitting import fit_many
+from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
 from ..jsonio import dumps
 from ..models import get_model
 
@@ -37,8 +37,12 @@ def add_parser(sub):
     p.add_argument("--gauge-length", metavar="L", help="gauge length for extension columns, e.g. 20mm")
     p.add_argument("--width", metavar="W", help="specimen width for force columns, e.g. 4mm")
     p.add_argument("--thickness", metavar="H", help="specimen thickness for force columns, e.g. 2mm")
-    p.add_argument("--relative", action="store_true",
-                   help="relative residuals (each point weighs by its own stress) instead of absolute (Pa)")
+    p.add_argument("--residual", choices=RESIDUALS, default=DEFAULT_RESIDUAL,
+                   help=f"residual weighting: relative (each point weighs by its own stress, so the small-strain "
+                        f"points that fix G₀ count) or absolute (Pa: the stiff high-stretch points weigh most); "
+                        f"default {DEFAULT_RESIDUAL}, the same in compare, report, batch and the app")
+    p.add_argument("--relative", dest="residual", action="store_const", const="relative",
+                   help="alias of --residual relative")
     p.add_argument("--polymer", default="NR",
                    help="polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
                         "(default NR)")
@@ -167,7 +171,7 @@ def run(args):
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
                          f"got {args.functionality:g}")
-    results = fit_many(models, curves, residual="relative" if args.relative else "absolute", polymer=args.polymer,
+    results = fit_many(models, curves, residual=args.residual, polymer=args.polymer,
                        intervals=getattr(args, "intervals", "transformed"))
     tables = {}
     for name, r in results.items():
@@ -186,7 +190,7 @@ def run(args):
             "command": "fit", "files": list(args.files),
             "curves": [{"name": c.name, "mode": c.mode.value, "n": len(c), "source": c.source,
                         "temperature_K": c.temperature, "notices": list(c.notices)} for c in curves],
-            "residual": "relative" if args.relative else "absolute",
+            "residual": args.residual,
             "models": {},
             "caution": CAUTION,
         }
@@ -196,6 +200,10 @@ def run(args):
             else:
                 d = r.to_dict()
                 d["network"] = tables[name].to_dict() if name in tables else None
+                d["fit_basis"] = {"statistic": "pooled fit", "model": name, "residual": args.residual,
+                                  "curves": len(curves),
+                                  "label": f"one fit of {name} to all {len(curves)} curve(s), {args.residual} "
+                                           "residuals (statistics.small_strain_modulus_Pa)"}
                 doc["models"][name] = d
         if len(ok) > 1:
             doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)

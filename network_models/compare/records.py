@@ -118,6 +118,8 @@ class CompoundResult:
     headline: Headline | None = None
     main_mode: str | None = None
     pooled_nu: dict = field(default_factory=dict)  # basis tier -> (ν, ci95) from the pooled fit
+    #: one fit to the compound's counted curves: {model, G0 (Pa), residual, curves, excluded_specimens, basis}
+    pooled: dict | None = None
 
     @property
     def name(self) -> str:

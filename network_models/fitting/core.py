@@ -11,13 +11,13 @@ from ..errors import FitError
 from ..models import get_model
 from ..testdata import TestCurve
 from .diagnostics import curve_cycle, curve_polymer, diagnose, undetermined_notices
-from .problem import set_up
+from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats
 from .solver import solve
 from .uncertainty import INTERVAL_METHODS, covariance, estimates, profile_interval, undetermined
 
 
-def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | None = None,
+def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: dict | None = None,
         start: dict | None = None, polymer: str | None = None, intervals: str = "transformed") -> FitResult:
     """Fit ``model`` (name or Model) to ``curves`` (TestCurve or list, any mix of modes).
 

@@ -13,6 +13,11 @@ from ..deformation import MODES
 from ..errors import FitError, Notice
 from ..testdata import TestCurve
 
+#: the one residual weighting default of netstretch (fit, compare, report, batch, app, study): relative
+#: residuals weight every point by its own stress, so the small-strain points that fix the modulus G₀ count
+#: as much as the stiff high-stretch points (absolute residuals let the last few points of a curve set G₀).
+DEFAULT_RESIDUAL = "relative"
+RESIDUALS = ("relative", "absolute")
 RELATIVE_FLOOR = 0.02  # relative residual denominator floor, fraction of the largest |stress| of a mode
 SMALL_STRAIN = (0.7, 1.5)  # stretch window for the start modulus
 
