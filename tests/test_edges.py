@@ -117,18 +117,37 @@ def test_not_determined_in_fit_json_and_text(tmp_path, capsys):
 # ------------------------------------------------------------------------------------------------
 # 2. extrapolation past the tested range
 # ------------------------------------------------------------------------------------------------
-def test_extended_tube_on_treloar_cut_at_3_flags_the_prediction_at_6_16():
+def _treloar_cut():
     keep = TRELOAR_LAMBDA <= 3.02
-    cut = TestCurve("uniaxial", TRELOAR_LAMBDA[keep], TRELOAR_MPA[keep] * 1e6, name="Treloar 1944, λ ≤ 3")
-    res = fit("extended-tube", cut)
+    return keep, TestCurve("uniaxial", TRELOAR_LAMBDA[keep], TRELOAR_MPA[keep] * 1e6, name="Treloar 1944, λ ≤ 3")
+
+
+def test_extended_tube_on_treloar_cut_at_3_flags_the_prediction_at_6_16():
+    # absolute residuals reproduce the run-away (thousands of MPa at λ ≈ 6.2)
+    keep, cut = _treloar_cut()
+    res = fit("extended-tube", cut, residual="absolute")
     pred = float(res.predict("uniaxial", np.array([6.15]))[0])
     measured = TRELOAR_MPA[TRELOAR_LAMBDA == 6.15][0] * 1e6  # Treloar 1944 at λ = 6.15
-    assert pred > 3 * TRELOAR_MPA[keep].max() * 1e6  # the fit does run away (the 3 675 MPa)
+    assert pred > 3 * TRELOAR_MPA[keep].max() * 1e6  # the fit does run away
     note = res.range_note("uniaxial", [6.15])
     assert note is not None and note.kind == "implausible-extrapolation" and "plausible" in note
     # a prediction inside 3× the largest measured stress is only called an extrapolation
     assert res.range_note("uniaxial", [3.3]).kind == "extrapolated-range"
     assert pred / measured > 3  # what the notice protects against
+
+
+def test_a_fit_that_locks_before_the_asked_stretch_is_flagged_too():
+    # with the default (relative) weighting the same cut data give a fit whose limit lies below λ = 6.15
+    # (Treloar's rubber reached 7.6): the missing prediction must be said, not left blank
+    _, cut = _treloar_cut()
+    res = fit("extended-tube", cut)
+    pred = res.predict("uniaxial", np.array([6.15]))[0]
+    note = res.range_note("uniaxial", [6.15])
+    assert note is not None and note.kind == "implausible-extrapolation", note
+    if np.isfinite(pred):  # either way the notice names the implausible prediction
+        assert pred > 3 * cut.nominal_stress.max()
+    else:
+        assert "cannot reach" in note
 
 
 def test_neo_hookean_over_treloar_full_range_is_a_misfit_and_leaves_the_spread():

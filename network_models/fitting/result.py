@@ -193,6 +193,14 @@ class FitResult:
             P = np.abs(np.asarray(self.predict(mode, lam[outside]), dtype=np.float64))
         band = EXTRAPOLATION_FACTOR * self.max_stress
         over = np.isfinite(P) & (P > band)
+        locked = ~np.isfinite(P)
+        if not over.any() and locked.any():
+            # the fitted model has locked (or its energy is undefined) before this stretch: a number there
+            # would be invented, and silence would read as "fine" — say so (docs/methods.md §extrapolation)
+            j = int(np.argmax(locked))
+            return Notice(f"the {self.title} fit cannot reach λ = {lam[outside][j]:.3g} in {mode.value}: its fitted "
+                          "limit lies below that stretch, past the tested range — no plausible prediction there; "
+                          "test that range or fit data that reach it", "implausible-extrapolation", mode.value)
         if not over.any():
             return None
         i = int(np.argmax(np.where(over, P, -np.inf)))

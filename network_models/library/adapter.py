@@ -102,15 +102,10 @@ def compound_date(c, today: _dt.date) -> tuple[_dt.date, str]:
 
 # ----- the adapter ---------------------------------------------------------------------------------------------
 def _project_module():
-    """The project-file reader/writer: in the core once it has moved there, else the app's pure-Python copy."""
-    for name in ("network_models.project", "netstretch_app.project_file", "app.project_file"):
-        try:
-            mod = __import__(name, fromlist=["read_project"])
-        except ImportError:
-            continue
-        if hasattr(mod, "read_project") and hasattr(mod, "write_project"):
-            return mod
-    raise LibraryError("project files cannot be read in this installation (the project-file module is missing)")
+    """The project-file reader/writer (the study's file format, :mod:`network_models.project`)."""
+    from .. import project
+
+    return project
 
 
 def study_from(kind: str, path, model: str | None = None) -> StudyInput:

@@ -303,7 +303,8 @@ def export_study(study_id: int, db=None, *, engine=None) -> bytes:
         facts = json.loads(c["metadata"])
         meta = dict(facts.get("metadata", {}))
         meta.setdefault("tested", c["tested"].isoformat())
-        pcs.append(mod.ProjectCompound(name=c["name"], polymer=c["polymer"], f=c["f"], filler=c["filler"],
+        pcs.append(mod.ProjectCompound(name=c["name"], polymer=c["polymer"], f=c["f"],
+                                       filler_volume_fraction=c["filler"],
                                        notes=facts.get("notes", ""), metadata=meta,
                                        swelling=list(facts.get("swelling", []))))
     settings = json.loads(st["settings"])
