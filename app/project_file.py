@@ -48,6 +48,9 @@ import zipfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from network_models.limits import BoundedZipFile
+from network_models.project_schema import check_manifest
+
 FORMAT = "netstretch-project"
 VERSION = 1
 MANIFEST = "project.toml"
@@ -88,6 +91,7 @@ class Project:
     title: str = ""
     created: str = ""
     netstretch_version: str = ""
+    notices: list = field(default_factory=list)  # sentences about fields ignored on reading
 
 
 # ----- a small TOML writer for the values above --------------------------------------------------------
@@ -183,7 +187,7 @@ def read_project(source) -> Project:
         except OSError as exc:
             raise ProjectFileError(f"{name}: cannot be opened ({exc.strerror or exc})") from None
     try:
-        z = zipfile.ZipFile(io.BytesIO(bytes(source)))
+        z = BoundedZipFile(io.BytesIO(bytes(source)), name, ProjectFileError)  # members counted as they inflate
     except zipfile.BadZipFile:
         raise ProjectFileError(f"{name} is not a netstretch project (not a zip file); choose a .nsproj.zip "
                                "file saved by netstretch") from None
@@ -197,6 +201,7 @@ def read_project(source) -> Project:
             doc = tomllib.loads(z.read(MANIFEST).decode("utf-8"))
         except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
             raise ProjectFileError(f"{name}: {MANIFEST} cannot be read ({exc})") from None
+        doc = check_manifest(doc, name, ProjectFileError)  # types checked, unknown fields dropped with a notice
         head = doc.get("project", {})
         if head.get("format") != FORMAT:
             raise ProjectFileError(f"{name}: {MANIFEST} does not say format = \"{FORMAT}\"")
@@ -217,4 +222,5 @@ def read_project(source) -> Project:
                  for c in doc.get("compound", []) if "name" in c]
     return Project(settings=dict(doc.get("settings", {})), inputs=inputs, compounds=compounds,
                    results=dict(doc.get("results", {})), title=str(head.get("title", "")),
-                   created=str(head.get("created", "")), netstretch_version=str(head.get("netstretch_version", "")))
+                   created=str(head.get("created", "")), netstretch_version=str(head.get("netstretch_version", "")),
+                   notices=list(head.get("notices", [])))

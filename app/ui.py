@@ -35,3 +35,21 @@ class Deferred:
             build, self._build = self._build, None
             self.slot.objects = list(build())
         return self.slot
+
+
+def text_labels(widget):
+    """Show a chooser's options as text: the multi-choice widget renders its labels as HTML in the browser,
+    so each label is the escaped value (a compound named ``<img …>`` reads as that text, never as markup).
+    Kept up to date when the options change (e.g. a ``from_param`` link to a parameter's objects)."""
+    import html as _html
+
+    def fix(*_):
+        opts = widget.options
+        values = list(opts.values()) if isinstance(opts, dict) else list(opts)
+        safe = {_html.escape(str(v)): v for v in values}
+        if not isinstance(opts, dict) or list(opts) != list(safe):
+            widget.options = safe
+
+    widget.param.watch(fix, "options")
+    fix()
+    return widget
