@@ -53,3 +53,24 @@ def text_labels(widget):
     widget.param.watch(fix, "options")
     fix()
     return widget
+
+
+def off_the_loop(work, done, seconds: float | None = None):
+    """``work()`` in a worker thread, then ``done(result)`` back on the session's event loop: one user's
+    file is read while every other session keeps answering.  ``seconds``: the time budget (``done`` gets a
+    TimeoutError instead of a result past it).  Outside a served session (tests, scripts): both run now."""
+    import asyncio
+
+    doc = pn.state.curdoc
+    if doc is None or getattr(doc, "session_context", None) is None:
+        done(work())
+        return
+
+    async def task():
+        try:
+            result = await asyncio.wait_for(asyncio.to_thread(work), seconds)
+        except TimeoutError as exc:
+            result = exc
+        done(result)
+
+    pn.state.execute(task)

@@ -79,3 +79,127 @@ def test_hostile_names_are_text_in_every_view_and_the_report():
     out = jinja2.Environment().from_string(LOGIN_TEMPLATE.read_text("utf-8")).render(
         login_endpoint="/login", errormessage=HOSTILE)
     assert not _live(out) and "&lt;img" in out
+
+
+# ----- 2. one bounded reading layer ------------------------------------------------------------------------------
+#: run the command line in a child and report its peak resident memory (kB, Linux ru_maxrss)
+_CHILD = ("import resource, sys\nfrom network_models.cli import main\nrc = main(sys.argv[1:])\n"
+          "print('MAXRSS', resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.stderr)\nsys.exit(rc)")
+
+
+def _cli_refuses(*argv, limit_text: str, name: str):
+    """The command line refuses in one sentence naming the file and the limit, exit 2, within the issue's
+    budget (20 s, 700 MB peak memory)."""
+    r = subprocess.run([sys.executable, "-c", _CHILD, *map(str, argv)], cwd=ROOT, capture_output=True, text=True,
+                       timeout=20)
+    err = [ln for ln in r.stderr.splitlines() if not ln.startswith("MAXRSS")]
+    rss_mb = int(next(ln for ln in r.stderr.splitlines() if ln.startswith("MAXRSS")).split()[1]) / 1024
+    assert r.returncode == 2, r.stderr[-2000:]
+    assert len(err) == 1 and name in err[0] and limit_text in err[0], err
+    assert "Traceback" not in r.stderr
+    assert rss_mb <= 700, f"peak memory {rss_mb:.0f} MB"
+
+
+def _bomb_xlsx(path: Path, inflated: int):
+    """A workbook whose one sheet inflates to ``inflated`` bytes (written in steps; a few MB on disk)."""
+    row = b'<row><c t="inlineStr"><is><t>padding padding padding</t></is></c></row>'
+    chunk = row * (1_000_000 // len(row))
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z:
+        z.writestr("[Content_Types].xml", '<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/'
+                   'package/2006/content-types"/>')
+        z.writestr("xl/workbook.xml", '<?xml version="1.0"?><workbook/>')
+        with z.open("xl/worksheets/sheet1.xml", "w", force_zip64=True) as fh:
+            fh.write(b'<?xml version="1.0"?><worksheet><sheetData>')
+            for _ in range(inflated // len(chunk)):
+                fh.write(chunk)
+            fh.write(b"</sheetData></worksheet>")
+
+
+@pytest.mark.slow
+def test_workbook_bomb_refused_by_the_command_line(tmp_path):
+    f = tmp_path / "bomb.xlsx"
+    _bomb_xlsx(f, 600_000_000)
+    assert f.stat().st_size < 20_000_000  # it passes the file-size limit: the inflated size must be counted
+    _cli_refuses("fit", f, limit_text="50 MB", name="bomb.xlsx")
+
+
+def test_one_line_csv_with_millions_of_columns_refused(tmp_path):
+    f = tmp_path / "wide.csv"
+    f.write_bytes(b"stretch,stress (MPa)\n" + b"1.0," * 4_500_000 + b"1.0\n")  # 18 MB, 4.5 million columns
+    _cli_refuses("fit", f, limit_text="1,000 columns", name="wide.csv")
+
+
+def _read_project():
+    try:
+        from network_models.project import ProjectFileError, read_project
+    except ImportError:  # before the project file moved into the core
+        from app.project_file import ProjectFileError, read_project
+    return ProjectFileError, read_project
+
+
+def _manifest(extra: str = "", version: str = "1", options: str = '{ mode = "uniaxial" }') -> str:
+    return (f'[project]\nformat = "netstretch-project"\nversion = {version}\ntitle = "t"\n{extra}\n'
+            f'[[input]]\nfile = "inputs/a.csv"\nname = "a.csv"\ncompound = "A"\nselected = true\n'
+            f"options = {options}\n")
+
+
+def _understated_zip(member_bytes: int) -> bytes:
+    """A project zip whose input member declares 1,000 bytes but inflates to ``member_bytes``."""
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z:
+        z.writestr("project.toml", _manifest())
+        with z.open("inputs/a.csv", "w") as fh:
+            block = b"0" * 1_000_000
+            for _ in range(member_bytes // len(block)):
+                fh.write(block)
+    data = bytearray(buf.getvalue())
+    name = b"inputs/a.csv"
+    # local file header: uncompressed size at offset 22; central directory entry: at offset 24 (APPNOTE 4.3.7/12)
+    for sig, size_at, name_at in ((b"PK\x03\x04", 22, 30), (b"PK\x01\x02", 24, 46)):
+        i = data.find(sig)
+        while i >= 0:
+            if data[i + name_at:i + name_at + len(name)] == name:
+                data[i + size_at:i + size_at + 4] = (1000).to_bytes(4, "little")
+            i = data.find(sig, i + 4)
+    return bytes(data)
+
+
+def test_project_member_that_understates_its_size_is_refused_in_bounded_memory():
+    import tracemalloc
+
+    error, read_project = _read_project()
+    data = _understated_zip(120_000_000)
+    tracemalloc.start()
+    try:
+        with pytest.raises(error) as exc:
+            read_project(data)
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    assert "inputs/a.csv" in str(exc.value) and "declared size" in str(exc.value)
+    assert peak < 30_000_000, f"{peak / 1e6:.0f} MB held while refusing a 120 MB member"  # inflated in steps
+
+
+def test_huge_project_toml_in_a_small_zip_is_refused():
+    error, read_project = _read_project()
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z:
+        with z.open("project.toml", "w") as fh:
+            fh.write(b'[project\n')
+            for _ in range(60):
+                fh.write(b"a" * 1_000_000)
+    assert len(buf.getvalue()) < 1_000_000
+    with pytest.raises(error) as exc:
+        read_project(buf.getvalue())
+    assert "project.toml" in str(exc.value) and "1 MB" in str(exc.value)
+
+
+def test_workbook_members_counted_while_inflating(tmp_path):
+    """In process: the reader refuses a workbook whose sheet inflates past 50 MB before any library reads it."""
+    from network_models.labfiles.tables import load_table
+    from network_models.limits import LimitError
+
+    f = tmp_path / "b.xlsx"
+    _bomb_xlsx(f, 60_000_000)
+    with pytest.raises(LimitError, match="50 MB"):
+        load_table(f.read_bytes(), "b.xlsx")
