@@ -203,3 +203,63 @@ def test_workbook_members_counted_while_inflating(tmp_path):
     _bomb_xlsx(f, 60_000_000)
     with pytest.raises(LimitError, match="50 MB"):
         load_table(f.read_bytes(), "b.xlsx")
+
+
+# ----- 8. command line: negative values, output suffixes, impossible values --------------------------------------
+def _cli(*argv):
+    from network_models.cli import main
+
+    return main([str(a) for a in argv])
+
+
+def test_negative_value_after_an_option_is_a_value(capsys):
+    # a cold-test temperature: -20 °C = 253.15 K (scipy.constants.zero_Celsius)
+    rc = _cli("swell", "--dry", "1g", "--swollen", "3g", "--temperature", "-20C", "--json")
+    out = capsys.readouterr()
+    assert rc == 0, out.err
+    import json
+
+    doc = json.loads(out.out)
+    temps = [v for k, v in _flatten(doc) if "temperature" in k and isinstance(v, (int, float))]
+    assert any(abs(t - (zero_Celsius - 20)) < 1e-6 for t in temps), temps
+
+
+def _flatten(d, prefix=""):
+    if isinstance(d, dict):
+        for k, v in d.items():
+            yield from _flatten(v, f"{prefix}.{k}")
+    elif isinstance(d, list):
+        for i, v in enumerate(d):
+            yield from _flatten(v, f"{prefix}[{i}]")
+    else:
+        yield prefix, d
+
+
+def test_report_output_with_another_suffix_is_refused(tmp_path, capsys):
+    out = tmp_path / "r.txt"
+    rc = _cli("report", "--compound", f"A={ROOT / 'sample_sets' / 'QM-S1_uniaxial.csv'}", "-o", out)
+    err = capsys.readouterr().err
+    assert rc == 2 and ".html" in err and "r.txt" in err, err
+    assert not any(tmp_path.iterdir()), "nothing is written"
+
+
+@pytest.mark.parametrize("argv, words", [
+    (("swell", "--dry", "1g", "--swollen", "3g", "--temperature=-300C"), "absolute zero"),  # below 0 K
+    (("crosslinks", "--modulus", "0.5MPa", "--mn", "1g/mol"), "repeat unit"),  # NR repeat unit C5H8 ≈ 68 g/mol
+    (("crosslinks", "--modulus", "1e300MPa"), "10 GPa"),
+    (("thermo", ROOT / "sample_sets" / "QM-S2_force_temperature.csv", "--stretch", "1e9"), "100"),
+])
+def test_impossible_values_refused_in_one_sentence(argv, words, capsys):
+    rc = _cli(*argv)
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and words in err and len(err.splitlines()) == 1, err
+
+
+@pytest.mark.parametrize("option", ["--profile", "--polymers"])
+def test_empty_table_files_refused(option, tmp_path, capsys):
+    empty = tmp_path / "empty.toml"
+    empty.write_text("", "utf-8")
+    argv = ("fit", ROOT / "sample_sets" / "QM-S1_uniaxial.csv", option, empty)
+    rc = _cli(*argv)
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and "empty" in err and len(err.splitlines()) == 1, err
