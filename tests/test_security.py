@@ -41,7 +41,8 @@ def hostile_csv(name: str = HOSTILE, nu: float = 120.0) -> bytes:
     lines = [f"# compound: {name}", "# temperature: 23 °C", "specimen,stretch,stress (MPa)"]
     for k, scale in enumerate((1.0, 1.03)):
         P = scale * nu * R * T * (lam - lam**-2) / 1e6
-        lines += [f"{name} {k},{a:.6f},{b:.8f}" for a, b in zip(lam, P, strict=True)]
+        cell = '"' + f"{name} {k}".replace('"', '""') + '"'  # quoted as CSV (RFC 4180)
+        lines += [f"{cell},{a:.6f},{b:.8f}" for a, b in zip(lam, P, strict=True)]
     return ("\n".join(lines) + "\n").encode("utf-8")
 
 
@@ -263,3 +264,104 @@ def test_empty_table_files_refused(option, tmp_path, capsys):
     rc = _cli(*argv)
     err = capsys.readouterr().err.strip()
     assert rc == 2 and "empty" in err and len(err.splitlines()) == 1, err
+
+
+# ----- 3. formula injection: text cells written as text ---------------------------------------------------------
+FORMULA_NAMES = ["=HYPERLINK(\"http://x.example\",\"a\")", "@SUM(1+1)", "+1+cmd", "-2+3", "\tTAB", "\rCR"]
+
+
+def _formula_lab_file(tmp_path, name):
+    f = tmp_path / "trial.csv"
+    f.write_bytes(hostile_csv(name))
+    return f
+
+
+def test_report_csv_and_xlsx_hold_no_formula(tmp_path, capsys):
+    import csv
+
+    from openpyxl import load_workbook
+
+    name = FORMULA_NAMES[0]  # the specimens' names (a compound name cannot hold '=' on the command line)
+    f = _formula_lab_file(tmp_path, name)
+    out = tmp_path / "r.html"
+    rc = _cli("report", "--compound", f"@SUM(1+1)={f}", "--compound", f"-2+3={f}", "-o", out)
+    assert rc == 0, capsys.readouterr().err
+    rows = list(csv.reader(io.StringIO(out.with_suffix(".csv").read_text("utf-8"))))
+    cells = [c for r in rows for c in r]
+    assert not any(c.startswith(("=", "+", "@", "\t", "\r")) for c in cells)
+    assert not any(c.startswith("-") and not _number(c) for c in cells)
+    assert any(c.startswith("'" + name) for c in cells)  # the guard: a leading apostrophe, the name kept
+    wb = load_workbook(out.with_suffix(".xlsx"))
+    ws = wb.active
+    formulas = [c.coordinate for r in ws.iter_rows() for c in r if c.data_type == "f"]
+    assert formulas == [], f"{len(formulas)} formula cells"
+    texts = [c.value for r in ws.iter_rows() for c in r if isinstance(c.value, str)]
+    assert any(t.startswith(name) for t in texts) and "@SUM(1+1)" in texts  # the names, without the guard
+    numbers = [c.value for r in ws.iter_rows() for c in r if isinstance(c.value, (int, float))]
+    assert numbers, "numbers stay numbers"
+    # the project's reader of that CSV strips the guard again
+    from network_models.report.tables import read_csv
+
+    assert {"@SUM(1+1)", "-2+3"} <= {r["compound"] for r in read_csv(out.with_suffix(".csv"))}
+
+
+def _number(text):
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+def test_batch_output_guards_text_cells_and_resume_strips_the_guard(tmp_path):
+    import csv
+
+    from network_models.batch import read_results, run_batch
+
+    folder = tmp_path / "in"
+    folder.mkdir()
+    for i, name in enumerate(FORMULA_NAMES[:4]):
+        (folder / f"t{i}.csv").write_bytes(hostile_csv(name))
+    out = tmp_path / "res.csv"
+    run_batch([folder], model="neo-hookean", output=out, progress=False)
+    rows = list(csv.DictReader(out.open(encoding="utf-8", newline="")))
+    for r in rows:
+        for k, v in r.items():
+            assert not (v and v[0] in "=+@\t\r") and not (v.startswith("-") and not _number(v)), (k, v)
+    assert {r["compound"] for r in read_results(out)} == set(FORMULA_NAMES[:4])  # resume reads the names back
+    first = out.read_bytes()
+    run_batch([folder], model="neo-hookean", output=out, progress=False)  # a resume: nothing new, same file
+    assert out.read_bytes() == first
+
+
+# ----- 4. one batch run per output ------------------------------------------------------------------------------------
+def test_second_batch_run_on_the_same_output_is_refused(tmp_path):
+    from network_models.batch import run_batch
+    from network_models.errors import UserError
+
+    folder = tmp_path / "in"
+    folder.mkdir()
+    for i in range(40):
+        (folder / f"t{i:02d}.csv").write_bytes(hostile_csv(f"C{i}", nu=100 + i))
+    out = tmp_path / "res.csv"
+    code = ("import sys; from network_models.batch import run_batch; "
+            f"run_batch([{str(folder)!r}], model='eight-chain', output={str(out)!r}, progress=False)")
+    first = subprocess.Popen([sys.executable, "-c", code], cwd=ROOT)
+    try:
+        import time
+
+        t0 = time.monotonic()
+        while not (out.exists() and out.stat().st_size) and time.monotonic() - t0 < 60:
+            time.sleep(0.05)
+        assert first.poll() is None, "the first run ended before the second started; give it more files"
+        with pytest.raises(UserError) as exc:
+            run_batch([folder], model="eight-chain", output=out, progress=False)
+        assert f"process {first.pid}" in str(exc.value) and "res.csv" in str(exc.value)
+    finally:
+        first.wait(timeout=120)
+    assert first.returncode == 0
+    import csv
+
+    rows = list(csv.DictReader(out.open(encoding="utf-8", newline="")))
+    keys = [(r["file"], r["curve"]) for r in rows]
+    assert len(keys) == len(set(keys)) == 80  # 40 files × 2 specimens, no duplicates

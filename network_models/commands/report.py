@@ -249,10 +249,10 @@ def _print_pdf(html_path):
 
 
 def run_report(args):
+    from pathlib import Path
+
     from ..cli import UserError
     from ..report import Report
-
-    from pathlib import Path
 
     suffix = Path(args.output).suffix.lower()
     if suffix not in (".html", ".htm"):
