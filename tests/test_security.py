@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import io
 import re
+import time
 import subprocess
 import sys
 import zipfile
@@ -284,7 +285,7 @@ def test_report_csv_and_xlsx_hold_no_formula(tmp_path, capsys):
     name = FORMULA_NAMES[0]  # the specimens' names (a compound name cannot hold '=' on the command line)
     f = _formula_lab_file(tmp_path, name)
     out = tmp_path / "r.html"
-    rc = _cli("report", "--compound", f"@SUM(1+1)={f}", "--compound", f"-2+3={f}", "-o", out)
+    rc = _cli("report", "--compound", f"@SUM(1+1)={f}", "--compound", f"+1+cmd={f}", "-o", out)
     assert rc == 0, capsys.readouterr().err
     rows = list(csv.reader(io.StringIO(out.with_suffix(".csv").read_text("utf-8"))))
     cells = [c for r in rows for c in r]
@@ -302,7 +303,7 @@ def test_report_csv_and_xlsx_hold_no_formula(tmp_path, capsys):
     # the project's reader of that CSV strips the guard again
     from network_models.report.tables import read_csv
 
-    assert {"@SUM(1+1)", "-2+3"} <= {r["compound"] for r in read_csv(out.with_suffix(".csv"))}
+    assert {"@SUM(1+1)", "+1+cmd"} <= {r["compound"] for r in read_csv(out.with_suffix(".csv"))}
 
 
 def _number(text):
@@ -365,3 +366,111 @@ def test_second_batch_run_on_the_same_output_is_refused(tmp_path):
     rows = list(csv.DictReader(out.open(encoding="utf-8", newline="")))
     keys = [(r["file"], r["curve"]) for r in rows]
     assert len(keys) == len(set(keys)) == 80  # 40 files × 2 specimens, no duplicates
+
+
+# ----- 6./7. served: hosts, sign-in, cookies, autoload.js ----------------------------------------------------------
+def _raw_http(url: str, request: str, headers_only: bool = False) -> bytes:
+    """One request as typed (any Host header); the answer until the server closes (or its headers)."""
+    import socket
+
+    host = url.split("//", 1)[1].rstrip("/")
+    h, port = host.rsplit(":", 1)
+    with socket.create_connection((h, int(port)), timeout=120) as sock:
+        sock.sendall(request.encode("latin-1"))
+        out = b""
+        while chunk := sock.recv(65536):
+            out += chunk
+            if headers_only and b"\r\n\r\n" in out:
+                break
+        return out
+
+
+def _status(resp: bytes) -> int:
+    return int(resp.split(b" ", 2)[1])
+
+
+@pytest.fixture(scope="module")
+def served_with_password():
+    import os
+
+    from app import server as srv
+    from benchmarks import bench_server
+
+    before = os.environ.get(srv.PASSWORD_ENV)
+    os.environ[srv.PASSWORD_ENV] = "lab-pass-phrase"
+    try:
+        with bench_server.served() as (proc, url, log_path):
+            yield url, log_path
+    finally:
+        if before is None:
+            os.environ.pop(srv.PASSWORD_ENV, None)
+        else:
+            os.environ[srv.PASSWORD_ENV] = before
+
+
+@pytest.mark.slow
+def test_foreign_host_refused_even_with_matching_origin(served_with_password):
+    """DNS rebinding: a foreign name resolving to this machine sends Host and Origin both naming it."""
+    url, _log = served_with_password
+    port = url.rstrip("/").rsplit(":", 1)[1]
+    evil = f"rebind.example:{port}"
+    page = _raw_http(url, f"GET /login HTTP/1.1\r\nHost: {evil}\r\nConnection: close\r\n\r\n")
+    assert _status(page) == 403
+    ws = _raw_http(url, f"GET /ws HTTP/1.1\r\nHost: {evil}\r\nOrigin: http://{evil}\r\nConnection: Upgrade\r\n"
+                        "Upgrade: websocket\r\nSec-WebSocket-Version: 13\r\n"
+                        "Sec-WebSocket-Key: dGhlIHNhbXBsZSBub25jZQ==\r\n\r\n", headers_only=True)
+    assert _status(ws) == 403
+    own = _raw_http(url, f"GET /login HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n\r\n")
+    assert _status(own) == 200
+
+
+@pytest.mark.slow
+def test_failed_logins_logged_and_throttled_and_cookies_flagged(served_with_password):
+    import time
+    import urllib.parse
+
+    url, log_path = served_with_password
+    port = url.rstrip("/").rsplit(":", 1)[1]
+
+    def post(password):
+        body = urllib.parse.urlencode({"username": "lab", "password": password})
+        t0 = time.monotonic()
+        r = _raw_http(url, f"POST /login HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n"
+                           "Content-Type: application/x-www-form-urlencoded\r\n"
+                           f"Content-Length: {len(body)}\r\n\r\n{body}")
+        return r, time.monotonic() - t0
+
+    waits = [post(f"wrong-{i}")[1] for i in range(5)]
+    # the 5th failure in a row waits at least 0.5 · 2³ = 4 s (0.5 s doubling per failure)
+    assert waits[-1] >= 3.5, waits
+    log_text = log_path.read_text("utf-8", errors="replace")
+    assert log_text.count("failed sign-in") >= 5 and "127.0.0.1" in log_text
+    ok, _ = post("lab-pass-phrase")
+    head = ok.split(b"\r\n\r\n", 1)[0].decode("latin-1")
+    cookies = [ln for ln in head.split("\r\n") if ln.lower().startswith("set-cookie: user=")]
+    assert cookies and all("samesite=lax" in c.lower() and "httponly" in c.lower() for c in cookies), head
+    assert "Traceback" not in log_path.read_text("utf-8", errors="replace")
+
+
+@pytest.mark.slow
+def test_logout_page_has_nothing_remote_and_autoload_bad_argument_logs_no_traceback(served_with_password):
+    url, log_path = served_with_password
+    port = url.rstrip("/").rsplit(":", 1)[1]
+    page = _raw_http(url, f"GET /logout HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n\r\n")
+    body = page.split(b"\r\n\r\n", 1)[1].decode("utf-8", errors="replace")
+    assert _status(page) == 200 and "http://" not in body and "https://" not in body, body[:500]
+    import urllib.parse
+
+    body = urllib.parse.urlencode({"username": "lab", "password": "lab-pass-phrase"})
+    signed = _raw_http(url, f"POST /login HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n"
+                            "Content-Type: application/x-www-form-urlencoded\r\n"
+                            f"Content-Length: {len(body)}\r\n\r\n{body}", headers_only=True).decode("latin-1")
+    cookie = "; ".join(ln.split(":", 1)[1].split(";")[0].strip() for ln in signed.split("\r\n")
+                       if ln.lower().startswith("set-cookie:"))
+    for query in ("bokeh-autoload-element=%3Cimg%3E&bokeh-absolute-url=javascript:1", "bokeh-autoload-element=",
+                  "bokeh-app-path=/nowhere&bokeh-autoload-element=x"):
+        for extra in ("", f"Cookie: {cookie}\r\n"):  # not signed in, and signed in
+            _raw_http(url, f"GET /autoload.js?{query} HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\n{extra}"
+                           "Connection: close\r\n\r\n")
+    time.sleep(0.5)
+    assert "Traceback" not in log_path.read_text("utf-8", errors="replace")
