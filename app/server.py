@@ -289,12 +289,27 @@ def _release(page):
         log.debug("page clear at session end failed", exc_info=True)
 
 
+def _local_assets(doc):
+    """Panel points a component's stylesheets (``loading.css``, the theme's ``default.css``) at its internet
+    CDN whenever the session's document does not yet name where the local ones are — which it names only
+    once the first page has been written, so components made while the page is built and in later callbacks
+    (upload, fit) asked the CDN.  Name this server's copy on the document before anything is built."""
+    if doc is None or getattr(doc, "session_context", None) is None:
+        return
+    from panel.io.resources import LOCAL_DIST
+    from panel.io.state import state
+
+    rel = state.rel_path
+    doc._template_variables.setdefault("dist_url", f"{rel}/{LOCAL_DIST}" if rel else LOCAL_DIST)
+
+
 def session_page(build=None):
     """One session's page (``create_app``), released when the session ends."""
     import panel as pn
 
     from .main import create_app
 
+    _local_assets(pn.state.curdoc)
     page = (build or create_app)()
 
     def _destroyed(session_context):
@@ -372,3 +387,31 @@ def serve(port: int = 5006, address: str = "localhost", show: bool = False, allo
     server.start()
     server.io_loop.start()
     return server
+
+
+def local_stylesheets():
+    """Panel falls back to its internet CDN for a component's stylesheets (``loading.css``, the theme's
+    ``default.css``/``native.css``) whenever the component's model is not (yet) in a document — e.g. a pane
+    on a tab that is not open, updated by a callback (an upload refreshes the explorer's legends).  In a
+    served session that fallback is replaced by this server's own copy; outside a session (a saved HTML
+    file) nothing changes."""
+    import panel.reactive as reactive
+    from panel.io import resources
+
+    if getattr(resources.patch_stylesheet, "_netstretch", False):
+        return
+    original = resources.patch_stylesheet
+
+    def patch_stylesheet(stylesheet, dist_url):
+        from panel.io.state import state
+
+        doc = state.curdoc
+        if dist_url == resources.CDN_DIST and doc is not None and getattr(doc, "session_context", None):
+            rel = state.rel_path
+            dist_url = doc._template_variables.get(
+                "dist_url", f"{rel}/{resources.LOCAL_DIST}" if rel else resources.LOCAL_DIST)
+        return original(stylesheet, dist_url)
+
+    patch_stylesheet._netstretch = True
+    resources.patch_stylesheet = patch_stylesheet  # read at call time by the theme code
+    reactive.patch_stylesheet = patch_stylesheet  # imported once by the component code

@@ -13,9 +13,9 @@ from __future__ import annotations
 
 import io
 import re
-import time
 import subprocess
 import sys
+import time
 import zipfile
 from pathlib import Path
 from types import SimpleNamespace
@@ -185,11 +185,10 @@ def test_project_member_that_understates_its_size_is_refused_in_bounded_memory()
 def test_huge_project_toml_in_a_small_zip_is_refused():
     error, read_project = _read_project()
     buf = io.BytesIO()
-    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z:
-        with z.open("project.toml", "w") as fh:
-            fh.write(b'[project\n')
-            for _ in range(60):
-                fh.write(b"a" * 1_000_000)
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z, z.open("project.toml", "w") as fh:
+        fh.write(b'[project\n')
+        for _ in range(60):
+            fh.write(b"a" * 1_000_000)
     assert len(buf.getvalue()) < 1_000_000
     with pytest.raises(error) as exc:
         read_project(buf.getvalue())
@@ -474,3 +473,54 @@ def test_logout_page_has_nothing_remote_and_autoload_bad_argument_logs_no_traceb
                            "Connection: close\r\n\r\n")
     time.sleep(0.5)
     assert "Traceback" not in log_path.read_text("utf-8", errors="replace")
+
+
+# ----- 5. every asset from this server, in every state (browser) -----------------------------------------------
+#: JavaScript: how many <img src="x"> elements exist, shadow roots included (an injected tag that went live)
+INJECTED_IMAGES_JS = """() => { let n = 0;
+  const walk = (r) => { n += r.querySelectorAll('img[src="x"]').length;
+    for (const e of r.querySelectorAll('*')) if (e.shadowRoot) walk(e.shadowRoot); };
+  walk(document); return n; }"""
+
+
+@pytest.mark.ui
+@pytest.mark.slow
+def test_every_request_goes_to_this_server_and_no_markup_runs(chromium_browser, served_with_password):
+    """Sign in, upload a file whose names hold markup, fit, compare, design, sign out: every request the page
+    makes goes to this server (no CDN, no remote image), and no injected script runs (no dialog opens, no
+    <img src=x> appears)."""
+    import urllib.parse
+
+    from _browser import open_tab, wait_text
+
+    url, log_path = served_with_password
+    own = urllib.parse.urlsplit(url).netloc
+    ctx = chromium_browser.new_context(viewport={"width": 1366, "height": 768})
+    page = ctx.new_page()
+    hosts, dialogs = [], []
+    page.on("request", lambda r: hosts.append((urllib.parse.urlsplit(r.url).netloc, r.url)))
+    page.on("dialog", lambda d: (dialogs.append(d.message), d.dismiss()))
+    try:
+        page.goto(url)
+        page.fill("#username", "lab")
+        page.fill("#password", "lab-pass-phrase")
+        page.click("button[type=submit]")
+        page.wait_for_selector(".ns-stress-plot canvas", timeout=90000)
+        open_tab(page, "Test data & fits", ".ns-upload input[type=file]")
+        page.locator("input[type=file]").last.set_input_files(  # the data upload box: the page's last file input
+            files=[{"name": "TRIAL-9_uniaxial.csv", "mimeType": "text/csv", "buffer": hostile_csv()}])
+        wait_text(page, ".ns-fit-summary", "TRIAL-9", timeout=90000)
+        open_tab(page, "Compare", ".ns-cmp-run")
+        page.locator(".ns-cmp-run button").first.click()
+        wait_text(page, ".ns-cmp-chosen", "<img src=x", timeout=90000)  # the name shown as text
+        open_tab(page, "Design", ".ns-design-add")
+        page.locator(".ns-design-add button").first.click()
+        page.wait_for_timeout(1500)
+        found = page.evaluate(INJECTED_IMAGES_JS)
+        page.goto(url.rstrip("/") + "/logout")
+        page.wait_for_selector("text=signed out", timeout=30000)
+    finally:
+        ctx.close()
+    foreign = sorted({u for h, u in hosts if h and h != own})
+    assert foreign == [], foreign
+    assert dialogs == [] and found == 0
