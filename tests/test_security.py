@@ -524,3 +524,57 @@ def test_every_request_goes_to_this_server_and_no_markup_runs(chromium_browser, 
     foreign = sorted({u for h, u in hosts if h and h != own})
     assert foreign == [], foreign
     assert dialogs == [] and found == 0
+
+
+# ----- 7. project files: unknown fields, wrong types, too large ----------------------------------------------------
+def _project_zip(manifest: str) -> bytes:
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED) as z:
+        z.writestr("project.toml", manifest)
+        z.writestr("inputs/a.csv", hostile_csv("A"))
+    return buf.getvalue()
+
+
+@pytest.fixture
+def project_bar():
+    pytest.importorskip("panel")
+    from app.main import create_app
+
+    return create_app(load_samples=False).ns_project
+
+
+def test_project_unknown_fields_ignored_with_a_notice(project_bar):
+    bar = project_bar
+    data = _project_zip(_manifest(extra="colour = \"teal\"", options='{ mode = "uniaxial", speed = 3 }'))
+    bar._open(data)
+    text = bar.messages.texts().get("project", "")
+    assert "Opened" in text and "colour" in text and "speed" in text and "ignored" in text, text
+    assert [f.name for f in bar.session.data.files] == ["a.csv"]
+
+
+@pytest.mark.parametrize("manifest, field", [
+    (_manifest(version='"two"'), "version"),
+    (_manifest(options='"fast"'), "options"),
+    (_manifest(extra="title2 = 1").replace('title = "t"', "title = 5"), "title"),
+])
+def test_project_wrong_types_refused_naming_the_field(project_bar, manifest, field):
+    bar = project_bar
+    bar._open(_project_zip(manifest))
+    text = bar.messages.texts().get("project", "")
+    assert field in text and "must be" in text, text
+    assert "unexpected" not in text and "TypeError" not in text and "Traceback" not in text
+
+
+def test_too_large_project_answered_in_the_page_and_the_log(project_bar, caplog):
+    import logging
+
+    from app.project_view import MAX_PROJECT_BYTES
+
+    bar = project_bar
+    big = b"PK" + b"\0" * (MAX_PROJECT_BYTES + 10)
+    with caplog.at_level(logging.WARNING, logger="netstretch.app"):
+        bar._open({"huge.nsproj.zip": big})
+    text = bar.messages.texts().get("project", "")
+    assert "huge.nsproj.zip" in text and "MB limit" in text, text
+    assert any("huge.nsproj.zip" in r.getMessage() and "refused" in r.getMessage() for r in caplog.records)
+    assert "MB" in str(getattr(bar.open, "max_file_size", "") or "20MB")  # refused in the browser before sending
