@@ -182,8 +182,9 @@ def to_frame(path):
     if path.suffix.lower() == ".parquet":
         return pd.read_parquet(path)
     frame = pd.read_csv(path, keep_default_na=False, na_values=[""])
-    for c in frame.select_dtypes(include="object").columns:
-        frame[c] = frame[c].map(unguard)  # the formula guard of text cells (see cellguard)
+    for c in frame.columns:
+        if not pd.api.types.is_numeric_dtype(frame[c]):
+            frame[c] = frame[c].map(unguard)  # the formula guard of text cells (see cellguard)
     return frame
 
 
