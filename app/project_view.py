@@ -8,12 +8,17 @@ import re
 
 import panel as pn
 
-from network_models.limits import MAX_FILE_BYTES
+from network_models.limits import MAX_FILE_BYTES, TIME_BUDGET_S
 
 from .messages import Messages, guarded
 from .session import Session
 from .tables import esc
-from .ui import html
+from .ui import html, off_the_loop
+
+try:  # the project file's reader (moving into the core)
+    from network_models.project import read_project as _read_project
+except ImportError:
+    from .project_file import read_project as _read_project
 
 SUFFIX = ".nsproj.zip"
 #: a project larger than this is refused with a message (the reading layer's per-file limit)
@@ -44,6 +49,7 @@ class ProjectBar(pn.viewable.Viewer):
         self.open.param.watch(lambda e: self._open(e.new), "value")
         self._save = guarded(self.messages, "project", "Save project")(self._save)
         self._open = guarded(self.messages, "project", "Open project")(self._open)
+        self._finish_open = guarded(self.messages, "project", "Open project")(self._finish_open)
         session.compare.param.watch(lambda e: setattr(self.save, "filename", project_filename(e.new)), "title")
 
     def _save(self):
@@ -67,7 +73,25 @@ class ProjectBar(pn.viewable.Viewer):
             raise ValueError(f"{filename or 'the project'} is {len(value) / 1e6:.1f} MB, over the "
                              f"{MAX_PROJECT_BYTES // 1_000_000} MB limit for a project; save a project with fewer "
                              "or smaller input files")
-        problems = self.session.load_project(bytes(value))
+        data = bytes(value)
+
+        def check():  # in a worker thread: the zip and its manifest read and checked within the limits
+            try:
+                _read_project(data)
+            except Exception as exc:
+                return exc
+            return None
+
+        off_the_loop(check, lambda checked: self._finish_open(data, filename, checked), TIME_BUDGET_S)
+
+    def _finish_open(self, data: bytes, filename, checked):
+        if isinstance(checked, TimeoutError):
+            log.warning("project %r: reading took longer than %g s", filename, TIME_BUDGET_S)
+            raise ValueError(f"{filename or 'the project'}: reading it took longer than the {TIME_BUDGET_S:g} s "
+                             "budget; save a project with fewer or smaller input files")
+        if checked is not None:
+            raise checked
+        problems = self.session.load_project(data)
         name = esc(filename or "the project")
         text = (f"Opened {name}: {len(self.session.data.files)} input file(s); the fits were recomputed from them."
                 + (" Not restored: " + " · ".join(esc(p) for p in problems) if problems else ""))
