@@ -66,11 +66,18 @@ def off_the_loop(work, done, seconds: float | None = None):
         done(work())
         return
 
+    from panel.io.state import set_curdoc
+
     async def task():
         try:
             result = await asyncio.wait_for(asyncio.to_thread(work), seconds)
         except TimeoutError as exc:
             result = exc
-        done(result)
+
+        def finish():  # a next-tick callback runs with the session's document lock held
+            with set_curdoc(doc):
+                done(result)
+
+        doc.add_next_tick_callback(finish)
 
     pn.state.execute(task)
