@@ -59,6 +59,10 @@ def test_hostile_names_are_text_in_every_view_and_the_report():
     dv.fit.show_figures()
     cmp.show_specimens()
     cmp._run()
+    design = page.ns_design  # a typed target holding markup, then a run: the refusal names it as text
+    design.new_target.value = f"M100={HOSTILE}"
+    design._add_clicked()
+    design.compute()
     # every HTML sink of the page: panes' markup, alerts/markdown (rendered as HTML), choosers whose labels
     # the browser renders as HTML (the multi-choice widget)
     for pane in page.select(lambda o: isinstance(o, (pn.pane.HTML, pn.pane.Markdown, pn.pane.Alert))):
@@ -69,6 +73,15 @@ def test_hostile_names_are_text_in_every_view_and_the_report():
         assert not any(_live(lbl) for lbl in labels), f"multi-choice labels are markup: {labels}"
         assert HOSTILE in (list(w.options.values()) if isinstance(w.options, dict) else w.options) or \
             "ns-cmp-chosen" not in w.css_classes  # the value stays the name itself
+    # the name travels inside a saved project to the next colleague's page: shown as text there too
+    other = create_app(load_samples=False)
+    other.ns_project._open(page.ns_session.to_project())
+    assert HOSTILE in other.ns_compare.state.data.compound_names()
+    for w in other.select(pn.widgets.MultiChoice):
+        labels = list(w.options) if isinstance(w.options, dict) else [str(o) for o in w.options]
+        assert not any(_live(lbl) for lbl in labels), f"reopened project: multi-choice labels are markup: {labels}"
+    for pane in other.select(lambda o: isinstance(o, (pn.pane.HTML, pn.pane.Markdown, pn.pane.Alert))):
+        assert not _live(str(pane.object or "")), str(pane.object)[:300]
     rep = cmp.state.report()
     report_html = rep.to_html()
     assert HOSTILE.replace("<", "&lt;").replace(">", "&gt;") in report_html  # the name is there, as text
