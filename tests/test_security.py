@@ -144,6 +144,22 @@ def test_one_line_csv_with_millions_of_columns_refused(tmp_path):
     _cli_refuses("fit", f, limit_text="1,000 columns", name="wide.csv")
 
 
+def test_wide_workbook_refused_by_its_shape():
+    from openpyxl import Workbook
+
+    from network_models.labfiles.tables import load_table
+    from network_models.limits import LimitError
+
+    wb = Workbook()
+    ws = wb.active
+    ws.append(["stretch"] + [f"stress {i} (MPa)" for i in range(1500)])
+    ws.append([1.0] * 1501)
+    buf = io.BytesIO()
+    wb.save(buf)
+    with pytest.raises(LimitError, match="1,000 columns"):
+        load_table(buf.getvalue(), "wide.xlsx")
+
+
 def _read_project():
     try:
         from network_models.project import ProjectFileError, read_project
