@@ -12,13 +12,9 @@ from network_models.limits import MAX_FILE_BYTES, TIME_BUDGET_S
 
 from .messages import Messages, guarded
 from .session import Session
+from .session import read_project as _read_project  # the reader the session itself uses
 from .tables import esc
 from .ui import html, off_the_loop
-
-try:  # the project file's reader (moving into the core)
-    from network_models.project import read_project as _read_project
-except ImportError:
-    from .project_file import read_project as _read_project
 
 SUFFIX = ".nsproj.zip"
 #: a project larger than this is refused with a message (the reading layer's per-file limit)

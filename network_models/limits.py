@@ -70,31 +70,34 @@ def read_file(path, limit: int = MAX_FILE_BYTES, what: str = "the file") -> byte
     return data
 
 
-def read_member(z: zipfile.ZipFile, member, name: str, limit: int = MAX_MEMBER_BYTES,
-                budget: Budget | None = None) -> bytes:
-    """One zip member's bytes, inflated in small steps and counted as they come: refused past ``limit``
-    real bytes, or when the member is not what its header says (a wrong declared size fails its check)."""
-    info = member if isinstance(member, zipfile.ZipInfo) else z.getinfo(member)
+def _inflate(z: zipfile.ZipFile, info: zipfile.ZipInfo, name: str, limit: int, budget: Budget | None,
+             advice: str):
+    """A member's bytes in steps of 1 MiB, counted as they come: LimitError past ``limit`` real bytes or
+    when the member is not what its header says (a wrong declared size fails zipfile's own check)."""
     label = f"{name} (member {info.filename})"
-    out = io.BytesIO()
+    n = 0
     try:
         with z.open(info) as fh:
-            while True:
-                chunk = fh.read(_STEP)
-                if not chunk:
-                    break
-                out.write(chunk)
-                if out.tell() > limit:
-                    raise LimitError(f"{label}: inflates to more than the {_mb(limit)} limit per member; it is "
-                                     "not a file this tool reads", file=name)
+            while chunk := fh.read(_STEP):
+                n += len(chunk)
+                if n > limit:
+                    raise LimitError(f"{label}: inflates to more than the {_mb(limit)} limit per member; {advice}",
+                                     file=name)
                 if budget is not None:
                     budget.check()
+                yield chunk
+    except LimitError:
+        raise
     except (zipfile.BadZipFile, EOFError, OSError, ValueError, NotImplementedError) as exc:
-        if isinstance(exc, LimitError):
-            raise
         raise LimitError(f"{label}: the zip member is damaged or does not match its declared size ({exc}); "
-                         "it is not a file this tool wrote", file=name) from None
-    return out.getvalue()
+                         "it is not a file this tool wrote — save it again", file=name) from None
+
+
+def read_member(z: zipfile.ZipFile, member, name: str, limit: int = MAX_MEMBER_BYTES,
+                budget: Budget | None = None) -> bytes:
+    """One zip member's bytes, inflated in small steps and counted (see :func:`_inflate`)."""
+    info = member if isinstance(member, zipfile.ZipInfo) else z.getinfo(member)
+    return b"".join(_inflate(z, info, name, limit, budget, "it is not a file this tool reads"))
 
 
 def check_zip(data: bytes, name: str, limit: int = MAX_MEMBER_BYTES, budget: Budget | None = None):
@@ -110,21 +113,8 @@ def check_zip(data: bytes, name: str, limit: int = MAX_MEMBER_BYTES, budget: Bud
             raise LimitError(f"{name}: holds more than 10,000 zip members; it is not a file this tool reads",
                              file=name)
         for info in z.infolist():
-            label = f"{name} (member {info.filename})"
-            n = 0
-            try:
-                with z.open(info) as fh:
-                    while chunk := fh.read(_STEP):
-                        n += len(chunk)
-                        if n > limit:
-                            raise LimitError(f"{label}: inflates to more than the {_mb(limit)} limit per member; "
-                                             "save only the sheet with the test curves", file=name)
-                        budget.check()
-            except LimitError:
-                raise
-            except (zipfile.BadZipFile, EOFError, OSError, ValueError, NotImplementedError) as exc:
-                raise LimitError(f"{label}: the zip member is damaged or does not match its declared size ({exc}); "
-                                 "open the workbook and save it again", file=name) from None
+            for _ in _inflate(z, info, name, limit, budget, "save only the sheet with the test curves"):
+                pass
 
 
 def check_text_shape(lines: list[str], delim: str, name: str):
