@@ -18,11 +18,12 @@ from .errors import UserError
 from .materials import add_polymers_option, apply_polymers_option
 
 #: commands whose results depend on the polymer table (they all accept ``--polymers FILE``)
-_POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch"}
+_POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch",
+                     "project"}
 
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
-            "samples", "serve")
+            "project", "samples", "serve", "library")
 
 
 def build_parser() -> argparse.ArgumentParser:

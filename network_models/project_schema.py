@@ -12,10 +12,11 @@ from __future__ import annotations
 _TEXT, _NUM, _BOOL, _TABLE, _LIST = "text", "number", "true/false", "table", "list"
 
 _PROJECT = {"format": _TEXT, "version": "whole number", "created": _TEXT, "netstretch_version": _TEXT,
-            "title": _TEXT}
-_INPUT = {"file": _TEXT, "name": _TEXT, "compound": _TEXT, "selected": _BOOL, "options": _TABLE}
-_COMPOUND = {"name": _TEXT, "polymer": _TEXT, "f": _NUM, "filler": _NUM, "notes": _TEXT, "metadata": _TABLE,
-             "swelling": _LIST}
+            "title": _TEXT, "purpose": _TEXT}
+_INPUT = {"file": _TEXT, "name": _TEXT, "compound": _TEXT, "kind": _TEXT, "selected": _BOOL, "options": _TABLE}
+# `filler` is version 1's name of the filler volume fraction (still read)
+_COMPOUND = {"name": _TEXT, "polymer": _TEXT, "f": _NUM, "filler": _NUM, "filler_volume_fraction": _NUM,
+             "baseline": _BOOL, "notes": _TEXT, "metadata": _TABLE, "swelling_source": _TEXT, "swelling": _LIST}
 _TOP = {"project": _TABLE, "settings": _TABLE, "input": _LIST, "compound": _LIST, "results": _TABLE}
 
 
@@ -61,13 +62,14 @@ def check_manifest(doc: dict, name: str, error=ValueError) -> dict:
         if not isinstance(e, dict):
             raise error(f"{name}: [[input]] number {i} must be a table; save the project again")
         e = _check_table(e, _INPUT, f"[[input]] {i}", name, error, notices)
-        opts = {}
-        for k, v in e.get("options", {}).items():
-            if k in OPTIONS and k != "profile":
-                opts[k] = v
-            else:
-                notices.append(f"[[input]] {i}: the reader option {k!r} is not known and was ignored")
-        e["options"] = opts
+        if e.get("kind", "curves") == "curves":  # a lab file's reader options: only the ones the reader takes
+            opts = {}
+            for k, v in e.get("options", {}).items():
+                if k in OPTIONS and k != "profile":
+                    opts[k] = v
+                else:
+                    notices.append(f"[[input]] {i}: the reader option {k!r} is not known and was ignored")
+            e["options"] = opts
         inputs.append(e)
     doc["input"] = inputs
     comps = []
