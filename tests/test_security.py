@@ -607,3 +607,16 @@ def test_too_large_project_answered_in_the_page_and_the_log(project_bar, caplog)
     assert "huge.nsproj.zip" in text and "MB limit" in text, text
     assert any("huge.nsproj.zip" in r.getMessage() and "refused" in r.getMessage() for r in caplog.records)
     assert "MB" in str(getattr(bar.open, "max_file_size", "") or "20MB")  # refused in the browser before sending
+
+
+@pytest.mark.slow
+def test_project_bombs_refused_by_the_command_line(tmp_path):
+    """`--project` reads through the same bounded layer: exit 2, one sentence naming the file and the limit."""
+    f = tmp_path / "understated.nsproj.zip"
+    f.write_bytes(_understated_zip(120_000_000))
+    _cli_refuses("compare", "--project", f, limit_text="declared size", name="understated.nsproj.zip")
+    g = tmp_path / "manifest.nsproj.zip"
+    with zipfile.ZipFile(g, "w", zipfile.ZIP_DEFLATED, compresslevel=1) as z, z.open("project.toml", "w") as fh:
+        for _ in range(60):
+            fh.write(b"# " + b"a" * 999_998)
+    _cli_refuses("compare", "--project", g, limit_text="1 MB", name="manifest.nsproj.zip")
