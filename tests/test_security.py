@@ -460,10 +460,10 @@ def test_failed_logins_logged_and_throttled_and_cookies_flagged(served_with_pass
     url, log_path = served_with_password
     port = url.rstrip("/").rsplit(":", 1)[1]
 
-    def post(password):
+    def post(password, extra=""):
         body = urllib.parse.urlencode({"username": "lab", "password": password})
         t0 = time.monotonic()
-        r = _raw_http(url, f"POST /login HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n"
+        r = _raw_http(url, f"POST /login HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n{extra}"
                            "Content-Type: application/x-www-form-urlencoded\r\n"
                            f"Content-Length: {len(body)}\r\n\r\n{body}")
         return r, time.monotonic() - t0
@@ -477,6 +477,12 @@ def test_failed_logins_logged_and_throttled_and_cookies_flagged(served_with_pass
     head = ok.split(b"\r\n\r\n", 1)[0].decode("latin-1")
     cookies = [ln for ln in head.split("\r\n") if ln.lower().startswith("set-cookie: user=")]
     assert cookies and all("samesite=lax" in c.lower() and "httponly" in c.lower() for c in cookies), head
+    assert not any("secure" in c.lower().replace("set-cookie: user=", "").split(";", 1)[1] for c in cookies)
+    # behind an HTTPS proxy (it says so with X-Forwarded-Proto): the cookies are marked Secure
+    ok, _ = post("lab-pass-phrase", "X-Forwarded-Proto: https\r\n")
+    head = ok.split(b"\r\n\r\n", 1)[0].decode("latin-1")
+    cookies = [ln for ln in head.split("\r\n") if ln.lower().startswith("set-cookie: user=")]
+    assert cookies and all("; secure" in c.lower() for c in cookies), head
     assert "Traceback" not in log_path.read_text("utf-8", errors="replace")
 
 
