@@ -128,6 +128,10 @@ class DataView(pn.viewable.Viewer):
         off_the_loop(lambda: self._read_uploads(items), done, TIME_BUDGET_S)
 
     def _read_uploads(self, items):
+        import threading
+
+        log.debug("reading upload(s) %s in thread %s", ", ".join(n for n, _ in items),
+                  threading.current_thread().name)
         loaded, problems = [], []
         for name, data in items:
             try:

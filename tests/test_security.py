@@ -425,11 +425,22 @@ def served_with_password():
     from benchmarks import bench_server
 
     before = os.environ.get(srv.PASSWORD_ENV)
+    debug = os.environ.get("NETSTRETCH_DEBUG")
     os.environ[srv.PASSWORD_ENV] = "lab-pass-phrase"
+    os.environ["NETSTRETCH_DEBUG"] = "1"  # the server logs where it reads uploads
+
+    def restore(key, value):
+        if value is None:
+            os.environ.pop(key, None)
+        else:
+            os.environ[key] = value
+
     try:
         with bench_server.served() as (proc, url, log_path):
+            restore("NETSTRETCH_DEBUG", debug)  # the server has its copy; the tests' own process does not
             yield url, log_path
     finally:
+        restore("NETSTRETCH_DEBUG", debug)
         if before is None:
             os.environ.pop(srv.PASSWORD_ENV, None)
         else:
@@ -559,6 +570,9 @@ def test_every_request_goes_to_this_server_and_no_markup_runs(chromium_browser, 
     foreign = sorted({u for h, u in hosts if h and h != own})
     assert foreign == [], foreign
     assert dialogs == [] and found == 0
+    # the upload was read in a worker thread, not on the server's event loop (the main thread)
+    reads = re.findall(r"reading upload\(s\) TRIAL-9_uniaxial\.csv in thread (\S+)", log_path.read_text("utf-8"))
+    assert reads and "MainThread" not in reads, reads
 
 
 # ----- 7. project files: unknown fields, wrong types, too large ----------------------------------------------------
