@@ -23,7 +23,7 @@ from .compare_state import STALE, CompareState
 from .data_state import MAX_UPLOAD_BYTES, CompoundInfo, missing_items
 from .messages import Messages, guarded
 from .tables import esc, table_html
-from .ui import Deferred, html
+from .ui import Deferred, html, text_labels
 
 log = logging.getLogger("netstretch.app")
 
@@ -69,6 +69,7 @@ class CompareView(pn.viewable.Viewer):
         self.messages = Messages(area="compare")
         self.chosen = pn.widgets.MultiChoice.from_param(s.param.chosen, sizing_mode="stretch_width",
                                                         css_classes=["ns-cmp-chosen"])
+        text_labels(self.chosen)  # compound names are data: shown as text, never as markup
         self.baseline = pn.widgets.Select.from_param(s.param.baseline, width=200, css_classes=["ns-cmp-baseline"])
         self.model = pn.widgets.Select.from_param(
             s.param.model, options={get_model(n).title: n for n in MODELS}, width=260, css_classes=["ns-cmp-model"])

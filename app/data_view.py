@@ -11,13 +11,14 @@ import logging
 import panel as pn
 
 from network_models import MODES
+from network_models.limits import TIME_BUDGET_S
 
 from .data_state import GEOMETRY_ITEMS, MAX_UPLOAD_BYTES, CompoundInfo, DataState, missing_items
 from .display_units import DisplayUnits
 from .fit_panel import FitPanel
 from .messages import Messages, guarded
 from .tables import esc, file_rows, preview_rows, table_html
-from .ui import html
+from .ui import html, off_the_loop
 
 log = logging.getLogger("netstretch.app")
 
@@ -112,8 +113,27 @@ class DataView(pn.viewable.Viewer):
         return out
 
     def _on_upload(self, event):
+        """Read the files in a worker thread (off the server's event loop, within the time budget), then
+        show and accept them on the loop."""
+        items = self._upload_items(event)
+        names = ", ".join(n for n, _ in items)
+
+        def done(result):
+            if isinstance(result, TimeoutError):
+                log.warning("upload %s: reading took longer than %g s", names, TIME_BUDGET_S)
+                result = ([], [f"{names}: reading took longer than the {TIME_BUDGET_S:g} s budget; export only "
+                               "the test curves"])
+            self._after_upload(*result)
+
+        off_the_loop(lambda: self._read_uploads(items), done, TIME_BUDGET_S)
+
+    def _read_uploads(self, items):
+        import threading
+
+        log.debug("reading upload(s) %s in thread %s", ", ".join(n for n, _ in items),
+                  threading.current_thread().name)
         loaded, problems = [], []
-        for name, data in self._upload_items(event):
+        for name, data in items:
             try:
                 loaded.append(self.state.add_upload(name, data))
             except ValueError as exc:
@@ -126,6 +146,12 @@ class DataView(pn.viewable.Viewer):
                 log.exception("upload %s", name)
                 problems.append(f"{name}: the file could not be read ({type(exc).__name__}); check that it is a "
                                 "CSV/TSV/TXT or .xlsx table of stretch (or strain/extension) and stress (or force)")
+        return loaded, problems
+
+    def _after_upload(self, loaded, problems):
+        for p in problems:
+            if "limit" in p:
+                log.warning("upload refused: %s", p)  # a refused (too large) file leaves a line in the log
         self._report_upload(loaded, problems)
         self._accept(loaded)
         self._show_missing_form()

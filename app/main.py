@@ -37,6 +37,9 @@ def configure_panel():
     pn.config.design = None
     pn.config.raw_css = []
     pn.config.notifications = False
+    from .server import local_stylesheets
+
+    local_stylesheets()  # no CDN fallback for stylesheets of components updated in callbacks
     pn.config.throttled = False
     # a callback error that slipped past guarded(): log it on the server, keep it off the page
     pn.config.exception_handler = lambda exc: log.error("callback error: %s", exc, exc_info=exc)

@@ -167,7 +167,7 @@ class Session:
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in c.swelling]
             comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler_volume_fraction, notes=c.notes,
                                          metadata=dict(c.metadata), swelling=tests)
-        problems = []
+        problems = list(getattr(proj, "notices", []))  # fields of the file that were ignored
         d = self.data
         d.manifest_title, d.manifest_note = "", ""
         selected = [i.name for i in proj.inputs if i.selected]

@@ -26,6 +26,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .cellguard import guard, unguard
 from .errors import UserError
 
 __all__ = ["COLUMNS_FIRST", "COLUMNS_LAST", "HEADLINE_ROW", "READABLE_SUFFIXES", "BatchSummary", "collect_files",
@@ -158,7 +159,7 @@ def _cell(v):
         return ""
     if isinstance(v, float):
         return repr(v)  # round-trips exactly
-    return str(v)
+    return guard(str(v))  # a text cell that would run as a spreadsheet formula is written as text
 
 
 def read_results(path) -> list[dict]:
@@ -169,7 +170,7 @@ def read_results(path) -> list[dict]:
 
         return pq.read_table(path).to_pylist()
     with path.open(newline="", encoding="utf-8") as fh:
-        return [{k: (v if v != "" else None) for k, v in r.items()} for r in csv.DictReader(fh)]
+        return [{k: (unguard(v) if v != "" else None) for k, v in r.items()} for r in csv.DictReader(fh)]
 
 
 def to_frame(path):
@@ -180,7 +181,11 @@ def to_frame(path):
     path = Path(path)
     if path.suffix.lower() == ".parquet":
         return pd.read_parquet(path)
-    return pd.read_csv(path, keep_default_na=False, na_values=[""])
+    frame = pd.read_csv(path, keep_default_na=False, na_values=[""])
+    for c in frame.columns:
+        if not pd.api.types.is_numeric_dtype(frame[c]):
+            frame[c] = frame[c].map(unguard)  # the formula guard of text cells (see cellguard)
+    return frame
 
 
 def _check_existing(rows: list[dict], model: str, path: Path):
@@ -253,6 +258,48 @@ class _Appender:
         self.fh.flush()
         os.fsync(self.fh.fileno())
         self.fh.close()
+
+
+class OutputLock:
+    """An exclusive lock on a batch output and its journal (``<output>.lock``, an advisory ``flock`` held
+    while the run lasts; the operating system drops it when the process ends, however it ends).  A second
+    run on the same output is refused with a sentence naming the running one."""
+
+    def __init__(self, output: Path):
+        import datetime as _dt
+        import socket
+
+        self.path = output.with_name(output.name + ".lock")
+        self.fh = None
+        try:
+            import fcntl
+        except ImportError:  # pragma: no cover - not a POSIX system: no lock
+            return
+        fh = self.path.open("a+", encoding="utf-8")
+        try:
+            fcntl.flock(fh.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:
+            fh.seek(0)
+            who = fh.read().strip() or "another process"
+            fh.close()
+            raise UserError(f"{output} is being written by another batch run ({who}); wait until it has finished "
+                            "(run the same command again then to resume) or write to another file with -o") from None
+        fh.seek(0)
+        fh.truncate()
+        started = _dt.datetime.now().astimezone().replace(microsecond=0).isoformat()
+        fh.write(f"process {os.getpid()} on {socket.gethostname()}, started {started}: "
+                 f"{' '.join(Path(sys.argv[0]).name if i == 0 else a for i, a in enumerate(sys.argv))}")
+        fh.flush()
+        self.fh = fh
+
+    def release(self):
+        if self.fh is not None:
+            self.path.unlink(missing_ok=True)
+            self.fh.close()  # closing drops the lock
+            self.fh = None
+
+    def __del__(self):
+        self.release()
 
 
 # ----- running -------------------------------------------------------------------------------------------------
@@ -357,6 +404,7 @@ def run_batch(inputs, model: str, output, *, jobs: int = 1, scheduler=None, poly
     cols = columns_for(name) + ["index"]
     journal = output if suffix == ".csv" else output.with_name(output.stem + ".journal.csv")
     failures_path = output.with_name(output.stem + ".failures.csv")
+    lock = OutputLock(output)  # one run per output (and journal): a second one is refused, naming this one
 
     existing = []
     for p in dict.fromkeys([output, journal]):
@@ -412,4 +460,5 @@ def run_batch(inputs, model: str, output, *, jobs: int = 1, scheduler=None, poly
     else:
         _write_parquet(output, cols, rows)
         journal.unlink(missing_ok=True)
+    lock.release()
     return summary

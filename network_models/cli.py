@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import importlib
 import os
+import re
 import sys
 
 from .constants import CAUTION
@@ -50,8 +51,38 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+#: a value that starts with a minus sign followed by a digit (``-20C``, ``-.5MPa``), not an option
+_NEGATIVE_VALUE = re.compile(r"^-(\d|\.\d)")
+
+
+def _value_options(parser) -> set[str]:
+    """Long options (of the command and every sub-command) that take exactly one value."""
+    out, parsers = set(), [parser]
+    while parsers:
+        p = parsers.pop()
+        for a in p._actions:
+            if isinstance(a, argparse._SubParsersAction):
+                parsers += list(a.choices.values())
+            elif a.nargs is None and a.option_strings:
+                out.update(o for o in a.option_strings if o.startswith("--"))
+    return out
+
+
+def negative_values(parser, argv: list[str]) -> list[str]:
+    """``--temperature -20C`` as ``--temperature=-20C``: argparse takes a word starting with '-' for an option
+    unless it is a plain number, so a negative quantity with its unit after an option is joined to it."""
+    takes, out = _value_options(parser), []
+    for tok in argv:
+        if out and _NEGATIVE_VALUE.match(tok) and out[-1] in takes:
+            out[-1] = f"{out[-1]}={tok}"
+        else:
+            out.append(tok)
+    return out
+
+
 def main(argv=None) -> int:
     parser = build_parser()
+    argv = negative_values(parser, list(sys.argv[1:] if argv is None else argv))
     args = parser.parse_args(argv)
     if not getattr(args, "run", None):
         parser.print_help()

@@ -237,6 +237,9 @@ def load_polymer_table(path) -> UserTable:
         raise DataError(f"polymer table {origin} cannot be read as UTF-8 text ({exc})", file=origin,
                         kind="polymer-table") from None
     raw = _parse(text, origin)
+    if not raw:
+        raise DataError(f"polymer table {origin} is empty; it needs at least one [KEY] row (same fields as the "
+                        "built-in table), or leave --polymers out", file=origin, kind="polymer-table")
     chi = _chi_rows(raw.pop("chi"), origin) if "chi" in raw else []
     base = builtin_polymers()
     rows = {_key(k): _row(_key(k), r, origin, base.get(_key(k))) for k, r in raw.items()}

@@ -64,6 +64,9 @@ import zipfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .limits import BoundedZipFile
+from .project_schema import check_manifest
+
 FORMAT = "netstretch-project"
 VERSION = 2
 MANIFEST = "project.toml"
@@ -113,6 +116,7 @@ class Project:
     netstretch_version: str = ""
     purpose: str = ""
     version: int = VERSION
+    notices: list = field(default_factory=list)  # sentences about fields ignored on reading
 
 
 # ----- a small TOML writer for the values above --------------------------------------------------------
@@ -211,7 +215,7 @@ def read_project(source) -> Project:
         except OSError as exc:
             raise ProjectFileError(f"{name}: cannot be opened ({exc.strerror or exc})") from None
     try:
-        z = zipfile.ZipFile(io.BytesIO(bytes(source)))
+        z = BoundedZipFile(io.BytesIO(bytes(source)), name, ProjectFileError)  # members counted as they inflate
     except zipfile.BadZipFile:
         raise ProjectFileError(f"{name} is not a netstretch project (not a zip file); choose a .nsproj.zip "
                                "file saved by netstretch") from None
@@ -225,6 +229,7 @@ def read_project(source) -> Project:
             doc = tomllib.loads(z.read(MANIFEST).decode("utf-8"))
         except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
             raise ProjectFileError(f"{name}: {MANIFEST} cannot be read ({exc})") from None
+        doc = check_manifest(doc, name, ProjectFileError)  # types checked, unknown fields dropped with a notice
         head = doc.get("project", {})
         if head.get("format") != FORMAT:
             raise ProjectFileError(f"{name}: {MANIFEST} does not say format = \"{FORMAT}\"")
@@ -259,4 +264,4 @@ def read_project(source) -> Project:
     return Project(settings=dict(doc.get("settings", {})), inputs=inputs, compounds=compounds,
                    results=dict(doc.get("results", {})), title=str(head.get("title", "")),
                    created=str(head.get("created", "")), netstretch_version=str(head.get("netstretch_version", "")),
-                   purpose=str(head.get("purpose", "")), version=version)
+                   purpose=str(head.get("purpose", "")), version=version, notices=list(head.get("notices", [])))

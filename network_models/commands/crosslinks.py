@@ -69,6 +69,13 @@ def run(args):
             raise ValueError("--c2 goes with --kind 2C1 (the Mooney intercept)")
         c2 = quantity(args.c2, "pressure", "--c2", "0.1MPa")
     Mn = _molar_mass(args.mn) if args.mn else None
+    if Mn is not None:  # a chain lighter than one repeat unit cannot exist
+        from ..materials import get_polymer
+
+        m0 = get_polymer(args.polymer).monomer_molar_mass
+        if Mn < m0:
+            raise ValueError(f"--mn {args.mn} is below the molar mass of one repeat unit of {args.polymer} "
+                             f"({m0 * 1e3:.4g} g/mol); give the primary chains' M_n, e.g. 250kg/mol")
     if args.sol_fraction is not None and not (0.0 <= args.sol_fraction < 1.0):
         raise ValueError(f"--sol-fraction is a mass fraction between 0 and 1; got {args.sol_fraction:g}")
     table = from_modulus(G, args.kind, polymer=args.polymer, T=T, f=args.functionality,

@@ -66,9 +66,27 @@ def quantity(text, dimension, what, example):
     if not re.search(r"[A-Za-zµ%°℃]", s):
         raise ValueError(f"{what} {s!r} has no unit; write it with its unit, e.g. {example}")
     try:
-        return parse_quantity(s, dimension)
+        value = parse_quantity(s, dimension)
     except ValueError as exc:
         raise ValueError(f"{what}: {exc}") from None
+    return physically_possible(value, dimension, what, s)
+
+
+#: a shear or Young's modulus above this is not a rubber (10 GPa: stiffer than most glassy polymers;
+#: common practice)
+MAX_MODULUS_PA = 10e9
+
+
+def physically_possible(value: float, dimension: str, what: str, text: str) -> float:
+    """Refuse a command-line value no rubber test can have: a temperature at or below absolute zero (0 K),
+    a modulus (pressure) above 10 GPa."""
+    if dimension == "temperature" and not value > 0.0:
+        raise ValueError(f"{what} {text} is at or below absolute zero (0 K = -273.15 °C); give the test temperature, "
+                         "e.g. -20C or 23C")
+    if dimension == "pressure" and abs(value) > MAX_MODULUS_PA:
+        raise ValueError(f"{what} {text} is above {MAX_MODULUS_PA / 1e9:g} GPa, far stiffer than any rubber; check "
+                         "the unit (e.g. 0.55MPa)")
+    return value
 
 
 def json_document(doc: dict) -> str:

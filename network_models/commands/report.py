@@ -279,9 +279,15 @@ def _print_pdf(html_path):
 
 
 def run_report(args):
+    from pathlib import Path
+
     from ..cli import UserError
     from ..report import Report
 
+    suffix = Path(args.output).suffix.lower()
+    if suffix not in (".html", ".htm"):
+        raise UserError(f"-o {args.output}: the report is written as FILE.html (with FILE.csv, FILE.json and "
+                        "FILE.xlsx beside it); give a name ending in .html")
     cmp, title, purpose = _compare(args)
     if not any(r.ok for r in cmp.results):
         errs = [r.error for r in cmp.results if r.error]

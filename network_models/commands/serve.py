@@ -35,7 +35,19 @@ def add_parser(sub):
 
 
 def _app_package():
-    """The installed app (``netstretch_app``), else the source checkout's ``app`` folder."""
+    """The ``app`` folder beside this ``network_models`` when running from a source checkout (so a checkout
+    serves its own app, not another one an editable install points to), else the installed app
+    (``netstretch_app``), else whatever ``app`` is importable."""
+    from pathlib import Path
+
+    beside = Path(__file__).resolve().parents[2] / "app"
+    if (beside / "server.py").exists():
+        try:
+            pkg = importlib.import_module("app")
+            if Path(pkg.__file__).resolve().parent == beside:
+                return pkg
+        except ImportError:
+            pass
     try:
         return importlib.import_module("netstretch_app")
     except ImportError:

@@ -77,8 +77,15 @@ def analyse(rec, expansion, polymer=None):
     }
 
 
+#: no rubber is stretched beyond this (λ = 100; elongations at break are below ~10, common practice)
+MAX_STRETCH = 100.0
+
+
 def run(args):
     apply_polymers_option(args)
+    if args.stretch is not None and not (0.0 < args.stretch <= MAX_STRETCH):
+        raise ValueError(f"--stretch {args.stretch:g} is not a clamped stretch a rubber can hold (0 < λ ≤ "
+                         f"{MAX_STRETCH:g}); give λ = clamped length / original length, e.g. 2")
     rec = read_force_temperature(args.file, stretch=args.stretch)
     beta = args.expansion
     if beta is None and args.polymer:

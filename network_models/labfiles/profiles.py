@@ -93,6 +93,9 @@ def load_profile(path) -> dict:
         raise DataError(f"{p}: cannot open the reading profile ({e.strerror or e})", file=str(p)) from None
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise DataError(f"{p.name}: not a valid TOML reading profile ({e})", file=p.name) from None
+    if not raw:
+        raise DataError(f"{p.name}: the reading profile is empty; write at least one of [read], [geometry], "
+                        "[columns] or [units], or leave --profile out", file=p.name)
     return profile_options(raw, p.name)
 
 

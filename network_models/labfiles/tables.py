@@ -13,6 +13,7 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .. import limits
 from ..errors import DataError, Notice
 
 #: Files larger than this are refused (bytes; 20 MB).  A tensile export is usually well under 1 MB.
@@ -52,7 +53,7 @@ def read_file_bytes(path) -> tuple[bytes, str, str]:
         size = p.stat().st_size
         if size > MAX_FILE_BYTES:
             raise DataError(limit_message(p.name, size), file=p.name)
-        data = p.read_bytes()
+        data = limits.read_file(p, MAX_FILE_BYTES)  # bounded whatever the file system says
     except OSError as e:
         raise DataError(f"{p}: cannot open the file ({e.strerror or e}); check the path and permissions",
                         file=str(p)) from None
@@ -129,6 +130,7 @@ def text_table(text: str, filename: str, *, decimal: str | None = None, skip: in
     if not delim:
         raise DataError(f"{filename}: no column separator found (comma, semicolon or tab); save the table as CSV "
                         "with a header row such as 'stretch,stress (MPa)'", file=filename)
+    limits.check_text_shape([ln for _, ln in body], delim, filename)  # columns and cells, before splitting
     rows, numbers = [], []
     reader = csv.reader([ln for _, ln in body], delimiter=delim)
     for (lineno, _), cells in zip(body, reader, strict=True):
@@ -186,6 +188,7 @@ def workbook_table(data: bytes, filename: str, sheet=None, *, skip: int = 0) -> 
     except ImportError:  # pragma: no cover - python-calamine is a dependency
         raise DataError(f"{filename}: reading workbooks needs python-calamine; install it or save the sheet as CSV",
                         file=filename) from None
+    limits.check_zip(data, filename)  # every member inflated in steps and counted, before the reader sees it
     try:
         wb = CalamineWorkbook.from_filelike(io.BytesIO(data))
         names = list(wb.sheet_names)
@@ -196,7 +199,13 @@ def workbook_table(data: bytes, filename: str, sheet=None, *, skip: int = 0) -> 
         raise DataError(f"{filename}: the workbook has no sheets", file=filename)
     k = _pick_sheet(names, sheet, filename)
     try:
-        values = wb.get_sheet_by_index(k).to_python(skip_empty_area=False)
+        ws = wb.get_sheet_by_index(k)
+        shape = (ws.height, ws.width)
+    except Exception:  # the sheet's size is unknown: reading it below says what is wrong
+        ws, shape = None, (0, 0)
+    limits.check_table_shape(*shape, filename)
+    try:
+        values = (ws or wb.get_sheet_by_index(k)).to_python(skip_empty_area=False)
     except Exception:
         raise DataError(f"{filename}: the sheet {names[k]!r} cannot be read; save the workbook again or export the "
                         "sheet as CSV", file=filename) from None

@@ -393,8 +393,11 @@ def write_xlsx(csv_text: str, path: Path) -> Path:
 
     import pandas as pd
 
-    pd.read_csv(io.StringIO(csv_text)).to_excel(path, index=False, sheet_name="netstretch")
-    return path
+    from ..cellguard import write_xlsx_text
+
+    # text cells stay text (a name beginning with '=' is not a formula); numbers stay numbers
+    return write_xlsx_text(pd.read_csv(io.StringIO(csv_text), keep_default_na=False, na_values=[""]), path,
+                           "netstretch")
 
 
 def write_charts(html_text: str, folder: Path) -> list[Path]:

@@ -9,6 +9,8 @@ import io
 import math
 from pathlib import Path
 
+from ..cellguard import guard, unguard
+
 CSV_FIELDS = ("section", "compound", "key", "label", "value", "unit", "ci95_low", "ci95_high",
               "display_value", "display_unit", "basis", "note")
 
@@ -128,7 +130,7 @@ def to_csv(rep) -> str:
     w = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
     w.writeheader()
     for row in csv_rows(rep):
-        w.writerow({k: ("" if v is None else (repr(v) if isinstance(v, float) else v)) for k, v in row.items()})
+        w.writerow({k: ("" if v is None else (repr(v) if isinstance(v, float) else guard(v))) for k, v in row.items()})
     return buf.getvalue()
 
 
@@ -137,6 +139,7 @@ def read_csv(path_or_text) -> list[dict]:
     text = Path(path_or_text).read_text("utf-8") if not str(path_or_text).startswith("section,") else path_or_text
     out = []
     for row in csv.DictReader(io.StringIO(text)):
+        row = {k: unguard(v) for k, v in row.items()}
         for k in ("value", "ci95_low", "ci95_high", "display_value"):
             row[k] = float(row[k]) if row[k] not in ("", None) else None
         out.append(row)
