@@ -54,6 +54,22 @@ COMPOUNDS = {
     "QM-S2A": dict(nu=147.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, accelerator_phr=0.7,
                    title="NR gum, mid sulfur dose, accelerator 0.7 phr", Gc=361.9e3, Ge=347.8e3, delta=0.07868),
 }
+#: The invented recipes in phr (``[compound.recipe]`` in the manifest; ingredient names of
+#: network_models/ingredients.toml).  They agree with how :func:`swelling` makes the masses: the generator
+#: counts about 6 phr of non-rubber in every re-dried specimen; here that is 5 phr zinc oxide (insoluble,
+#: stays in the gel) with the curatives, while the 2 phr stearic acid is extracted — so the Ellis–Welding
+#: correction reads the generating strand density back (within the ~2 % scatter the generator adds).
+def _recipe(sulfur, cbs=0.6, black=0.0):
+    r = {"NR": 100.0}
+    if black:
+        r["N330"] = black
+    return r | {"ZnO": 5.0, "stearic-acid": 2.0, "sulfur": sulfur, "CBS": cbs}
+
+
+RECIPES = {
+    "QM-S1": _recipe(1.0), "QM-S2": _recipe(2.0), "QM-S3": _recipe(3.0),
+    "QM-S2B": _recipe(2.0, black=30.0), "QM-S2A": _recipe(2.0, cbs=0.7),
+}
 #: each specimen's stress factor (invented scatter, sd about 4 %), per compound, in file order
 SPECIMEN_FACTORS = {
     "QM-S1": (0.97, 1.02, 0.95, 1.04, 1.01),
@@ -340,6 +356,9 @@ def manifest() -> str:
             out.append(f"    {{ path = {q(path)}, mode = {q(mode)}, note = {q(note)} }},\n")
         out += [
             "]\n",
+            "# the recipe in phr (invented); it wins over filler_volume_fraction, filler_phr and sulfur_phr above\n",
+            "[compound.recipe]\n",
+            *(f"{q(name)} = {phr:.1f}\n" for name, phr in RECIPES[key].items()),
             "# the values the invented curves were generated from (for demos of how well a fit recovers them)\n",
             "[compound.generator]\n",
             f"model = {q(GENERATOR.name)}\n",

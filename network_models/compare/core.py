@@ -259,7 +259,8 @@ def result_to_dict(r: CompoundResult) -> dict:
         "crosslink_table": r.crosslink_rows,
         "crosslink_notes": r.crosslink_notes,
         "swelling": r.swelling_rows,
-        "warnings": list(r.warnings),
+        "recipe": None if getattr(c, "recipe", None) is None else c.recipe.to_dict(),
+        "warnings": list(r.warnings) + [str(n) for n in getattr(c, "recipe_notices", [])],
     }
 
 
