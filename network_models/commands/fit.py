@@ -15,6 +15,8 @@ from ..crosslinks import from_fit
 from ..fitting import fit_many
 from ..jsonio import dumps
 from ..models import get_model
+from ..ultimate import RULE as ULTIMATE_RULE
+from ..ultimate import ultimate_rows
 
 CAUTION = "Caution: " + _CAUTION
 
@@ -178,6 +180,7 @@ def run(args):
             "curves": [{"name": c.name, "mode": c.mode.value, "n": len(c), "source": c.source,
                         "temperature_K": c.temperature, "notices": list(c.notices)} for c in curves],
             "residual": "relative" if args.relative else "absolute",
+            "ultimate": ultimate_rows(curves), "ultimate_rule": ULTIMATE_RULE,
             "models": {},
             "caution": CAUTION,
         }
@@ -202,6 +205,13 @@ def run(args):
                                       else "not stated (23 °C assumed for the crosslink table)"))
         for n in notices:
             print(f"  file note: {n}")
+        broke = ultimate_rows(curves)
+        if broke:
+            print("break properties (nominal stress; " + ULTIMATE_RULE + "):")
+            for u in broke:
+                print(f"  {u['specimen']}: tensile strength {u['tensile_strength_Pa'] / 1e6:.3g} MPa, elongation at "
+                      f"break {u['elongation_at_break_percent']:.0f} %, stress at break "
+                      f"{u['stress_at_break_Pa'] / 1e6:.3g} MPa")
         for name, r in results.items():
             print()
             if isinstance(r, Exception):

@@ -1,0 +1,78 @@
+"""Break properties (network_models/ultimate.py): tensile strength, elongation and stress at break.
+
+Independent values: the curves are built here from a neo-Hookean law σ = G(λ − λ⁻²) (Treloar's uniaxial
+nominal stress, written in this file) with a maximum placed by hand, so the tensile strength, stress at break and
+elongation at break are known before the code runs: elongation at break (λ_b − 1)·100 %, common practice of the
+tensile standards.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+from network_models.curves import TestCurve
+from network_models.ultimate import find_rupture, split_at_rupture
+
+G = 0.5e6
+
+
+def _neo(lam):
+    return G * (lam - lam ** -2)
+
+
+def _curve_with_break():
+    lam = np.round(np.linspace(1.0, 6.0, 51), 4)  # λ step 0.1; the break after λ = 5.0 (index 40)
+    s = _neo(lam)
+    # a known maximum: a softening shoulder before the break, peak at λ = 4.8, last point before the fall λ = 5.0
+    s[39] = s[38] * 0.97  # λ = 4.9
+    s[40] = s[38] * 0.95  # λ = 5.0: the stress at break
+    s[41:] = np.linspace(0.05, 0.0, 10) * s[38]  # the broken specimen: a small residual force
+    return lam, s
+
+
+def test_known_maximum_and_break_from_arrays():
+    lam, s = _curve_with_break()
+    assert find_rupture(lam, s) == 41
+    c, u = split_at_rupture(TestCurve("uniaxial", lam, s, specimen="T-1"))
+    assert len(c) == 41 and c.stretch[-1] == pytest.approx(5.0)
+    assert u.tensile_strength == pytest.approx(_neo(4.8), rel=1e-12)
+    assert u.stress_at_break == pytest.approx(0.95 * _neo(4.8), rel=1e-12)
+    assert u.elongation_at_break == pytest.approx(400.0)
+    assert u.specimen == "T-1" and u.points_dropped == 10
+
+
+def test_gradual_softening_and_plain_curves_are_not_ruptures():
+    lam = np.linspace(1.0, 4.0, 31)
+    assert find_rupture(lam, _neo(lam)) is None
+    s = _neo(lam)
+    s[20:] = s[20] * np.linspace(1.0, 0.3, 11)  # falls to 30 % slowly (7 % of the peak per step): not a break
+    assert find_rupture(lam, s) is None
+    s2 = _neo(lam)
+    s2[25] = 0.2 * s2[24]  # a single glitch that recovers is not a break
+    assert find_rupture(lam, s2) is None
+
+
+def test_fit_json_reports_ultimate_and_fits_only_the_unbroken_part(tmp_path, capsys):
+    from network_models.cli import main
+
+    lam, s = _curve_with_break()
+    lines = ["# mode: uniaxial", "specimen,stretch,stress (MPa)"]
+    lines += [f"T-1,{a:.4f},{b / 1e6:.6f}" for a, b in zip(lam, s, strict=True)]
+    lam2 = np.round(np.linspace(1.0, 4.0, 31), 4)
+    lines += [f"T-2,{a:.4f},{b / 1e6:.6f}" for a, b in zip(lam2, _neo(lam2), strict=True)]
+    f = tmp_path / "break.csv"
+    f.write_text("\n".join(lines) + "\n", "utf-8")
+    assert main(["fit", str(f), "--model", "neo-hookean", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    ult = doc["ultimate"]
+    assert [u["specimen"] for u in ult] == ["T-1"]  # T-2 did not rupture
+    u = ult[0]
+    assert u["tensile_strength_Pa"] == pytest.approx(_neo(4.8), rel=1e-5)  # file carries 6 decimals of MPa
+    assert u["stress_at_break_Pa"] == pytest.approx(0.95 * _neo(4.8), rel=1e-5)
+    assert u["elongation_at_break_percent"] == pytest.approx(400.0)
+    by = {c["name"].split()[-1]: c for c in doc["curves"]}
+    assert by["T-1"]["n"] == 41
+    assert any("ruptured" in n for n in by["T-1"]["notices"])
