@@ -117,3 +117,62 @@ def ultimate_of(curve) -> Ultimate | None:
 def ultimate_rows(curves) -> list[dict]:
     """One ``ultimate`` JSON entry per curve that ruptured."""
     return [u.to_dict() for u in (ultimate_of(c) for c in curves) if u is not None]
+
+
+# ---- in the comparison: specimen statistics and verdicts against the baseline -------------------------------
+#: quantity key → (label, unit, attribute of Ultimate)
+QUANTITIES = {
+    "tensile_strength": ("tensile strength", "Pa", "tensile_strength"),
+    "elongation_at_break": ("elongation at break", "%", "elongation_at_break"),
+    "stress_at_break": ("stress at break", "Pa", "stress_at_break"),
+}
+
+
+def specimen_breaks(result) -> list[Ultimate]:
+    """Break properties of a compared compound's specimens (one per specimen that ruptured; excluded specimens
+    left out).  ``result``: a :class:`network_models.compare.records.CompoundResult`."""
+    out = []
+    for s in getattr(result, "specimens", []):
+        if s.excluded:
+            continue
+        u = next((x for x in (ultimate_of(c) for c in s.curves) if x is not None), None)
+        if u is not None:
+            out.append(u)
+    return out
+
+
+def compound_ultimate(result) -> dict | None:
+    """``compounds[].ultimate`` of ``compare --json``: per-specimen break properties and their statistics
+    (mean, sd, 95 % interval of the mean, Student t, n − 1; one specimen: scatter unknown); None when no
+    specimen ruptured."""
+    from .statistics import summarize
+
+    breaks = specimen_breaks(result)
+    if not breaks:
+        return None
+    return {"rule": RULE, "specimens": [u.to_dict() for u in breaks],
+            "statistics": {k: dict(summarize([getattr(u, a) for u in breaks]).to_dict(), label=lab, unit=unit)
+                           for k, (lab, unit, a) in QUANTITIES.items()}}
+
+
+def ultimate_differences(results, baseline: str | None) -> list[dict]:
+    """Each compound against the baseline on the break properties (Welch interval, verdict; one specimen on a
+    side: cannot judge) — :func:`network_models.statistics.verdict`."""
+    from .statistics import verdict
+
+    base = next((r for r in results if r.name == baseline), None)
+    if base is None:
+        return []
+    b = specimen_breaks(base)
+    out = []
+    for r in results:
+        if r is base:
+            continue
+        a = specimen_breaks(r)
+        if not a and not b:
+            continue
+        for k, (lab, unit, attr) in QUANTITIES.items():
+            d = verdict([getattr(u, attr) for u in a], [getattr(u, attr) for u in b]).to_dict()
+            d.update({"compound": r.name, "baseline": base.name, "quantity": k, "label": lab, "unit": unit})
+            out.append(d)
+    return out

@@ -76,3 +76,49 @@ def test_fit_json_reports_ultimate_and_fits_only_the_unbroken_part(tmp_path, cap
     by = {c["name"].split()[-1]: c for c in doc["curves"]}
     assert by["T-1"]["n"] == 41
     assert any("ruptured" in n for n in by["T-1"]["notices"])
+
+
+def _broken(specimen, peak_lam, g=G):
+    lam = np.round(np.arange(1.0, peak_lam + 0.55, 0.1), 4)
+    s = g * (lam - lam ** -2)
+    k = int(round((peak_lam - 1.0) / 0.1))
+    s[k + 1:] = 0.02 * s[k]  # broken right after the peak point
+    return split_at_rupture(TestCurve("uniaxial", lam, s, specimen=specimen))[0]
+
+
+def test_compare_gives_break_statistics_and_verdicts():
+    from scipy import stats
+
+    from network_models.compare import compare
+    from network_models.compounds import Compound
+
+    peaks_a, peaks_b = (5.0, 5.2, 4.8), (4.0, 4.1, 3.9)
+    a = Compound("A", [_broken(f"A-{i}", p) for i, p in enumerate(peaks_a)], baseline=True)
+    b = Compound("B", [_broken(f"B-{i}", p) for i, p in enumerate(peaks_b)])
+    doc = compare([a, b], model="neo-hookean", spread_models=()).to_dict()
+    ua = doc["compounds"][0]["ultimate"]
+    eb = [(p - 1.0) * 100.0 for p in peaks_a]
+    st = ua["statistics"]["elongation_at_break"]
+    assert st["n"] == 3 and st["mean"] == pytest.approx(np.mean(eb))
+    half = stats.t.ppf(0.975, 2) * np.std(eb, ddof=1) / np.sqrt(3)  # Student t, n − 1 (scipy.stats)
+    assert st["ci95"] == pytest.approx([np.mean(eb) - half, np.mean(eb) + half])
+    ts = [G * (p - p ** -2) for p in peaks_a]
+    assert ua["statistics"]["tensile_strength"]["mean"] == pytest.approx(np.mean(ts), rel=1e-9)
+    rows = {r["quantity"]: r for r in doc["ultimate_differences"]}
+    assert rows["elongation_at_break"]["verdict"] == "different"  # 100 % points apart, sd 10: plainly different
+    assert rows["elongation_at_break"]["absolute"] == pytest.approx(np.mean([(p - 1) * 100 for p in peaks_b])
+                                                                    - np.mean(eb))
+
+
+def test_report_sections_show_break_properties_and_escape_names():
+    from network_models.compare import compare
+    from network_models.compounds import Compound
+    from network_models.report.recipe_sections import recipes_html, ultimate_html
+
+    a = Compound("<b>A</b>", [_broken(f"A-{i}", p) for i, p in enumerate((5.0, 5.2, 4.8))], baseline=True,
+                 recipe={"NR": 100.0, "N330": 20.0})
+    cmp = compare([a], model="neo-hookean", spread_models=())
+    html = "".join(ultimate_html(cmp) + recipes_html(cmp))
+    assert "Break properties" in html and "Recipes (phr)" in html
+    assert "<b>A</b>" not in html and "&lt;b&gt;A&lt;/b&gt;" in html
+    assert "A-0 400" in html  # elongation at break of A-0: (5.0 − 1)·100 %

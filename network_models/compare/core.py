@@ -9,6 +9,7 @@ from ..constants import celsius
 from ..errors import Notice
 from ..models import MODELS, get_model
 from ..statistics import CANNOT_JUDGE, DIFFERENT, VERDICT_WORDING, combined_interval, verdict
+from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
 from .specimens import SPECIMEN_QUANTITIES, analyse_specimens, basis_label, row_key, specimen_table
@@ -233,6 +234,7 @@ class Comparison:
                            for s, why in d.items()],
             "compounds": [result_to_dict(r) for r in self.results],
             "differences": self.differences(),
+            "ultimate_differences": ultimate_differences(self.results, self.baseline),
         }
 
 
@@ -260,6 +262,7 @@ def result_to_dict(r: CompoundResult) -> dict:
         "crosslink_notes": r.crosslink_notes,
         "swelling": r.swelling_rows,
         "recipe": None if getattr(c, "recipe", None) is None else c.recipe.to_dict(),
+        "ultimate": compound_ultimate(r),
         "warnings": list(r.warnings) + [str(n) for n in getattr(c, "recipe_notices", [])],
     }
 

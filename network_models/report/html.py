@@ -22,7 +22,7 @@ from ..constants import CAUTION
 from ..errors import merge_notices
 from ..jsonio import dumps
 from ..models import get_model
-from . import sections, tables
+from . import recipe_sections, sections, tables
 from .charts import crosslink_bar_plot, curve_plots, service_plot
 from .text import esc as _e
 from .text import fmt
@@ -143,6 +143,7 @@ class Report:
         parts += self._params_html()
         parts += self._crosslink_html()
         parts += self._swelling_html()
+        parts += recipe_sections.recipes_html(self.cmp) + recipe_sections.ultimate_html(self.cmp)
         parts += self._warnings_html()
         parts += self._model_html()
         parts.append("<h2>Cautions</h2><ul>" + "".join(f"<li>{_e(x)}</li>" for x in CAUTIONS) + "</ul>")

@@ -1,0 +1,65 @@
+"""Report sections of issue #21: each compound's recipe (phr and the fractions derived from it) and the break
+properties of the specimens that ruptured (with the rupture rule).  Every user string is escaped."""
+
+from __future__ import annotations
+
+from ..ultimate import QUANTITIES, RULE, compound_ultimate, ultimate_differences
+from .text import esc as _e
+from .text import fmt
+
+
+def recipes_html(cmp) -> list[str]:
+    comps = [r.compound for r in cmp.results if getattr(r.compound, "recipe", None) is not None]
+    if not comps:
+        return []
+    out = ["<h2>Recipes (phr)</h2><table><tr><th>compound</th><th>recipe, phr</th><th>filler volume fraction φ</th>"
+           "<th>rubber volume fraction</th><th>insoluble mass fraction F</th></tr>"]
+    for c in comps:
+        r = c.recipe
+        phr = ", ".join(f"{_e(k)} {fmt(v)}" for k, v in r.phr.items())
+        out.append(f"<tr><td>{_e(c.name)}</td><td>{phr}</td><td class='num'>{fmt(r.filler_volume_fraction)}</td>"
+                   f"<td class='num'>{fmt(r.rubber_volume_fraction)}</td>"
+                   f"<td class='num'>{fmt(r.insoluble_mass_fraction)}</td></tr>")
+    out.append("</table><p><small>φ = Σ fillers (phr/ρ) / Σ all ingredients (phr/ρ); F = fillers plus insoluble "
+               "ingredients outside the network (Ellis–Welding swelling correction). The recipe wins over the "
+               "manifest's filler_volume_fraction, filler_phr and sulfur_phr.</small></p>")
+    notes = [str(n) for c in comps for n in getattr(c, "recipe_notices", [])]
+    if notes:
+        out.append("<ul class='warn'>" + "".join(f"<li>{_e(n)}</li>" for n in notes) + "</ul>")
+    return out
+
+
+def _unit(v, unit):
+    return (fmt(v / 1e6), "MPa") if unit == "Pa" and v is not None else (fmt(v), unit)
+
+
+def ultimate_html(cmp) -> list[str]:
+    rows = [(r, compound_ultimate(r)) for r in cmp.results]
+    rows = [(r, u) for r, u in rows if u]
+    if not rows:
+        return []
+    out = ["<h2>Break properties</h2><table><tr><th>compound</th><th>quantity</th><th>n</th><th>mean</th>"
+           "<th>95 % interval of the mean</th><th>specimens</th></tr>"]
+    for r, u in rows:
+        for k, (label, unit, _attr) in QUANTITIES.items():
+            st = u["statistics"][k]
+            mean, shown = _unit(st["mean"], unit)
+            ci = st["ci95"]
+            ci_txt = "scatter unknown (one specimen)" if ci is None else \
+                f"{_unit(ci[0], unit)[0]} – {_unit(ci[1], unit)[0]}"
+            key = {"tensile_strength": "tensile_strength_Pa", "elongation_at_break": "elongation_at_break_percent",
+                   "stress_at_break": "stress_at_break_Pa"}[k]
+            spec = ", ".join(f"{_e(s['specimen'])} {_unit(s[key], unit)[0]}" for s in u["specimens"])
+            out.append(f"<tr><td>{_e(r.name)}</td><td>{_e(label)} ({_e(shown)})</td><td class='num'>{st['n']}</td>"
+                       f"<td class='num'>{mean}</td><td class='num'>{ci_txt}</td><td><small>{spec}</small></td></tr>")
+    out.append("</table>")
+    diffs = ultimate_differences(cmp.results, cmp.baseline)
+    if diffs:
+        out.append("<table><tr><th>compound vs baseline</th><th>quantity</th><th>difference</th><th>verdict</th></tr>")
+        for d in diffs:
+            diff = "—" if d["absolute"] is None else _unit(d["absolute"], d["unit"])[0]
+            out.append(f"<tr><td>{_e(d['compound'])} vs {_e(d['baseline'])}</td><td>{_e(d['label'])}</td>"
+                       f"<td class='num'>{diff}</td><td>{_e(d['verdict'])}</td></tr>")
+        out.append("</table>")
+    out.append(f"<p><small>Nominal stress; elongation at break = (λ_b − 1)·100 %. {_e(RULE)}.</small></p>")
+    return out
