@@ -122,3 +122,12 @@ def test_report_sections_show_break_properties_and_escape_names():
     assert "Break properties" in html and "Recipes (phr)" in html
     assert "<b>A</b>" not in html and "&lt;b&gt;A&lt;/b&gt;" in html
     assert "A-0 400" in html  # elongation at break of A-0: (5.0 − 1)·100 %
+
+
+def test_chart_ticks_for_values_equal_up_to_rounding_do_not_hang():
+    # identical specimens fitted to the last bits: the tick loop's step fell below the float spacing and never
+    # advanced (found while writing the report test above)
+    from network_models.report.charts import nice_ticks
+
+    t = nice_ticks(0.5000000000001, 0.5000000000002)
+    assert 2 <= len(t) <= 12 and t[0] <= 0.5 <= t[-1]

@@ -36,6 +36,8 @@ def nice_ticks(lo: float, hi: float, n: int = 6) -> list[float]:
         return [0.0, 1.0]
     if hi <= lo:
         hi = lo + (abs(lo) or 1.0)
+    elif hi - lo <= 1e-9 * max(abs(lo), abs(hi)):  # equal up to rounding: a step below the float spacing hangs
+        lo, hi = lo - 0.05 * abs(lo), hi + 0.05 * abs(hi)
     raw = (hi - lo) / max(n - 1, 1)
     mag = 10 ** math.floor(math.log10(raw))
     step = next(m * mag for m in (1, 2, 2.5, 5, 10) if m * mag >= raw)
