@@ -26,7 +26,7 @@ from .design_targets import TargetError, parse_target
 from .statistics import CANNOT_JUDGE, combined_interval, summarize
 from .units import parse_quantity
 
-__all__ = ["MEETS", "FAILS", "UNCERTAIN", "SpecTarget", "judge", "parse_spec"]
+__all__ = ["FAILS", "MEETS", "UNCERTAIN", "SpecTarget", "judge", "judge_one", "parse_spec", "spec_lines"]
 
 MEETS, FAILS, UNCERTAIN = "meets", "fails", "uncertain"
 
@@ -51,21 +51,25 @@ def _break_spec(text):
         return None
     q, op, raw = m.group(1).upper(), m.group(2), m.group(3)
 
-    def val(s):
+    def val(s, unit=""):
         s = s.strip()
         if q == "EB":
-            if not s.endswith("%"):
-                raise TargetError(f"specification {text!r}: elongation at break is in %, e.g. EB>=450%")
-            return float(s[:-1].replace(",", "."))
-        return parse_quantity(s, "pressure")
+            s = s[:-1] if s.endswith("%") else s
+            try:
+                return float(s.replace(",", "."))
+            except ValueError:
+                raise TargetError(f"specification {text!r}: elongation at break is a number of %, e.g. EB>=450%") \
+                    from None
+        if unit and not re.search(r"[a-zA-Z/²]", s):
+            s += unit
+        return parse_quantity(s, "pressure", require_unit=True)
 
     if op == "=":
         if ".." not in raw:
-            raise TargetError(f"specification {text!r}: '=' needs a range, e.g. TS=18..24MPa")
+            raise TargetError(f"specification {text!r}: '=' needs a range, e.g. TS=18..24MPa or EB=400..600%")
         a, b = raw.split("..", 1)
-        unit = re.sub(r"^[-+0-9.,eE\s]+", "", b)
-        lo, hi = val(a + (unit if q == "TS" and not re.search(r"[a-zA-Z]", a) else "%" if q == "EB" and
-                          not a.strip().endswith("%") else "")), val(b)
+        unit = re.sub(r"^\s*[-+0-9.,eE]+\s*", "", b)
+        lo, hi = val(a, unit), val(b)
     elif op in (">=", "≥"):
         lo, hi = val(raw), None
     else:
@@ -153,3 +157,28 @@ def judge(results, texts) -> dict[str, list[dict]]:
     """``{compound name: [spec entries]}`` for every compound and specification text."""
     specs = [parse_spec(t) for t in texts or []]
     return {r.name: [judge_one(r, s) for s in specs] for r in results}
+
+
+def _shown(entry, v):
+    if v is None:
+        return "—"
+    unit = entry.get("unit_shown") or ""
+    scale = 1e-6 if unit == "MPa" else 1.0
+    return f"{v * scale:.4g}" + (f" {unit}" if unit else "")
+
+
+def spec_lines(cmp) -> list[str]:
+    """Plain-text lines for the specifications of a comparison (empty without any)."""
+    if not getattr(cmp, "specs", None):
+        return []
+    out = ["", "Specifications (the compound's 95 % interval of the mean, specimen scatter with fit error, against "
+               "the limits; specimens outside counted):"]
+    for name, rows in judge(cmp.results, cmp.specs).items():
+        for e in rows:
+            ci = e.get("ci95")
+            ci_txt = "" if not ci else f" [{_shown(e, ci[0])} – {_shown(e, ci[1])}]"
+            n_out = e.get("specimens_outside")
+            extra = "" if not e.get("n") else f"; {n_out} of {e['n']} specimen(s) outside"
+            out.append(f"  {name:10s} {e['target']:22s} {e['verdict']:13s} mean {_shown(e, e.get('mean'))}{ci_txt}"
+                       f"{extra}" + (f" ({e['reason']})" if e["verdict"] == CANNOT_JUDGE else ""))
+    return out

@@ -41,6 +41,10 @@ def _common(p):
                    help="unit stresses and moduli are shown in (tables, report; the CSV/JSON keep SI beside it)")
     p.add_argument("--density-unit", default="mol/m³", choices=DENSITY_UNITS,
                    help="unit strand and junction densities are shown in (mol/kg divides by the polymer density)")
+    p.add_argument("--spec", action="append", default=[], metavar="SPEC",
+                   help="a specification in the design-target grammar, judged per compound (meets / fails / "
+                        "uncertain / cannot judge), e.g. \"G=0.55..0.68MPa\", \"M100>=1.2MPa\", \"EB>=450%%\"; "
+                        "repeat it")
     p.add_argument("--no-model-spread", action="store_true",
                    help="skip fitting the other models for the model spread beside the headline (faster)")
 
@@ -113,12 +117,16 @@ def parse_exclusions(items) -> dict[str, dict[str, str]]:
 
 def _compare(args):
     from ..compare import compare
+    from ..specs import parse_spec
 
+    for text in getattr(args, "spec", []):  # a bad specification is refused before any fitting
+        parse_spec(text)
     comps, title, purpose, baseline, Ts = _load(args)
     cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts,
                   exclude=parse_exclusions(args.exclude), pool=args.pool,
                   spread_models=() if args.no_model_spread else None)
     apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit)
+    cmp.specs = list(getattr(args, "spec", []))
     return cmp, title, purpose
 
 
@@ -218,6 +226,9 @@ def run_compare(args):
         print(dumps(doc))
     else:
         print(summary(cmp))
+        from ..specs import spec_lines
+
+        print("\n".join(spec_lines(cmp)))
         print("\n" + CAUTION)
     return 0 if any(r.ok for r in cmp.results) else 2
 

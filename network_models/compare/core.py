@@ -8,6 +8,7 @@ from dataclasses import dataclass, field
 from ..constants import celsius
 from ..errors import Notice
 from ..models import MODELS, get_model
+from ..specs import judge as judge_specs
 from ..statistics import CANNOT_JUDGE, DIFFERENT, VERDICT_WORDING, combined_interval, verdict
 from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
@@ -130,6 +131,8 @@ class Comparison:
     exclusions: dict = field(default_factory=dict)
     #: the units stresses and densities are shown in (display_units.apply_to_comparison); values stay SI
     display_units: dict = field(default_factory=lambda: {"stress": "MPa", "density": "mol/m³"})
+    #: specifications in the design-target grammar, judged per compound (network_models.specs)
+    specs: list = field(default_factory=list)
 
     def to_frame(self):
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
@@ -221,6 +224,7 @@ class Comparison:
 
     def to_dict(self) -> dict:
         m = self.model_obj
+        spec_verdicts = judge_specs(self.results, self.specs)
         return {
             "model": {"name": m.name, "title": m.title, "equation": m.equation,
                       "references": list(m.references), "assumption": m.assumption},
@@ -232,7 +236,7 @@ class Comparison:
             "notes": list(self.notes),
             "exclusions": [{"compound": c, "specimen": s, "reason": why} for c, d in self.exclusions.items()
                            for s, why in d.items()],
-            "compounds": [result_to_dict(r) for r in self.results],
+            "compounds": [dict(result_to_dict(r), spec=spec_verdicts.get(r.name, [])) for r in self.results],
             "differences": self.differences(),
             "ultimate_differences": ultimate_differences(self.results, self.baseline),
         }

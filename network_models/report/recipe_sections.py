@@ -63,3 +63,26 @@ def ultimate_html(cmp) -> list[str]:
         out.append("</table>")
     out.append(f"<p><small>Nominal stress; elongation at break = (λ_b − 1)·100 %. {_e(RULE)}.</small></p>")
     return out
+
+
+def specs_html(cmp) -> list[str]:
+    from ..specs import judge
+
+    if not getattr(cmp, "specs", None):
+        return []
+    out = ["<h2>Specifications</h2><table><tr><th>compound</th><th>specification</th><th>verdict</th><th>n</th>"
+           "<th>mean</th><th>95 % interval of the mean</th><th>specimens outside</th><th>basis / reason</th></tr>"]
+    for name, rows in judge(cmp.results, cmp.specs).items():
+        for e in rows:
+            scale = 1e-6 if e.get("unit_shown") == "MPa" else 1.0
+            ci = e.get("ci95")
+            ci_txt = "—" if not ci else f"{fmt(ci[0] * scale)} – {fmt(ci[1] * scale)}"
+            mean = "—" if e.get("mean") is None else fmt(e["mean"] * scale)
+            out.append(f"<tr><td>{_e(name)}</td><td>{_e(e['target'])}</td><td>{_e(e['verdict'])}</td>"
+                       f"<td class='num'>{e.get('n', '—')}</td><td class='num'>{mean} {_e(e.get('unit_shown', ''))}"
+                       f"</td><td class='num'>{ci_txt}</td><td class='num'>{e.get('specimens_outside', '—')}</td>"
+                       f"<td><small>{_e(e.get('basis') or e.get('reason', ''))}</small></td></tr>")
+    out.append("</table><p><small>meets: the 95 % interval of the compound mean (specimen scatter with fit error) "
+               "lies inside the limits; fails: wholly outside; uncertain: it straddles a limit; cannot judge: one "
+               "specimen or a quantity the comparison does not measure.</small></p>")
+    return out
