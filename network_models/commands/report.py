@@ -41,6 +41,9 @@ def _common(p):
                    help="unit stresses and moduli are shown in (tables, report; the CSV/JSON keep SI beside it)")
     p.add_argument("--density-unit", default="mol/m³", choices=DENSITY_UNITS,
                    help="unit strand and junction densities are shown in (mol/kg divides by the polymer density)")
+    p.add_argument("--stretch-unit", default="stretch", choices=("stretch", "elongation"),
+                   help="show stretch-valued numbers as stretch λ (default) or as elongation %% — the locking "
+                        "stretch then reads as the elongation reserve (λ_lock − 1)·100 %%")
     p.add_argument("--spec", action="append", default=[], metavar="SPEC",
                    help="a specification in the design-target grammar, judged per compound (meets / fails / "
                         "uncertain / cannot judge), e.g. \"G=0.55..0.68MPa\", \"M100>=1.2MPa\", \"EB>=450%%\"; "
@@ -125,7 +128,8 @@ def _compare(args):
     cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts,
                   exclude=parse_exclusions(args.exclude), pool=args.pool,
                   spread_models=() if args.no_model_spread else None)
-    apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit)
+    apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit,
+                        stretch=getattr(args, "stretch_unit", "stretch"))
     cmp.specs = list(getattr(args, "spec", []))
     return cmp, title, purpose
 
@@ -154,7 +158,8 @@ def summary(cmp) -> str:
              "values are specimen means, [95 % interval] from specimen scatter with fit error", ""]
     su, du = cmp.display_units["stress"], cmp.display_units["density"]
     cols = (("G0", f"G₀ ({su})"), ("nu", f"ν ({du})"), ("mu_j", f"μ_j ({du})"), ("Mc", "M_c (g/mol)"),
-            ("N", "N"), ("lock", "λ_lock uniaxial"), ("ent_share", "entanglement (%)"),
+            ("N", "N"), ("lock", "λ_lock uniaxial"), ("lock_elongation", "elongation reserve (%)"),
+            ("ent_share", "entanglement (%)"),
             ("G0_service", f"G₀ at T_s ({su})"), ("M100_measured", f"M100 meas. ({su})"),
             ("M100_predicted", f"M100 fit ({su})"), ("M300_measured", f"M300 meas. ({su})"),
             ("M300_predicted", f"M300 fit ({su})"), ("nu_swelling", f"ν swelling ({du})"))

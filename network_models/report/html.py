@@ -38,7 +38,8 @@ CAUTIONS = (
 )
 
 #: quantities shown in the comparison table, in order
-TABLE_KEYS = ("G0", "nu", "mu_j", "Mc", "N", "lock", "ent_share", "G0_service", "M100_measured", "M100_predicted",
+TABLE_KEYS = ("G0", "nu", "mu_j", "Mc", "N", "lock", "lock_elongation", "ent_share", "G0_service", "M100_measured",
+              "M100_predicted",
               "M300_measured", "M300_predicted", "nu_swelling")
 
 
