@@ -131,3 +131,20 @@ def test_chart_ticks_for_values_equal_up_to_rounding_do_not_hang():
 
     t = nice_ticks(0.5000000000001, 0.5000000000002)
     assert 2 <= len(t) <= 12 and t[0] <= 0.5 <= t[-1]
+
+
+def test_test_conditions_travel_into_the_report(tmp_path):
+    from network_models.compare import compare
+    from network_models.compounds import load_compound
+    from network_models.report.recipe_sections import conditions_html
+
+    f = tmp_path / "c.csv"
+    lam = np.linspace(1.0, 3.0, 21)
+    f.write_text("# crosshead speed: 500 mm/min\n# die: type 2 <dumbbell>\n# test date: 2026-01-12\n"
+                 "# cycle: 1st loading\n# temperature: 23 °C\nstretch,stress (MPa)\n"
+                 + "".join(f"{a:.4f},{_neo(a) / 1e6:.6f}\n" for a in lam), "utf-8")
+    cmp = compare([load_compound("C", [f])], model="neo-hookean", spread_models=())
+    html = "".join(conditions_html(cmp))
+    for text in ("500 mm/min", "1st loading", "2026-01-12", "23.0 °C", "type 2 &lt;dumbbell&gt;"):
+        assert text in html
+    assert "not stated" in html  # the specimen type is not given

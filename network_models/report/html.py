@@ -138,6 +138,7 @@ class Report:
         parts += self._compounds_html()
         parts += self._specimens_html()
         parts += self._comparison_html()
+        parts += recipe_sections.conditions_html(self.cmp)
         parts += self._uncertainty_html()
         parts += self._plots_html()
         parts += self._provenance_html()

@@ -86,3 +86,21 @@ def specs_html(cmp) -> list[str]:
                "lies inside the limits; fails: wholly outside; uncertain: it straddles a limit; cannot judge: one "
                "specimen or a quantity the comparison does not measure.</small></p>")
     return out
+
+
+def conditions_html(cmp) -> list[str]:
+    """Test conditions per compound (network_models.conditions), placed beside the comparison they qualify."""
+    from ..conditions import FIELDS, compound_conditions
+
+    rows = [(r.name, g) for r in cmp.results for g in compound_conditions(r.compound)]
+    if not rows:
+        return []
+    out = ["<h3>Test conditions of these numbers</h3><table><tr><th>compound</th><th>curves (modes)</th>"
+           + "".join(f"<th>{_e(v)}</th>" for v in FIELDS.values()) + "</tr>"]
+    for name, g in rows:
+        cells = "".join(f"<td>{_e(g.get(k)) if g.get(k) else '<small>not stated</small>'}</td>" for k in FIELDS)
+        out.append(f"<tr><td>{_e(name)}</td><td class='num'>{g['curves']} ({_e(', '.join(g['modes']))})</td>{cells}"
+                   "</tr>")
+    out.append("</table><p><small>As stated in the files' metadata lines; compounds tested at different speeds, "
+               "cycles or temperatures are not strictly comparable.</small></p>")
+    return out
