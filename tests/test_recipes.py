@@ -164,3 +164,16 @@ def test_swell_cli_uses_the_compounds_recipe(capsys):
     assert doc["chi"]["value"] == 0.39  # the manifest's [swelling] χ
     assert main(args + ["--compound", "QM-S2"]) == 2  # --compound without --manifest: a user error
     assert "--manifest" in capsys.readouterr().err
+
+
+def test_swelling_tab_state_uses_the_recipe():
+    from app.swell_state import SwellState
+
+    st = SwellState()
+    assert st.load_sample("QM-S2")
+    assert st.insoluble == pytest.approx(5.0 / 109.6)  # ZnO 5 of 109.6 phr
+    est = st.estimate()
+    T, S = st.dry_g / 1000, st.swollen_g / 1000
+    D = st.extracted_g / 1000
+    assert est.phi_measured == pytest.approx(
+        _ew_by_hand(T, D, S, 5.0 / 109.6, 910.0, get_solvent("toluene").density), rel=1e-9)
