@@ -28,7 +28,7 @@ import numpy as np
 
 from .errors import UserError
 
-__all__ = ["Line", "dose_window", "fit_line", "ladder"]
+__all__ = ["LADDER_QUANTITIES", "Line", "dose_window", "find_ladders", "fit_line", "ladder", "ladder_fits"]
 
 
 @dataclasses.dataclass(frozen=True)
@@ -202,3 +202,53 @@ def dose_window(result, compounds, ingredient: str, fitter=None) -> dict:
         note = (note + "; " if note else "") + "the low edge is below zero phr: every dose down to 0 meets it"
     return out | {"low": lo, "high": hi, "extrapolated": extrap, "note": note,
                   "nu_window": [result.window.lo, result.window.hi]}
+
+
+# ---- in the comparison: every headline quantity against the dose ---------------------------------------------
+#: compared quantities fitted against the dose (key of CompoundResult.quantities → label)
+LADDER_QUANTITIES = {"nu": "strand density ν (headline basis)", "G0": "small-strain shear modulus G₀",
+                     "M100_measured": "M100 measured", "M300_measured": "M300 measured",
+                     "lock": "uniaxial locking stretch λ_lock"}
+
+
+def find_ladders(compounds) -> list[str]:
+    """Ingredients in which at least three compounds with recipes differ while everything else is equal."""
+    names = {}
+    for c in compounds:
+        r = getattr(c, "recipe", None)
+        if r is not None:
+            for n in r.phr:
+                names.setdefault(_key(n), n)
+    out = []
+    for n in names.values():
+        try:
+            rows, _left = ladder(compounds, n)
+        except UserError:
+            continue
+        if len(rows) >= 3 and len({d for _c, d in rows}) >= 3:
+            out.append(n)
+    return out
+
+
+def ladder_fits(results) -> list[dict]:
+    """For each ladder among compared compounds (``results``: CompoundResult list): each headline quantity's
+    compound means against the dose with a fitted line (slope, intercept and their standard errors)."""
+    by = {r.name: r for r in results if r.ok}
+    out = []
+    for ing in find_ladders([r.compound for r in by.values()]):
+        rows, left = ladder([r.compound for r in by.values()], ing)
+        qs = {}
+        for key, label in LADDER_QUANTITIES.items():
+            pts = [(d, by[c.name].quantities[key]) for c, d in rows if by[c.name].quantities.get(key) is not None
+                   and by[c.name].quantities[key].value is not None]
+            if len({d for d, _q in pts}) < 2:
+                continue
+            line = fit_line([d for d, _q in pts], [q.value for _d, q in pts])
+            qs[key] = {"label": label, "unit": pts[0][1].unit, "basis": pts[0][1].basis,
+                       "points": [{"phr": d, "value": q.value, "ci95": [q.low, q.high] if q.has_interval else None}
+                                  for d, q in pts],
+                       "line": dict(line.to_dict(), units={"slope": f"{pts[0][1].unit} per phr",
+                                                           "intercept": pts[0][1].unit})}
+        out.append({"ingredient": ing, "unit": "phr", "compounds": [c.name for c, _d in rows], "left_out": left,
+                    "form": "line", "quantities": qs})
+    return out

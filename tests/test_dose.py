@@ -82,3 +82,23 @@ def test_design_cli_dose_json(capsys):
     assert a["low"] == pytest.approx(b["low"], rel=1e-3) and a["high"] == pytest.approx(b["high"], rel=1e-3)
     assert [p["phr"] for p in a["ladder"]] == [1.0, 2.0, 3.0]
     assert main(["design", "--target", "G=0.5..0.6MPa", "--dose", "sulfur"]) == 2
+
+
+def test_compare_fits_each_headline_quantity_against_the_dose():
+    from network_models.compare import compare
+
+    cmp = compare(_ladder(), model="neo-hookean", spread_models=())
+    (lad,) = cmp.to_dict()["dose_ladders"]
+    assert lad["ingredient"] == "sulfur" and lad["compounds"] == ["L1", "L2", "L3", "L4"] and "B" in lad["left_out"]
+    g = lad["quantities"]["G0"]
+    assert g["line"]["slope"] == pytest.approx(S * R * T, rel=1e-4)  # G = (ν₀ + s·d) R T, by construction
+    assert g["line"]["intercept"] == pytest.approx(NU0 * R * T, rel=1e-4)
+    assert [p["phr"] for p in g["points"]] == [1.0, 2.0, 3.0, 4.0]
+
+
+def test_report_lists_the_ladder():
+    from network_models.compare import compare
+    from network_models.report.recipe_sections import ladders_html
+
+    html = "".join(ladders_html(compare(_ladder(), model="neo-hookean", spread_models=())))
+    assert "sulfur ladder" in html and "small-strain shear modulus" in html

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..constants import celsius
+from ..dose import ladder_fits
 from ..errors import Notice
 from ..models import MODELS, get_model
 from ..specs import judge as judge_specs
@@ -239,6 +240,7 @@ class Comparison:
             "compounds": [dict(result_to_dict(r), spec=spec_verdicts.get(r.name, [])) for r in self.results],
             "differences": self.differences(),
             "ultimate_differences": ultimate_differences(self.results, self.baseline),
+            "dose_ladders": ladder_fits(self.results),
         }
 
 

@@ -146,7 +146,7 @@ class Report:
         parts += self._crosslink_html()
         parts += self._swelling_html()
         parts += recipe_sections.recipes_html(self.cmp) + recipe_sections.ultimate_html(self.cmp)
-        parts += recipe_sections.specs_html(self.cmp)
+        parts += recipe_sections.specs_html(self.cmp) + recipe_sections.ladders_html(self.cmp)
         parts += self._warnings_html()
         parts += self._model_html()
         parts.append("<h2>Cautions</h2><ul>" + "".join(f"<li>{_e(x)}</li>" for x in CAUTIONS) + "</ul>")

@@ -104,3 +104,25 @@ def conditions_html(cmp) -> list[str]:
     out.append("</table><p><small>As stated in the files' metadata lines; compounds tested at different speeds, "
                "cycles or temperatures are not strictly comparable.</small></p>")
     return out
+
+
+def ladders_html(cmp) -> list[str]:
+    """Each dose ladder among the compounds: every headline quantity against the dose, with its line."""
+    from ..dose import ladder_fits
+
+    lads = ladder_fits(cmp.results)
+    if not lads:
+        return []
+    out = ["<h2>Dose ladders</h2>"]
+    for lad in lads:
+        out.append(f"<p>{_e(lad['ingredient'])} ladder: {_e(', '.join(lad['compounds']))} (straight line, least "
+                   "squares over the compound means; slope ± standard error, n − 2 dof)</p><table><tr><th>quantity"
+                   "</th><th>unit</th><th>points (phr: value)</th><th>slope per phr</th><th>intercept</th></tr>")
+        for q in lad["quantities"].values():
+            ln = q["line"]
+            se = "" if ln["slope_se"] is None else f" ± {fmt(ln['slope_se'])}"
+            pts = ", ".join(f"{fmt(p['phr'])}: {fmt(p['value'])}" for p in q["points"])
+            out.append(f"<tr><td>{_e(q['label'])}</td><td>{_e(q['unit'])}</td><td>{pts}</td>"
+                       f"<td class='num'>{fmt(ln['slope'])}{se}</td><td class='num'>{fmt(ln['intercept'])}</td></tr>")
+        out.append("</table>")
+    return out
