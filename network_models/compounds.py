@@ -152,7 +152,7 @@ class Compound:
             if not isinstance(self.recipe, Recipe):
                 self.recipe = Recipe.from_phr(self.recipe, where=f"compound {self.name!r}: recipe")
             if not self.recipe_notices:
-                self.recipe_notices = recipe_notices(self.recipe, self.metadata, self.name)
+                self.recipe_notices = recipe_notices(self.recipe, self.metadata, self.name, self.polymer)
 
     def swelling_options(self) -> dict:
         """Keyword arguments for :meth:`SwellingTest.estimate` from the recipe (Ellis–Welding insoluble fraction

@@ -104,9 +104,6 @@ def ingredient_row(name, r, origin, base: Ingredient | None = None) -> Ingredien
     kind = r.get("kind", base.kind if base else None)
     if kind not in KINDS:
         _fail(origin, f"kind must be one of {' | '.join(KINDS)}; got {kind!r}", name, "kind")
-    if kind == "polymer":
-        _fail(origin, "polymers are rows of the polymer table (polymers.toml or --polymers FILE), where their "
-                      "density lives; name the polymer's key in the recipe", name, "kind")
     if "density_g_cm3" in r:
         d = r["density_g_cm3"]
         if isinstance(d, bool) or not isinstance(d, (int, float)) or not math.isfinite(d):
@@ -241,7 +238,10 @@ class Recipe:
             if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
                 raise DataError(f"{where}: {name} = {v!r}: phr must be a number ≥ 0", kind="recipe")
             clean[str(name)] = float(v)
-            items[str(name)] = get_ingredient(name, extra)
+            try:
+                items[str(name)] = get_ingredient(name, extra)
+            except DataError as exc:
+                raise DataError(f"{where}: {exc}", kind="recipe") from None
         if not any(items[n].kind == "polymer" and clean[n] > 0 for n in clean):
             raise DataError(f"{where}: the recipe names no polymer (a key of the polymer table such as NR or SBR); "
                             "phr are parts per hundred of rubber, so the polymer must be in it", kind="recipe")
@@ -321,10 +321,16 @@ class Recipe:
         }
 
 
-def recipe_notices(recipe: Recipe, metadata: dict, who: str) -> list[Notice]:
+def recipe_notices(recipe: Recipe, metadata: dict, who: str, polymer: str | None = None) -> list[Notice]:
     """Notices where the manifest's older fields (``filler_volume_fraction``, ``filler_phr``, ``sulfur_phr``)
-    disagree with the recipe, which wins."""
+    disagree with the recipe, which wins; and when the compound's polymer is not among the recipe's polymers."""
     out = []
+    if polymer and recipe.polymers and _norm(polymer) not in {_norm(p) for p in recipe.polymers} \
+            and all(recipe.items[n].origin == "polymer table" for n in recipe.phr if recipe.items[n].kind == "polymer"):
+        names = ", ".join(recipe.polymers)
+        out.append(Notice(f"{who}: the compound's polymer {polymer} is not in its recipe ({names}); the "
+                          "polymer table row of the compound is used for the chain constants and χ, the recipe's "
+                          "for the densities", "recipe-disagrees", who))
 
     def num(k):
         try:

@@ -177,3 +177,14 @@ def test_swelling_tab_state_uses_the_recipe():
     D = st.extracted_g / 1000
     assert est.phi_measured == pytest.approx(
         _ew_by_hand(T, D, S, 5.0 / 109.6, 910.0, get_solvent("toluene").density), rel=1e-9)
+
+
+def test_polymer_grade_row_and_polymer_mismatch_notice():
+    extra = ingredient_rows([{"name": "SMR-10", "kind": "polymer", "density_g_cm3": 0.92}], "test")
+    r = Recipe.from_phr({"SMR-10": 100.0, "N330": 50.0}, extra)
+    assert r.polymer_density == pytest.approx(920.0)
+    assert r.filler_volume_fraction == pytest.approx((50 / 1.8) / (100 / 0.92 + 50 / 1.8))
+    c = Compound("X", polymer="NR", recipe={"SBR": 100.0})
+    assert any("not in its recipe" in n for n in c.recipe_notices)
+    with pytest.raises(DataError, match="compound 'Y'.*unobtainium"):
+        Compound("Y", recipe={"NR": 100.0, "unobtainium": 1.0})
