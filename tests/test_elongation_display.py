@@ -30,3 +30,19 @@ def test_lock_reads_as_elongation_reserve():
     assert (e.value, e.low, e.high) == pytest.approx(((6.2 - 1) * 100, (5.8 - 1) * 100, (6.7 - 1) * 100))
     assert e.unit == "%" and "reserve" in e.label and cmp.display_units["stretch"] == "elongation"
     assert r.quantities["lock"].value == 6.2  # the stretch stays; the reserve is beside it
+
+
+def test_report_curve_axes_in_elongation():
+    import numpy as np
+
+    from network_models.compare import compare
+    from network_models.compounds import Compound
+    from network_models.curves import TestCurve
+    from network_models.report.charts import curve_plots
+
+    lam = np.linspace(1.0, 3.0, 21)
+    c = Compound("A", [TestCurve("uniaxial", lam, 0.5e6 * (lam - lam ** -2), specimen=f"A-{i}") for i in range(2)])
+    cmp = apply_to_comparison(compare([c], model="neo-hookean", spread_models=()), stretch="elongation")
+    (_mode, svg), = curve_plots(cmp)
+    assert "elongation (%)" in svg and "stretch λ" not in svg
+    assert ">200<" in svg  # λ = 3 is 200 % elongation: the axis reaches it
