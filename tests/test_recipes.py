@@ -188,3 +188,16 @@ def test_polymer_grade_row_and_polymer_mismatch_notice():
     assert any("not in its recipe" in n for n in c.recipe_notices)
     with pytest.raises(DataError, match="compound 'Y'.*unobtainium"):
         Compound("Y", recipe={"NR": 100.0, "unobtainium": 1.0})
+
+
+def test_recipe_disagreement_reaches_the_comparison_notes():
+    import numpy as np
+
+    from network_models.compare import compare
+    from network_models.curves import TestCurve
+
+    lam = np.linspace(1.0, 2.5, 16)
+    c = Compound("X", [TestCurve("uniaxial", lam, 0.5e6 * (lam - lam ** -2), specimen=f"X-{i}") for i in range(2)],
+                 metadata={"filler_volume_fraction": 0.3}, recipe={"NR": 100.0, "N330": 30.0})
+    cmp = compare([c], model="neo-hookean", spread_models=())
+    assert any("disagrees with the recipe" in str(n) for n in cmp.notes)

@@ -338,6 +338,7 @@ def _notes(compounds, results) -> list:
         notes.append("Filled compounds: ν is given with the filler reinforcement taken out by the Guth–Gold factor "
                      "where the filler volume fraction is known; Guth–Gold holds for well-dispersed, weakly "
                      "reinforcing filler at modest φ, so for carbon black treat ν as an estimate.")
+    notes.extend(n for c in compounds for n in getattr(c, "recipe_notices", []))  # the recipe wins (issue #21)
     judged = [r for r in results if r.ok and r.n < 2]
     if judged:
         notes.append(Notice(f"{', '.join(r.name for r in judged)}: fewer than two specimens — verdicts against them "
