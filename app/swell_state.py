@@ -71,6 +71,9 @@ class SwellState(param.Parameterized):
                 self.polymer = comp.polymer
                 self.filler = comp.filler_fraction
                 self.insoluble = None
+                chi = man.swelling_info.get("chi")
+                if isinstance(chi, (int, float)) and not isinstance(chi, bool):
+                    self.chi = float(chi)  # the manifest's χ (the one its swelling data were read with)
                 if isinstance(comp.info.get("recipe"), dict):  # the recipe wins (issue #21): φ and F from it
                     from network_models.recipes import Recipe
 

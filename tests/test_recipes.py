@@ -172,6 +172,8 @@ def test_swelling_tab_state_uses_the_recipe():
     st = SwellState()
     assert st.load_sample("QM-S2")
     assert st.insoluble == pytest.approx(5.0 / 109.6)  # ZnO 5 of 109.6 phr
+    assert st.chi == 0.39  # the manifest's [swelling] χ, not the solvent table's
+    assert st.estimate().nu_affine == pytest.approx(145.0, rel=0.04)  # generated at 140 ± ~2 % per specimen
     est = st.estimate()
     T, S = st.dry_g / 1000, st.swollen_g / 1000
     D = st.extracted_g / 1000

@@ -57,6 +57,8 @@ class ManifestIndex:
     swelling: Path | None = None
     force_temperature: list[Path] = field(default_factory=list)
     info: dict = field(default_factory=dict)
+    #: the [swelling] table's other keys (solvent, chi, note): the manifest's χ wins over the solvent table's
+    swelling_info: dict = field(default_factory=dict)
 
     def __getitem__(self, key: str) -> ManifestEntry:
         for c in self.compounds:
@@ -127,4 +129,6 @@ def manifest_index(raw: dict, p: Path) -> ManifestIndex:
         swelling=base / raw["swelling"]["path"] if "swelling" in raw else None,
         force_temperature=[base / r["path"] for r in raw.get("force_temperature", [])],
         info=scen,
+        swelling_info={k: v for k, v in raw.get("swelling", {}).items() if k != "path"}
+        if isinstance(raw.get("swelling"), dict) else {},
     )
