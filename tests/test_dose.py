@@ -102,3 +102,4 @@ def test_report_lists_the_ladder():
 
     html = "".join(ladders_html(compare(_ladder(), model="neo-hookean", spread_models=())))
     assert "sulfur ladder" in html and "small-strain shear modulus" in html
+    assert "<svg" in html and "sulfur (phr)" in html  # the ladder is plotted

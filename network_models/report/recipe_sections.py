@@ -125,4 +125,25 @@ def ladders_html(cmp) -> list[str]:
             out.append(f"<tr><td>{_e(q['label'])}</td><td>{_e(q['unit'])}</td><td>{pts}</td>"
                        f"<td class='num'>{fmt(ln['slope'])}{se}</td><td class='num'>{fmt(ln['intercept'])}</td></tr>")
         out.append("</table>")
+        out.append(ladder_chart(lad))
     return out
+
+
+def ladder_chart(lad) -> str:
+    """Strand density (headline basis) of each ladder compound against the dose, with the fitted line (SVG)."""
+    import numpy as np
+
+    from .charts import PALETTE, svg_line_chart
+
+    q = lad["quantities"].get("nu") or next(iter(lad["quantities"].values()), None)
+    if q is None:
+        return ""
+    x = np.array([p["phr"] for p in q["points"]], float)
+    y = np.array([p["value"] for p in q["points"]], float)
+    grid = np.linspace(0.0, float(x.max()) * 1.15, 50)
+    ln = q["line"]
+    series = [{"label": "compound means", "x": x, "y": y, "color": PALETTE[0], "style": "markers"},
+              {"label": "fitted line", "x": grid, "y": ln["intercept"] + ln["slope"] * grid, "color": PALETTE[1],
+               "style": "line"}]
+    return svg_line_chart(series, f"{lad['ingredient']} (phr)", f"{q['label']} ({q['unit']})",
+                          f"Dose ladder: {q['label']} against {lad['ingredient']}", x0=0.0, y0=None)
