@@ -109,11 +109,16 @@ def fmt(x, nd):
 
 # ---------------------------------------------------------------------------------------------------
 
+#: the tensile test conditions written into the uniaxial dumbbell files (invented; the report shows them)
+TEST_CONDITIONS = ("specimen type: dumbbell (invented)", "die: type 2 (invented)", "crosshead speed: 500 mm/min",
+                   "test date: 2026-01-12 (invented)")
+
+
 def uniaxial_s1(rng) -> str:
     """Stretch and stress in MPa, three specimens in one file with a specimen column."""
     out = [header([
         "compound: QM-S1", "mode: uniaxial", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
-        "test piece: dumbbell, 500 mm/min (invented)",
+        *TEST_CONDITIONS,
     ]), "specimen,stretch,stress (MPa)\n"]
     for k, factor in enumerate(SPECIMEN_FACTORS["QM-S1"], start=1):
         lam = np.linspace(1.0, 7.5, 60)
@@ -177,7 +182,7 @@ def uniaxial_s2a(k: int):
         factor = SPECIMEN_FACTORS["QM-S2A"][k - 1]
         out = [header([
             "compound: QM-S2A", f"specimen: A-{k}", "mode: uniaxial", "temperature: 23 °C",
-            "cycle: 1st loading, virgin specimen", "test piece: dumbbell, 500 mm/min (invented)",
+            "cycle: 1st loading, virgin specimen", *TEST_CONDITIONS,
         ]), "stretch,stress (MPa)\n"]
         lam = np.linspace(1.0, 7.0, 56)
         s = noisy(rng, nominal("QM-S2A", "uniaxial", lam, specimen=factor))
