@@ -2,7 +2,7 @@
 # Wheel smoke check (run by .ci/run, not by `make test`): build the wheel, install it into a fresh virtual
 # environment in a temporary folder OUTSIDE the checkout, and use it there as a new user would:
 #   netstretch --version; netstretch samples DIR; netstretch compare --manifest DIR/compounds.toml --json
-#   (one JSON object); netstretch batch DIR with 1 and 2 processes (identical files); netstretch serve on a free
+#   (one JSON object); netstretch library import + trend on the QC history; netstretch batch DIR with 1 and 2 processes (identical files); netstretch serve on a free
 #   localhost port, page fetched, log free of tracebacks/errors.
 # Usage: bash .ci/wheel_smoke.sh [PYTHON]   (default python3; the wheel is built with that interpreter's pip)
 set -euo pipefail
@@ -41,6 +41,18 @@ import json, sys
 doc = json.loads(open(sys.argv[1], encoding="utf-8").read())
 assert isinstance(doc, dict), f"compare --json printed a {type(doc).__name__}, not a JSON object"
 print(f"[wheel] compare --json: an object with keys {sorted(doc)[:6]}")
+EOF
+
+# the results library from the wheel (its Alembic migrations are package data): import the QC history, trend it
+"$WORK/venv/bin/netstretch" library import --manifest "$WORK/samples/qc_history/qc_history.toml" \
+    --db "$WORK/library.sqlite" >/dev/null
+"$WORK/venv/bin/netstretch" library trend --db "$WORK/library.sqlite" --compound-prefix QM-M7 --json > "$WORK/trend.json"
+"$VPY" - "$WORK/trend.json" <<'EOF'
+import json, sys
+doc = json.loads(open(sys.argv[1], encoding="utf-8").read())
+flagged = [p["compound"] for p in doc["points"] if p["out_of_control"]]
+assert len(doc["points"]) == 16 and flagged == ["QM-M7-B13"], (len(doc["points"]), flagged)
+print(f"[wheel] library: 16 batches imported, trend flags {flagged}")
 EOF
 
 # batch over the written samples, one process and two: the same result file, unreadable files listed

@@ -38,7 +38,7 @@ def build_compound(data: DataState, name: str, files=None):
     meta["filler_volume_fraction"] = float(info.filler)
     meta.setdefault("source", ", ".join(f.name for f in files))
     return Compound(name, curves, swelling=list(info.swelling), metadata=meta, polymer=info.polymer,
-                    f=float(info.f), notes=info.notes)
+                    f=float(info.f), notes=info.notes, recipe=getattr(info, "recipe", None))
 
 
 def compare_compounds(compounds: list, model: str, baseline: str | None, service_K: float | None):
@@ -89,9 +89,11 @@ class CompareState(param.Parameterized):
     computed_with = param.Parameter(default=None, doc="the inputs the last comparison was computed with")
     scenario = param.String(default="")
 
-    def __init__(self, data: DataState | None = None, **params):
+    def __init__(self, data: DataState | None = None, study_source=None, **params):
         super().__init__(**params)
         self.data = data if data is not None else DataState()
+        #: the session's ``Session.study`` (set by the session): the comparison is the study's, cached there
+        self.study_source = study_source
         self.data.param.watch(lambda *e: self._sync(), ["compounds"])
         self._sync()
 
@@ -127,9 +129,16 @@ class CompareState(param.Parameterized):
     def run(self):
         if not self.chosen:
             raise ValueError("choose at least one compound to compare")
-        comps = [build_compound(self.data, n) for n in self.chosen]
-        base = self.baseline if self.baseline in self.chosen else None
-        cmp = compare_compounds(comps, self.model, base, self.service_C + ZERO_CELSIUS)
+        if self.study_source is not None:
+            st = self.study_source()
+            missing = [n for n in self.chosen if n not in st.names]
+            if missing:
+                raise ValueError(f"compound {missing[0]!r} has no test curves; upload its files in 'Test data & fits'")
+            cmp = st.comparison()
+        else:
+            comps = [build_compound(self.data, n) for n in self.chosen]
+            base = self.baseline if self.baseline in self.chosen else None
+            cmp = compare_compounds(comps, self.model, base, self.service_C + ZERO_CELSIUS)
         with param.parameterized.batch_call_watchers(self):
             self.computed_with = self.inputs()
             self.comparison = cmp
@@ -153,7 +162,7 @@ class CompareState(param.Parameterized):
                                     detected_mode=c.curves[0].mode.value if c.curves else "uniaxial"))
             infos[name] = CompoundInfo(polymer=c.polymer, f=float(c.f), filler=float(c.filler_fraction),
                                        notes=c.notes, metadata=dict(c.metadata), swelling=list(c.swelling))
-        self.data._set_files(files, compounds=infos)
+        self.data.set_files(files, compounds=infos)
         with param.parameterized.batch_call_watchers(self):
             if chosen is not None:
                 self.chosen = [n for n in chosen if n in self.param.chosen.objects]

@@ -27,7 +27,34 @@ from .ui import Deferred, html
 
 log = logging.getLogger("netstretch.app")
 
-DOWNLOADS = (("html", "Download report (HTML)", 230), ("csv", "CSV", 90), ("json", "JSON", 90))
+#: the report's downloads (kind, label, width): the same files `netstretch report` writes; the PDF only where a
+#: Chromium is installed (:func:`network_models.report.pdf.find_chromium`), the charts as one zip of SVGs
+DOWNLOADS = (("html", "Download report (HTML)", 200), ("pdf", "PDF", 64), ("xlsx", "Excel (xlsx)", 110),
+             ("csv", "CSV", 64), ("json", "JSON", 64), ("svg", "Charts (SVG, zip)", 150))
+_STEM_CHARS = 60
+
+
+def study_stem(title: str = "", default_title: str = "", compounds=(), fallback: str = "review") -> str:
+    """A file name (no suffix) for the study's downloads: the report title when one was given (the sample
+    set's title is put there), else the compared compounds' keys, else ``fallback``; ASCII letters, digits,
+    '.', '_' and '-' only (user text never reaches the file system or a header as typed), at most 60 characters,
+    cut at a word."""
+    import re
+    import unicodedata
+
+    def slug(text: str) -> str:
+        text = unicodedata.normalize("NFKD", str(text)).encode("ascii", "ignore").decode("ascii")
+        text = re.sub(r"\([^)]*\)", " ", text)  # "(invented for demonstration)" and the like: not in a name
+        text = re.sub(r"[^A-Za-z0-9._]+", "-", text).strip("-._")
+        if len(text) > _STEM_CHARS:
+            text = text[:_STEM_CHARS].rsplit("-", 1)[0]
+        return text
+
+    t = (title or "").strip()
+    stem = slug(t) if t and t != default_title else ""
+    if not stem:
+        stem = slug("_".join(str(c) for c in compounds))
+    return stem or fallback
 
 
 class CompareView(pn.viewable.Viewer):
@@ -52,11 +79,17 @@ class CompareView(pn.viewable.Viewer):
                                                        placeholder="e.g. choose the cure dose for the mount")
         self.run_btn = pn.widgets.Button(name="Compare", button_type="primary", width=140, css_classes=["ns-cmp-run"])
         self.run_btn.on_click(lambda e: self._run())
+        from network_models.report.pdf import find_chromium
+
         self.downloads = {
             kind: pn.widgets.FileDownload(callback=(lambda k=kind: self._file(k)), filename=f"review.{kind}",
                                           label=label, width=w, css_classes=[f"ns-cmp-dl-{kind}"],
                                           button_type="success" if kind == "html" else "default")
             for kind, label, w in DOWNLOADS}
+        #: no Chromium on this server: no PDF button (the HTML prints to PDF from any browser)
+        self.downloads["pdf"].visible = bool(find_chromium())
+        #: Chromium prints in a worker thread: the server's event loop (every session) goes on meanwhile
+        self.downloads["pdf"].callback = self._pdf_file
         self.stale_note = html("", css_classes=["ns-cmp-stale"])
         self.stale_results = html("", css_classes=["ns-cmp-stale-results"])
         # the compound editor: recipe facts of one compound of the store
@@ -96,7 +129,7 @@ class CompareView(pn.viewable.Viewer):
         self._add = guarded(self.messages, "compare-upload", "New compound")(self._add)
         self._file = guarded(self.messages, "compare-download", "Download")(self._file)
         self._save_compound = guarded(self.messages, "compare-edit", "Compound")(self._save_compound)
-        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison"])
+        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title"])
         self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
         self._on_store()
@@ -144,10 +177,12 @@ class CompareView(pn.viewable.Viewer):
     def _mark(self):
         """Say 'out of date' on the results and the downloads whenever an input changed since Compare."""
         stale = self.state.stale
+        stem = self.file_stem()
         for kind, label, _w in DOWNLOADS:
             dl = self.downloads[kind]
             dl.disabled = stale or self.state.comparison is None
             dl.label = STALE.capitalize() if stale and kind == "html" else label
+            dl.filename = f"{stem}_charts.zip" if kind == "svg" else f"{stem}.{kind}"
         if stale and self.messages.kinds().get("compare") == "success":
             self.messages.clear("compare")  # "Compared …" no longer describes what is shown
         self.stale_note.object = (
@@ -175,6 +210,10 @@ class CompareView(pn.viewable.Viewer):
                                            "press Compare.", "success")
 
     # ----- actions ---------------------------------------------------------------------------------------
+    def run(self):
+        """Compare now (what the Compare button does); the page calls it once for the sample set."""
+        return self._run()
+
     def _run(self):
         self.run_btn.loading = True
         try:
@@ -241,10 +280,75 @@ class CompareView(pn.viewable.Viewer):
                                              f"curve(s); {esc(recipe.polymer)}, f = {recipe.f:g}, φ = "
                                              f"{recipe.filler:g} — change them above); press Compare.", "success")
 
+    def file_stem(self) -> str:
+        """The downloads' file name: the study's title (the manifest's, or the one typed), else the compounds."""
+        s = self.state
+        cmp = s.comparison
+        names = [r.name for r in cmp.results] if cmp is not None and hasattr(cmp, "results") else list(s.chosen)
+        return study_stem(s.title, s.param.title.default, names)
+
     def _file(self, kind: str):
-        rep = self.state.report()
+        """One download of the current (not stale) comparison's report; the same files `netstretch report`
+        writes (report.write), made in memory."""
+        rep = self.state.report()  # refuses while stale
+        if kind == "pdf":
+            from network_models.report.pdf import pdf_bytes
+
+            data = pdf_bytes(rep.to_html(), how="download the HTML and print it to PDF from a browser (A4 portrait)")
+            return io.BytesIO(data)
+        if kind == "xlsx":
+            from network_models.report.html import write_xlsx
+
+            buf = io.BytesIO()
+            write_xlsx(rep.to_csv(), buf)
+            buf.seek(0)
+            return buf
+        if kind == "svg":
+            return io.BytesIO(self._charts_zip(rep.to_html()))
         text = {"html": rep.to_html, "csv": rep.to_csv, "json": rep.to_json}[kind]()
         return io.BytesIO(text.encode("utf-8"))
+
+    async def _pdf_file(self):
+        """The PDF download, printed off the event loop; a refusal or failure is a sentence beside the
+        buttons (as for the other downloads), never a traceback."""
+        import asyncio
+        import html as _html
+
+        from network_models.report.pdf import pdf_bytes
+
+        key = "compare-download"
+        self.messages.clear(key)
+        try:
+            text = self.state.report().to_html()  # refuses while stale
+            data = await asyncio.to_thread(pdf_bytes, text, "download the HTML and print it to PDF from a browser "
+                                                            "(A4 portrait)")
+        except (ValueError, OSError) as exc:
+            self.messages.show(key, f"**Download:** {_html.escape(str(exc), quote=False)}", "warning")
+            return None
+        except Exception as exc:
+            log.exception("PDF download")
+            self.messages.show(key, f"**Download:** an unexpected problem occurred ({type(exc).__name__}); the "
+                                    "HTML download prints to PDF from any browser.", "danger")
+            return None
+        return io.BytesIO(data)
+
+    def _charts_zip(self, html_text: str) -> bytes:
+        """Every chart of the report as its own SVG file (report.write_charts' names), in one zip."""
+        import tempfile
+        import zipfile
+        from pathlib import Path
+
+        from network_models.report.html import write_charts
+
+        buf = io.BytesIO()
+        with tempfile.TemporaryDirectory(prefix="netstretch-charts-") as tmp:
+            files = write_charts(html_text, Path(tmp) / "charts")
+            if not files:
+                raise ValueError("the report has no charts to download")
+            with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED) as z:
+                for f in files:
+                    z.write(f, f"{self.file_stem()}_charts/{f.name}")
+        return buf.getvalue()
 
     # ----- layout ----------------------------------------------------------------------------------------
     def _build(self):
@@ -254,14 +358,15 @@ class CompareView(pn.viewable.Viewer):
             "locking stretch, entanglement share, G₀ at the service temperature (G ∝ T at a fixed network — "
             "filled compounds often soften with temperature in reality), M100/M300 measured and predicted, and "
             "swelling where given. Compounds are the session's files grouped by compound (files uploaded in "
-            "'Test data &amp; fits' appear here). The download is one self-contained HTML file (opens offline); "
-            "CSV and JSON hold every number.</div>")
+            "'Test data &amp; fits' appear here). The report is one self-contained HTML file (opens offline), "
+            "also as PDF where the server has Chromium; Excel, CSV and JSON hold every number, the zip every chart "
+            "as SVG. Files are named after the study.</div>")
         dl = self.downloads
         choose = pn.Column(
             html("<div class='ns-side-h'>Compounds</div>"), self.chosen,
             pn.Row(self.baseline, self.model, self.service, sizing_mode="stretch_width"),
             self.title, self.purpose,
-            pn.Row(self.run_btn, dl["html"], dl["csv"], dl["json"]), self.stale_note, self.messages,
+            pn.Row(self.run_btn, *(dl[k] for k, _label, _w in DOWNLOADS)), self.stale_note, self.messages,
             sizing_mode="stretch_width")
         edit = pn.Card(
             self.compounds_html,

@@ -1,9 +1,11 @@
-"""The session's data store (files, compounds) and the fit view's state — no Panel import.
+"""The session's file store and the fit view's state, as two classes — no Panel import.
 
-One :class:`DataState` per browser session is the one store every tab reads: the files the user loaded
-(bytes kept so per-file settings can re-read them and a project file can hold them), the compound each file
-belongs to with that compound's polymer, functionality and filler (:class:`CompoundInfo`), the files
-chosen for the fit, the fit results and the crosslink table.  A file that cannot be read raises a
+:class:`FileStore` is the one store every tab reads: the files the user loaded (bytes kept so per-file
+settings can re-read them and a project file can hold them) and the compound each file belongs to with that
+compound's polymer, functionality and filler (:class:`CompoundInfo`).  :class:`DataState` extends it with the
+fit tab's state: the files chosen for the fit, the models, the weighting, the fit results and the crosslink
+table (one object per session still carries both, so the views' watchers keep working; the session's
+``store`` names the store role).  A file that cannot be read raises a
 ``ValueError`` whose message names the file and what to do; the state is left exactly as it was.
 """
 
@@ -21,6 +23,7 @@ import numpy as np
 import param
 
 from network_models import MODELS, MODES, Mode, get_model, polymers
+from network_models.fitting import DEFAULT_RESIDUAL, RESIDUALS
 
 from . import shared  # process-level read-only sample cache (app/shared.py)
 from .state import DATA_COLOURS, model_colour
@@ -56,6 +59,7 @@ class CompoundInfo:
     notes: str = ""
     metadata: dict = field(default_factory=dict)
     swelling: list = field(default_factory=list)  # network_models.compounds.SwellingTest
+    recipe: object = None  # network_models.recipes.Recipe from the manifest's [compound.recipe], or None
 
 
 def compound_from_filename(filename: str, curves=()) -> str:
@@ -121,25 +125,27 @@ def _digest(data: bytes) -> str:
     return hashlib.sha1(data).hexdigest()[:12]
 
 
-class DataState(param.Parameterized):
-    """Loaded test files, fit choices and results of one session."""
+class FileStore(param.Parameterized):
+    """The session's file store — the one place every tab reads files and compounds from: the loaded files
+    (bytes kept, so per-file settings can re-read them and a project file can hold them), the compound each
+    file belongs to with that compound's recipe facts (:class:`CompoundInfo`), a revision counter and the
+    sample set's title/baseline.  No fit state: :class:`DataState` adds the fit tab's (selection, models,
+    weighting, results) on top, through the two hooks ``_select`` and ``_default_info``."""
 
     files = param.List(default=[], item_type=LoadedFile, doc="loaded files, in load order")
     compounds = param.Dict(default={}, doc="compound name -> CompoundInfo (every compound a file belongs to)")
     revision = param.Integer(default=0, doc="counts every change of files or compounds (for stale marks)")
-    selected = param.ListSelector(default=[], objects=[], label="Files in the fit")
-    fit_models = param.ListSelector(default=list(DEFAULT_FIT_MODELS), objects=list(MODELS), label="Models to fit")
-    residual = param.Selector(default="relative", objects=["relative", "absolute"], label="Residual")
-    polymer = param.Selector(default="NR", objects=list(polymers()), label="Polymer of the tested compound")
-    f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
-    filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ")
-    table_model = param.Selector(default=None, objects=[None], allow_None=True,
-                                 label="Crosslink table from the fit of")
-    results = param.Dict(default={}, doc="model name -> FitResult")
-    failures = param.Dict(default={}, doc="model name -> sentence why the fit failed")
     manifest_title = param.String(default="")
     manifest_note = param.String(default="")
     manifest_baseline = param.String(default="", doc="the sample set's baseline compound")
+
+    # ----- hooks the fit tab's state fills in ----------------------------------------------------
+    def _select(self, names: list[str], selected: list[str] | None) -> None:
+        """Called inside :meth:`set_files`' one change with the new file names (a store has no selection)."""
+
+    def _default_info(self) -> CompoundInfo:
+        """The recipe a compound new to the store gets when none is given."""
+        return CompoundInfo()
 
     # ----- loading -----------------------------------------------------------------------------
     def _unique(self, name: str) -> str:
@@ -154,22 +160,22 @@ class DataState(param.Parameterized):
                 return cand
             i += 1
 
-    def _set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
-                   new_info: CompoundInfo | None = None):
+    def set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
+                  new_info: CompoundInfo | None = None):
+        """Replace the store's files (and compounds; and, through ``_select``, the fit selection) in one
+        change: one revision, one redraw.  Compounds no file belongs to any more are dropped; a new group gets
+        ``new_info`` (or ``_default_info()``)."""
         names = [f.name for f in files]
-        self.param.selected.objects = names
-        sel = [n for n in (selected if selected is not None else self.selected) if n in names]
         comps = dict(compounds if compounds is not None else self.compounds)
         for f in files:
             if f.group not in comps:
-                comps[f.group] = replace(new_info) if new_info is not None else CompoundInfo(
-                    polymer=self.polymer, f=float(self.f), filler=float(self.filler))
+                comps[f.group] = replace(new_info) if new_info is not None else self._default_info()
         used = {f.group for f in files}
         comps = {k: v for k, v in comps.items() if k in used}
         with param.parameterized.batch_call_watchers(self):
             self.compounds = comps
             self.files = files
-            self.selected = sel
+            self._select(names, selected)
             self.revision += 1
 
     # ----- compounds ----------------------------------------------------------------------------
@@ -204,7 +210,7 @@ class DataState(param.Parameterized):
         comps = dict(self.compounds)
         if compound not in comps:
             comps[compound] = replace(comps.get(f.group, CompoundInfo()), swelling=[], metadata={})
-        self._set_files([replace(x, group=compound) if x.name == file_name else x for x in self.files],
+        self.set_files([replace(x, group=compound) if x.name == file_name else x for x in self.files],
                         compounds=comps)
 
     def load_samples(self, manifest_path=None) -> list[str]:
@@ -238,8 +244,7 @@ class DataState(param.Parameterized):
         baseline = man.info.get("baseline") or (man.compounds[0].key if man.compounds else None)
         self.manifest_baseline = baseline or ""
         sel = [f.name for f in files if f.group == baseline]
-        self._set_files(files, sel, compounds=comps)
-        self._prefill_from_selection()
+        self.set_files(files, sel, compounds=comps)
         return problems
 
     def add_upload(self, filename: str, data: bytes, compound: str | None = None, **options) -> LoadedFile:
@@ -272,10 +277,10 @@ class DataState(param.Parameterized):
         if not loaded:
             return
         files = list(self.files) + [f for f in loaded if f not in self.files]
-        self._set_files(files, [f.name for f in loaded], new_info=recipe)
+        self.set_files(files, [f.name for f in loaded], new_info=recipe)
 
     def remove(self, name: str):
-        self._set_files([f for f in self.files if f.name != name])
+        self.set_files([f for f in self.files if f.name != name])
 
     def get(self, name: str) -> LoadedFile:
         for f in self.files:
@@ -301,8 +306,40 @@ class DataState(param.Parameterized):
         else:
             curves = td.read_curves(f.path, **opts)
         new = replace(f, curves=curves, options=opts)
-        self._set_files([new if x.name == name else x for x in self.files])
+        self.set_files([new if x.name == name else x for x in self.files])
         return new
+
+
+class DataState(FileStore):
+    """The fit tab's state over the session's file store (:class:`FileStore`, which it extends): the files
+    chosen for the fit, the models, the residual weighting, the polymer/f/filler the fit view shows, the fit
+    results and the crosslink table."""
+
+    selected = param.ListSelector(default=[], objects=[], label="Files in the fit")
+
+    fit_models = param.ListSelector(default=list(DEFAULT_FIT_MODELS), objects=list(MODELS), label="Models to fit")
+    residual = param.Selector(default=DEFAULT_RESIDUAL, objects=list(RESIDUALS), label="Residual")
+    polymer = param.Selector(default="NR", objects=list(polymers()), label="Polymer of the tested compound")
+    f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
+    filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ")
+    table_model = param.Selector(default=None, objects=[None], allow_None=True,
+                                 label="Crosslink table from the fit of")
+    results = param.Dict(default={}, doc="model name -> FitResult")
+    failures = param.Dict(default={}, doc="model name -> sentence why the fit failed")
+
+    # ----- the store's hooks ------------------------------------------------------------------------
+    def _select(self, names, selected):
+        self.param.selected.objects = names
+        self.selected = [n for n in (selected if selected is not None else self.selected) if n in names]
+
+    def _default_info(self) -> CompoundInfo:
+        return CompoundInfo(polymer=self.polymer, f=float(self.f), filler=float(self.filler))
+
+    def load_samples(self, manifest_path=None) -> list[str]:
+        """:meth:`FileStore.load_samples`, then the fit view shows the selected (baseline) compound's recipe."""
+        problems = super().load_samples(manifest_path)
+        self._prefill_from_selection()
+        return problems
 
     def selected_compound(self) -> str | None:
         """The compound of the fit selection when it is one compound, else None."""
@@ -440,6 +477,12 @@ class DataState(param.Parameterized):
         out = []
         for r in self.results.values():
             out.extend(about(r.title, w) for w in r.warnings)
+            # the plotted predictions past the data (fitted_curves' grid): flagged when implausible (issue #20)
+            for mode in r.model_obj.modes:
+                tops = [float(np.max(c.stretch)) for c in self.selected_curves() if c.mode is mode]
+                loud = r.extrapolation_note(mode, np.linspace(1.0, max(tops, default=3.0) * 1.05, 50))
+                if loud is not None:
+                    out.append(about(r.title, loud))
         return out + [Notice(t, "fit-failed") for t in self.failures.values()]
 
     def crosslink_table(self):
@@ -460,7 +503,7 @@ def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
 
     info = dict(comp.info)
     meta = {"title": comp.title} if comp.title and comp.title != comp.key else {}
-    meta.update({k: v for k, v in info.items() if k not in ("notes", "note", "f", "baseline")})
+    meta.update({k: v for k, v in info.items() if k not in ("notes", "note", "f", "baseline", "recipe")})
     tests = []
     for r in swell_rows:
         if r.compound in (comp.key, comp.title):
@@ -469,7 +512,8 @@ def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
             except ValueError as exc:  # one bad row does not hide the compound
                 log.info("swelling row skipped: %s", exc)
     return CompoundInfo(polymer=comp.polymer, f=float(info.get("f", 4.0)), filler=float(comp.filler_fraction),
-                        notes=str(info.get("notes", info.get("note", ""))), metadata=meta, swelling=tests)
+                        notes=str(info.get("notes", info.get("note", ""))), metadata=meta, swelling=tests,
+                        recipe=comp.recipe)
 
 
 from .swell_state import SwellState  # noqa: E402  (re-exported: it used to live here)

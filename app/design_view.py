@@ -80,9 +80,9 @@ def map_figure(dmap, current=None, compound=None, height=360, measured=None):
 class DesignView(pn.viewable.Viewer):
     """The Design tab (one per session)."""
 
-    def __init__(self, explorer_state=None, messages: Messages | None = None, on_pick=None, **params):
+    def __init__(self, explorer_state=None, messages: Messages | None = None, on_pick=None, state=None, **params):
         super().__init__(**params)
-        self.state = DesignState()
+        self.state = state if state is not None else DesignState()  # the session's (Session.design)
         self.explorer_state = explorer_state
         self.messages = messages or Messages(area="design")
         self.on_pick = on_pick
@@ -92,6 +92,8 @@ class DesignView(pn.viewable.Viewer):
         self.rows = pn.Column(sizing_mode="stretch_width", css_classes=["ns-design-targets"])
         for t in s.targets:
             self._add_row(t)
+        # the rows and the session's DesignState.targets follow each other (a reopened project sets the targets)
+        s.param.watch(lambda e: self._targets_set(e.new), "targets")
         self.new_target = pn.widgets.TextInput(placeholder="e.g. Q(toluene)<=3.5 or planar@2>=1.1MPa", width=260,
                                                css_classes=["ns-design-new"])
         add = pn.widgets.Button(name="Add target", width=110, css_classes=["ns-design-add"])
@@ -136,6 +138,7 @@ class DesignView(pn.viewable.Viewer):
                 self.run_button, self.messages, width=360),
             pn.Column(self.result, self.map_pane, self.models_pane, sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-design"])
+        self._page = pn.Column(self._layout, sizing_mode="stretch_width")
 
     # ----- target rows -------------------------------------------------------------------------
     def _add_row(self, text: str):
@@ -143,11 +146,32 @@ class DesignView(pn.viewable.Viewer):
         remove = pn.widgets.Button(name="✕", width=40, css_classes=["ns-design-remove"])
         row = pn.Row(box, remove)
         remove.on_click(lambda e: self._remove_row(row))
+        box.param.watch(lambda e: self._rows_changed(), "value")
         self.rows.append(row)
+        self._rows_changed()
         return row
 
     def _remove_row(self, row):
         self.rows.objects = [r for r in self.rows.objects if r is not row]
+        self._rows_changed()
+
+    def _rows_changed(self):
+        if getattr(self, "_syncing", False):
+            return
+        texts = self.target_texts()
+        if texts != list(self.state.targets):
+            self.state.targets = texts
+
+    def _targets_set(self, targets):
+        if list(targets) == self.target_texts():
+            return
+        self._syncing = True
+        try:
+            self.rows.objects = []
+            for t in targets:
+                self._add_row(t)
+        finally:
+            self._syncing = False
 
     def _add_clicked(self):
         from network_models.design_targets import parse_target
@@ -182,6 +206,10 @@ class DesignView(pn.viewable.Viewer):
                             f"{_esc(sentence)}</p>")
         if s.advice is not None:
             parts.insert(0, f"<p class='ns-design-advice'><b>Today's compound:</b> {_esc(s.advice.sentence)}</p>")
+        if not res.feasible:  # a stiffness target below the entanglements alone: say why, not just "not feasible"
+            from .modulus_card import entanglement_floor_sentences
+
+            parts[:0] = [f"<p class='ns-design-floor'>{_esc(x)}</p>" for x in entanglement_floor_sentences(res)]
         self.result.object = "".join(parts)
         compound = None
         if s.compound_nu is not None:
@@ -241,12 +269,17 @@ class DesignView(pn.viewable.Viewer):
             cur = self._current()
             self._cur_source.data = {"x": [cur[0]], "y": [cur[1]]}
 
+    def add_below(self, view):
+        """Put another view (e.g. the modulus → strand density card) under the tab's targets and results."""
+        self._page.append(view)
+
     def __panel__(self):
-        return self._layout
+        return self._page
 
 
 def create_design_view(explorer_state=None, messages: Messages | None = None, on_pick=None, network_state=None,
-                       **_ignored) -> DesignView:
-    """One session's Design tab.  ``network_state`` is accepted as another name for ``explorer_state``."""
+                       state=None, **_ignored) -> DesignView:
+    """One session's Design tab.  ``network_state`` is accepted as another name for ``explorer_state``;
+    ``state``: the session's :class:`DesignState` (``Session.design``), so a project file keeps the targets."""
     return DesignView(explorer_state=explorer_state if explorer_state is not None else network_state,
-                      messages=messages, on_pick=on_pick)
+                      messages=messages, on_pick=on_pick, state=state)

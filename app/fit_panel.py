@@ -29,7 +29,10 @@ from .plots import (
     empty_columns,
     empty_points,
     model_lines,
+    readable_range,
+    residual_range,
     set_output_backend,
+    set_range,
     set_visible_models,
 )
 from .state import model_colour, sig
@@ -66,11 +69,11 @@ def fit_figure(mode: str, initial=()) -> FitFigure:
     res = ColumnDataSource({"x": [], "y": [], "color": [], "model": []}, name=f"ns-resid-{mode}")
     p = figure(title=f"{mode.capitalize()}: data and fitted models", height=280, sizing_mode="stretch_width",
                tools=TOOLS, x_axis_label=f"stretch λ {DIMENSIONLESS}", y_axis_label="nominal stress P (MPa)",
-               x_range=Range1d(1.0, 3.0))
+               x_range=Range1d(1.0, 3.0), y_range=Range1d(0.0, 1.0))
     _style(p)
     data_scatter(p, data, size=5.5)
     r = model_lines(p, src, "lam", initial)
-    q = figure(height=150, sizing_mode="stretch_width", tools=TOOLS, x_range=p.x_range,
+    q = figure(height=150, sizing_mode="stretch_width", tools=TOOLS, x_range=p.x_range, y_range=Range1d(-1.0, 1.0),
                x_axis_label=f"stretch λ {DIMENSIONLESS}", y_axis_label="model − data (MPa)", title="residuals")
     _style(q)
     q.add_layout(Span(location=0, dimension="width", line_color="#888888", line_width=1))
@@ -82,11 +85,11 @@ def rms_figure() -> tuple[object, ColumnDataSource]:
     """Horizontal bars: each fitted model's overall RMS residual (shorter = closer to the data)."""
     src = ColumnDataSource({"model": [], "rms": [], "color": [], "label": []}, name="ns-fit-rms")
     p = figure(title="Which model fits these data best (RMS residual, all modes)", height=170,
-               sizing_mode="stretch_width", tools="save", y_range=[], x_axis_label="RMS residual (MPa)")
+               sizing_mode="stretch_width", tools="save", y_range=[], x_range=Range1d(0.0, 1.0),
+               x_axis_label="RMS residual (MPa)")
     _style(p)
     p.hbar(y="model", right="rms", height=0.6, color="color", source=src)
     p.text(x="rms", y="model", text="label", source=src, text_font_size="8.5pt", x_offset=4, text_baseline="middle")
-    p.x_range.start = 0
     return p, src
 
 
@@ -228,7 +231,12 @@ class FitPanel(pn.viewable.Viewer):
                 ff.fig.yaxis.axis_label = f"nominal stress P ({unit})"
                 ff.resid_fig.yaxis.axis_label = f"model − data ({unit})"
                 set_visible_models(ff.lines, shown)
-                ff.fig.x_range.start, ff.fig.x_range.end = 1.0, float(cols["lam"][-1])
+                # every axis follows the data just drawn (explicit ranges, reset target included): a 1.6 MPa
+                # curve is not left on the 0–5 MPa axis of the previous fit
+                set_range(ff.fig.x_range, 1.0, float(cols["lam"][-1]))
+                lo, hi = readable_range([cols[n] for n in shown if n in cols], ff.data.data["y"], floor=0.0)
+                set_range(ff.fig.y_range, min(lo, 0.0), hi)
+                set_range(ff.resid_fig.y_range, *residual_range(ff.resid.data["y"]))
                 if mode.value in self._boxes:
                     self._boxes[mode.value].visible = mode.value in data_modes
             self._draw_rms()
@@ -243,8 +251,8 @@ class FitPanel(pn.viewable.Viewer):
                     "label": [sig(v, 3) for v in vals]}
         fig.y_range.factors = titles[::-1]
         fig.xaxis.axis_label = f"RMS residual ({self.units.stress})"
-        finite = [v for v in vals if np.isfinite(v)]
-        fig.x_range.end = 1.25 * max(finite) if finite else 1.0
+        finite = [v for v in vals if np.isfinite(v) and v > 0]
+        set_range(fig.x_range, 0.0, 1.25 * max(finite) if finite else 1.0)
         fig.visible = bool(names)
 
     def _table(self):

@@ -15,6 +15,7 @@ from .data_view import DataView
 from .design_view import create_design_view
 from .explorer import ExplorerViews, NetworkControls
 from .messages import Messages
+from .modulus_card import ModulusCard
 from .plots import set_output_backend
 from .project_view import ProjectBar
 from .session import Session
@@ -72,11 +73,13 @@ def _build_page(load_samples: bool = True):
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)
     project = ProjectBar(session)
-    design = create_design_view(explorer_state=session.network)
+    design = create_design_view(explorer_state=session.network, state=session.design)
+    modulus_card = ModulusCard(units=session.units)
+    design.add_below(modulus_card)  # modulus → strand density, on the Design tab under the targets
     if load_samples:
         if problems:
             data_view.messages.show("samples", " · ".join(problems), "secondary")
-        compare._run()
+        compare.run()
     tabs = [
         ("Force–stretch", explorer.stress_tab()),
         ("Mooney plot", explorer.mooney_tab()),
@@ -86,6 +89,9 @@ def _build_page(load_samples: bool = True):
         ("Compare", compare),
         ("Design", design),
     ]
+    library = _library_tab(session, compare)
+    if library is not None:
+        tabs.append(("Library", library))
     header = html(
         "<div class='ns-header'><span class='ns-brand'>netstretch</span>"
         "<span class='ns-tag'>rubber network explorer — models, test data, crosslink density</span></div>",
@@ -120,10 +126,23 @@ def _build_page(load_samples: bool = True):
     page.ns_data = data_view
     page.ns_compare = compare
     page.ns_swell = swell_view
+    page.ns_modulus = modulus_card
     page.ns_explorer = explorer
     page.ns_project = project
     page.ns_design = design
+    page.ns_library = library
     return page
+
+
+def _library_tab(session: Session, compare):
+    """The Library tab, only when a results library is configured ($NETSTRETCH_LIBRARY); None otherwise."""
+    from network_models.library.db import configured
+
+    if not configured():
+        return None
+    from .library_view import LibraryView
+
+    return LibraryView(session, on_open=compare._run)
 
 
 def _load_samples(session: Session) -> list[str]:

@@ -25,6 +25,51 @@ DIMENSIONLESS = "(–)"
 DATA_COLUMNS = ("x", "y", "color", "file")
 
 
+def readable_range(model_arrays, data=(), pad=0.06, floor=None, reach=4.0):
+    """A y-range that keeps the data and the bulk of the model curves readable: a curve shooting up near its
+    locking stretch (or a slider at an extreme) is clipped at ``reach`` × the data's (or the curves' median
+    end) height instead of squashing everything else flat."""
+    data = np.asarray(data, dtype=float).ravel()
+    data = data[np.isfinite(data)]
+    ends = [float(a[np.isfinite(a)][-1]) for a in (np.asarray(m, dtype=float) for m in model_arrays)
+            if np.isfinite(a).any()]
+    ref = float(np.max(np.abs(data))) if data.size else (float(np.median(np.abs(ends))) if ends else None)
+    arrays = [np.asarray(a, dtype=float).ravel() for a in model_arrays] + [data]
+    if ref and ref > 0:
+        arrays = [np.clip(a, -reach * ref, reach * ref) for a in arrays]
+    return _nanrange(arrays, pad, floor)
+
+
+def _nanrange(arrays, pad=0.06, floor=None):
+    vals = np.concatenate([np.asarray(a, dtype=float).ravel() for a in arrays]) if arrays else np.array([])
+    vals = vals[np.isfinite(vals)]
+    if vals.size == 0:
+        return (0.0, 1.0)
+    lo, hi = float(vals.min()), float(vals.max())
+    if floor is not None:
+        lo = min(lo, floor)
+    if hi - lo <= 0:
+        hi = lo + 1.0
+    span = hi - lo
+    return lo - (pad * span if floor is None else 0.0), hi + pad * span
+
+
+def residual_range(values, pad=0.1):
+    """A y-range for residuals: symmetric about zero, so the sign of a misfit reads at a glance."""
+    v = np.asarray(values, dtype=float).ravel()
+    v = v[np.isfinite(v)]
+    m = float(np.max(np.abs(v))) if v.size else 0.0
+    m = m * (1.0 + pad) if m > 0 else 1.0
+    return -m, m
+
+
+def set_range(rng, lo: float, hi: float):
+    """Set a Range1d to [lo, hi] and make the toolbar's reset return there (not to the first data's range)."""
+    lo, hi = float(lo), float(hi)
+    rng.start, rng.end = lo, hi
+    rng.reset_start, rng.reset_end = lo, hi
+
+
 def empty_points() -> dict:
     return {k: [] for k in DATA_COLUMNS}
 

@@ -2,7 +2,12 @@
 
 ``Session()`` holds the explorer's :class:`NetworkState`, the one data store :class:`DataState` (files and
 compounds every tab reads), the Compare tab's :class:`CompareState` (over that store), the swelling form's
-:class:`SwellState` and the display units.  It also turns itself into a project file and back.
+:class:`SwellState`, the Design tab's :class:`DesignState` and the display units — and the session's one
+:class:`network_models.study.Study` (:meth:`Session.study`): the store's compounds with the settings the tabs
+write (Compare: model, baseline, service temperature, chosen compounds; fit view: residual weighting; Design:
+targets and model).  The comparison the Compare tab shows is the study's, so its fits are cached per data and
+weighting and a setting that does not change a fit never refits.  It also turns itself into a project file
+and back; a reopened project's saved results are kept, marked out of date, until the comparison is recomputed.
 """
 
 from __future__ import annotations
@@ -10,10 +15,12 @@ from __future__ import annotations
 import logging
 from dataclasses import replace
 
-from .compare_state import CompareState
+from network_models.project import Project, ProjectCompound, ProjectInput, read_project, write_project
+
+from .compare_state import CompareState, build_compound
 from .data_state import CompoundInfo, DataState, LoadedFile
+from .design_state import DesignState
 from .display_units import DisplayUnits
-from .project_file import Project, ProjectCompound, ProjectInput, read_project, write_project
 from .state import NetworkState
 from .swell_state import SwellState
 
@@ -26,7 +33,10 @@ SETTINGS = {
     "fit": ("data", ("fit_models", "residual", "polymer", "f", "filler", "table_model")),
     "compare": ("compare", ("chosen", "baseline", "model", "service_C", "title", "purpose")),
     "display": ("units", ("stress", "density")),
-    "swelling": ("swell", ("dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f", "filler", "T_C")),
+    # compound first: restoring it fills the recipe and stated χ, which the saved form values then override
+    "swelling": ("swell", ("compound", "dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f",
+                           "filler", "T_C")),
+    "design": ("design", ("targets", "model", "polymer", "T_C", "filler", "f", "N", "entanglements", "axis")),
 }
 
 
@@ -34,9 +44,51 @@ class Session:
     def __init__(self):
         self.network = NetworkState()
         self.data = DataState()
+        #: the file store role of ``data`` (FileStore API: files, compounds, set_files, ...); compare, swelling
+        #: and the study read the store through it, the fit tab through ``data``
+        self.store = self.data
         self.compare = CompareState(data=self.data)
         self.swell = SwellState()
+        self.design = DesignState()
         self.units = DisplayUnits()
+        self._study = None  # (store revision, Study)
+        self.compare.study_source = self.study
+        #: the results summary of a reopened project, shown as out of date until the comparison is recomputed
+        self.saved_results: dict = {}
+
+    # ----- the study -----------------------------------------------------------------------------------
+    def study(self):
+        """The session's one study: the store's compounds (rebuilt only when the store changes, so fits stay
+        cached) with the settings the tabs hold now."""
+        from network_models.study import Study
+
+        from . import shared
+
+        d, c = self.data, self.compare
+        if self._study is None or self._study[0] != d.revision:
+            comps = []
+            for name in d.compound_names():
+                try:
+                    comps.append(build_compound(d, name))
+                except ValueError:  # a compound without curves yet: not part of the comparison
+                    continue
+            self._study = (d.revision, Study(comps, title=c.title, purpose=c.purpose,
+                                             fit_function=shared.fit_or_error, compare_function=shared.compare))
+        st = self._study[1]
+        from network_models.constants import ZERO_CELSIUS
+
+        chosen = tuple(n for n in c.chosen if n in st.names)
+        st.title, st.purpose = c.title, c.purpose
+        st.update(model=c.model, residual=d.residual, service_temperature=float(c.service_C) + ZERO_CELSIUS,
+                  baseline=c.baseline if c.baseline in chosen else None, chosen=chosen,
+                  design_targets=tuple(self.design.targets), design_model=self.design.model)
+        return st
+
+    @property
+    def results_out_of_date(self) -> bool:
+        """True while a reopened project's saved results stand in for a comparison not yet recomputed, or when
+        the shown comparison is older than the settings."""
+        return (bool(self.saved_results) and self.compare.comparison is None) or self.compare.stale
 
     # ----- project files --------------------------------------------------------------------------------
     def settings(self) -> dict:
@@ -53,6 +105,10 @@ class Session:
             fit[name] = {"G0_Pa": float(r.small_strain_modulus), "aic": float(r.aic),
                          **{f"rms_{m.value}_Pa": float(s.rms) for m, s in r.modes.items()}}
         out = {"fit": fit}
+        if self.design.result is not None:
+            r = self.design.result
+            out["design"] = {"feasible": bool(r.feasible), "targets": list(self.design.targets),
+                             **({"nu_low": r.window.lo, "nu_high": r.window.hi} if r.window else {})}
         cmp = self.compare.comparison
         if cmp is not None:
             out["compare"] = {"model": cmp.model, "compounds": list(cmp.names),
@@ -74,10 +130,18 @@ class Session:
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
                                        selected=f.name in d.selected))
-        comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler=i.filler, notes=i.notes,
-                                 metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling])
+        from network_models.study import _recipe_record
+
+        comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler_volume_fraction=i.filler, notes=i.notes,
+                                 metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling],
+                                 **_recipe_record(i))  # the recipe travels with the study (issue #21)
                  for n, i in d.compounds.items()]
-        return write_project(Project(settings=self.settings(), inputs=inputs, compounds=comps,
+        settings = self.settings()
+        try:
+            settings["study"] = self.study().settings.to_dict()
+        except ValueError as exc:  # e.g. a chosen compound without curves: the tabs' own sections still hold it
+            log.info("study settings not saved: %s", exc)
+        return write_project(Project(settings=settings, inputs=inputs, compounds=comps,
                                      results=self.results_summary(), title=title or self.compare.title,
                                      netstretch_version=__version__))
 
@@ -91,6 +155,8 @@ class Session:
         proj = read_project(source)
         files, seen = [], set()
         for inp in proj.inputs:
+            if inp.kind != "curves":  # a swelling table or force–temperature record: its rows are in [[compound]]
+                continue
             curves = read_curves_bytes(inp.data, inp.name, **inp.options)
             name = inp.name
             while name in seen:
@@ -102,14 +168,20 @@ class Session:
         comps = {}
         for c in proj.compounds:
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in c.swelling]
-            comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler, notes=c.notes,
-                                         metadata=dict(c.metadata), swelling=tests)
+            recipe = None
+            if c.recipe:
+                from network_models.recipes import Recipe, ingredient_rows
+
+                recipe = Recipe.from_phr(c.recipe, ingredient_rows(c.ingredients, "project file"),
+                                         where=f"project file: compound {c.name!r}: recipe")
+            comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler_volume_fraction, notes=c.notes,
+                                         metadata=dict(c.metadata), swelling=tests, recipe=recipe)
         problems = []
         d = self.data
         d.manifest_title, d.manifest_note = "", ""
         selected = [i.name for i in proj.inputs if i.selected]
         d.results, d.failures = {}, {}
-        d._set_files(files, selected, compounds={**comps, **{f.group: replace(CompoundInfo()) for f in files
+        d.set_files(files, selected, compounds={**comps, **{f.group: replace(CompoundInfo()) for f in files
                                                             if f.group not in comps}})
         from network_models import MODELS
 
@@ -124,7 +196,23 @@ class Session:
                     obj.param.update(**{n: values[n]})
                 except (ValueError, TypeError) as exc:
                     problems.append(f"setting {section}.{n} = {values[n]!r} was not restored ({exc})")
-        self.compare.comparison = None
+        study = proj.settings.get("study", {})
+        if study and "compare" not in proj.settings:  # a project the command line wrote: its study settings
+            from network_models.constants import ZERO_CELSIUS
+
+            try:
+                self.compare.param.update(**{k: v for k, v in (
+                    ("model", study.get("model")), ("baseline", study.get("baseline")),
+                    ("service_C", None if study.get("service_temperature_K") is None
+                     else float(study["service_temperature_K"]) - ZERO_CELSIUS)) if v is not None})
+                if study.get("design_targets"):
+                    self.design.targets = list(study["design_targets"])
+            except (ValueError, TypeError) as exc:
+                problems.append(f"the project's study settings were not all restored ({exc})")
+        self.compare.comparison = None  # nothing of the old session stays on screen
+        self.design.param.update(result=None, map=None, advice=None, models=None)
+        self.saved_results = dict(proj.results)  # shown out of date until the comparison is recomputed
+        self._study = None
         return problems
 
 

@@ -60,11 +60,13 @@ def is_shared(curves) -> bool:
         return bool(curves) and all(id(c) in _curve_ids for c in curves)
 
 
-def fit_or_error(model, curves, residual: str = "absolute", polymer: str | None = None, **kw):
+def fit_or_error(model, curves, residual: str | None = None, polymer: str | None = None, **kw):
     """``fitting.fit_or_error`` (a FitResult or a FitError, never raising) with the result for shared sample
     curves made once per process.  Other curves or extra options: a plain fit, not cached."""
+    from network_models.fitting import DEFAULT_RESIDUAL
     from network_models.fitting import fit_or_error as _fit
 
+    residual = residual or DEFAULT_RESIDUAL
     curves = list(curves)
     if kw or not is_shared(curves):
         return _fit(model, curves, residual=residual, polymer=polymer, **kw)
@@ -104,14 +106,20 @@ def _compound_key(c):
     return (c.name, c.polymer, float(c.f), meta, repr(list(c.swelling)), tuple(id(x) for x in curves))
 
 
-def compare(compounds, **kw):
+def compare(compounds, fitter=None, **kw):
     """``compare.compare(compounds, **kw)``; made once per process when every compound is built from shared
-    sample curves (whichever session built the Compound objects) and the options are plain values."""
+    sample curves (whichever session built the Compound objects) and the options are plain values (a dict
+    option such as ``exclude`` is keyed by its sorted items).  ``fitter`` (a session's cached fitter, same
+    weighting as ``kw["residual"]``) makes the fits of a comparison that is not cached; it is not part of
+    the key."""
     from network_models.compare import compare as _compare
 
+    if fitter is not None:
+        kw["fitter"] = fitter
     compounds = list(compounds)
     try:
-        opts = tuple(sorted(kw.items()))
+        opts = tuple(sorted((k, tuple(sorted((str(a), repr(b)) for a, b in v.items())) if isinstance(v, dict)
+                             else v) for k, v in kw.items() if k != "fitter"))
         hash(opts)
     except TypeError:
         return _compare(compounds, **kw)

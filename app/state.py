@@ -18,6 +18,7 @@ import param
 from network_models import MODELS, MODES, Mode, Network, get_model, polymers
 from network_models.constants import CAUTION  # noqa: F401 (the one caution sentence; views import it here)
 from network_models.entanglement import G_E_POLICY
+from network_models.materials import temperature_notices
 from network_models.network import N_MIN
 from network_models.params import FUNCTIONALITY, STRAND_DENSITY, TEMPERATURE, kuhn_number_param
 from network_models.thermo import force_at_fixed_length, inversion_strain
@@ -47,12 +48,11 @@ def fmt(value, digits: int = 3, unit: str = "") -> str:
 
 
 def sig(value, digits: int = 4) -> str:
-    """``digits`` significant digits in plain positional notation (no e+03 in tables a compounder reads)."""
-    if value is None or not np.isfinite(value):
-        return "—"
-    if value != 0 and not (1e-4 <= abs(value) < 1e7):
-        return f"{value:.{digits}g}"
-    return np.format_float_positional(value, precision=digits, unique=False, fractional=False, trim="-")
+    """``digits`` significant digits in plain positional notation (no e+03 in tables a compounder reads): the
+    project's one number formatter, :func:`network_models.formatting.number`, shared with the report."""
+    from network_models.formatting import number
+
+    return number(value, digits)
 
 
 def polymer_label(key: str) -> str:
@@ -262,6 +262,7 @@ class NetworkState(param.Parameterized):
             "poisson": net.poisson_ratio, "K_over_G": net.bulk_to_shear,
             "polymer_status": net.poly.status, "polymer_source": net.poly.source,
             "lock_uniaxial": net.locking_stretch(Mode.UNIAXIAL), "ge_policy": G_E_POLICY,
-            "model_notices": [str(n) for m in self.selected_models() for n in net.model_notices(m)],
+            "model_notices": [str(n) for n in temperature_notices(net.poly, net.T, "network temperature")]
+            + [str(n) for m in self.selected_models() for n in net.model_notices(m)],
         }
 

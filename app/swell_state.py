@@ -33,6 +33,8 @@ class SwellState(param.Parameterized):
                              doc="from the compound's recipe (network_models.recipes) when prefilled from a manifest")
     sample_label = param.String(default="")
     sample_key = param.String(default="", doc="the prefill picker's label of the row the form holds")
+    compound = param.String(default="", doc="the compound the form's specimen belongs to ('' = not said): its "
+                                            "recipe and stated χ fill the form; only its own fit is set beside it")
     table_rows = param.List(default=[], doc="a whole swelling table (testdata.SwellingResult rows)")
     table_name = param.String(default="")
 
@@ -62,7 +64,18 @@ class SwellState(param.Parameterized):
         else:
             row = next((r for r in rows if r.compound == want), rows[0])
         comp = next((c for c in man if c.key == row.compound), None)
+        # the manifest's values win (χ stated with the swelling data, the compound's f): the same reading the
+        # comparison, the report and the study make of this specimen (issue #18: one answer)
+        from network_models.testdata import SAMPLE_MANIFEST
+
+        from . import shared
+
+        core = next((c for c in shared.sample_manifest(SAMPLE_MANIFEST).compounds if c.name == row.compound), None)
+        test = None if core is None else next((t for t in core.swelling if t.specimen == row.specimen), None)
         with param.parameterized.batch_call_watchers(self):
+            self.chi = None if test is None else test.chi
+            if core is not None:
+                self.f = float(core.f)
             self.dry_g, self.swollen_g = row.dry_mass * 1000.0, row.swollen_mass * 1000.0
             self.extracted_g = None if row.extracted_mass is None else row.extracted_mass * 1000.0
             if row.solvent and row.solvent in self.param.solvent.objects:
@@ -83,6 +96,7 @@ class SwellState(param.Parameterized):
                 self.T_C = row.temperature - ZERO_CELSIUS
             self.sample_label = f"{row.compound} {row.specimen or ''} (invented sample data)".strip()
             self.sample_key = labels[rows.index(row)]
+            self.compound = row.compound
         return True
 
     def default_chi(self):
@@ -134,13 +148,31 @@ class SwellState(param.Parameterized):
         for r in self.table_rows:
             info = (recipes or {}).get(r.compound)
             poly, f, phi = (info.polymer, info.f, info.filler) if info else (self.polymer, self.f, self.filler)
-            row = {"compound": r.compound, "specimen": r.specimen or "—", "polymer": poly, "f": f, "filler": phi}
+            # χ: the one stated for this compound's swelling tests (manifest), else the form's, else the table's
+            chi, chi_from = compound_chi(info, r.solvent), "stated for the compound"
+            if chi is None:
+                chi, chi_from = self.chi, ("typed in the form" if self.chi is not None else "solvent table")
+            row = {"compound": r.compound, "specimen": r.specimen or "—", "polymer": poly, "f": f, "filler": phi,
+                   "chi": chi, "chi_source": chi_from}
             try:
-                est = SwellingTest.from_record(r, chi=self.chi).estimate(poly, f=float(f), filler_fraction=float(phi))
+                rec = getattr(info, "recipe", None)  # Ellis–Welding with the compound's recipe (issue #21)
+                extra = {} if rec is None else {"insoluble_fraction": rec.insoluble_mass_fraction,
+                                                "rho_polymer": rec.polymer_density}
+                est = SwellingTest.from_record(r, chi=chi).estimate(poly, f=float(f), filler_fraction=float(phi),
+                                                                    **extra)
             except ValueError as exc:
                 row["problem"] = str(exc)
             else:
-                row.update(v_r=est.phi, nu_affine=est.nu_affine, nu_phantom=est.nu_phantom, rho=est.rho_polymer,
-                           soluble=est.soluble_fraction)
+                row.update(chi=est.chi.chi, v_r=est.phi, nu_affine=est.nu_affine, nu_phantom=est.nu_phantom,
+                           rho=est.rho_polymer, soluble=est.soluble_fraction)
             out.append(row)
         return out
+
+
+def compound_chi(info, solvent: str | None = None) -> float | None:
+    """The χ stated for a compound's swelling tests (``CompoundInfo.swelling``, from a manifest's
+    ``[swelling] chi`` or a test's own), in ``solvent`` when given; None when none is stated."""
+    for t in getattr(info, "swelling", None) or []:
+        if t.chi is not None and (solvent is None or t.solvent == solvent):
+            return float(t.chi)
+    return None

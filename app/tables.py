@@ -11,9 +11,9 @@ import re
 import numpy as np
 
 from network_models.errors import group_notices, merge_notices
+from network_models.formatting import number as sig  # the report's formatter too
 
 from .display_units import DisplayUnits
-from .state import sig
 
 NOT_DETERMINED = "not determined"
 
@@ -171,10 +171,15 @@ _EXTRAPOLATED = re.compile(r"no (\w+) data were fitted")
 
 
 def _extrapolated_mode(n) -> str | None:
-    if getattr(n, "kind", None) == "extrapolated-mode":
-        return getattr(n, "subject", None) or "other"
+    """The test mode an 'extrapolated mode' notice is about — read from its sentence first: a notice said of a
+    model or compound (``errors.about``) carries that name as its subject, not the mode (issue #20)."""
     m = _EXTRAPOLATED.search(str(n))
-    return m.group(1) if m else None
+    if m:
+        return m.group(1)
+    if getattr(n, "kind", None) == "extrapolated-mode":
+        subject = getattr(n, "subject", None)
+        return subject if subject in {"uniaxial", "equibiaxial", "planar"} else "other"
+    return None
 
 
 def grouped_warnings(notices) -> dict[str, list[str]]:

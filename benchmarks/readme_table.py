@@ -60,6 +60,10 @@ def table(d: dict) -> str:
          _f(d.get("batch_speedup_2_workers"), "{:.2f}×") + " (" + _f(d.get("batch_cmd_curves_per_s_1"), "{:.0f}")
          + " → " + _f(d.get("batch_cmd_curves_per_s_2"), "{:.0f} curves/s") + ")", "≥ 1.8×",
          "batch_speedup_2_workers"),
+        ("Library (SQLite): `library find`, 2 targets over 10,000 generated compounds",
+         _f(d.get("library_find_s_10000"), "{:.2f} s"), "≤ 0.5 s", "library_find_s_10000"),
+        ("Library (SQLite): `library trend` over 1,000 points with control limits",
+         _f(d.get("library_trend_s_1000"), "{:.2f} s"), "≤ 0.5 s", "library_trend_s_1000"),
         ("Server: a new session ready (server time, one session)", _f(d.get("session_ready_s_1"), "{:.2f} s"),
          "≤ 1 s", "session_ready_s_1"),
         ("…12 sessions opened at once, server time each", _f(d.get("session_server_s_12"), "{:.2f} s"), "≤ 1 s",

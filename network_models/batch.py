@@ -93,7 +93,7 @@ def _fit_row(curve, model, polymer: str, f: float) -> dict:
 
     row = {"mode": curve.mode.value, "points": len(curve)}
     try:
-        r = fit(model, curve, residual="absolute")
+        r = fit(model, curve)  # the one default weighting (fitting.DEFAULT_RESIDUAL)
     except (ValueError, ArithmeticError) as exc:
         row["error"] = str(exc)
         return row

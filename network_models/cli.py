@@ -18,14 +18,15 @@ from .materials import add_polymers_option, apply_polymers_option
 from .recipes import add_ingredients_option, apply_ingredients_option
 
 #: commands whose results depend on the polymer table (they all accept ``--polymers FILE``)
-_POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch"}
+_POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch",
+                     "project"}
 
 #: commands that read manifests whose recipes use the ingredient table (they accept ``--ingredients FILE``)
 _RECIPE_COMMANDS = {"swell", "report", "compare", "design", "batch"}
 
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
-            "samples", "serve")
+            "project", "samples", "serve", "library")
 
 
 def build_parser() -> argparse.ArgumentParser:

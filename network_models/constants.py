@@ -20,12 +20,17 @@ LAB_TEMPERATURE: float = ZERO_CELSIUS + 23.0
 
 
 #: stretches of the trade moduli M100 and M300: nominal stress at 100 % and 300 % elongation, λ = 2 and 4
-#: (physics.md §7) — the one definition
+#: (docs/methods.md §trade-moduli) — the one definition
 TRADE_MODULI: dict[str, float] = {"M100": 2.0, "M300": 4.0}
 
 #: the caution every result that may feed a design decision carries — the one wording
 CAUTION: str = ("Model results support design decisions; they do not replace validation testing of parts. "
                 "For safety-relevant parts the applicable standards and licensed engineering practice govern.")
+
+#: the project's method manual, cited by the report's reference list (every formula with its primary source)
+METHOD_MANUAL_REFERENCE: str = ("netstretch method manual, docs/methods.md in the netstretch repository — every "
+                                "model, correction and statistical procedure with its primary source, validity "
+                                "range and check values")
 
 
 def celsius(T_kelvin: float) -> float:

@@ -5,7 +5,7 @@
     >>> for row in t.rows: print(row.label, row.nu, row.junction_density, row.Mc)
     >>> t = from_fit(fit_result, polymer="NR")                      # intervals from the fit
 
-Relations (physics.md §3–4; R from scipy.constants):
+Relations (docs/methods.md §models and §network; R from scipy.constants):
 
 * affine network: G = νRT;   phantom network: G = (1 − 2/f)νRT;   junction density μ_j = 2ν/f;
 * M_c = ρ/ν;   Kuhn segments per strand N = M_c/M_K (M_K from the polymer table);
@@ -36,6 +36,7 @@ from dataclasses import dataclass, field
 from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
 from .fitting.uncertainty import derived
+from .materials import temperature_notices
 from .network import get_polymer, guth_gold
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
@@ -77,6 +78,10 @@ class CrosslinkRow:
     N_ci: tuple[float, float] | None
     note: str = ""
     nu_kind: str = "elastically active"  # or "chemical (total)": which strand density ``nu`` is
+    #: "upper" / "lower" when the row is a bound on the crosslink strand density (what it counts or removes in
+    #: full: entanglements or filler counted as crosslinks → upper; the full plateau modulus removed → lower);
+    #: "" for an estimate under its stated assumption (issue #20)
+    bound: str = ""
 
     def to_dict(self) -> dict:
         def c(x):
@@ -89,7 +94,7 @@ class CrosslinkRow:
                 "modulus_Pa": c(self.modulus), "strand_density": c(self.nu), "strand_density_ci95": ci(self.nu_ci),
                 "junction_density": c(self.junction_density), "junction_density_ci95": ci(self.junction_ci),
                 "Mc": c(self.Mc), "Mc_ci95": ci(self.Mc_ci), "N": c(self.N), "N_ci95": ci(self.N_ci),
-                "note": self.note, "strand_density_kind": self.nu_kind}
+                "note": self.note, "strand_density_kind": self.nu_kind, "bound": self.bound or None}
 
 
 @dataclass
@@ -134,8 +139,34 @@ class CrosslinkTable:
                 return r
         raise KeyError(f"no row {key!r}; rows: {[r.key for r in self.rows]}")
 
+    @property
+    def filler_fraction(self) -> float:
+        return float(self.inputs.get("filler_fraction", 0.0) or 0.0)
+
+    def headline(self) -> dict:
+        """The one strand density a designer quotes from this table, by the comparison's headline rule
+        (:mod:`network_models.compare.specimens`): the affine row with the entanglement part removed (and the
+        filler removed when a filler fraction is given); when no positive crosslink modulus is left, the affine
+        row with entanglements counted, and the basis says why.  ``design --model affine`` counts ν on the
+        first basis by default.  ``{"value": mol/m³ or None, "row": key, "basis": label, "tier": 0|1}``."""
+        from .compare.specimens import basis_label, row_key
+
+        phi = self.filler_fraction
+        for tier in (0, 1):
+            key = row_key(tier, phi > 0)
+            row = next((r for r in self.rows if r.key == key), None)
+            if row is not None and row.nu is not None and row.nu > 0:
+                basis = basis_label(tier, phi > 0, phi)
+                if tier == 1:
+                    basis += " — the entanglement estimate is as large as the modulus, so no crosslink part is left"
+                return {"value": row.nu, "ci95": None if row.nu_ci is None else list(row.nu_ci), "row": key,
+                        "basis": basis, "tier": tier, "unit": "mol/m³"}
+        return {"value": None, "ci95": None, "row": None, "basis": "no positive strand density on any basis",
+                "tier": None, "unit": "mol/m³"}
+
     def to_dict(self) -> dict:
         return {
+            "headline": self.headline(),
             "polymer": self.polymer, "temperature_K": self.T, "functionality": self.f,
             "shear_modulus_Pa": self.G, "shear_modulus_ci95": None if self.G_ci is None else list(self.G_ci),
             "inputs": self.inputs,
@@ -194,7 +225,7 @@ def _entanglement_rows(G, G_ci, Gc, Gc_ci, Ge, ge_txt, upper, T, f, rho, MK):
     ]
 
 
-def _trapped_rows(G, G_ci, Ge_full, sol_fraction, T, f, rho, MK):
+def _trapped_rows(G, G_ci, Ge_full, sol_fraction, T, f, rho, MK, X=1.0):
     Te = trapping_factor(sol_fraction)
     Ge_t = Ge_full * Te
     txt = (f"G_e,trapped = G_N⁰·T_e = {Ge_t / 1e6:.3g} MPa, T_e = (1 − √w_s)⁴ = {Te:.3g} at sol fraction "
@@ -205,7 +236,12 @@ def _trapped_rows(G, G_ci, Ge_full, sol_fraction, T, f, rho, MK):
              G - Ge_t, ci, 1.0, T, f, rho, MK),
         _row("phantom-trapped-entanglements", f"phantom (f = {f:g}), trapped entanglements removed",
              f"G − G_e,trapped = (1 − 2/f)νRT; {txt}", G - Ge_t, ci, 1.0 - 2.0 / f, T, f, rho, MK),
-    ]
+    ] + ([] if X == 1.0 else [
+        # both removed (issue #20): (G/X − G_N⁰·T_e)/RT; Ge_full carries the Guth–Gold factor, so G_N⁰·T_e = Ge_t/X
+        _row("affine-trapped-entanglements-no-filler", "affine, trapped entanglements and filler removed",
+             f"G/X − G_N⁰·T_e = νRT, X = 1 + 2.5φ + 14.1φ² = {X:.4g} (Guth–Gold [memory]); {txt}",
+             G / X - Ge_t / X, _map_ci(ci, lambda g: g / X), 1.0, T, f, rho, MK),
+    ])
 
 
 def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=None,
@@ -218,7 +254,7 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
     X = guth_gold(filler_fraction)
     rho, MK = poly.density, poly.kuhn_molar_mass
     ph = 1.0 - 2.0 / f
-    notes = list(notes or [])
+    notes = list(notes or []) + temperature_notices(poly, T, "crosslink table")
     rows = [
         _row("affine", "affine, all of G from crosslinks", "G = νRT; entanglements counted as crosslinks",
              G, G_ci, 1.0, T, f, rho, MK),
@@ -240,7 +276,7 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
     share, share_text, share_notes = entanglement_share(Ge, G, "crosslink table")
     notes.extend(share_notes)
     if sol_fraction is not None:
-        rows.extend(_trapped_rows(G, G_ci, Ge_plateau, sol_fraction, T, f, rho, MK))
+        rows.extend(_trapped_rows(G, G_ci, Ge_plateau, sol_fraction, T, f, rho, MK, X))
     if filler_fraction > 0:
         rows.append(_row("affine-no-filler", f"affine, filler removed (φ = {filler_fraction:g})",
                          f"G/(1 + 2.5φ + 14.1φ²) = νRT (Guth–Gold [memory], factor {X:.4g}); entanglements counted",
@@ -261,12 +297,32 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
                          note="this row's ν is the CHEMICAL (total) strand density, not the elastically active one "
                          "(that is the 'affine' row); its M_c and N are per chemical strand"))
     rows.extend(extra_rows)
+    notes.extend(_mark_bounds(rows, upper, X))
     notes.append(f"strand density ν counts elastically active strands (except where a row says chemical); junction "
                  f"(crosslink) density μ_j = 2ν/f (f = {f:g}); N = M_c/M_K with M_K = {MK * 1000:.4g} g/mol for "
                  f"{poly.key} [{poly.status}]")
     notes.append(f"evaluated at T = {celsius(T):.1f} °C; R from scipy.constants (CODATA)")
     return CrosslinkTable(rows, poly.key, float(T), float(f), float(G), G_ci, dict(inputs or {}), notes,
                           share, share_text)
+
+
+def _mark_bounds(rows, upper, X) -> list[str]:
+    """Say which rows bound the crosslink strand density (``CrosslinkRow.bound``) and return the note."""
+    up = {"affine", "phantom"} | ({"affine-trapped-entanglements", "phantom-trapped-entanglements"} if X != 1.0
+                                  else set()) | {"affine-no-filler"}
+    low = {"affine-no-entanglement", "phantom-no-entanglement", "affine-no-entanglement-no-filler"} if upper else set()
+    for r in rows:
+        if r.key in up:
+            r.bound = "upper"
+        elif r.key in low:
+            r.bound = "lower"
+    named_up = [r.key for r in rows if r.bound == "upper"]
+    named_low = [r.key for r in rows if r.bound == "lower"]
+    text = ("upper bounds on the crosslink strand density (entanglements" + (" or filler" if X != 1.0 else "")
+            + " counted as crosslinks): " + ", ".join(named_up))
+    if named_low:
+        text += "; lower bounds (the full plateau modulus removed): " + ", ".join(named_low)
+    return [text]
 
 
 def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float = 296.15, f: float = 4.0,
@@ -299,7 +355,8 @@ def from_modulus(value: float, kind: str = "G", *, polymer: str = "NR", T: float
         else:
             notes.append("2C₁ used as G (lower end of the Mooney bracket, without the 2C₂ share)")
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
-                  Ge_source=Ge_src, Gc=Gc, Gc_ci=Gc_ci, inputs={"value_Pa": value, "kind": k, "ci95": ci95},
+                  Ge_source=Ge_src, Gc=Gc, Gc_ci=Gc_ci, inputs={"value_Pa": value, "kind": k, "ci95": ci95,
+                                                          "filler_fraction": filler_fraction},
                   notes=notes, sol_fraction=sol_fraction)
 
 
@@ -370,7 +427,8 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
             notes.append("fit caution: " + w)
     return _table(G, G_ci, polymer=polymer, T=T, f=f, filler_fraction=filler_fraction, Mn=Mn, Ge=Ge,
                   Ge_source=src, Gc=Gc, Gc_ci=Gc_ci, extra_rows=extra, sol_fraction=sol_fraction,
-                  inputs={"fit_model": result.model, "small_strain_modulus_Pa": G}, notes=notes)
+                  inputs={"fit_model": result.model, "small_strain_modulus_Pa": G,
+                          "filler_fraction": filler_fraction}, notes=notes)
 
 
 def crosslink_table(source, kind: str = "G", **kw) -> CrosslinkTable:

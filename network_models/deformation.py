@@ -1,6 +1,6 @@
 """Homogeneous incompressible test modes: principal stretches and invariants.
 
-Conventions (physics.md §2): direction 1 is the loaded direction, direction 3 is the free (stress-free)
+Conventions (docs/methods.md §test-modes): direction 1 is the loaded direction, direction 3 is the free (stress-free)
 direction.  Stress in test data is nominal: force per undeformed cross-section.
 """
 

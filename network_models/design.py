@@ -35,7 +35,7 @@ from .design_targets import Target, TargetError, parse_targets
 from .errors import Notice, UserError
 from .models import get_model
 from .network import Network, get_polymer, lock_from_N
-from .swelling import CHI_BAND, KRAUS_C_CARBON_BLACK, chi_values, get_solvent, swollen_fraction
+from .swelling import CHI_BAND, KRAUS_C_CARBON_BLACK, chi_values, default_chi, get_solvent, swollen_fraction
 
 __all__ = ["NU_RANGE", "CAUTION", "DesignResult", "DesignSetup", "Interval",
            "Target", "TargetError", "TargetOutcome", "compare_models", "design", "parse_targets"]
@@ -154,7 +154,7 @@ class _Evaluator:
             if not rows:
                 raise TargetError(f"target {t.text!r}: the solvent table has no χ for {self.setup.polymer}–{sol.key}; "
                                   f"give it in the target, e.g. 'Q({sol.key},chi=0.40)<=3.5'.", kind="design-target")
-            row = next((r for r in rows if r.default), rows[0])
+            row = default_chi(self.setup.polymer, sol.key)  # the swelling module's one rule (docs/methods.md §chi)
             self._chi[key] = (row.chi, row.status)
         return self._chi[key]
 
@@ -162,6 +162,8 @@ class _Evaluator:
         """The target's quantity for strand density ν (SI); NaN where it cannot be evaluated (reason kept)."""
         if t.kind == "Q":
             return self._swelling(t, nu)
+        if t.kind == "nu":  # a strand-density target bounds ν itself
+            return float(nu)
         got = self._net_params(nu, t.temperature if t.temperature is not None else self.setup.T)
         if isinstance(got, Exception):
             self._note(t, str(got))
@@ -560,6 +562,12 @@ def _extra_notices(ev: _Evaluator, setup: DesignSetup, outcomes: list[TargetOutc
         notes.append(Notice(f"the chain constants of {poly.key} (density, M_K, plateau modulus) are recalled, not "
                             "re-read (polymers.toml): check them before a design decision rests on the window",
                             "memory-values", poly.key))
+    from .materials import temperature_notices
+
+    notes.extend(temperature_notices(poly, setup.T, "design temperature"))
+    for o in outcomes:  # targets read at their own temperature (G@100C …)
+        if o.target.temperature is not None:
+            notes.extend(temperature_notices(poly, o.target.temperature, f"target {o.target.text}"))
     if setup.filler > 0:
         notes.append(Notice(f"filler φ = {setup.filler:g} enters through the network's filler handling "
                             "(Guth–Gold amplification): well-dispersed, weakly reinforcing filler only", "filler"))

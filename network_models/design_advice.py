@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from .design import _binding
 from .errors import UserError
 
-__all__ = ["Advice", "advise", "compound_from_fit", "nu_for_modulus"]
+__all__ = ["CURRENT_BASES", "Advice", "advise", "compound_from_fit", "convert_current", "nu_basis", "nu_for_modulus"]
 
 
 @dataclass
@@ -158,3 +158,73 @@ def compound_from_fit(result, fit) -> tuple[float, tuple[float, float] | None]:
     if table.G_ci is not None and table.G_ci[0] is not None and table.G_ci[0] > 0:
         ci = (nu_for_modulus(s, table.G_ci[0], table.T), nu_for_modulus(s, table.G_ci[1], table.T))
     return nu, ci
+
+
+# ----- on which basis the design counts ν (stated in its text and JSON; ``--current-basis``) -------------------
+#: the bases a measured ν can be given on (``design --current-basis``)
+CURRENT_BASES = ("design", "entanglements-removed", "all-of-G")
+
+
+def nu_basis(setup) -> dict:
+    """How the design (a :class:`~network_models.design.DesignSetup`) counts ν: ``{label, model, G_e_Pa,
+    G_e_source, filler_volume_fraction}``.  With the entanglement contribution on, ν counts only the crosslink
+    strands and the network's small-strain modulus is X·(νRT + G_e) for the affine model (G_e the polymer's
+    plateau modulus ∝ T, X the Guth–Gold factor) — the basis of ``crosslinks``' headline; with it off, all of G
+    is read as crosslinks (G = X·νRT)."""
+    from .models import get_model
+    from .network import get_polymer
+
+    m = get_model(setup.model)
+    p = get_polymer(setup.polymer)
+    filler = f", filler removed (Guth–Gold, φ = {setup.filler:g})" if setup.filler > 0 else ""
+    if setup.entanglements:
+        Ge = p.plateau_modulus * setup.T / p.plateau_temperature
+        src = (f"plateau modulus of {p.key} G_N⁰ = {p.plateau_modulus / 1e6:.3g} MPa at "
+               f"{p.plateau_temperature - 273.15:.4g} °C scaled ∝ T (polymer table, {p.status})")
+        label = f"{m.title}: ν counts crosslink strands only, entanglement part removed (G_e = {Ge / 1e6:.3g} MPa)"
+    else:
+        Ge, src = 0.0, "none: entanglements switched off, so all of G is read as crosslinks"
+        label = f"{m.title}: ν counts all of G as crosslink strands (entanglements counted as crosslinks)"
+    return {"label": label + filler, "model": m.name, "G_e_Pa": Ge, "G_e_source": src,
+            "entanglements": bool(setup.entanglements), "filler_volume_fraction": setup.filler,
+            "key": "entanglements-removed" if setup.entanglements else "all-of-G"}
+
+
+def _affine_modulus(setup, nu: float, basis: str) -> float:
+    """The small-strain shear modulus (Pa) an affine ν on ``basis`` stands for at the design's T and filler."""
+    from .constants import R
+    from .network import get_polymer, guth_gold
+
+    p = get_polymer(setup.polymer)
+    Ge = p.plateau_modulus * setup.T / p.plateau_temperature if basis == "entanglements-removed" else 0.0
+    return guth_gold(setup.filler) * (nu * R * setup.T + Ge)
+
+
+def convert_current(setup, nu: float, ci, basis: str):
+    """``(ν, ci, sentence)`` of today's compound on the design's own basis, from ν (mol/m³) given on ``basis``
+    (``"design"``: already on it; ``"entanglements-removed"`` or ``"all-of-G"``: the affine readings of the
+    ``crosslinks`` table, the first being its headline).  The given ν is turned into the modulus it stands for
+    and that modulus into the design model's ν (:func:`nu_for_modulus`).  Refuses with a sentence when the
+    modulus lies outside what the design model gives (e.g. all of G below the entanglement modulus)."""
+    if basis not in CURRENT_BASES:
+        raise UserError(f"--current-basis {basis!r}: use one of {', '.join(CURRENT_BASES)}.")
+    own = nu_basis(setup)
+    if basis == "design" or (basis == own["key"] and setup.model == "affine"):
+        return nu, ci, "read on the design's basis"
+    G = _affine_modulus(setup, nu, basis)
+    try:
+        out = nu_for_modulus(setup, G)
+        ci_out = None if ci is None else tuple(nu_for_modulus(setup, _affine_modulus(setup, x, basis)) for x in ci)
+    except UserError:
+        from .network import guth_gold
+
+        Ge = own["G_e_Pa"] * guth_gold(setup.filler)
+        below = Ge > 0 and G <= Ge
+        raise UserError(
+            f"ν = {nu:.4g} mol/m³ read as '{basis}' stands for a shear modulus of {G / 1e6:.4g} MPa, which no "
+            f"network of the design ({own['label']}) gives"
+            + (f": it is at or below the entanglement modulus G_e = {Ge / 1e6:.3g} MPa the design assumes, so no "
+               "crosslink strands are left to count — give ν on the design's basis, or design with "
+               "--no-entanglements" if below else "; check the model and the polymer") + ".") from None
+    return out, ci_out, (f"given as {nu:.4g} mol/m³ on the '{basis}' basis (affine, shear modulus "
+                         f"{G / 1e6:.4g} MPa), converted to the design's basis")

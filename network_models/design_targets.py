@@ -6,6 +6,7 @@ A target is ``QUANTITY OPERATOR VALUE``::
     G@100C>=0.4MPa        M300>=8MPa            planar@2>=1.1MPa     equibiaxial@1.5<=0.9MPa
     lock>=6               lock(planar)>=4       reserve>=400%        reserve@50%>=350%
     Q(toluene)<=3.5       Q(toluene,chi=0.42)<=3.5
+    nu=250..300mol/m3     nu>=120mol/m3
 
 Quantities (evaluated by :mod:`network_models.design` for a network of strand density ν):
 
@@ -20,7 +21,9 @@ Quantities (evaluated by :mod:`network_models.design` for a network of strand de
   (e_service = 0 % when not given, so ``reserve>=400%`` means λ_lock ≥ 5).  The lock is an upper bound on the
   elongation at break; real compounds break earlier;
 * ``Q(<solvent>[,chi=<χ>])`` — equilibrium volume swelling ratio of the rubber phase, Q = 1/φ (Flory–Rehner,
-  affine, with the solvent table's χ unless given).
+  affine, with the solvent table's χ unless given);
+* ``nu`` (also ``ν``) — strand density, mol/m³ (a unit is required: mol/m3, mol/dm3, mol/cm3, mol/L, mmol/…): in
+  ``netstretch library find`` the compound's headline ν on its stated basis; in a design, ν itself.
 
 Operators: ``=`` needs a tolerance (``±5%``, ``±0.1MPa``) or a range (``1.7..1.9MPa``); ``>=``, ``<=`` (also
 ``≥``, ``≤``, ``>``, ``<``) are bounds.  A ``±x%`` tolerance is relative to the value, except for ``reserve``
@@ -45,8 +48,10 @@ __all__ = ["Target", "TargetError", "parse_target", "parse_targets", "EXAMPLES"]
 #: one correct example per kind of quantity, quoted in error sentences
 EXAMPLES = {
     "G": "G>=0.4MPa", "E": "E=2.1MPa±0.1MPa", "stress": "M100=1.8MPa±5%", "mode": "planar@2>=1.1MPa",
-    "lock": "lock>=6", "reserve": "reserve>=400%", "Q": "Q(toluene)<=3.5",
+    "lock": "lock>=6", "reserve": "reserve>=400%", "Q": "Q(toluene)<=3.5", "nu": "nu=250..300mol/m3",
 }
+#: units a strand-density target may be written in (converted to mol/m³)
+_NU_UNIT = re.compile(r"^m?mol\s*/\s*(?:[dc]?m(?:3|³|\^3|\*\*3)|l)$", re.IGNORECASE)
 
 
 class TargetError(UserError):
@@ -58,7 +63,7 @@ class Target:
     """One design target, in SI: the acceptable interval [lo, hi] of a quantity (either end may be None)."""
 
     text: str
-    kind: str  # "G" | "E" | "stress" | "lock" | "reserve" | "Q"
+    kind: str  # "G" | "E" | "stress" | "lock" | "reserve" | "Q" | "nu"
     lo: float | None
     hi: float | None
     nominal: float | None = None
@@ -73,7 +78,7 @@ class Target:
     # ----- display --------------------------------------------------------------------------------
     @property
     def unit(self) -> str:
-        return {"G": "MPa", "E": "MPa", "stress": "MPa", "reserve": "%"}.get(self.kind, "")
+        return {"G": "MPa", "E": "MPa", "stress": "MPa", "reserve": "%", "nu": "mol/m³"}.get(self.kind, "")
 
     @property
     def scale(self) -> float:
@@ -96,6 +101,8 @@ class Target:
         if self.kind == "stress":
             return (f"{self.mode.value} nominal stress at λ = {self.stretch:g} "
                     f"({100 * (self.stretch - 1):.4g} % elongation){at}")
+        if self.kind == "nu":
+            return "strand density ν"
         if self.kind == "lock":
             return f"locking stretch in {self.mode.value} tension"
         if self.kind == "reserve":
@@ -140,7 +147,8 @@ class Target:
     def to_dict(self) -> dict:
         return {"text": self.text, "quantity": self.name, "meaning": self.describe(), "low": self.lo,
                 "high": self.hi, "nominal": self.nominal, "unit": "Pa" if self.unit == "MPa" else
-                ("1 (fraction; ×100 for %)" if self.kind == "reserve" else "1"),
+                ("1 (fraction; ×100 for %)" if self.kind == "reserve" else
+                 "mol/m³" if self.kind == "nu" else "1"),
                 "temperature_K": self.temperature,
                 **({"hardness": dict(self.extras)} if self.extras.get("hardness") else {})}
 
@@ -204,6 +212,10 @@ def _quantity(text: str, q: str) -> dict:
             raise _fail(text, "give at most a stretch and a temperature after the mode", "mode")
         T = _temperature(text, parts[2], "mode") if len(parts) == 3 else None
         return {"kind": "stress", "mode": Mode.parse(head), "stretch": lam, "temperature": T, "name": s}
+    if head in ("nu", "ν"):
+        if len(parts) > 1:
+            raise _fail(text, "a strand-density target takes no '@'", "nu")
+        return {"kind": "nu", "name": "nu"}
     m = re.fullmatch(r"lock(?:\(([a-z]+)\))?", low)
     if m:
         mode = m.group(1) or "uniaxial"
@@ -235,7 +247,7 @@ def _quantity(text: str, q: str) -> dict:
                 raise _fail(text, f"χ = {chi:g} is outside 0–1", "Q")
         return {"kind": "Q", "solvent": m.group(1), "chi": chi, "name": s}
     raise _fail(text, f"unknown quantity {q.strip()!r} (known: G, E, M100/M200/M300…, uniaxial@λ, planar@λ, "
-                      "equibiaxial@λ, lock, reserve, Q(solvent))")
+                      "equibiaxial@λ, lock, reserve, Q(solvent), nu)")
 
 
 def _value(text: str, raw: str, kind: str):
@@ -250,6 +262,13 @@ def _value(text: str, raw: str, kind: str):
             return parse_quantity(raw, "pressure")
         except ValueError as exc:
             raise _fail(text, f"cannot read {raw!r} as a stress ({exc})", kind) from None
+    if kind == "nu":
+        if not _NU_UNIT.match(_unit_of(raw)):
+            raise _fail(text, f"the strand density {raw!r} needs a unit such as mol/m3 (or mol/dm3, mol/cm3)", kind)
+        try:
+            return parse_quantity(raw)
+        except ValueError as exc:
+            raise _fail(text, f"cannot read {raw!r} as a strand density ({exc})", kind) from None
     if kind == "reserve":
         if "%" not in raw:
             raise _fail(text, f"give the reserve in % of elongation, not {raw!r}", kind)
@@ -274,7 +293,7 @@ def _equal(text: str, raw: str, kind: str):
     if ".." in raw:
         a, b = raw.split("..", 1)
         unit = _unit_of(b)
-        if kind in ("G", "E", "stress", "reserve") and not _unit_of(a):
+        if kind in ("G", "E", "stress", "reserve", "nu") and not _unit_of(a):
             a = a + unit
         lo, hi = _value(text, a, kind), _value(text, b, kind)
         if not lo < hi:
@@ -289,9 +308,9 @@ def _equal(text: str, raw: str, kind: str):
         v = _value(text, v_raw, kind)
         tol = abs(v) * parse_number(t_raw.replace("%", "")) / 100.0
     else:
-        if kind in ("G", "E", "stress") and not _unit_of(v_raw):
+        if kind in ("G", "E", "stress", "nu") and not _unit_of(v_raw):
             v_raw = v_raw + t_unit  # "1.8±0.1MPa"
-        if kind in ("G", "E", "stress", "reserve") and not t_unit:
+        if kind in ("G", "E", "stress", "reserve", "nu") and not t_unit:
             t_raw = t_raw + _unit_of(v_raw)
         v = _value(text, v_raw, kind)
         tol = abs(_value(text, t_raw, kind))
@@ -343,7 +362,7 @@ def parse_target(text) -> Target:
     for b in (lo, hi):
         if b is not None and not math.isfinite(b):
             raise _fail(s, "the value is not a finite number", kind)
-    if kind in ("G", "E", "stress") and ((lo is not None and lo < 0) or (hi is not None and hi <= 0)):
+    if kind in ("G", "E", "stress", "nu") and ((lo is not None and lo < 0) or (hi is not None and hi <= 0)):
         raise _fail(s, "a tensile stress or modulus target must be positive", kind)
     if kind == "lock" and ((hi is not None and hi <= 1.0) or (lo is not None and lo < 1.0)):
         raise _fail(s, "a locking stretch is above 1", kind)

@@ -23,7 +23,8 @@ def fit_frame(result):
     for name, p in result.params.items():
         lo, hi = p.ci95 if p.ci95 is not None else (None, None)
         rows.append({"parameter": name, "symbol": p.symbol, "value": p.value, "stderr": p.stderr,
-                     "ci95_low": lo, "ci95_high": hi, "unit": p.unit, "fixed": p.fixed, "meaning": p.meaning})
+                     "ci95_low": lo, "ci95_high": hi, "unit": p.unit, "fixed": p.fixed, "meaning": p.meaning,
+                     "determined": None if p.fixed else getattr(p, "determined", True)})
     return _pd().DataFrame(rows).set_index("parameter")
 
 

@@ -43,7 +43,7 @@ from .errors import DataError
 __all__ = [
     "ENV_VAR", "FIELDS", "Polymer", "UserTable", "active_polymer_table", "add_polymers_option",
     "apply_polymers_option", "builtin_polymers", "get_polymer", "load_polymer_table", "polymer_listing",
-    "polymers", "use_polymer_table", "user_chi_rows",
+    "polymers", "temperature_notices", "use_polymer_table", "user_chi_rows", "GLASS_MARGIN", "OPTIONAL_FIELDS",
 ]
 
 #: environment variable naming a user polymer table (used when :func:`use_polymer_table` was not called)
@@ -75,6 +75,13 @@ FIELDS: dict[str, _Field] = {
                                  "entanglement molar mass M_e"),
     "expansion_1_K": _Field("expansion", 1.0, 1e-4, 2e-3, "1/K", "volume expansion coefficient β"),
 }
+#: optional numeric columns (a row may leave them out; None then): the glass transition and the upper
+#: continuous service temperature (issue #20)
+OPTIONAL_FIELDS: dict[str, _Field] = {
+    "glass_K": _Field("glass_transition", 1.0, 100.0, 400.0, "K", "glass transition temperature T_g"),
+    "service_max_K": _Field("service_max", 1.0, 300.0, 700.0, "K", "upper continuous service temperature"),
+}
+_ALL_FIELDS = {**FIELDS, **OPTIONAL_FIELDS}
 _TEXT = {"title", "source", "status", "note", "sources"}
 _STATUS = {"read", "memory", "user"}
 
@@ -98,6 +105,8 @@ class Polymer:
     sources: tuple[tuple[str, str], ...] = ()
     note: str = ""
     origin: str = "built-in"  # "built-in" or the user table's path
+    glass_transition: float | None = None  # K, T_g (optional)
+    service_max: float | None = None  # K, upper continuous service temperature (optional)
 
     def value_source(self, key: str) -> str:
         """Where the value of TOML column ``key`` (e.g. ``"plateau_MPa"``) comes from."""
@@ -111,7 +120,7 @@ def _fail(origin: str, msg: str, row: str | None = None, fld: str | None = None,
 
 
 def _number(origin, key, name, v):
-    spec = FIELDS[name]
+    spec = _ALL_FIELDS[name]
     if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
         _fail(origin, f"{v!r} is not a number; write it in {spec.unit} ({spec.meaning})", key, name)
     if not (spec.low <= v <= spec.high):
@@ -123,9 +132,9 @@ def _number(origin, key, name, v):
 def _row(key: str, r, origin: str, base: Polymer | None) -> Polymer:
     if not isinstance(r, dict):
         _fail(origin, "is not a table; write it as [KEY] followed by 'name = value' lines", key)
-    unknown = sorted(set(r) - set(FIELDS) - _TEXT)
+    unknown = sorted(set(r) - set(_ALL_FIELDS) - _TEXT)
     if unknown:
-        known = ", ".join(list(FIELDS) + sorted(_TEXT))
+        known = ", ".join(list(_ALL_FIELDS) + sorted(_TEXT))
         _fail(origin, f"unknown field(s) {', '.join(unknown)}; the fields are {known}", key, unknown[0])
     for t in ("title", "source", "status", "note"):
         if t in r and not (isinstance(r[t], str) and (r[t].strip() or t == "note")):
@@ -136,7 +145,7 @@ def _row(key: str, r, origin: str, base: Polymer | None) -> Polymer:
     if status not in _STATUS:
         _fail(origin, f"status must be one of {', '.join(sorted(_STATUS))}; got {status!r}", key, "status")
     srcs = r.get("sources", {})
-    if not isinstance(srcs, dict) or any(k not in FIELDS or not isinstance(v, str) for k, v in srcs.items()):
+    if not isinstance(srcs, dict) or any(k not in _ALL_FIELDS or not isinstance(v, str) for k, v in srcs.items()):
         _fail(origin, "must map numeric field names to source text, e.g. sources.plateau_MPa = \"…\"", key, "sources")
     values = {}
     for name, spec in FIELDS.items():
@@ -147,11 +156,16 @@ def _row(key: str, r, origin: str, base: Polymer | None) -> Polymer:
         else:
             _fail(origin, f"is missing ({spec.meaning}, {spec.unit}); a new polymer needs every numeric field",
                   key, name)
+    for name, spec in OPTIONAL_FIELDS.items():
+        if name in r:
+            values[spec.attr] = _number(origin, key, name, r[name]) * spec.scale
+        elif base is not None:
+            values[spec.attr] = getattr(base, spec.attr)
     if base is None and not r.get("title"):
         _fail(origin, "a new polymer needs a title", key, "title")
     if base is not None:  # inherited values keep their built-in sources; given ones take this row's source
-        merged = {k: base.value_source(k) for k in FIELDS if k not in r}
-        merged.update({k: r["source"] for k in FIELDS if k in r})
+        merged = {k: base.value_source(k) for k in _ALL_FIELDS if k not in r}
+        merged.update({k: r["source"] for k in _ALL_FIELDS if k in r})
         merged.update(srcs)
         srcs = merged
     return Polymer(key=key, title=r.get("title", base.title if base else ""), source=r["source"], status=status,
@@ -293,6 +307,9 @@ def polymer_listing() -> list[dict]:
     for p in polymers().values():
         vals = {name: {"value": float(f"{getattr(p, spec.attr) / spec.scale:.12g}"), "unit": spec.unit,
                        "meaning": spec.meaning, "source": p.value_source(name)} for name, spec in FIELDS.items()}
+        vals.update({name: {"value": float(f"{getattr(p, spec.attr) / spec.scale:.12g}"), "unit": spec.unit,
+                            "meaning": spec.meaning, "source": p.value_source(name)}
+                     for name, spec in OPTIONAL_FIELDS.items() if getattr(p, spec.attr) is not None})
         out.append({"key": p.key, "title": p.title, "status": p.status, "source": p.source, "note": p.note,
                     "origin": p.origin, "values": vals})
     return out
@@ -311,3 +328,43 @@ def apply_polymers_option(args) -> None:
     path = getattr(args, "polymers", None)
     if path:
         use_polymer_table(path)
+
+
+# ---- temperature and state (issue #20) -------------------------------------------------------------
+#: a rubber behaves as a rubber (entropic network, G ∝ T) only well above its glass transition: below
+#: T_g + 20 K the glass transition region stiffens it by orders of magnitude (common practice; the
+#: transition region of a rubber spans some 20–30 K above the DSC T_g [from memory]; docs/methods.md §glass)
+GLASS_MARGIN = 20.0
+
+
+def temperature_notices(polymer, T, where: str = "") -> list:
+    """Notices for a temperature ``T`` (K) that leaves the rubbery state of ``polymer`` (key or Polymer):
+    kind ``glass`` below T_g + 20 K (the word *glass* in it), kind ``service-limit`` above the upper service
+    temperature.  ``[]`` when the table has neither value, the polymer is unknown or T is None."""
+    from .errors import Notice
+
+    if T is None or polymer is None:
+        return []
+    try:
+        p = polymer if isinstance(polymer, Polymer) else get_polymer(str(polymer))
+        T = float(T)
+    except (KeyError, ValueError, TypeError, DataError):
+        return []
+    if not math.isfinite(T):
+        return []
+    at = f" ({where})" if where else ""
+    out = []
+    tg = p.glass_transition
+    if tg is not None and T < tg + GLASS_MARGIN:
+        state = "in the glass" if T < tg else "in the glass transition region"
+        out.append(Notice(
+            f"{T - 273.15:.0f} °C{at} is {state} of {p.key} (T_g ≈ {tg - 273.15:.0f} °C; rubbery above about "
+            f"{tg + GLASS_MARGIN - 273.15:.0f} °C): the network models and G = νRT describe the rubbery state only — "
+            "results here are not valid", "glass", p.key))
+    smax = p.service_max
+    if smax is not None and T > smax:
+        out.append(Notice(
+            f"{T - 273.15:.0f} °C{at} is above the upper continuous service temperature of {p.key} "
+            f"(about {smax - 273.15:.0f} °C in air): the network ages (chain scission, further crosslinking) "
+            "while tested or used there, so a result describes a changing rubber", "service-limit", p.key))
+    return out

@@ -70,7 +70,7 @@ class Network:
     def from_chemical(cls, nu_chemical: float, Mn: float, **kw) -> Network:
         """A network from its chemical (total) strand density ν_chem and primary-chain M_n: the
         elastically active density is ν = ν_chem(1 − 2M_c/M_n) with M_c = ρ/ν_chem (Flory [from memory],
-        physics.md §3).  M_n ≤ 2M_c means no gel (every strand dangles): a ParameterError says so."""
+        docs/methods.md §dangling-ends).  M_n ≤ 2M_c means no gel (every strand dangles): a ParameterError says so."""
         poly = get_polymer(kw.get("polymer", "NR"))
         if not (nu_chemical > 0 and Mn > 0 and math.isfinite(nu_chemical) and math.isfinite(Mn)):
             raise ParameterError(f"the chemical strand density and M_n must be positive; got {nu_chemical!r}, {Mn!r}")

@@ -95,7 +95,7 @@ FUNCTIONALITY = Param(
 )
 STRAND_DENSITY = Param(
     "nu", "ν", "mol/m³", (1e-6, 1e5), (20.0, 600.0), 150.0,
-    "elastically active strand density", "definition (physics.md §1)", "mol/m³", 1.0, log_scale=True,
+    "elastically active strand density", "definition (docs/methods.md §densities)", "mol/m³", 1.0, log_scale=True,
 )
 
 

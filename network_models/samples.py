@@ -53,8 +53,9 @@ def _manifest_path() -> Path:
 SAMPLE_MANIFEST: Path = _manifest_path()
 
 
-#: sub-folders of the sample set copied out with it (raw instrument exports with French and German headers)
-SAMPLE_SUBFOLDERS = ("raw_exports",)
+#: sub-folders of the sample set copied out with it (raw instrument exports with French and German headers; a QC
+#: history of one compound, batch by batch, for the results library)
+SAMPLE_SUBFOLDERS = ("raw_exports", "qc_history")
 
 
 def sample_files(subfolders: bool = False) -> list[Path]:

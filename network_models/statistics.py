@@ -215,6 +215,37 @@ def verdict(values, baseline_values, level: float = 1.0 - ALPHA) -> Verdict:
                    None if scale is None else mdd * scale)
 
 
+def welch_p_value(values, baseline_values) -> float | None:
+    """Two-sided p of Welch's t test of equal means (Welch 1947; the same decision as :func:`verdict`'s
+    interval at α = 0.05); None when either side has fewer than two values or no scatter."""
+    from scipy.stats import t as student_t
+
+    a, b = _clean(values), _clean(baseline_values)
+    if a.size < 2 or b.size < 2:
+        return None
+    sa, sb = float(a.std(ddof=1)), float(b.std(ddof=1))
+    se = math.sqrt(sa * sa / a.size + sb * sb / b.size)
+    if se == 0:
+        return None
+    tstat = float(a.mean() - b.mean()) / se
+    return float(2.0 * student_t.sf(abs(tstat), welch_dof(sa, int(a.size), sb, int(b.size))))
+
+
+def holm_adjust(p_values) -> list[float | None]:
+    """Holm's step-down adjusted p-values (Holm 1979, Scand. J. Statist. 6:65): sort the m p-values,
+    p̃₍ᵢ₎ = max_{j ≤ i} min(1, (m − j + 1)·p₍ⱼ₎).  Rejecting where p̃ < α keeps the family-wise error rate —
+    the chance of calling *any* quantity of the family different when none is — at most α, whatever the
+    correlation between the quantities.  None entries (no test) stay None and do not count in m."""
+    idx = [i for i, p in enumerate(p_values) if p is not None]
+    m = len(idx)
+    out: list[float | None] = [None] * len(p_values)
+    running = 0.0
+    for rank, i in enumerate(sorted(idx, key=lambda k: p_values[k])):
+        running = max(running, min(1.0, (m - rank) * float(p_values[i])))
+        out[i] = running
+    return out
+
+
 def combined_interval(summary: Summary, fit_se, level: float = 0.95) -> tuple[float, float] | None:
     """Interval of a compound's mean from specimen scatter *with* fit error: half-width
     t₀.₉₇₅,ₙ₋₁ · √(s²/n + Σseᵢ²/n²), seᵢ the fit standard error of each specimen's value.  Conservative: the
@@ -231,5 +262,5 @@ __all__ = [
     "ALPHA", "CANNOT_JUDGE", "DIFFERENT", "MIN_FOR_OUTLIERS", "NOT_DISTINGUISHABLE", "OUTLIER_Z", "POWER",
     "Summary", "VERDICTS",
     "VERDICT_WORDING", "Verdict", "combined_interval", "detectable_difference", "modified_z", "outliers",
-    "summarize", "verdict", "welch_dof",
+    "summarize", "verdict", "welch_dof", "welch_p_value", "holm_adjust",
 ]

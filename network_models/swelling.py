@@ -1,4 +1,4 @@
-"""Equilibrium swelling: strand density from the Flory–Rehner balance (physics.md §5).
+"""Equilibrium swelling: strand density from the Flory–Rehner balance (docs/methods.md §flory-rehner).
 
     >>> from network_models.swelling import swelling_estimate
     >>> r = swelling_estimate(dry=1.000e-3, swollen=3.20e-3, solvent="toluene", polymer="NR")
@@ -77,9 +77,13 @@ class ChiValue:
     chi: float
     temperature: float  # K
     default: bool
-    status: str  # "handbook" | "memory" | "user"
+    status: str  # "handbook" | "common" | "memory" | "estimate" | "user"
     source: str
     note: str = ""
+    #: half-width of the band of published χ for this pair around ``chi`` (docs/methods.md §chi-table);
+    #: None when the row states none (then :data:`CHI_BAND` serves)
+    spread: float | None = None
+    spread_basis: str = ""
 
 
 @lru_cache(maxsize=1)
@@ -105,6 +109,17 @@ def get_solvent(key: str) -> Solvent:
     return table[k]
 
 
+def _row_spread(r) -> float | None:
+    """The ``spread`` of a χ row (published spread around its χ, docs/methods.md §chi), checked."""
+    v = r.get("spread")
+    if v is None:
+        return None
+    v = float(v)
+    if not (math.isfinite(v) and 0 <= v < 1):
+        raise ValueError(f"χ row {r.get('polymer')}–{r.get('solvent')}: spread must be a number in [0, 1); got {v!r}")
+    return v
+
+
 def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[ChiValue]:
     """χ rows of the table (built-in rows, then any ``[[chi]]`` rows of the active user polymer table,
     :mod:`network_models.materials`), optionally for one polymer and/or solvent."""
@@ -116,14 +131,14 @@ def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[C
             continue
         rows.append(ChiValue(r["polymer"], get_solvent(r["solvent"]).key, float(r["chi"]),
                              kelvin(r["temperature_C"]), bool(r["default"]), r["status"], r["source"],
-                             r.get("note", "")))
+                             r.get("note", ""), _row_spread(r), str(r.get("spread_basis", ""))))
     return rows
 
 
 #: which χ row wins when the user gives none: rows measured within :data:`CHI_TEMPERATURE_WINDOW` of the
 #: swelling temperature first; among those the user's own rows, then rows read in a handbook or paper, then
 #: recalled ones, then solubility-parameter estimates; ``default = true`` only breaks ties within one rank.
-CHI_STATUS_RANK = {"user": 0, "handbook": 1, "read": 1, "memory": 2, "estimate": 3}
+CHI_STATUS_RANK = {"user": 0, "handbook": 1, "read": 1, "common": 1, "memory": 2, "estimate": 3}
 CHI_TEMPERATURE_WINDOW = 30.0  # K
 
 
@@ -297,6 +312,16 @@ class SwellingEstimate:
     soluble_fraction: float | None = None
     kraus: dict | None = None
     notes: list[str] = field(default_factory=list)
+    #: half-width of the published-χ band (docs/methods.md §chi) and what it rests on
+    chi_spread: float = CHI_BAND
+    chi_spread_basis: str = ""
+    #: network -> (ν at χ − spread, ν at χ + spread); None where Flory–Rehner has no positive root
+    nu_band_chi: dict = field(default_factory=dict)
+
+    @property
+    def chi_used(self) -> float:
+        """The χ this result was computed with (table row or the caller's value)."""
+        return self.chi.chi
     insoluble_fraction: float | None = None  # F of the Ellis–Welding correction (None: not applied)
 
     def nu(self, network="affine") -> float:
@@ -339,6 +364,9 @@ class SwellingEstimate:
             "insoluble_fraction": self.insoluble_fraction,
             "units": {"strand_density": "mol/m³", "junction_density": "mol/m³", "Mc": "kg/mol"},
             "rows": self.rows(), "notes": list(self.notes),
+            "chi_used": self.chi.chi, "chi_spread": self.chi_spread, "chi_spread_basis": self.chi_spread_basis,
+            "chi_band_published": [self.chi.chi - self.chi_spread, self.chi.chi + self.chi_spread],
+            "nu_band_chi": {net: list(b) for net, b in self.nu_band_chi.items()},
         }
 
 
@@ -354,10 +382,11 @@ def _chi_for(poly, sol, chi, T, notes) -> ChiValue:
                 f"the table's χ for {poly.key}–{sol.key} was measured at {cv.temperature - ZERO_CELSIUS:.0f} °C, "
                 f"far from the swelling test at {T_test - ZERO_CELSIUS:.0f} °C: χ changes with temperature, so give "
                 "χ for your temperature when you have it", kind="chi-temperature", subject=f"{poly.key}–{sol.key}"))
-        if cv.status in ("memory", "estimate"):
+        if cv.status in ("memory", "estimate", "common"):
             notes.append(Notice(
                 f"χ for {poly.key}–{sol.key} is "
-                + ("recalled, not re-read" if cv.status == "memory" else "a solubility-parameter estimate")
+                + {"memory": "recalled, not re-read", "estimate": "a solubility-parameter estimate",
+                   "common": "the value most of the rubber literature uses (common practice, recalled)"}[cv.status]
                 + ": the strand density is only as good as χ — check it before a decision rests on it",
                 kind="chi-unsourced", subject=f"{poly.key}–{sol.key}"))
     else:
@@ -394,6 +423,41 @@ def _network_mass(dry, extracted, initial, notes) -> tuple[float, float | None]:
         notes.append("no extracted (re-dried) mass given: the dry mass before swelling is taken as network, "
                      "so any soluble fraction is counted as network")
     return network_mass, soluble
+
+
+#: weighing error of a lab balance for swelling (issue #20): an absorbed mass below 1 mg, or below 1 % of the
+#: dry mass, cannot be told from the balance's and the blotting's scatter (common practice: 0.1 mg balances,
+#: blotting scatter of a few mg)
+WEIGHING_ERROR_KG = 1e-6
+WEIGHING_ERROR_FRACTION = 0.01
+
+
+def check_absorbed_mass(network_mass: float, swollen: float, *, resolution_kg: float = WEIGHING_ERROR_KG) -> None:
+    """Refuse (ValueError) an absorbed solvent mass within weighing error: below 1 % of the network mass, or
+    below 1 mg when the masses are in kg (SI, as the CLI passes them).  A swollen/dry ratio of 1.001 would
+    otherwise give ν ≈ 10⁵ mol/m³ — a strand shorter than one repeat unit."""
+    absorbed = swollen - network_mass
+    if absorbed < WEIGHING_ERROR_FRACTION * network_mass or absorbed < resolution_kg:
+        raise ValueError(
+            f"the piece absorbed only {absorbed:.3g} (swollen {swollen:.6g} − dry {network_mass:.6g}, same unit): "
+            f"{100 * absorbed / network_mass:.2g} % of its dry mass, within weighing error (below 1 % of the dry "
+            "mass or 1 mg); no strand density can be read from it — check that the piece swelled to equilibrium "
+            "(about 72 h), that the swollen mass was weighed before the solvent evaporated, and the masses' units")
+
+
+def check_repeat_unit(nu_affine: float, nu_phantom: float, rho: float, poly, notes: list) -> None:
+    """Refuse (ValueError) a strand density whose strand molar mass M_c = ρ/ν is below one repeat unit of the
+    polymer (physically impossible); a note when only the phantom reading is."""
+    M0 = poly.monomer_molar_mass
+    Mc = rho / nu_affine if nu_affine > 0 else math.inf
+    if Mc < M0:
+        raise ValueError(
+            f"this swelling gives ν = {nu_affine:.4g} mol/m³ (affine), i.e. M_c = {1000 * Mc:.3g} g/mol — below one "
+            f"repeat unit of {poly.key} ({1000 * M0:.4g} g/mol): impossible for a rubber network; the swollen and dry "
+            "masses are too close (weighing error), or χ, the solvent or the polymer is wrong")
+    if nu_phantom > 0 and rho / nu_phantom < M0:
+        notes.append(f"the phantom reading gives M_c = {1000 * rho / nu_phantom:.3g} g/mol, below one repeat unit of "
+                     f"{poly.key}: use the affine row")
 
 
 def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", polymer: str = "NR", *,
@@ -447,6 +511,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                      f"from the recipe, polymer density {rho_p:g} kg/m³; v_r = {phi_m:.4f}")
     else:
         phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
+    check_absorbed_mass(network_mass, swollen)
     phi = phi_m
     kraus = None
     if filler_fraction > 0:
@@ -460,6 +525,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                      "density larger than the mechanical one")
     nu_a = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "affine")
     nu_p = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "phantom")
+    check_repeat_unit(nu_a, nu_p, rho_p, poly, notes)
     band = {}
     for net in ("affine", "phantom"):
         vals = []
@@ -473,8 +539,36 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         notes.append("χ + 0.05 leaves no positive strand density for this swelling: the upper band is missing")
     notes.append("Flory–Rehner assumes a perfect network in equilibrium with pure solvent at the test "
                  "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
+    spread, basis, band_chi = _published_band(phi, cv, sol.molar_volume, f, notes)
     return SwellingEstimate(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes,
-                            insoluble_fraction)
+                            chi_spread=spread, chi_spread_basis=basis, nu_band_chi=band_chi,
+                            insoluble_fraction=insoluble_fraction)
+
+
+def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
+    """ν at χ ± the published spread of χ for this pair (docs/methods.md §chi), and a note that shows the χ
+    in use and the band it spans (the note reaches the CLI text, the app and the report)."""
+    if cv.spread is not None:
+        spread, basis = cv.spread, cv.spread_basis or "published spread stated in the solvent table"
+    else:
+        spread = CHI_BAND
+        basis = ("χ given by the user: the fixed ± 0.05 band" if cv.status == "user"
+                 else "no published spread stated for this row: the fixed ± 0.05 band")
+    band = {}
+    for net in ("affine", "phantom"):
+        vals = []
+        for c in (cv.chi - spread, cv.chi + spread):
+            try:
+                vals.append(flory_rehner_nu(phi, c, V1, f, net))
+            except ValueError:
+                vals.append(None)
+        band[net] = (vals[0], vals[1])
+    lo, hi = band["affine"]
+    span = (f"{hi:.4g} … {lo:.4g} mol/m³" if lo is not None and hi is not None
+            else "no positive strand density at the upper end")
+    notes.append(f"χ in use: {cv.chi:g} [{cv.status}]; published values spread ± {spread:g} ({basis}): "
+                 f"affine ν spans {span} over χ = {cv.chi - spread:.3g} … {cv.chi + spread:.3g}")
+    return spread, basis, band
 
 
 def from_record(record, polymer: str, **kw) -> SwellingEstimate:

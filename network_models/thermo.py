@@ -28,7 +28,8 @@ def _check_temperatures(T, T_ref, allow_zero=True):
                          "(a reference of 0 would divide by zero: give e.g. 296.15 for 23 °C)")
 
 
-def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, expansion=0.0):
+def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, expansion=0.0,
+                          energetic_fraction=0.0):
     """Uniaxial force at a clamped length (Gaussian network), N (or Pa·m² units of ``area_ref``).
 
     ``clamp_stretch`` is the clamped length over the unstretched length at ``T_ref``; ``expansion`` the
@@ -45,23 +46,34 @@ def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, ex
         raise ValueError(f"clamped stretch must be a positive number; got {clamp_stretch!r}")
     s = 1.0 + expansion * (T - T_ref)
     lam = clamp_stretch / np.cbrt(s)
-    return modulus_ref * (T / T_ref) * area_ref * np.cbrt(s) * (lam - lam**-2)
+    fe = float(energetic_fraction)
+    if not (math.isfinite(fe) and -1.0 < fe < 1.0):
+        raise ValueError(f"the energetic fraction f_e/f must lie between −1 and 1; got {energetic_fraction!r}")
+    # modulus: the entropic share (1 − f_e/f) grows with T, the energetic share f_e/f does not (at T_ref)
+    return modulus_ref * ((1.0 - fe) * T / T_ref + fe) * area_ref * np.cbrt(s) * (lam - lam**-2)
 
 
-def inversion_strain(T, expansion):
+def inversion_strain(T, expansion, energetic_fraction=0.0):
     """Clamped strain at which dF/dT = 0 at temperature T: λ³ − 1 = βT for the ideal network above, so
-    ε ≈ βT/3 at small strain [derived]."""
+    ε ≈ βT/3 = β_lin·T at small strain [derived].  With an energetic share f_e/f of the force (known from a
+    force–temperature record, ``energetic_fraction``) only the entropic part grows with T and the inversion
+    moves out: ε_inv ≈ β_lin·T/(1 − f_e/f) [derived; ≈ 8 % for NR with f_e/f = 0.18, about 10 % is observed
+    from memory] (docs/methods.md §thermoelasticity)."""
     from scipy.optimize import brentq
 
     def slope(eps):
         h = 1e-3
         f = force_at_fixed_length
-        return f(T + h, 1 + eps, 1.0, T, expansion=expansion) - f(T - h, 1 + eps, 1.0, T, expansion=expansion)
+        return (f(T + h, 1 + eps, 1.0, T, expansion=expansion, energetic_fraction=energetic_fraction)
+                - f(T - h, 1 + eps, 1.0, T, expansion=expansion, energetic_fraction=energetic_fraction))
 
     _check_temperatures(np.asarray(T, dtype=np.float64), T, allow_zero=False)
     if not (math.isfinite(expansion) and 0 <= expansion < 0.01):
         raise ValueError(f"volume expansion coefficient β = {expansion!r} 1/K is implausible; rubbers have about "
                          "6e-4 1/K")
+    if not (math.isfinite(energetic_fraction) and -1.0 < energetic_fraction < 0.9):
+        raise ValueError(f"the energetic fraction f_e/f = {energetic_fraction!r} is implausible for a rubber "
+                         "(natural rubber about 0.1–0.2); give it as a fraction")
     if expansion == 0:
         return 0.0
     return brentq(slope, 1e-6, 1.0)
@@ -70,6 +82,12 @@ def inversion_strain(T, expansion):
 #: below this λ³ − 1 the thermal-expansion correction βT/(λ³ − 1) dominates the energetic fraction
 #: (at λ³ − 1 = 0.5 it is ≈ 0.4 for β = 6.6e-4 1/K at 300 K, larger than f_e/f itself) [derived]
 CORRECTION_DOMINATES_BELOW = 0.5
+
+#: JSON key of ``netstretch thermo`` for −T·∂ln(F/T)/∂T at constant pressure and length (issue #20: the old key
+#: ``energetic_fraction_constant_pressure`` named it an energetic fraction, which it is not; kept one release
+#: as a deprecated alias, listed under ``deprecated_keys``)
+THERMOELASTIC_KEY = "thermoelastic_coefficient_constant_pressure"
+DEPRECATED_KEYS = {"energetic_fraction_constant_pressure": THERMOELASTIC_KEY}
 
 METHOD_CONSTANT_PRESSURE = ("measured at constant pressure and length, no thermal-expansion correction: "
                             "−T·∂ln(F/T)/∂T at p, L (not the constant-volume energetic fraction)")
@@ -121,7 +139,7 @@ def energetic_fraction(T, force, stretch, expansion=None):
     from a straight-line fit of ln(F/T) on T, with its standard error).  With the volume expansion
     coefficient β the **constant-volume** energetic fraction — the one that measures the energetic part of
     the chains — follows as f_e/f = −T·∂ln(F/T)/∂T|_{p,L} − βT/(λ³ − 1) (Flory, Ciferri & Hoeve 1960
-    [memory]; physics.md §8).  ``expansion=None`` returns the uncorrected constant-pressure value.
+    [memory]; docs/methods.md §thermoelastic).  ``expansion=None`` returns the uncorrected constant-pressure value.
 
     For an ideal network with thermal expansion the constant-pressure value is βT/(λ³ − 1) and the
     constant-volume value ≈ 0.  When λ³ − 1 < 0.5 the correction dominates the result: a notice says so.

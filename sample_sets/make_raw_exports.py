@@ -4,7 +4,7 @@ preamble lines with the specimen's geometry, the force column before the extensi
 decimal commas, semicolons, and the return branch after the largest stretch.
 
 INVENTED DATA for demonstration only: not measurements.  The curves follow the neo-Hookean model
-P = G(λ − λ⁻²) (physics.md §2) with G = 0.48 MPa, plus about 0.5 % noise (fixed seed), so a fit of the
+P = G(λ − λ⁻²) (docs/methods.md §neo-hookean) with G = 0.48 MPa, plus about 0.5 % noise (fixed seed), so a fit of the
 neo-Hookean model to either file should give G ≈ 0.48 MPa.
 
     python sample_sets/make_raw_exports.py        # writes sample_sets/raw_exports/*.csv

@@ -258,7 +258,8 @@ def write_xlsx(path: Path, meta, table):
 # ---------------------------------------------------------------------------------------------------
 
 def flory_rehner_phi(nu, chi=0.39, V1=106.85e-6, f=4):
-    """Swollen polymer volume fraction φ for strand density ν (mol/m³), affine Flory–Rehner (physics.md §5)."""
+    """Swollen polymer volume fraction φ for strand density ν (mol/m³), affine Flory–Rehner
+    (docs/methods.md §flory-rehner)."""
     def g(phi):
         return -(np.log(1 - phi) + phi + chi * phi * phi) - V1 * nu * (phi ** (1 / 3) - 2 * phi / f)
     return brentq(g, 1e-4, 0.95)
@@ -419,7 +420,62 @@ def generate(out_dir: Path) -> dict[str, object]:
     return made
 
 
+# ----- a QC history: production batches of one compound over months (for `netstretch library trend`) ------------
+QC_FOLDER = "qc_history"
+QC_SEED = SEED + 23  # its own stream: the cure-study files above stay byte for byte as they were
+QC_COMPOUND = "QM-M7"  # an invented anti-vibration mount compound, mid sulfur dose (the QM-S2 network)
+#: (batch, test date, crosslink-modulus factor of the batch): the plant's ordinary drift of about ±2 %, and one
+#: invented dosing fault — batch B13 got 25 % too much curative, which the control chart should flag
+QC_BATCHES = (
+    ("B01", "2026-02-03", 1.00), ("B02", "2026-02-17", 0.98), ("B03", "2026-03-03", 1.01),
+    ("B04", "2026-03-24", 1.02), ("B05", "2026-04-07", 0.99), ("B06", "2026-04-28", 1.00),
+    ("B07", "2026-05-12", 0.97), ("B08", "2026-06-02", 1.01), ("B09", "2026-06-23", 1.03),
+    ("B10", "2026-07-14", 0.99), ("B11", "2026-08-04", 1.00), ("B12", "2026-08-25", 1.02),
+    ("B13", "2026-09-15", 1.25), ("B14", "2026-10-06", 1.00), ("B15", "2026-10-27", 0.98),
+    ("B16", "2026-11-17", 1.01),
+)
+
+
+def qc_batch(rng, batch: str, date: str, scale: float) -> str:
+    """Three dumbbells of one production batch: stretch and MPa with a specimen column (~3 % specimen scatter)."""
+    key = f"{QC_COMPOUND}-{batch}"
+    out = [header([f"compound: {key}", "mode: uniaxial", "temperature: 23 °C", f"date: {date}",
+                   "test piece: dumbbell, 500 mm/min, production QC (invented)"]), "specimen,stretch,stress (MPa)\n"]
+    for k in range(1, 4):
+        factor = 1.0 + rng.normal(0.0, 0.03)
+        lam = np.linspace(1.0, 4.0, 31)
+        st = noisy(rng, nominal("QM-S2", "uniaxial", lam, scale=scale, specimen=factor))
+        for a, b in zip(lam, st, strict=True):
+            out.append(f"{batch}-{k},{fmt(a, 4)},{fmt(b / 1e6, 5)}\n")
+    return "".join(out)
+
+
+def qc_manifest() -> str:
+    out = [f"# {BANNER}\n", "# Written by make_samples.py: production QC of one invented compound, batch by batch.\n\n",
+           f'title = "Quillmere Elastomer Works: {QC_COMPOUND} mount compound, production QC (invented)"\n',
+           'purpose = "Is every production batch of the mount compound in control? (invented demonstration data)"\n',
+           'polymer = "NR"\n']
+    for batch, date, _scale in QC_BATCHES:
+        out.append(f'\n[[compound]]\nname = "{QC_COMPOUND}-{batch}"\nfiles = ["{QC_COMPOUND}-{batch}.csv"]\n'
+                   f'tested = "{date}"\nbatch = "{batch}"\nnotes = "production batch {batch} (invented)"\n')
+    return "".join(out)
+
+
+def generate_qc_history(out_dir: Path) -> dict[str, str]:
+    """Write the QC history (one CSV per batch and its manifest ``qc_history.toml``) into ``out_dir/qc_history``."""
+    folder = Path(out_dir) / QC_FOLDER
+    folder.mkdir(parents=True, exist_ok=True)
+    rng = np.random.default_rng(QC_SEED)
+    made = {f"{QC_COMPOUND}-{b}.csv": qc_batch(rng, b, d, s) for b, d, s in QC_BATCHES}
+    made["qc_history.toml"] = qc_manifest()
+    for name, text in made.items():
+        (folder / name).write_text(text, encoding="utf-8", newline="\n")
+    return made
+
+
 if __name__ == "__main__":
     target = Path(sys.argv[1]) if len(sys.argv) > 1 else HERE
     for name in generate(target):
         print(f"wrote {target / name}")
+    for name in generate_qc_history(target):
+        print(f"wrote {target / QC_FOLDER / name}")

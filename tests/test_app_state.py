@@ -31,7 +31,8 @@ def test_affine_curves_follow_the_gaussian_network_in_all_three_modes():
     res = s.stress_curves()["curves"]
     G = 200.0 * R * T23  # affine network G = νRT (Kuhn; Flory 1953), R from scipy.constants (CODATA)
     lam = res["uniaxial"]["lam"]
-    # nominal stress, physics.md §2 with W = (G/2)(I₁ − 3) (Treloar 1944, Trans. Faraday Soc. 40:59):
+    # nominal stress, docs/methods.md §stress-from-energy with W = (G/2)(I₁ − 3)
+    # (Treloar 1944, Trans. Faraday Soc. 40:59):
     np.testing.assert_allclose(res["uniaxial"]["affine"], G * (lam - lam**-2) / 1e6, rtol=1e-12)
     np.testing.assert_allclose(res["equibiaxial"]["affine"], G * (lam - lam**-5) / 1e6, rtol=1e-12)
     np.testing.assert_allclose(res["planar"]["affine"], G * (lam - lam**-3) / 1e6, rtol=1e-12)

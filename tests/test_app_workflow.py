@@ -400,3 +400,127 @@ def test_svg_box_reaches_figures_built_later():
     assert pg.ns_design.map_pane.object.output_backend == "svg"
     box.value = False
     assert {f.output_backend for f in ex.built_figures() + fit.built_figures()} == {"canvas"}
+
+
+def test_fit_residual_and_rms_axes_follow_new_data():
+    # two fits whose stresses differ tenfold (affine curves, ν = 600 and 60 mol/m³): after the second upload
+    # the fit, residual and RMS axes must span the new data, not keep the first fit's range
+    from app.main import create_app
+
+    pg = create_app(load_samples=False)
+    dv = pg.ns_data
+    fit = dv.fit
+    fit.show_figures()
+    tops = []
+    for name, nu in (("BIG-1_uniaxial.csv", 600.0), ("SMALL-1_uniaxial.csv", 60.0)):
+        dv._on_upload(SimpleNamespace(new={name: gauss_csv(nu=nu)}))
+        dv.state.selected = [name]
+        ff = fit.figs["uniaxial"]
+        y_max = max(ff.data.data["y"])  # the largest stress shown (MPa)
+        assert y_max == pytest.approx(nu * R * T23 * (3.0 - 3.0**-2) / 1e6, rel=1e-6)
+        # the y axis holds every data point and is not more than ~1.5× taller than the data
+        assert ff.fig.y_range.start <= 0.0 < y_max <= ff.fig.y_range.end <= 1.5 * y_max
+        assert ff.fig.y_range.reset_end == ff.fig.y_range.end  # the toolbar's reset returns to this range
+        res = np.abs(ff.resid.data["y"])
+        assert ff.resid_fig.y_range.end >= res.max() and ff.resid_fig.y_range.start == -ff.resid_fig.y_range.end
+        rms = [v for v in fit.rms_src.data["rms"] if np.isfinite(v)]
+        assert max(rms) <= fit.rms_fig.x_range.end <= 1.5 * max(rms)
+        tops.append((ff.fig.y_range.end, fit.rms_fig.x_range.end, ff.resid_fig.y_range.end))
+    # the second (ten times weaker) network's axes shrank with it
+    assert tops[1][0] < 0.2 * tops[0][0]
+    assert tops[1][1] < tops[0][1] and tops[1][2] < tops[0][2]
+
+
+def test_swelling_view_uses_the_manifest_chi_and_only_the_same_compounds_fit():
+    from app.main import create_app
+
+    pg = create_app()  # the invented sample set: its manifest states χ = 0.39 for the toluene swelling tests
+    v, data = pg.ns_swell, pg.ns_data.state
+    v.sample.value = "QM-S2 QM-S2-w1"
+    s = v.state
+    assert s.compound == "QM-S2" and v.compound.value == "QM-S2"
+    assert s.chi == pytest.approx(0.39)  # the manifest's χ, not the solvent table's
+    # Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, with χ = 0.39:
+    # ν = −[ln(1−v_r)+v_r+χv_r²]/(V₁(v_r^⅓ − v_r/2)); v_r from masses and densities (definition)
+    # v_r by Ellis & Welding 1964 with QM-S2's recipe (issue #21): rubber network D − F·T, F = ZnO 5 phr of
+    # 109.6 phr (NR 100, ZnO 5, stearic acid 2, sulfur 2, CBS 0.6; ZnO insoluble, the rest network or extracted)
+    sol, poly = get_solvent("toluene"), get_polymer("NR")
+    T_, D_ = s.dry_g / 1000.0, (s.extracted_g or s.dry_g) / 1000.0
+    rubber = D_ - (5.0 / 109.6) * T_
+    vr = (rubber / poly.density) / (rubber / poly.density + (s.swollen_g / 1000.0 - D_) / sol.density)
+    nu = -(math.log(1 - vr) + vr + 0.39 * vr**2) / (sol.molar_volume * (vr ** (1 / 3) - vr / 2))
+    assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
+    assert "stated for QM-S2" in v.chi_note.object
+
+    # the fit tab fits another compound: no comparison, a sentence and a button instead
+    data.selected = [f.name for f in data.compound_files("QM-S3")]
+    assert "ns-swell-compare-table" not in v.compare.object
+    assert "not QM-S2" in v.compare.object and v.fit_compound.visible
+    # the button fits QM-S2's own files; the comparison then carries that fit's ν and names its basis
+    v.fit_compound.clicks += 1
+    assert data.selected_compound() == "QM-S2"
+    assert "ns-swell-compare-table" in v.compare.object and "Basis: QM-S2" in v.compare.object
+    affine = data.crosslink_table().row("affine")
+    from network_models.formatting import number
+
+    assert number(affine.nu, 4) in v.compare.object
+    # the specimen's form compound changes: the QM-S2 fit is no longer set beside it
+    v.compound.value = "QM-S3"
+    assert "ns-swell-compare-table" not in v.compare.object and "not QM-S3" in v.compare.object
+
+
+def test_swelling_table_takes_each_compounds_stated_chi():
+    from pathlib import Path
+
+    from app.data_state import DataState
+    from app.swell_state import SwellState
+
+    d = DataState()
+    d.load_samples()
+    s = SwellState()
+    table = (Path(__file__).resolve().parent.parent / "sample_sets" / "swelling_toluene.csv").read_bytes()
+    s.load_table(table, "swelling_toluene.csv")
+    rows = s.table_estimates(d.compounds)
+    # compounds.toml's [swelling] chi = 0.39 (the invented set's stated value), not the table's 0.36
+    assert rows and all(r["chi"] == pytest.approx(0.39) and r["chi_source"] == "stated for the compound"
+                        for r in rows)
+
+
+def test_swelling_picker_offers_the_sessions_own_tests_with_their_chi_and_recipe():
+    # a compound made in this session (not the bundled set) with one swelling test stating χ = 0.45
+    from app.main import create_app
+    from network_models.compounds import SwellingTest
+
+    pg = create_app(load_samples=False)
+    dv, v = pg.ns_data, pg.ns_swell
+    dv._on_upload(SimpleNamespace(new={"MIX-9_uniaxial.csv": gauss_csv(nu=150.0)}))
+    dv.state.set_compound_info("MIX-9", polymer="SBR", swelling=[
+        SwellingTest(dry=1.0e-3, swollen=3.2e-3, solvent="toluene", chi=0.45, specimen="w1")])
+    assert "MIX-9 w1" in v.sample.options
+    v.sample.value = "MIX-9 w1"
+    s = v.state
+    assert (s.compound, s.polymer, s.chi, s.dry_g, s.swollen_g) == ("MIX-9", "SBR", 0.45, 1.0, 3.2)
+    # Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, χ = 0.45, SBR density from polymers.toml;
+    # v_r from masses and densities (definition)
+    sol, poly = get_solvent("toluene"), get_polymer("SBR")
+    vr = (1.0e-3 / poly.density) / (1.0e-3 / poly.density + 2.2e-3 / sol.density)
+    nu = -(math.log(1 - vr) + vr + 0.45 * vr**2) / (sol.molar_volume * (vr ** (1 / 3) - vr / 2))
+    assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
+    # and the fit beside it is MIX-9's own (the only compound here, selected on upload)
+    assert "Basis: MIX-9" in v.compare.object
+
+
+def test_the_swelling_forms_compound_and_typed_chi_survive_a_project():
+    from app.main import create_app
+
+    a = create_app(load_samples=False)
+    a.ns_data._on_upload(SimpleNamespace(new={"P-7_uniaxial.csv": gauss_csv(150.0)}))
+    sw = a.ns_swell.state
+    sw.compound = "P-7"
+    sw.param.update(dry_g=1.0, swollen_g=3.0, chi=0.42)  # a χ typed by the user after choosing the compound
+    blob = a.ns_session.to_project()
+    b = create_app(load_samples=False)
+    assert b.ns_session.load_project(blob) == []
+    s = b.ns_swell.state
+    assert (s.compound, s.chi, s.dry_g) == ("P-7", 0.42, 1.0)
+    assert b.ns_swell.compound.value == "P-7"

@@ -27,7 +27,8 @@ def _ideal_network_with_expansion(T, lam, beta, T_ref, c=0.01):
 
 def test_labels_constant_pressure_vs_constant_volume(tmp_path, capsys):
     # Issue 10 item 4: the value measured at constant pressure is the uncorrected one; the Flory–Ciferri–Hoeve
-    # corrected value is the constant-volume energetic fraction, ≈ 0 for an ideal network (physics.md §8).
+    # corrected value is the constant-volume energetic fraction, ≈ 0 for an ideal network
+    # (docs/methods.md §thermoelastic).
     beta, lam = 6.6e-4, 2.0
     T_c = np.linspace(20, 30, 11)
     T = T_c + 273.15
@@ -36,7 +37,7 @@ def test_labels_constant_pressure_vs_constant_volume(tmp_path, capsys):
     assert main(["thermo", str(f), "--expansion", str(beta), "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     at_p, at_v = out["energetic_fraction_constant_pressure"], out["energetic_fraction_constant_volume"]
-    expected_p = beta * T.mean() / (lam**3 - 1)  # βT/(λ³ − 1) [derived, physics.md §8]
+    expected_p = beta * T.mean() / (lam**3 - 1)  # βT/(λ³ − 1) [derived, docs/methods.md §thermoelastic]
     assert at_p["value"] == pytest.approx(expected_p, rel=5e-3)
     assert abs(at_v["value"]) < 5e-3 * expected_p
     assert "constant-volume" in at_v["method"] and "constant pressure" in at_p["method"]

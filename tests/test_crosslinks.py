@@ -25,9 +25,9 @@ def test_affine_and_phantom_rows():
     G = 0.55e6
     t = from_modulus(G, "G", polymer="NR", T=T, f=4)
     aff, ph = t.row("affine"), t.row("phantom")
-    # affine G = νRT; phantom G = (1 − 2/f)νRT (physics.md §3: James & Guth; Flory)
+    # affine G = νRT; phantom G = (1 − 2/f)νRT (docs/methods.md §affine, §phantom: James & Guth; Flory)
     assert aff.nu == pytest.approx(G / (R * T), rel=1e-12)
-    assert ph.nu == pytest.approx(2 * aff.nu, rel=1e-12)  # f = 4: a factor 2 (physics.md §1)
+    assert ph.nu == pytest.approx(2 * aff.nu, rel=1e-12)  # f = 4: a factor 2 (docs/methods.md §densities)
     assert aff.junction_density == pytest.approx(aff.nu / 2)  # μ_j = 2ν/f
     rho = get_polymer("NR").density
     assert aff.Mc == pytest.approx(rho / aff.nu)  # M_c = ρ/ν
@@ -45,9 +45,9 @@ def test_hand_worked_value():
 
 
 def test_trade_moduli_inversions():
-    # E = 3G (incompressible, small strain, physics.md §2).
+    # E = 3G (incompressible, small strain, docs/methods.md §small-strain).
     assert shear_modulus_from(1.5e6, "E") == pytest.approx(0.5e6)
-    # M100/M300: nominal stress at 100 %/300 % elongation (λ = 2, 4; physics.md §7) inverted with the
+    # M100/M300: nominal stress at 100 %/300 % elongation (λ = 2, 4; docs/methods.md §trade-moduli) inverted with the
     # neo-Hookean P = G(λ − λ⁻²): 2 − 1/4 = 1.75, 4 − 1/16 = 3.9375.
     assert shear_modulus_from(1.75e6, "M100") == pytest.approx(1.0e6)
     assert shear_modulus_from(3.9375e6, "M300") == pytest.approx(1.0e6)
@@ -62,13 +62,13 @@ def test_trade_moduli_inversions():
 
 def test_mooney_2c1_2c2():
     t = from_modulus(0.30e6, "2C1", c2=0.12e6, T=T)
-    assert t.G == pytest.approx(0.42e6)  # 2C₁ + 2C₂: upper end of the Mooney bracket (physics.md §2)
+    assert t.G == pytest.approx(0.42e6)  # 2C₁ + 2C₂: upper end of the Mooney bracket (docs/methods.md §mooney-rivlin)
     assert t.row("affine-no-entanglement").nu == pytest.approx(0.30e6 / (R * T))
 
 
 def test_entanglement_share_from_plateau_modulus():
     poly = get_polymer("NR")
-    Ge = poly.plateau_modulus * T / poly.plateau_temperature  # G_e ∝ T (physics.md §4)
+    Ge = poly.plateau_modulus * T / poly.plateau_temperature  # G_e ∝ T (docs/methods.md §temperature-scaling)
     t = from_modulus(0.6e6, "G", polymer="NR", T=T)
     assert t.row("affine-no-entanglement").nu == pytest.approx((0.6e6 - Ge) / (R * T))
     # a modulus below the plateau modulus leaves nothing: no number, a sentence instead
@@ -78,14 +78,14 @@ def test_entanglement_share_from_plateau_modulus():
 
 def test_filler_and_dangling_end_rows():
     t = from_modulus(0.6e6, "G", polymer="NR", T=T, filler_fraction=0.10, Mn=250.0)
-    # Guth–Gold 1 + 2.5φ + 14.1φ² = 1.3910 at φ = 0.10 (physics.md §4 [derived])
+    # Guth–Gold 1 + 2.5φ + 14.1φ² = 1.3910 at φ = 0.10 (docs/methods.md §guth-gold [derived])
     assert t.row("affine-no-filler").nu == pytest.approx(0.6e6 / 1.3910 / (R * T), rel=1e-4)
     # both removed: the gum's crosslink part (G/X − G_e,gum) = νRT, with G_e,gum from the plateau modulus ∝ T
     poly = get_polymer("NR")
     Ge_gum = poly.plateau_modulus * T / poly.plateau_temperature
     assert t.row("affine-no-entanglement-no-filler").nu == pytest.approx(
         (0.6e6 / 1.3910 - Ge_gum) / (R * T), rel=1e-3)
-    # Flory dangling ends: ν(1 − 2M_c/M_n)RT = G with M_c = ρ/ν (physics.md §3 [memory])
+    # Flory dangling ends: ν(1 − 2M_c/M_n)RT = G with M_c = ρ/ν (docs/methods.md §dangling-ends [memory])
     row = t.row("affine-dangling-ends")
     rho = get_polymer("NR").density
     assert row.nu * (1 - 2 * (rho / row.nu) / 250.0) * R * T == pytest.approx(0.6e6, rel=1e-12)

@@ -46,7 +46,8 @@ def test_affine_E_and_hot_G_targets():
     poly = get_polymer("NR")
     assert r.binding["high"] == ["G@100C>=0.4MPa"] and "at least 1.5" in r.why
     assert r.window.hi == pytest.approx(poly.density / (N_MIN * poly.kuhn_molar_mass), rel=2e-2)
-    assert any(n.kind == "temperature" for n in r.notices)  # physics.md §7: filled compounds often soften
+    # docs/methods.md §temperature-scaling: filled compounds often soften
+    assert any(n.kind == "temperature" for n in r.notices)
 
 
 def test_neo_hookean_M100_target():
@@ -59,7 +60,7 @@ def test_neo_hookean_M100_target():
 
 
 @pytest.mark.parametrize(("target", "factor"), [
-    ("planar@2>=1MPa", 2.0 - 2.0**-3),        # planar P = G(λ − λ⁻³) (physics.md §2, W₁ = G/2)
+    ("planar@2>=1MPa", 2.0 - 2.0**-3),        # planar P = G(λ − λ⁻³) (docs/methods.md §stress-from-energy, W₁ = G/2)
     ("equibiaxial@1.5>=1MPa", 1.5 - 1.5**-5),  # equibiaxial P = G(λ − λ⁻⁵)
 ])
 def test_neo_hookean_other_modes(target, factor):
@@ -89,7 +90,7 @@ def test_lock_of_a_model_without_lock_uses_N_and_says_so():
 
 
 def _flory_rehner_nu(phi, chi, V1, f=4):
-    # Flory & Rehner 1943, affine, general f (physics.md §5), written here with mpmath
+    # Flory & Rehner 1943, affine, general f (docs/methods.md §flory-rehner), written here with mpmath
     phi = mpmath.mpf(phi)
     return float(-(mpmath.log(1 - phi) + phi + chi * phi**2) / (V1 * (phi ** (mpmath.mpf(1) / 3) - 2 * phi / f)))
 
@@ -101,9 +102,24 @@ def test_swelling_target_flory_rehner():
     r = design(["Q(toluene,chi=0.39)<=4"], model="eight-chain")
     nu = _flory_rehner_nu(0.25, 0.39, V1)
     assert r.window.lo == pytest.approx(nu, rel=1e-8)
-    # physics.md §5 table (V₁ = 106.85 cm³/mol): φ = 0.25, χ = 0.39, affine → 2.4663e-4 mol/cm³
+    # docs/methods.md §flory-rehner table (V₁ = 106.85 cm³/mol): φ = 0.25, χ = 0.39, affine → 2.4663e-4 mol/cm³
     assert r.window.lo == pytest.approx(246.63, rel=2e-4)
     assert any(n.kind == "chi-band" for n in r.notices)
+
+
+def test_swelling_target_uses_the_same_chi_as_a_swelling_result():
+    # one answer per quantity (docs/methods.md §chi): a Q target without χ takes the row a swelling test at the
+    # lab temperature would take.  CR–toluene: the handbook 0.14 was measured at 100 °C (Orwoll & Arnold,
+    # Table 14.1 [handbook]), so at 23 °C the table's estimate row serves — before, design took the 0.14.
+    from network_models.swelling import swelling_estimate
+
+    r = design(["Q(toluene)<=3"], polymer="CR", model="affine")
+    used = swelling_estimate(1.0, 2.5, "toluene", "CR").chi_used
+    assert used != 0.14
+    assert any(f"χ = {used:g} [estimate]" in str(n) for n in r.notices)
+    # NR–toluene: the common-practice default 0.39 in both
+    r = design(["Q(toluene)<=4"], model="eight-chain")
+    assert r.window.lo == pytest.approx(246.63, rel=2e-4)  # §flory-rehner table, φ = 0.25, χ = 0.39, affine
 
 
 def test_trade_units_psi_and_kgf():

@@ -1,8 +1,9 @@
 """The lab-file reader (network_models.labfiles): languages, column order, everything missing at once,
 workbooks (.xls, .ods), reading profiles, compression sign conventions and the invented raw exports.
 
-Expected numbers follow from the definitions (λ = 1 + ΔL/L₀, nominal stress P = F/A₀ — physics.md §1) and
-from the neo-Hookean law P = G(λ − λ⁻²) for uniaxial loading (physics.md §2, valid for λ < 1 as well);
+Expected numbers follow from the definitions (λ = 1 + ΔL/L₀, nominal stress P = F/A₀ —
+docs/methods.md §stress-strain) and
+from the neo-Hookean law P = G(λ − λ⁻²) for uniaxial loading (docs/methods.md §compression, valid for λ < 1 as well);
 unit factors from scipy.constants.
 """
 
@@ -238,7 +239,7 @@ def test_cli_fit_with_profile(tmp_path):
 
 G = 0.5e6  # Pa
 LAM_C = np.linspace(1.0, 0.62, 20)
-P_C = G * (LAM_C - LAM_C**-2)  # neo-Hookean uniaxial nominal stress (physics.md §2); negative for λ < 1
+P_C = G * (LAM_C - LAM_C**-2)  # neo-Hookean uniaxial nominal stress (docs/methods.md §compression); negative for λ < 1
 
 
 def _compression_file(tester_signs: bool, marker="# mode: compression\n") -> bytes:

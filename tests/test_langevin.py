@@ -47,7 +47,7 @@ def test_inverse_matches_mpmath_to_1e13(reference_points):
 
 
 def test_published_check_values():
-    # physics.md §6 (mpmath, 30 digits): L⁻¹(0.1), (0.5), (0.8), (0.9).
+    # docs/methods.md §inverse-langevin (mpmath, 30 digits): L⁻¹(0.1), (0.5), (0.8), (0.9).
     y = np.array([0.1, 0.5, 0.8, 0.9])
     expected = np.array([0.301817149206338, 1.79675598472371, 4.99772056690742, 9.99999958776895])
     np.testing.assert_allclose(inverse_langevin(y), expected, rtol=2e-14)
@@ -67,7 +67,8 @@ def test_round_trip():
 
 
 def test_maclaurin_coefficients_by_series_reversion():
-    # L(x) series from Bernoulli numbers (Abramowitz & Stegun 4.5.67), reverted exactly; physics.md §6 lists
+    # L(x) series from Bernoulli numbers (Abramowitz & Stegun 4.5.67), reverted exactly;
+    # docs/methods.md §inverse-langevin lists
     # the first five: 3, 9/5, 297/175, 1539/875, 126117/67375.
     a = langevin_series_coefficients(len(LINV_SERIES))
     c = revert_odd_series(a)
@@ -83,7 +84,7 @@ def test_langevin_series_coefficients():
                                rtol=1e-15)
 
 
-# Published closed forms with the maximum relative error over (0, 1) quoted in physics.md §6
+# Published closed forms with the maximum relative error over (0, 1) quoted in docs/methods.md §inverse-langevin
 # (each recomputed there): our exact inverse must reproduce those figures.
 APPROXIMANTS = {
     "Cohen 1991 rounded Padé": (lambda y: y * (3 - y * y) / (1 - y * y), 4.94),
@@ -139,7 +140,7 @@ def test_property_finite_inside_and_monotone(y):
 
 def test_scalar_inverse_matches_mpmath(reference_points):
     # the pure-Python scalar path (used per slider move for the chain models' small-strain modulus) keeps the
-    # project's accuracy promise against mpmath (physics.md §6)
+    # project's accuracy promise against mpmath (docs/methods.md §inverse-langevin)
     pts, ref = reference_points
     got = np.array([inverse_langevin_scalar(float(p)) for p in pts])
     np.testing.assert_allclose(got, ref, rtol=1e-13, atol=0)

@@ -50,7 +50,8 @@ def test_stress_is_energy_derivative(name, mode):
 
 @pytest.mark.parametrize("name", list(MODELS))
 def test_small_strain_modulus_against_numerical_slope(name):
-    # Small strain: P ≈ 3G(λ − 1) in uniaxial tension (E = 3G for an incompressible solid, physics.md §2).
+    # Small strain: P ≈ 3G(λ − 1) in uniaxial tension (E = 3G for an incompressible solid,
+    # docs/methods.md §small-strain).
     m = get_model(name)
     for frac in (0.1, 0.5, 0.9):
         p = typical_params(m, frac)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import mpmath as mp
 import numpy as np
 import pytest
 from scipy.constants import R
@@ -24,10 +25,10 @@ def test_affine_and_phantom_moduli_from_R():
 
 @pytest.mark.parametrize(("N", "ratio"), [(5, 1.148587), (10, 1.066313), (26.5, 1.023480), (100, 1.006057)])
 def test_eight_chain_small_strain_modulus_ratio(N, ratio):
-    # physics.md §3 [derived]: μ₀/μ = √N L⁻¹(1/√N)/3; values to 7 digits.
+    # docs/methods.md §eight-chain [derived]: μ₀/μ = √N L⁻¹(1/√N)/3; values to 7 digits.
     m = get_model("eight-chain")
     assert m.small_strain_modulus(mu=1.0e6, N=N) / 1.0e6 == pytest.approx(ratio, abs=6e-7)
-    # and the series 1 + 3/(5N) + 99/(175N²) for large N (physics.md §3)
+    # and the series 1 + 3/(5N) + 99/(175N²) for large N (docs/methods.md §eight-chain)
     if N >= 26.5:
         assert m.small_strain_modulus(mu=1.0, N=N) == pytest.approx(1 + 3 / (5 * N) + 99 / (175 * N**2), rel=5e-5)
 
@@ -47,7 +48,7 @@ def test_eight_chain_against_arruda_boyce_five_term_series():
 
 
 @pytest.mark.parametrize(("mode", "equation"), [
-    # Arruda & Boyce 1993: locking where λ_ch = √N, i.e. I₁ = 3N (physics.md §3)
+    # Arruda & Boyce 1993: locking where λ_ch = √N, i.e. I₁ = 3N (docs/methods.md §eight-chain)
     ("uniaxial", lambda x: x**2 + 2 / x),
     ("equibiaxial", lambda x: 2 * x**2 + x**-4),
     ("planar", lambda x: x**2 + 1 + x**-2),
@@ -60,7 +61,7 @@ def test_eight_chain_locking_stretch(mode, equation):
 
 
 @pytest.mark.parametrize(("lam", "slip", "nonaffine"), [
-    # physics.md §3 check values, G_c = G_e = 0.2 MPa [derived from the printed forms]
+    # docs/methods.md §non-affine-tube and §slip-tube check values, G_c = G_e = 0.2 MPa [derived from the printed forms]
     (1.5, 0.35897, 0.35683), (2.0, 0.32810, 0.32612), (3.0, 0.29000, 0.28819), (5.0, 0.25521, 0.25314),
 ])
 def test_tube_reduced_stress_check_values(lam, slip, nonaffine):
@@ -70,7 +71,8 @@ def test_tube_reduced_stress_check_values(lam, slip, nonaffine):
 
 
 def test_extended_tube_small_strain_modulus_by_differentiating_energy():
-    # physics.md §3: test the small-strain modulus by differentiating W numerically, not by an identity.
+    # docs/methods.md §extended-tube: test the small-strain modulus by differentiating W numerically,
+    # not by an identity.
     # Uniaxial W(λ) ≈ (3/2)G(λ − 1)², so G = W''(1)/3.
     m = get_model("extended-tube")
     for p in ({"Gc": 0.3e6, "Ge": 0.2e6, "delta": 0.1, "beta": 0.2},
@@ -84,8 +86,63 @@ def test_extended_tube_small_strain_modulus_by_differentiating_energy():
         assert lock**2 + 2 / lock - 3 == pytest.approx(1 / p["delta"] ** 2, rel=1e-10)
 
 
+def _kh_energy(stretches, Gc, Ge, delta, beta):
+    """Kaliske & Heinrich 1999 (Rubber Chem. Technol. 72:602) extended-tube energy written here with "+ ln"
+    (docs/methods.md §extended-tube): (G_c/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)] + (2G_e/β²)Σ(λᵢ^−β − 1),
+    x = I₁ − 3, in mpmath."""
+    x = sum(s * s for s in stretches) - 3
+    d2 = delta * delta
+    u = 1 - d2 * x
+    return Gc / 2 * ((1 - d2) * x / u + mp.log(u)) + 2 * Ge / beta**2 * sum(s**-beta - 1 for s in stretches)
+
+
+# (mode, principal stretches at λ, k) with W ≈ (k/2)·G·(λ − 1)² at small strain: k = 3 uniaxial, 4 planar,
+# 12 equibiaxial [derived: I₁ − 3 ≈ 3ε², 4ε², 12ε² for the three paths of docs/methods.md §test-modes]
+_PATHS = (("uniaxial", lambda L: (L, L**-0.5, L**-0.5), 3), ("planar", lambda L: (L, 1, 1 / L), 4),
+          ("equibiaxial", lambda L: (L, L, L**-2), 12))
+
+
+@pytest.mark.parametrize(("Gc", "Ge", "delta", "beta"), [
+    (0.3e6, 0.2e6, 0.1, 0.2), (0.5e6, 0.05e6, 0.6, 0.7), (1.0e6, 0.0, 0.3, 0.2), (0.2e6, 0.4e6, 0.7, 1.0)])
+def test_extended_tube_modulus_formula_against_finite_differences(Gc, Ge, delta, beta):
+    # issue #20 item 7: with "+ ln" the small-strain modulus is G₀ = G_c(1 − 2δ²) + G_e (derived in
+    # docs/methods.md §extended-tube).  Independent check: a central second difference of the energy written
+    # above from the paper's formula, in mpmath at 50 digits with step 1e-12, along all three test paths.
+    expected = Gc * (1 - 2 * delta**2) + Ge
+    h = mp.mpf("1e-12")
+    with mp.workdps(50):
+        for mode, path, k in _PATHS:
+            W = [_kh_energy(path(1 + s * h), mp.mpf(Gc), mp.mpf(Ge), mp.mpf(delta), mp.mpf(beta)) for s in (-1, 0, 1)]
+            G_fd = float((W[0] - 2 * W[1] + W[2]) / h**2 / k)
+            assert G_fd == pytest.approx(expected, rel=1e-9), mode
+    # and the core agrees with the formula and with its own energy
+    m = get_model("extended-tube")
+    assert m.small_strain_modulus(Gc=Gc, Ge=Ge, delta=delta, beta=beta) == pytest.approx(expected, rel=1e-12)
+    # the "−" sign would give G_c + G_e: the check above separates the two whenever δ > 0
+    assert abs(expected - (Gc + Ge)) > 1e-3 * expected
+
+
+@pytest.mark.parametrize("name", ["neo-hookean", "affine", "phantom", "mooney-rivlin", "constrained-junction",
+                                  "eight-chain", "three-chain", "non-affine-tube", "extended-tube", "gent"])
+def test_compression_is_equibiaxial_tension_of_the_same_solid(name):
+    # docs/methods.md §compression [derived]: uniaxial compression at λ_c and equibiaxial tension at
+    # λ_b = λ_c^−½ are one deformation, differing by a hydrostatic pressure, so P_b = −P_c·λ_c^{3/2} for any
+    # isotropic incompressible solid.  Hand check for neo-Hookean: G(λ_b − λ_b⁻⁵) = −G(λ_c − λ_c⁻²)λ_c^{3/2}.
+    m = get_model(name)
+    p = m.params.defaults()
+    lam_c = np.array([0.95, 0.8, 0.65, 0.5])
+    P_c = m.nominal_stress("uniaxial", lam_c, p)
+    P_b = m.nominal_stress("equibiaxial", lam_c**-0.5, p)
+    ok = np.isfinite(P_c) & np.isfinite(P_b)
+    assert ok.sum() >= 2
+    assert P_b[ok] == pytest.approx(-P_c[ok] * lam_c[ok] ** 1.5, rel=1e-9)
+    if name == "neo-hookean":
+        G = p["G"]
+        assert P_c == pytest.approx(G * (lam_c - lam_c**-2), rel=1e-12)
+
+
 def test_mooney_rivlin_reduced_stress_is_a_straight_line_in_inverse_stretch():
-    # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (physics.md §2)
+    # Mooney 1940 / Rivlin 1948: σ* = 2C₁ + 2C₂/λ (docs/methods.md §mooney-plot)
     lam = np.linspace(1.1, 4, 20)
     red = get_model("mooney-rivlin").reduced_stress(lam, C1=0.15e6, C2=0.07e6)
     np.testing.assert_allclose(red, 2 * 0.15e6 + 2 * 0.07e6 / lam, rtol=1e-13)
@@ -104,7 +161,8 @@ def test_gent_lock_and_neo_hookean_limit():
 def test_constrained_junction_limits():
     # Flory & Erman 1982: κ → 0 gives the phantom network, κ → ∞ the affine network.  Checked at f = 6: at f = 4
     # the junction density μ_j = 2ν/f and the cycle rank ξ = ν − μ_j coincide, so a model that used the wrong
-    # one would pass.  Affine/phantom = νRT/((1 − 2/f)νRT) = f/(f − 2) = 3/2 (James & Guth 1943; physics.md §3).
+    # one would pass.  Affine/phantom = νRT/((1 − 2/f)νRT) = f/(f − 2) = 3/2
+    # (James & Guth 1943; docs/methods.md §phantom).
     cj = get_model("constrained-junction")
     lam = np.linspace(0.6, 4, 25)
     G_ph, f = 0.2e6, 6.0

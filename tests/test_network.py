@@ -12,7 +12,7 @@ from network_models import MODELS, Mode, Network, get_polymer, guth_gold, polyme
 
 
 def test_strand_and_junction_density_and_Mc():
-    # physics.md §1: μ_j = 2ν/f; M_c = ρ/ν
+    # docs/methods.md §densities: μ_j = 2ν/f; M_c = ρ/ν
     net = Network(polymer="NR", nu=120.0, f=4)
     rho = get_polymer("NR").density
     assert net.junction_density == pytest.approx(60.0)
@@ -26,7 +26,7 @@ def test_strand_and_junction_density_and_Mc():
 
 
 def test_N_from_kuhn_molar_mass_or_direct():
-    # physics.md §4: N ≈ M_c / M_K
+    # docs/methods.md §mc-and-n: N ≈ M_c / M_K
     net = Network(polymer="BR", nu=150.0)
     assert net.N == pytest.approx(net.Mc / get_polymer("BR").kuhn_molar_mass)
     assert net.N_source.startswith("from")
@@ -39,7 +39,7 @@ def test_N_from_kuhn_molar_mass_or_direct():
 
 @pytest.mark.parametrize(("phi", "value"), [(0.05, 1.1603), (0.10, 1.3910), (0.20, 2.0640)])
 def test_guth_gold(phi, value):
-    # Guth & Gold 1938 [from memory]: 1 + 2.5φ + 14.1φ²; values in physics.md §4 [derived]
+    # Guth & Gold 1938 [from memory]: 1 + 2.5φ + 14.1φ²; values in docs/methods.md §guth-gold [derived]
     assert guth_gold(phi) == pytest.approx(value, abs=6e-5)  # values printed to 4 decimals
 
 
@@ -67,7 +67,7 @@ def test_locking_stretch_per_mode_orders():
     # (G ∝ T at fixed network is how the mapping is defined, so it is not tested here: such a test cannot fail)
     net = Network(polymer="NR", nu=150.0)
     u, e, p = (net.locking_stretch(m) for m in (Mode.UNIAXIAL, Mode.EQUIBIAXIAL, Mode.PLANAR))
-    # equibiaxial locks first: I₁ grows fastest there [derived from the physics.md §2 invariant table]
+    # equibiaxial locks first: I₁ grows fastest there [derived from the docs/methods.md §test-modes invariant table]
     assert e < p < u
 
 

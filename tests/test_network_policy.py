@@ -26,7 +26,7 @@ from network_models.network import N_MIN, lock_from_N, lock_range_from_N
 from network_models.testdata import TestCurve
 from tests.reference import langevin_series_coefficients, mp_inverse_langevin, revert_odd_series
 
-# (name, first invariant as a function of λ) per mode (physics.md §2 table)
+# (name, first invariant as a function of λ) per mode (docs/methods.md §test-modes table)
 I1 = {
     Mode.UNIAXIAL: lambda x: x**2 + 2 / x,
     Mode.EQUIBIAXIAL: lambda x: 2 * x**2 + x**-4,
@@ -42,15 +42,16 @@ NETWORKS = [
 
 
 def _plateau_part(net):
-    # G_e = G_N⁰(T/T_ref)·X: plateau modulus ∝ T (physics.md §4), Guth–Gold factor 1 + 2.5φ + 14.1φ² [memory]
+    # G_e = G_N⁰(T/T_ref)·X: plateau modulus ∝ T (docs/methods.md §temperature-scaling),
+    # Guth–Gold factor 1 + 2.5φ + 14.1φ² [memory]
     p = get_polymer(net.polymer)
     X = 1 + 2.5 * net.filler_fraction + 14.1 * net.filler_fraction**2
     return (p.plateau_modulus * net.T / p.plateau_temperature * X if net.entanglements else 0.0), X
 
 
 def _flory_erman_G(G_ph, kappa, f):
-    """Small-strain modulus of the Flory–Erman energy (physics.md §3, as printed in Arruda & Boyce 1993)
-    by mpmath differentiation of W along the uniaxial path: G = W''(1)/3."""
+    """Small-strain modulus of the Flory–Erman energy (docs/methods.md §constrained-junction, as printed in
+    Arruda & Boyce 1993) by mpmath differentiation of W along the uniaxial path: G = W''(1)/3."""
     mu_j = 2 * G_ph / (f - 2)
 
     def W(lam):
@@ -90,7 +91,7 @@ def test_every_model_shows_the_policy_modulus(name, kw):
     e = 1e-6
     slope = (m.nominal_stress("uniaxial", 1 + e, p) - m.nominal_stress("uniaxial", 1 - e, p)) / (2 * e)
     expected = _expected_G0(name, net)
-    assert float(slope) / 3 == pytest.approx(expected, rel=2e-6)  # E = 3G (physics.md §2)
+    assert float(slope) / 3 == pytest.approx(expected, rel=2e-6)  # E = 3G (docs/methods.md §small-strain)
     assert policy_modulus(m, net) == pytest.approx(expected, rel=1e-12)
     assert float(slope) > 0
 
@@ -157,7 +158,7 @@ def test_issue_values_of_the_lower_lock_at_N_4():
     (Mode.UNIAXIAL, lambda x: x**-0.5), (Mode.EQUIBIAXIAL, lambda x: x**-2), (Mode.PLANAR, lambda x: 1 / x)])
 def test_three_chain_lower_lock_where_the_free_stretch_reaches_root_N(mode, transverse):
     # three-chain: a chain along each principal axis locks at λᵢ = √N (Wang & Guth 1952); below λ = 1 the
-    # largest principal stretch is the transverse/free one (physics.md §2 table)
+    # largest principal stretch is the transverse/free one (docs/methods.md §test-modes table)
     N = 9.0
     root = brentq(lambda x: transverse(x) - math.sqrt(N), 1e-6, 1.0 - 1e-12, xtol=1e-15, rtol=1e-15)
     assert get_model("three-chain").stretch_range(mode, mu=1.0, N=N)[0] == pytest.approx(root, rel=1e-12)
@@ -165,8 +166,8 @@ def test_three_chain_lower_lock_where_the_free_stretch_reaches_root_N(mode, tran
 
 # ----- extended tube: the δ bound and the sign before the logarithm ---------------------------------
 def _mp_W_c(x, d2):
-    # crosslink part as printed (with "+" before the log) in the Hyperelastics.jl documentation of the
-    # extended tube model, citing Kaliske & Heinrich 1999: (1/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)], G_c = 1
+    # crosslink part of the extended tube model (Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602), with
+    # "+" before the log as derived in docs/methods.md §extended-tube: (1/2)[(1 − δ²)x/(1 − δ²x) + ln(1 − δ²x)], G_c = 1
     return ((1 - d2) * x / (1 - d2 * x) + mp.log(1 - d2 * x)) / 2
 
 
@@ -203,6 +204,23 @@ def test_extended_tube_bound_is_sharp_and_enforced():
         get_model("extended-tube").resolve({"delta": 0.72})
 
 
+def test_extended_tube_delta_domain_is_below_one_over_root_two():
+    # issue #20 item 7: δ² < ½ (G₀ = G_c(1 − 2δ²) + G_e > 0, docs/methods.md §extended-tube) is the declared
+    # domain of δ — one source of truth for the fitter, the explorer and the intervals.  1/√2 from math.sqrt.
+    m = get_model("extended-tube")
+    lo, hi = m.params["delta"].bounds
+    assert lo == 0.0 and hi**2 < 0.5 and hi > 1 / math.sqrt(2) - 1e-4
+    m.resolve({"delta": hi})  # the edge itself is accepted, with a positive crosslink modulus
+    assert m.small_strain_modulus(Gc=1.0, Ge=0.0, delta=hi, beta=0.2) > 0
+    with pytest.raises(ParameterError, match="delta"):
+        m.resolve({"delta": 1 / math.sqrt(2) + 1e-9})
+    # every interior value keeps W defined up to its lock: the stress is finite just below I₁ − 3 = 1/δ²
+    lock = m.stretch_limit("uniaxial", {"Gc": 1.0, "Ge": 0.0, "delta": 0.5, "beta": 0.2})
+    assert lock**2 + 2 / lock - 3 == pytest.approx(1 / 0.25, rel=1e-10)
+    assert np.isfinite(m.nominal_stress("uniaxial", lock * (1 - 1e-6), {"Gc": 1.0, "Ge": 0.0, "delta": 0.5,
+                                                                        "beta": 0.2}))
+
+
 def test_extended_tube_mapping_caps_delta_with_a_notice():
     net = Network(polymer="NR", nu=5000.0)  # issue 10: δ = 0.74 and G₀ = −0.78 MPa before
     m = get_model("extended-tube")
@@ -215,7 +233,7 @@ def test_extended_tube_mapping_caps_delta_with_a_notice():
 
 # ----- ν: one definition, the chemical density named apart -------------------------------------------
 def test_chemical_and_active_strand_density():
-    # Flory (physics.md §3 [memory]): ν_active = ν_chem(1 − 2M_c/M_n), M_c = ρ/ν_chem
+    # Flory (docs/methods.md §dangling-ends [memory]): ν_active = ν_chem(1 − 2M_c/M_n), M_c = ρ/ν_chem
     rho = get_polymer("NR").density
     nu_chem, Mn = 200.0, 50.0
     net = Network.from_chemical(nu_chem, Mn, polymer="NR")
@@ -348,7 +366,7 @@ def test_chain_energy_series_coefficients():
 
     a = revert_odd_series(langevin_series_coefficients(len(CHAIN_ENERGY_SERIES)))
     np.testing.assert_allclose(CHAIN_ENERGY_SERIES, [float(c) / (2 * k + 2) for k, c in enumerate(a)], rtol=1e-15)
-    assert mp_inverse_langevin(0.1) == pytest.approx(0.301817149206338, rel=1e-14)  # physics.md §6
+    assert mp_inverse_langevin(0.1) == pytest.approx(0.301817149206338, rel=1e-14)  # docs/methods.md §inverse-langevin
 
 
 @pytest.mark.parametrize("name", [n for n, m in MODELS.items() if m.supports("uniaxial")])

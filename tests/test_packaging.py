@@ -32,7 +32,7 @@ def test_every_core_subpackage_is_listed_for_the_wheel():
     assert PYPROJECT["tool"]["setuptools"]["package-dir"]["netstretch_app"] == "app"
 
 
-@pytest.mark.parametrize("folder", ["", "raw_exports"])
+@pytest.mark.parametrize("folder", ["", "raw_exports", "qc_history"])
 def test_every_sample_file_kind_ships(folder):
     package = "network_models.sample_data" + (f".{folder}" if folder else "")
     assert package in PYPROJECT["tool"]["setuptools"]["packages"]  # a sub-folder is a package of its own
@@ -43,7 +43,7 @@ def test_every_sample_file_kind_ships(folder):
     for p in data:
         assert p.suffix in suffixes, f"{p.name}: add '*{p.suffix}' to the {package} package-data in pyproject.toml"
     subfolders = {p.name for p in (ROOT / "sample_sets").iterdir() if p.is_dir() and not p.name.startswith((".", "_"))}
-    assert subfolders <= {"raw_exports"}, f"list {sorted(subfolders)} as packages in pyproject.toml"
+    assert subfolders <= {"raw_exports", "qc_history"}, f"list {sorted(subfolders)} as packages in pyproject.toml"
 
 
 def test_one_version_string(capsys):

@@ -203,3 +203,22 @@ def test_recipe_disagreement_reaches_the_comparison_notes():
                  metadata={"filler_volume_fraction": 0.3}, recipe={"NR": 100.0, "N330": 30.0})
     cmp = compare([c], model="neo-hookean", spread_models=())
     assert any("disagrees with the recipe" in str(n) for n in cmp.notes)
+
+
+def test_swelling_table_in_the_app_reads_the_compare_value():
+    """The Swelling tab's table and Compare give one ν per specimen (issue #21: 158.7 vs 183.5 before)."""
+    from app.session import Session
+
+    session = Session()
+    assert session.data.load_samples() == []
+    from app.swell_state import SwellState
+
+    st = SwellState()
+    table = (ROOT / "sample_sets" / "swelling_toluene.csv").read_bytes()
+    st.load_table(table, "swelling_toluene.csv")
+    rows = {(r["compound"], r["specimen"]): r for r in st.table_estimates(session.data.compounds)}
+    m = load_manifest()
+    c = m["QM-S2"]
+    for s in c.swelling:
+        want = s.estimate(c.polymer, c.f, c.filler_fraction, **c.swelling_options()).nu_affine
+        assert rows[("QM-S2", s.specimen)]["nu_affine"] == pytest.approx(want, rel=1e-9)

@@ -24,7 +24,8 @@ T23 = 296.15
 
 def gent_uniaxial(lam, G, Jm):
     """Gent 1996 (Rubber Chem. Technol. 69:59, from memory): W = −(G J_m/2) ln(1 − (I₁ − 3)/J_m), so
-    P = G(λ − λ⁻²) / (1 − (I₁ − 3)/J_m) in uniaxial tension with I₁ = λ² + 2/λ (physics.md §2–3)."""
+    P = G(λ − λ⁻²) / (1 − (I₁ − 3)/J_m) in uniaxial tension with I₁ = λ² + 2/λ
+    (docs/methods.md §stress-from-energy, §gent)."""
     lam = np.asarray(lam, float)
     I1 = lam**2 + 2 / lam
     return G * (lam - lam**-2) / (1 - (I1 - 3) / Jm)

@@ -3,8 +3,9 @@ selected across all of them.
 
 Physics reference: the neo-Hookean nominal stress in uniaxial tension, P = G(λ − λ⁻²) (Treloar, *The
 Physics of Rubber Elasticity*, 3rd ed., 1975, ch. 5).  For a one-parameter model linear in G the
-least-squares G over a specimen's points has the closed form G = Σφ·P / Σφ² with φ = λ − λ⁻² — written here
-from that formula, independent of the project's fitter.
+least-squares G over a specimen's points has the closed form G = Σw²φ·P / Σw²φ² with φ = λ − λ⁻² and w the
+residual weight — for the default relative residuals w = 1/max(|P|, 0.02·max|P|) (docs/methods.md
+§residual-weighting) — written here from that formula, independent of the project's fitter.
 """
 
 from __future__ import annotations
@@ -22,6 +23,12 @@ from network_models.curves import TestCurve
 
 LAM = np.linspace(1.05, 2.6, 24)
 PHI = LAM - LAM**-2
+
+
+def _g_least_squares(data):
+    """Weighted least-squares G of P = G·φ with the relative-residual weights (module doc)."""
+    w = 1.0 / np.maximum(np.abs(data), 0.02 * np.max(np.abs(data)))
+    return float(np.sum(w**2 * PHI * data) / np.sum(w**2 * PHI * PHI))
 #: per compound: the specimens' shear moduli (Pa) — data made in the test, not a claim about any rubber
 MODULI = {"A": (0.50e6, 0.53e6, 0.48e6), "B": (0.80e6, 0.77e6, 0.83e6, 0.79e6)}
 
@@ -46,7 +53,7 @@ def test_specimen_frame_holds_each_specimens_own_least_squares_modulus(compariso
     for n, moduli in MODULI.items():
         for i, _G in enumerate(moduli):
             data = comparison[n].compound.curves[i].stress
-            g_ls = float(np.sum(PHI * data) / np.sum(PHI * PHI))  # closed-form least squares (module doc)
+            g_ls = _g_least_squares(data)  # closed-form weighted least squares (module doc)
             got = df.loc[df["key"] == f"{n} · {n}{i + 1}", "G0"].item()
             assert got == pytest.approx(g_ls * 1e-6, rel=1e-6)
     assert set(df["status"]) == {"counted"}
@@ -58,7 +65,7 @@ def test_point_frame_residual_is_the_specimens_fit_minus_its_data(comparison):
     for n, moduli in MODULI.items():
         for i in range(len(moduli)):
             data = comparison[n].compound.curves[i].stress
-            g_ls = np.sum(PHI * data) / np.sum(PHI * PHI)
+            g_ls = _g_least_squares(data)
             mine = pts[pts["key"] == f"{n} · {n}{i + 1}"].sort_values("lam")
             np.testing.assert_allclose(mine["lam"], LAM)
             np.testing.assert_allclose(mine["residual"], (g_ls * PHI - data) * 1e-6, rtol=1e-6, atol=1e-12)

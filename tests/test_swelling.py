@@ -19,9 +19,9 @@ from network_models.swelling import (
     swollen_fraction,
 )
 
-V1_TOLUENE = 106.85e-6  # m³/mol, physics.md §5 [derived]
+V1_TOLUENE = 106.85e-6  # m³/mol, docs/methods.md §solvents [derived]
 
-# physics.md §5 check table [derived from Flory & Rehner 1943, J. Chem. Phys. 11:521, affine and phantom
+# docs/methods.md §flory-rehner check table [derived from Flory & Rehner 1943, J. Chem. Phys. 11:521, affine and phantom
 # forms, V₁ = 106.85 cm³/mol]; ν in mol/cm³:
 #   φ: (χ=0.39 affine, χ=0.39 phantom f=4, χ=0.465 affine, χ=0.465 phantom f=4)
 FR_TABLE = {
@@ -44,7 +44,7 @@ def test_flory_rehner_check_table(phi):
 
 
 def test_general_functionality_limits():
-    # Phantom elastic term (1 − 2/f)φ^⅓ → φ^⅓ as f → ∞; affine φ^⅓ − 2φ/f likewise (physics.md §5).
+    # Phantom elastic term (1 − 2/f)φ^⅓ → φ^⅓ as f → ∞; affine φ^⅓ − 2φ/f likewise (docs/methods.md §flory-rehner).
     a = flory_rehner_nu(0.2, 0.39, V1_TOLUENE, 1e9, "affine")
     p = flory_rehner_nu(0.2, 0.39, V1_TOLUENE, 1e9, "phantom")
     assert a == pytest.approx(p, rel=1e-6)
@@ -57,7 +57,7 @@ def test_swollen_fraction_inverts_flory_rehner():
 
 
 @pytest.mark.parametrize("key,v1_cm3", [
-    # physics.md §5: molar volumes at 25 °C from molar mass/density [derived; densities from memory]
+    # docs/methods.md §solvents: molar volumes at 25 °C from molar mass/density [derived; densities from memory]
     ("toluene", 106.85), ("cyclohexane", 108.75), ("benzene", 89.40), ("acetone", 74.03),
     ("2-butanone", 90.17), ("n-heptane", 147.46),
 ])
@@ -80,7 +80,7 @@ def test_solvent_molar_masses_from_formula():
 
 @pytest.mark.parametrize("polymer,solvent,chi", [
     # Orwoll & Arnold, Table 14.1 in Mark (ed.), Physical Properties of Polymers Handbook, 2nd ed. (2007),
-    # as listed in physics.md §5 [handbook]
+    # as listed in docs/methods.md §chi-table [handbook]
     ("NR", "toluene", 0.36), ("NR", "benzene", 0.40), ("NR", "cyclohexane", 0.31),
     ("BR", "cyclohexane", 0.46), ("IIR", "cyclohexane", 0.43), ("PDMS", "toluene", 0.445),
 ])
@@ -91,15 +91,16 @@ def test_handbook_chi_rows(polymer, solvent, chi):
 
 
 def test_recalled_chi_rows_are_flagged():
-    # NR–toluene 0.39 and the SBR/EPDM values are from memory (physics.md §5), never "handbook".
+    # NR–toluene 0.39 and the SBR/EPDM values are from memory (docs/methods.md §chi-table), never "handbook".
     nr = [r for r in chi_values("NR", "toluene") if r.chi == 0.39]
-    assert nr and nr[0].status == "memory"
+    assert nr and nr[0].status == "common" and "from memory" in nr[0].source
     for p in ("SBR", "EPDM"):
         assert all(r.status == "memory" for r in chi_values(p))
 
 
 def test_volume_fraction_from_masses():
-    # φ = (m_d/ρ_p)/(m_d/ρ_p + (m_s − m_d)/ρ_s), physics.md §5, worked by hand for 1 g dry, 3 g swollen,
+    # φ = (m_d/ρ_p)/(m_d/ρ_p + (m_s − m_d)/ρ_s), docs/methods.md §volume-fraction,
+    # worked by hand for 1 g dry, 3 g swollen,
     # ρ_p = 900, ρ_s = 800 kg/m³: (1/900)/((1/900) + (2/800)) = 0.30769...
     assert polymer_volume_fraction(1.0, 3.0, 900.0, 800.0) == pytest.approx((1 / 900) / (1 / 900 + 2 / 800))
     assert polymer_volume_fraction(1.0, 3.0, 900.0, 800.0) == pytest.approx(0.3076923, rel=1e-6)
@@ -112,9 +113,9 @@ def test_swelling_estimate_and_band():
     phi = (0.96e-3 / rho_p) / (0.96e-3 / rho_p + (3.2e-3 - 0.96e-3) / rho_s)
     assert r.phi == pytest.approx(phi)
     assert r.soluble_fraction == pytest.approx(0.04)
-    # default χ: the handbook row (Orwoll & Arnold, Table 14.1: cis-polyisoprene–toluene 0.36 at 25 °C)
-    # is preferred over the recalled 0.39
-    assert r.chi.chi == 0.36 and r.chi.status == "handbook"
+    # default χ: 0.39, common practice of the rubber literature (docs/methods.md §chi-nr-toluene), not the
+    # handbook's dilute-end 0.36 (Orwoll & Arnold, Table 14.1), which stays selectable
+    assert r.chi.chi == 0.39 and r.chi.status == "common" and r.chi_used == 0.39
     lo, hi = r.nu_band("affine")
     assert lo > r.nu_affine > hi  # better solvent (lower χ) needs more strands for the same swelling
     assert r.junction_density() == pytest.approx(r.nu_affine / 2)  # μ_j = 2ν/f, f = 4
@@ -225,3 +226,66 @@ def test_compare_with_modulus_side_by_side():
     aff = rows[0]
     assert aff["assumption"] == "affine"
     assert aff["ratio"] == pytest.approx(aff["swelling_strand_density"] / aff["modulus_strand_density"])
+
+
+# ----- χ in use and the band of published values (issue #20 item 6, docs/methods.md §chi) -------------------
+def _toml_rows():
+    import tomllib
+    from importlib import resources
+
+    return tomllib.loads(resources.files("network_models").joinpath("solvents.toml").read_text("utf-8"))["chi"]
+
+
+def _mp_fr_nu(phi, chi, V1, f=4, network="affine"):
+    """Flory & Rehner 1943 (J. Chem. Phys. 11:521), general f, written here in mpmath (mol/m³)."""
+    with mp.workdps(30):
+        phi, chi = mp.mpf(phi), mp.mpf(chi)
+        lhs = -(mp.log(1 - phi) + phi + chi * phi**2)
+        cube = phi ** (mp.mpf(1) / 3)
+        el = cube - 2 * phi / f if network == "affine" else (1 - mp.mpf(2) / f) * cube
+        return float(lhs / (mp.mpf(V1) * el))
+
+
+def test_default_chi_and_band_are_what_the_table_says():
+    # the table (network_models/solvents.toml) read here with tomllib: the NR–toluene default row and its spread
+    rows = [r for r in _toml_rows() if r["polymer"] == "NR" and r["solvent"] == "toluene"]
+    default = [r for r in rows if r["default"]]
+    assert len(default) == 1 and default[0]["chi"] == 0.39 and default[0]["status"] == "common"
+    spread = default[0]["spread"]
+    assert spread == 0.03  # 0.36 (Orwoll & Arnold, Table 14.1 [handbook]) … 0.393 (Sheehan & Bisio 1966 [from memory])
+    rho_p, sol = get_polymer("NR").density, get_solvent("toluene")
+    est = swelling_estimate(1.0e-3, 3.2e-3, "toluene", "NR")
+    phi = (1.0e-3 / rho_p) / (1.0e-3 / rho_p + 2.2e-3 / sol.density)
+    assert est.chi_used == 0.39 and est.chi_spread == spread
+    for net in ("affine", "phantom"):
+        lo, hi = est.nu_band_chi[net]
+        assert lo == pytest.approx(_mp_fr_nu(phi, 0.39 - spread, sol.molar_volume, 4, net), rel=1e-10)
+        assert hi == pytest.approx(_mp_fr_nu(phi, 0.39 + spread, sol.molar_volume, 4, net), rel=1e-10)
+    d = est.to_dict()
+    assert d["chi_used"] == 0.39 and d["chi_band_published"] == pytest.approx([0.36, 0.42])
+    assert d["nu_band_chi"]["affine"] == pytest.approx(list(est.nu_band_chi["affine"]))
+    assert any("χ in use: 0.39" in str(n) for n in est.notes)  # the note the CLI text, app and report show
+
+
+def test_every_chi_row_states_its_spread():
+    for r in _toml_rows():
+        assert 0 < r["spread"] < 1 and r["spread_basis"].strip(), (r["polymer"], r["solvent"])
+        if r["status"] == "estimate":  # the estimate rule's stated error, ± 0.1 (docs/methods.md §chi)
+            assert r["spread"] >= 0.1, (r["polymer"], r["solvent"])
+    # a user χ has no published spread: the fixed ± 0.05 band, said so
+    est = swelling_estimate(1.0, 3.0, "toluene", "EPDM", chi=0.49)
+    assert est.chi_spread == 0.05 and "user" in est.chi_spread_basis
+
+
+def test_nr_toluene_default_is_the_common_practice_value():
+    # issue #20 item 6: 0.39 against the handbook 0.36 shifts ν by about 12 % at equal swelling.  Reference:
+    # Flory–Rehner in mpmath at φ = 0.25 (V₁ = 106.85 cm³/mol, docs/methods.md §flory-rehner): ratio 1.13.
+    ratio = _mp_fr_nu(0.25, 0.36, V1_TOLUENE) / _mp_fr_nu(0.25, 0.39, V1_TOLUENE)
+    assert 1.10 < ratio < 1.16
+    # the band shown with the default reaches the handbook value: ν at χ − spread is ν at 0.36
+    est = swelling_estimate(1.0e-3, 3.2e-3, "toluene", "NR")
+    hb = swelling_estimate(1.0e-3, 3.2e-3, "toluene", "NR", chi=0.36)
+    assert est.nu_band_chi["affine"][0] == pytest.approx(hb.nu_affine, rel=1e-12)
+    assert hb.nu_affine / est.nu_affine > 1.10
+    # and the handbook row stays selectable by value, marked as such
+    assert any(r.chi == 0.36 and r.status == "handbook" and not r.default for r in chi_values("NR", "toluene"))

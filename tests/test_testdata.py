@@ -1,8 +1,8 @@
 """Reading lab files (network_models.testdata): each format variant, the clean-up, and bad files.
 
 Test inputs are small hand-written tables; the expected stretch and stress follow from the definitions
-(λ = 1 + ε = 1 + ΔL/L₀, nominal stress = F/A₀, true stress σ = λ·P for incompressible rubber — physics.md §1)
-and from scipy.constants for unit factors.
+(λ = 1 + ε = 1 + ΔL/L₀, nominal stress = F/A₀, true stress σ = λ·P for incompressible rubber —
+docs/methods.md §stress-strain) and from scipy.constants for unit factors.
 """
 
 from __future__ import annotations
@@ -123,7 +123,7 @@ def test_temperature_column_gives_the_test_temperature(tmp_path):
 
 
 def test_true_stress_converted_to_nominal(tmp_path):
-    # incompressible: true stress σ = λ·P (physics.md §1), so P = σ/λ
+    # incompressible: true stress σ = λ·P (docs/methods.md §stress-strain), so P = σ/λ
     p = write(tmp_path, "f.csv", "# mode: equibiaxial\nstretch,true stress (N/mm²)\n1,0\n2,4\n4,12\n")
     (c,) = read_curves(p)
     np.testing.assert_allclose(c.stress, [0.0, 2e6, 3e6])
@@ -282,7 +282,8 @@ def test_slack_at_start_dropped_and_rezeroed(tmp_path):
 
 
 def test_clean_dense_start_is_not_called_slack():
-    # a clean neo-Hookean curve P = G(λ − λ⁻²) (physics.md §2) sampled densely near λ = 1: the first rows are
+    # a clean neo-Hookean curve P = G(λ − λ⁻²) (docs/methods.md §neo-hookean) sampled densely near λ = 1:
+    # the first rows are
     # below 0.2 % of the peak but rise as the initial slope says, so nothing is dropped or re-zeroed
     lam = np.linspace(1.0, 6.0, 5001)
     text = "stretch,stress (MPa)\n" + "\n".join(f"{a:.6f},{0.5 * (a - a**-2):.8f}" for a in lam)
@@ -567,7 +568,7 @@ def test_fuzz_other_readers(meta, headers, rows, junk):
 @given(st.lists(st.floats(0.05, 1.5), min_size=3, max_size=25), st.floats(0.1e6, 3e6),
        st.sampled_from(list(Mode)), st.sampled_from([None, 296.15, 353.15]), st.integers(1, 3))
 def test_csv_round_trip(steps, G, mode, T, n):
-    # neo-Hookean uniaxial-form curves P = G(λ − λ⁻²) (physics.md §2) written and read back unchanged
+    # neo-Hookean uniaxial-form curves P = G(λ − λ⁻²) (docs/methods.md §neo-hookean) written and read back unchanged
     lam = 1.0 + np.cumsum([0.0, *steps])
     curves = [TestCurve(mode, lam, G * (1 + 0.1 * k) * (lam - lam**-2), name=f"c{k}", specimen=f"S-{k}",
                         temperature=T) for k in range(n)]

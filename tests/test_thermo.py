@@ -4,7 +4,7 @@ The reference data are generated here, independently of network_models.thermo, f
 force of Flory, Principles of Polymer Chemistry (1953) ch. XI [memory]: for a fixed network
 f ∝ T · (⟨r²⟩_i/⟨r²⟩₀) · (A_i/V) · (λ − λ⁻²).  With isotropic thermal expansion at constant pressure
 V ∝ s = 1 + β(T − T_ref), the unstrained length L_i ∝ s^⅓, the unstrained area A_i ∝ s^⅔, ⟨r²⟩_i ∝ L_i² and
-⟨r²⟩₀ does not depend on T (no energetic part).  physics.md §4 and §8.
+⟨r²⟩₀ does not depend on T (no energetic part).  docs/methods.md §temperature-scaling and §thermoelastic.
 """
 
 from __future__ import annotations
@@ -30,7 +30,7 @@ def ideal_force(T, L_clamped, beta, T_ref, L_ref=1.0, c=1.0):
 def test_ideal_network_with_expansion_constant_volume_fraction_is_zero():
     # An ideal network has no energetic part: its constant-VOLUME energetic fraction is 0.  At constant
     # pressure the record shows −T ∂ln(F/T)/∂T = βT/(λ³ − 1) (Flory, Ciferri & Hoeve 1960 [memory],
-    # physics.md §8): the uncorrected value must be that, the corrected one ≈ 0.
+    # docs/methods.md §thermoelastic): the uncorrected value must be that, the corrected one ≈ 0.
     beta = 6.6e-4  # 1/K, natural rubber [from memory]
     T = np.linspace(293.15, 303.15, 11)
     T_ref = float(T.mean())  # clamp stretch is λ at the mean temperature, where the correction is evaluated
@@ -57,7 +57,7 @@ def test_force_at_fixed_length_matches_the_ideal_network():
 
 
 def test_linear_record_energetic_fraction():
-    # F = a + bT: −T d ln(F/T)/dT = a/(a + bT) exactly [derived from the definition, physics.md §4]
+    # F = a + bT: −T d ln(F/T)/dT = a/(a + bT) exactly [derived from the definition, docs/methods.md §thermoelastic]
     T = np.linspace(290, 310, 11)
     a, b = 2.0, 0.05
     rec = energetic_fraction(T, a + b * T, stretch=2.0)
@@ -67,8 +67,8 @@ def test_linear_record_energetic_fraction():
 def test_inversion_strain_from_the_ideal_network():
     # The clamped strain where ∂F/∂T = 0, found here with mpmath on the independent expression; for this
     # ideal network it is (1 + βT)^⅓ − 1 [derived].  (The 7–10 % quoted for real natural rubber [from memory,
-    # physics.md §4] includes the energetic part of the force; the ideal network inverts lower, at 6.2 % for
-    # β = 6.6e-4 1/K and 298 K, so that range is not a check of this function.)
+    # docs/methods.md §inversion] includes the energetic part of the force; the ideal network inverts
+    # lower, at 6.2 % for β = 6.6e-4 1/K and 298 K, so that range is not a check of this function.)
     for beta, T in ((6.6e-4, 298.15), (5.6e-4, 273.15), (9.0e-4, 350.0)):
         def dFdT(eps, beta=beta, T=T):
             return mp.diff(lambda t: ideal_force(t, 1 + eps, beta, T), T)

@@ -22,6 +22,9 @@ def add_parser(sub):
     p.add_argument("--functionality", type=float, default=4.0, metavar="F",
                    help="junction functionality f for the crosslink density (default 4)")
     p.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
+    from .library import add_db_option
+
+    add_db_option(p)  # also store the rows in the results library (`netstretch library`)
     p.set_defaults(run=run)
 
 
@@ -36,4 +39,8 @@ def run(args):
     summary = run_batch(args.inputs, args.model, args.output, jobs=args.jobs, scheduler=args.scheduler,
                         polymer=args.polymer, f=args.functionality, progress=not args.no_progress)
     print(summary.sentence())
+    if getattr(args, "db", None):
+        from ..library import import_study
+
+        print(import_study("batch", args.output, args.db, model=args.model).sentence())
     return 0

@@ -99,6 +99,10 @@ def run(args):
     print(f"{args.kind} = {G / 1e6:.4g} MPa → small-strain shear modulus G = {table.G / 1e6:.4g} MPa; "
           f"polymer {table.polymer}, T = {celsius(T):.1f} °C, f = {args.functionality:g}")
     print("\n".join(format_crosslink_table(table)))
+    h = table.headline()
+    if h["value"] is not None:
+        print(f"Headline ν = {h['value']:.4g} mol/m³ — basis: {h['basis']} (the comparison's headline rule; "
+              "`design --model affine` counts ν on this basis)")
     print()
     print(CAUTION)
     return 0

@@ -34,14 +34,26 @@ def add_parser(sub):
                                    "temperature and filler; which target binds at each edge; which targets "
                                    "conflict; what change brings a measured compound into the window.",
                        epilog=_GRAMMAR)
-    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
-    p.add_argument("--temperature", default="23C", metavar="T", help="design (test) temperature, e.g. 23C")
-    p.add_argument("--model", default="eight-chain", metavar="MODEL", help="model (default eight-chain; see "
-                                                                          "`netstretch models`)")
-    p.add_argument("--target", action="append", required=True, metavar="TARGET",
-                   help="a target such as 'M100=1.8MPa±5%%' (repeat for several)")
-    p.add_argument("--filler", type=float, default=0.0, metavar="PHI", help="filler volume fraction (default 0)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (4)")
+    p.add_argument("--polymer", default=None, help="polymer from the polymer table (default NR, or the project "
+                                                   "compound's)")
+    p.add_argument("--temperature", default=None, metavar="T", help="design (test) temperature, e.g. 23C "
+                                                                   "(default 23C, or the project compound's)")
+    p.add_argument("--model", default=None, metavar="MODEL", help="model (default eight-chain, or the project's "
+                                                                 "design model; see `netstretch models`)")
+    p.add_argument("--target", action="append", default=None, metavar="TARGET",
+                   help="a target such as 'M100=1.8MPa±5%%' (repeat for several; default: the project's targets)")
+    p.add_argument("--filler", type=float, default=None, metavar="PHI",
+                   help="filler volume fraction (default 0, or the project compound's)")
+    p.add_argument("--functionality", type=float, default=None, metavar="F",
+                   help="junction functionality f (default 4, or the project compound's)")
+    p.add_argument("--project", metavar="FILE.zip",
+                   help="a project file: its design targets and model, and the polymer, f, filler and test "
+                        "temperature of --compound (default its baseline); options given here override them")
+    p.add_argument("--compound", metavar="NAME", help="with --project: the compound whose recipe facts the design "
+                                                     "uses (default the baseline)")
+    p.add_argument("--current-compound", action="store_true",
+                   help="with --project: today's compound is --compound, its headline ν (the study's comparison, "
+                        "entanglements removed) converted to the design's basis")
     p.add_argument("--N", type=float, default=None, metavar="N",
                    help="fix the Kuhn segments per strand N (default: coupled to ν, N = M_c/M_K)")
     p.add_argument("--no-entanglements", action="store_true", help="leave out the entanglement contribution")
@@ -51,6 +63,10 @@ def add_parser(sub):
                    help="also the ν window at each filler fraction 0–0.3 (or at each N 5–200, decoupled from ν)")
     p.add_argument("--current-nu", type=float, metavar="NU",
                    help="today's compound: its strand density ν in mol/m³ (under the same model)")
+    p.add_argument("--current-basis", default="design", choices=("design", "entanglements-removed", "all-of-G"),
+                   help="the basis --current-nu is given on: design (default: the basis this design counts ν on, "
+                        "stated in its output), entanglements-removed (the crosslinks headline: affine, "
+                        "G − G_e = νRT) or all-of-G (affine, G = νRT); converted to the design's basis or refused")
     p.add_argument("--current-ci", metavar="LO..HI", help="95 %% interval of --current-nu, e.g. 235..265")
     p.add_argument("--current", action="append", metavar="FILE",
                    help="today's compound from its lab curves (fitted with --model; repeat for several files)")
@@ -74,8 +90,53 @@ def _ci(text):
     return lo, hi
 
 
-def _current(args, result):
+def _project_defaults(args):
+    """Fill the design's unset options from ``--project`` (design targets and model; the compound's polymer, f,
+    filler and test temperature) or the plain defaults; returns the study (or None)."""
+    st = None
+    if args.project:
+        from ..study import Study
+
+        st = Study.from_project(args.project)
+        c = st[args.compound or st.settings.baseline or st.names[0]]
+        args.compound = c.name
+        args.target = args.target or list(st.settings.design_targets)
+        args.model = args.model or st.settings.design_model
+        args.polymer = args.polymer or c.polymer
+        args.functionality = c.f if args.functionality is None else args.functionality
+        args.filler = c.filler_fraction if args.filler is None else args.filler
+        if args.temperature is None and c.temperature() is not None:
+            args.temperature = c.temperature()
+    elif args.compound or args.current_compound:
+        raise UserError("--compound and --current-compound go with --project.")
+    if not args.target:
+        raise UserError("give at least one --target (or a --project that stores design targets).")
+    args.model = args.model or "eight-chain"
+    args.polymer = args.polymer or "NR"
+    args.temperature = "23C" if args.temperature is None else args.temperature
+    args.filler = 0.0 if args.filler is None else args.filler
+    args.functionality = 4.0 if args.functionality is None else args.functionality
+    return st
+
+
+def _current(args, result, study=None):
     """(ν, interval, source sentence) of today's compound, or None."""
+    if getattr(args, "current_compound", False):
+        if args.current_nu is not None or args.current:
+            raise UserError("give today's compound one way: --current-compound, --current-nu or --current.")
+        r = study.comparison()[args.compound]
+        g = r.stats.get("G0")
+        if not r.ok or g is None or g.mean is None:
+            raise UserError(f"{args.compound} has no fitted small-strain modulus in this study "
+                            f"({r.error or 'no specimen fitted'}); give --current-nu instead.")
+        from ..design_advice import nu_for_modulus
+
+        s = result.setup
+        nu = nu_for_modulus(s, g.mean)
+        ci = None if not g.ci95 or g.ci95[0] is None or g.ci95[0] <= 0 else tuple(
+            nu_for_modulus(s, x) for x in g.ci95)
+        return nu, ci, (f"{args.compound}'s G₀ = {g.mean / 1e6:.4g} MPa (specimen mean of {g.n}, the study's "
+                        f"{r.model} fits) read as the design network's ν — the compound and the window on one basis")
     if args.current:
         if args.current_nu is not None:
             raise UserError("give today's compound either as --current-nu or as --current files, not both.")
@@ -95,7 +156,9 @@ def _current(args, result):
             raise UserError("--current-ci needs --current-nu.")
         return None
     ci = _ci(args.current_ci) if args.current_ci else None
-    return args.current_nu, ci, "as given"
+    from ..design_advice import convert_current
+
+    return convert_current(result.setup, args.current_nu, ci, getattr(args, "current_basis", "design"))
 
 
 def _dose(args, result):
@@ -136,8 +199,23 @@ def _n(x, digits=4):
     return "—" if x is None or not (isinstance(x, float | int) and math.isfinite(x)) else f"{x:.{digits}g}"
 
 
+def _basis_line(b) -> str:
+    ge = (f"G_e = {b['G_e_Pa'] / 1e6:.3g} MPa from the {b['G_e_source']}" if b["entanglements"]
+          else "no entanglement part (switched off)")
+    return f"How ν is counted: {b['label']}; {ge}"
+
+
+def _advice_json(advice) -> dict:
+    """``advice`` {inside, change_percent [low, high] (negative = lower ν; [0, 0] inside), sentence}."""
+    inside = advice.action == "keep"
+    lo, hi = sorted(100.0 * x for x in advice.change_range)
+    return {"inside": inside, "change_percent": [0.0, 0.0] if inside else [lo, hi], "sentence": advice.sentence}
+
+
 def _table(r) -> list[str]:
-    out = [f"Design window: {r.setup.describe()}"]
+    from ..design_advice import nu_basis
+
+    out = [f"Design window: {r.setup.describe()}", _basis_line(nu_basis(r.setup))]
     if r.feasible:
         w, mc, mj = r.window, r.Mc_window(), r.junction_window()
         out.append(f"  FEASIBLE   strand density ν  {w.lo:.4g} – {w.hi:.4g} mol/m³")
@@ -170,10 +248,11 @@ def _table(r) -> list[str]:
 
 
 def run(args):
+    study = _project_defaults(args)
     kw = dict(polymer=args.polymer, temperature=args.temperature, filler=args.filler, f=args.functionality,
               N=args.N, entanglements=not args.no_entanglements)
     r = design(args.target, model=args.model, **kw)
-    cur = _current(args, r)
+    cur = _current(args, r, study)
     advice = None
     if cur is not None:
         advice = r.advise(cur[0], cur[1])
@@ -185,11 +264,15 @@ def run(args):
         over = window_over(r.targets, args.over, model=args.model, **kw)
     dose = _dose(args, r)
     if args.json:
-        doc = {"command": "design", **r.to_dict()}
+        from ..design_advice import nu_basis
+
+        doc = {"command": "design", **r.to_dict(), "basis": nu_basis(r.setup)}
         if dose is not None:
             doc["dose"] = dose
         if advice is not None:
-            doc["current"] = {**advice.to_dict(), "source": cur[2]}
+            doc["advice"] = {**_advice_json(advice), "basis": doc["basis"]["label"], "strand_density": cur[0],
+                             "source": cur[2]}
+            doc["current"] = {**advice.to_dict(), "source": cur[2]}  # alias of `advice` for one release
         if models is not None:
             doc["model_comparison"] = models.to_dict()
         if over is not None:

@@ -12,7 +12,7 @@ import re
 
 from ..constants import CAUTION as _CAUTION
 from ..crosslinks import from_fit
-from ..fitting import fit_many
+from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
 from ..jsonio import dumps
 from ..models import get_model
 from ..ultimate import RULE as ULTIMATE_RULE
@@ -41,13 +41,20 @@ def add_parser(sub):
     p.add_argument("--thickness", metavar="H", help="specimen thickness for force columns, e.g. 2mm")
     p.add_argument("--stretch-unit", default="stretch", choices=("stretch", "elongation"),
                    help="show stretch-valued numbers as stretch λ (default) or as elongation %% (λ − 1)·100")
-    p.add_argument("--relative", action="store_true",
-                   help="relative residuals (each point weighs by its own stress) instead of absolute (Pa)")
+    p.add_argument("--residual", choices=RESIDUALS, default=DEFAULT_RESIDUAL,
+                   help=f"residual weighting: relative (each point weighs by its own stress, so the small-strain "
+                        f"points that fix G₀ count) or absolute (Pa: the stiff high-stretch points weigh most); "
+                        f"default {DEFAULT_RESIDUAL}, the same in compare, report, batch and the app")
+    p.add_argument("--relative", dest="residual", action="store_const", const="relative",
+                   help="alias of --residual relative")
     p.add_argument("--polymer", default="NR",
                    help="polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
                         "(default NR)")
     p.add_argument("--functionality", type=float, default=4.0, metavar="F",
                    help="junction functionality f for the crosslink table (default 4)")
+    p.add_argument("--intervals", choices=("transformed", "profile"), default="transformed",
+                   help="95 %% intervals: 'transformed' (default; linearised on log/logit of the parameter, always "
+                        "inside its domain) or 'profile' (profile likelihood; slower)")
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
     p.set_defaults(run=run)
 
@@ -74,9 +81,13 @@ def json_document(doc: dict) -> str:
 
 
 def _num(x, scale=1.0, digits=4):
+    """The project's one number formatter (:func:`network_models.formatting.number`): the CLI's tables print a
+    value as the app and the report do."""
+    from ..formatting import number
+
     if x is None or not math.isfinite(x):
         return "—"
-    return f"{x * scale:.{digits}g}"
+    return number(x * scale, digits)
 
 
 def _ci(ci, scale=1.0, digits=4):
@@ -136,8 +147,9 @@ def _format_result(res, table, stretch_unit="stretch") -> list[str]:
         scale = p.display_scale if p.display_unit else 1.0
         unit = p.display_unit or ("—" if p.unit == "1" else p.unit)
         tag = "  (fixed)" if p.fixed else ""
+        ci = _ci(p.ci95, scale) if p.fixed or getattr(p, "determined", True) else "not determined"
         out.append(f"  {(p.symbol or p.name):10s} {_num(p.value, scale):>11s} {_num(p.stderr, scale, 2):>13s} "
-                   f"{_ci(p.ci95, scale):>25s}  {unit}{tag}")
+                   f"{ci:>25s}  {unit}{tag}")
     out.append(f"  small-strain shear modulus G₀ = {res.small_strain_modulus / 1e6:.4g} MPa")
     from ..display_units import stretch_shown
 
@@ -167,7 +179,8 @@ def run(args):
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3 (4 for a tetrafunctional crosslink); "
                          f"got {args.functionality:g}")
-    results = fit_many(models, curves, residual="relative" if args.relative else "absolute", polymer=args.polymer)
+    results = fit_many(models, curves, residual=args.residual, polymer=args.polymer,
+                       intervals=getattr(args, "intervals", "transformed"))
     tables = {}
     for name, r in results.items():
         if isinstance(r, Exception):
@@ -185,7 +198,7 @@ def run(args):
             "command": "fit", "files": list(args.files),
             "curves": [{"name": c.name, "mode": c.mode.value, "n": len(c), "source": c.source,
                         "temperature_K": c.temperature, "notices": list(c.notices)} for c in curves],
-            "residual": "relative" if args.relative else "absolute",
+            "residual": args.residual,
             "ultimate": ultimate_rows(curves), "ultimate_rule": ULTIMATE_RULE,
             "models": {},
             "caution": CAUTION,
@@ -196,6 +209,10 @@ def run(args):
             else:
                 d = r.to_dict()
                 d["network"] = tables[name].to_dict() if name in tables else None
+                d["fit_basis"] = {"statistic": "pooled fit", "model": name, "residual": args.residual,
+                                  "curves": len(curves),
+                                  "label": f"one fit of {name} to all {len(curves)} curve(s), {args.residual} "
+                                           "residuals (statistics.small_strain_modulus_Pa)"}
                 doc["models"][name] = d
         if len(ok) > 1:
             doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import json
 
-from ..materials import FIELDS, add_polymers_option, apply_polymers_option, polymer_listing
+from ..materials import add_polymers_option, apply_polymers_option, polymer_listing
 from ..models import MODELS
 
 
@@ -25,7 +25,7 @@ def _print_polymers():
             row["status"], "some values recalled or estimated: check before a design decision rests on them")
         print(f"{row['key']:8s} {row['title']}  [{row['status']}: {flag}]")
         for name, v in row["values"].items():
-            print(f"{'':10s}{name:19s} {v['value']:<10.4g} {FIELDS[name].unit:6s} {v['source']}")
+            print(f"{'':10s}{name:19s} {v['value']:<10.4g} {v['unit']:6s} {v['source']}")
         if row["note"]:
             print(f"{'':10s}note: {row['note']}")
 

@@ -12,9 +12,7 @@ from __future__ import annotations
 
 from ..display_units import DENSITY_UNITS, STRESS_UNITS, apply_to_comparison
 from ..errors import merge_notices
-
-#: default model of a comparison: separates crosslink (G_c) and entanglement (G_e) parts and locks
-DEFAULT_MODEL = "extended-tube"
+from ..study import DEFAULT_MODEL  # the comparison's default model (one constant, in the study)
 
 
 def _common(p):
@@ -22,10 +20,16 @@ def _common(p):
                    help="a compound and its lab files (repeat for each compound)")
     p.add_argument("--manifest", metavar="PATH",
                    help="a manifest listing compounds and files, e.g. sample_sets/compounds.toml")
+    p.add_argument("--project", metavar="FILE.zip",
+                   help="a project file (`netstretch project`): its inputs and settings; options given here "
+                        "override the stored settings")
     p.add_argument("--baseline", metavar="NAME", help="compound the others are compared with (default: the "
                    "manifest's baseline, else the first)")
-    p.add_argument("--model", default=DEFAULT_MODEL, metavar="NAME",
-                   help=f"model fitted to every compound (default {DEFAULT_MODEL}; see `netstretch models`)")
+    p.add_argument("--model", default=None, metavar="NAME",
+                   help=f"model fitted to every compound (default {DEFAULT_MODEL}, or the project's; see "
+                        "`netstretch models`)")
+    p.add_argument("--residual", choices=("relative", "absolute"), default=None,
+                   help="residual weighting of every fit (default relative, the same as `fit`, or the project's)")
     p.add_argument("--service-temperature", metavar="T", help="service temperature, e.g. 80C (default: test "
                    "temperature)")
     p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar"),
@@ -50,6 +54,9 @@ def _common(p):
                         "repeat it")
     p.add_argument("--no-model-spread", action="store_true",
                    help="skip fitting the other models for the model spread beside the headline (faster)")
+    p.add_argument("--holm", action="store_true",
+                   help="family-wise verdicts: judge each compound's quantities together (Holm), so equal compounds "
+                        "show any 'different' in at most 5 %% of comparisons (default: 5 %% per quantity)")
 
 
 def add_parser(sub):
@@ -72,35 +79,74 @@ def add_parser(sub):
     c.set_defaults(run=run_compare)
 
 
-def _load(args):
+def _service_temperature(text):
     from ..cli import UserError
-    from ..compounds import compounds_from_specs, load_manifest
     from ..units import parse_quantity
 
-    if not args.compound and not args.manifest:
-        raise UserError("give compounds with --compound NAME=FILE[,FILE...] (repeat it) or a --manifest file")
-    comps, title, purpose, baseline = [], "", "", None
-    if args.manifest:
-        man = load_manifest(args.manifest)
-        comps.extend(man.compounds)
-        title, purpose, baseline = man.title, man.purpose, man.baseline
-    if args.compound:
-        opts = {"mode": args.mode} if args.mode else {}
-        extra = compounds_from_specs(args.compound, polymer=args.polymer, f=args.functionality, read_options=opts)
-        clash = {c.name for c in extra} & {c.name for c in comps}
-        if clash:
-            raise UserError(f"compound name(s) {', '.join(sorted(clash))} given twice (manifest and --compound)")
-        comps.extend(extra)
-    Ts = None
-    if args.service_temperature:
-        text = args.service_temperature.strip()
-        if not any(ch.isalpha() or ch == "°" for ch in text):
-            raise UserError(f"service temperature {text!r} has no unit; write e.g. 80C or 353K")
-        try:
-            Ts = parse_quantity(text, "temperature")
-        except ValueError as exc:
-            raise UserError(f"service temperature: {exc}") from None
-    return comps, title, purpose, args.baseline or baseline, Ts
+    text = text.strip()
+    if not any(ch.isalpha() or ch == "°" for ch in text):
+        raise UserError(f"service temperature {text!r} has no unit; write e.g. 80C or 353K")
+    try:
+        return parse_quantity(text, "temperature")
+    except ValueError as exc:
+        raise UserError(f"service temperature: {exc}") from None
+
+
+def settings_from_args(args) -> dict:
+    """The study settings the command line gives explicitly (they override a project's stored settings)."""
+    out = {}
+    if getattr(args, "model", None):
+        out["model"] = args.model
+    if getattr(args, "residual", None):
+        out["residual"] = args.residual
+    if getattr(args, "service_temperature", None):
+        out["service_temperature"] = _service_temperature(args.service_temperature)
+    if getattr(args, "baseline", None):
+        out["baseline"] = args.baseline
+    if getattr(args, "exclude", None):
+        out["exclusions"] = parse_exclusions(args.exclude)
+    if getattr(args, "pool", False):
+        out["pool"] = True
+    if getattr(args, "no_model_spread", False):
+        out["spread_models"] = ()
+    if getattr(args, "holm", False):
+        out["holm"] = True
+    return out
+
+
+def build_study(args):
+    """The study a command works on: from ``--project``, or ``--manifest`` and/or ``--compound`` files; the
+    settings given on the command line override the stored ones."""
+    from ..cli import UserError
+    from ..study import Study
+
+    sources = [x for x in (args.project, args.manifest) if x] + (["--compound"] if args.compound else [])
+    if not sources:
+        raise UserError("give compounds with --compound NAME=FILE[,FILE...] (repeat it), a --manifest file or a "
+                        "--project file")
+    if args.project and (args.manifest or args.compound):
+        raise UserError("--project holds its own compounds; give it alone (without --manifest or --compound)")
+    if args.project:
+        st = Study.from_project(args.project)
+    else:
+        parts = []
+        if args.manifest:
+            parts.append(Study.from_manifest(args.manifest))
+        if args.compound:
+            opts = {"mode": args.mode} if args.mode else {}
+            parts.append(Study.from_specs(args.compound, polymer=args.polymer, f=args.functionality,
+                                          read_options=opts))
+        if len(parts) == 1:
+            st = parts[0]
+        else:
+            clash = set(parts[0].names) & set(parts[1].names)
+            if clash:
+                raise UserError(f"compound name(s) {', '.join(sorted(clash))} given twice (manifest and --compound)")
+            st = Study(parts[0].compounds + parts[1].compounds, settings=parts[0].settings, title=parts[0].title,
+                       purpose=parts[0].purpose, inputs=parts[0].inputs + parts[1].inputs,
+                       force_temperature=parts[0].force_temperature)
+    st.update(**settings_from_args(args))
+    return st
 
 
 def parse_exclusions(items) -> dict[str, dict[str, str]]:
@@ -119,19 +165,17 @@ def parse_exclusions(items) -> dict[str, dict[str, str]]:
 
 
 def _compare(args):
-    from ..compare import compare
     from ..specs import parse_spec
 
     for text in getattr(args, "spec", []):  # a bad specification is refused before any fitting
         parse_spec(text)
-    comps, title, purpose, baseline, Ts = _load(args)
-    cmp = compare(comps, model=args.model, baseline=baseline, service_temperature=Ts,
-                  exclude=parse_exclusions(args.exclude), pool=args.pool,
-                  spread_models=() if args.no_model_spread else None)
+    st = build_study(args)
+    cmp = st.comparison()
     apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit,
                         stretch=getattr(args, "stretch_unit", "stretch"))
-    cmp.specs = list(getattr(args, "spec", []))
-    return cmp, title, purpose
+    # the specifications given now, else those stored with the study (a project file)
+    cmp.specs = list(getattr(args, "spec", [])) or list(st.settings.specifications)
+    return cmp, st.title, st.purpose
 
 
 def _fmt(q, scale=None):
@@ -217,6 +261,10 @@ def verdict_lines(cmp) -> list[str]:
         out.append(f"  {d['compound']:{width}s} {d['label']:32s} {pct}{absv} {ci}  {d['verdict'].upper()}"
                    f" (n {d['n']} vs {d['n_baseline']}{mdd})")
     out.append("  " + VERDICT_WORDING)
+    if getattr(cmp, "family_wise", None) == "holm":
+        from ..compare.core import HOLM_NOTE
+
+        out.append("  " + HOLM_NOTE)
     return out
 
 
@@ -239,29 +287,13 @@ def run_compare(args):
 
 
 def _print_pdf(html_path):
-    """FILE.pdf beside the HTML, printed (A4, from the report's print style) by a headless Chromium."""
-    import os
-    import shutil
-    import subprocess
+    """FILE.pdf beside the HTML, printed (A4, from the report's print style) by a headless Chromium
+    (:func:`network_models.report.pdf.print_pdf`, shared with the app's Compare tab)."""
+    from ..report.pdf import print_pdf
 
-    from ..cli import UserError
-
-    exe = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
-    pdf = html_path.with_suffix(".pdf")
-    how = (f"open {html_path} in a browser and print it to PDF (A4 portrait); the report has a print layout")
-    if not exe:
-        raise UserError(f"--pdf needs a headless Chromium (install the 'chromium' package or set "
-                        f"NETSTRETCH_CHROMIUM); the HTML, CSV, JSON and charts were written — {how}")
-    cmd = [exe, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking",
-           "--no-pdf-header-footer", f"--print-to-pdf={pdf}", html_path.resolve().as_uri()]
-    try:
-        subprocess.run(cmd, check=True, capture_output=True, timeout=120)
-    except (OSError, subprocess.SubprocessError) as exc:
-        raise UserError(f"Chromium could not print the PDF ({type(exc).__name__}); the HTML was written — "
-                        f"{how}") from None
-    if not pdf.exists():
-        raise UserError(f"Chromium wrote no PDF; the HTML was written — {how}")
-    return pdf
+    how = (f"the HTML, CSV, JSON and charts were written — open {html_path} in a browser and print it to PDF "
+           "(A4 portrait); the report has a print layout")
+    return print_pdf(html_path, how=how)
 
 
 def run_report(args):

@@ -16,7 +16,7 @@ import numpy as np
 from ..constants import CAUTION, celsius
 from ..materials import add_polymers_option, apply_polymers_option, get_polymer
 from ..testdata import read_force_temperature
-from ..thermo import energetic_fraction
+from ..thermo import DEPRECATED_KEYS, THERMOELASTIC_KEY, energetic_fraction, inversion_strain
 
 
 def add_parser(sub):
@@ -32,11 +32,32 @@ def add_parser(sub):
     p.set_defaults(run=run)
 
 
-def analyse(rec, expansion):
+def analyse(rec, expansion, polymer=None):
+    from ..materials import temperature_notices
+
     T, F = rec.temperature, rec.force
     slope, intercept = np.polyfit(T, F, 1)
     ep = energetic_fraction(T, F, rec.stretch)
     ev = energetic_fraction(T, F, rec.stretch, expansion=expansion) if expansion is not None else None
+    at_p = {"value": ep.value, "stderr": ep.stderr, "method": ep.method,
+            "meaning": "−T·∂ln(F/T)/∂T at constant pressure and length, as measured: includes thermal expansion; "
+                       "not an energetic fraction"}
+    inversion = None
+    if ev is not None and expansion > 0 and -0.5 <= ev.value <= 0.85:  # a plausible share only
+        Tm = float(T.mean())
+        inversion = {"strain": inversion_strain(Tm, expansion, ev.value), "energetic_fraction_used": ev.value,
+                     "temperature_K": Tm,
+                     "strain_entropic_only": inversion_strain(Tm, expansion),
+                     "method": "clamped strain where dF/dT = 0 with the entropic share (1 − f_e/f) ∝ T: "
+                               "ε_inv ≈ β_lin·T/(1 − f_e/f)"}
+    glass = []
+    if polymer:
+        seen = set()
+        for t in (float(T.min()), float(T.max())):
+            for n in temperature_notices(polymer, t, "force–temperature record"):
+                if n.kind not in seen:
+                    seen.add(n.kind)
+                    glass.append(n)
     return {
         "file": rec.source or rec.name,
         "stretch": rec.stretch,
@@ -44,11 +65,15 @@ def analyse(rec, expansion):
         "temperature_range_K": [float(T.min()), float(T.max())],
         "force_line": {"slope_N_per_K": float(slope), "intercept_at_0K_N": float(intercept),
                        "intercept_share_of_mean_force": float(intercept / F.mean())},
-        "energetic_fraction_constant_pressure": {"value": ep.value, "stderr": ep.stderr, "method": ep.method},
+        THERMOELASTIC_KEY: at_p,
         "energetic_fraction_constant_volume": None if ev is None else
         {"value": ev.value, "stderr": ev.stderr, "expansion_1_K": expansion, "correction": ev.correction,
          "method": ev.method},
-        "notices": list(rec.notices) + ([] if ev is None else list(ev.notices)),
+        "inversion_strain": inversion,
+        "notices": list(rec.notices) + ([] if ev is None else list(ev.notices)) + [str(n) for n in glass],
+        # deprecated alias (one release): the same object under the old, misleading name
+        **{old: at_p for old in DEPRECATED_KEYS},
+        "deprecated_keys": {old: f"use {new}; removed after the next release" for old, new in DEPRECATED_KEYS.items()},
     }
 
 
@@ -60,7 +85,7 @@ def run(args):
         beta = get_polymer(args.polymer).expansion
     if beta is not None and not (0 <= beta < 0.01):
         raise ValueError(f"volume expansion coefficient β = {beta!r} 1/K is implausible; rubbers have ~6e-4 1/K")
-    out = analyse(rec, beta)
+    out = analyse(rec, beta, args.polymer)
     if args.json:
         print(json.dumps(out, indent=2, ensure_ascii=False))
         return 0
@@ -70,7 +95,7 @@ def run(args):
     print(f"  straight line F = a + bT: b = {fl['slope_N_per_K'] * 1000:.3f} mN/K, "
           f"a (force at 0 K) = {fl['intercept_at_0K_N']:.3f} N = {fl['intercept_share_of_mean_force'] * 100:.1f} % "
           "of the mean force")
-    ep = out["energetic_fraction_constant_pressure"]
+    ep = out[THERMOELASTIC_KEY]
     print(f"  at constant pressure (as measured, uncorrected): −T·∂ln(F/T)/∂T = {ep['value']:.3f} ± "
           f"{ep['stderr']:.3f}  (includes thermal expansion; not the energetic fraction of the chains)")
     ev = out["energetic_fraction_constant_volume"]
@@ -81,6 +106,10 @@ def run(args):
     else:
         print("  give --polymer or --expansion for the constant-volume energetic fraction (thermal-expansion "
               "correction)")
+    inv = out["inversion_strain"]
+    if inv:
+        print(f"  thermoelastic inversion near ε = {inv['strain'] * 100:.1f} % with this f_e/f "
+              f"({inv['strain_entropic_only'] * 100:.1f} % for a purely entropic force)")
     for n in out["notices"]:
         print(f"  note: {n}")
     print("Caution: " + CAUTION)

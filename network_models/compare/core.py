@@ -10,7 +10,17 @@ from ..dose import ladder_fits
 from ..errors import Notice
 from ..models import MODELS, get_model
 from ..specs import judge as judge_specs
-from ..statistics import CANNOT_JUDGE, DIFFERENT, VERDICT_WORDING, combined_interval, verdict
+from ..statistics import (
+    ALPHA,
+    CANNOT_JUDGE,
+    DIFFERENT,
+    NOT_DISTINGUISHABLE,
+    VERDICT_WORDING,
+    combined_interval,
+    holm_adjust,
+    verdict,
+    welch_p_value,
+)
 from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
@@ -38,7 +48,7 @@ def _pooling_problem(compound) -> str | None:
             f"fit; compare them as separate compounds ({split}), or ask for pooling explicitly (pool=True, --pool)")
 
 
-def model_spread(res, tier: int, models) -> dict:
+def model_spread(res, tier: int, models, fitter=None) -> dict:
     """ν on the headline tier from each model of the declared set that fits the compound's pooled data
     without a serious warning; the spread is their range."""
     from ..crosslinks import from_fit
@@ -51,7 +61,7 @@ def model_spread(res, tier: int, models) -> dict:
         curves = [x for x in c.curves if mm.supports(x.mode)]
         if len(curves) != len(c.curves):
             continue
-        fr, err = fit_safely(mm, curves, None, c.name)
+        fr, err = fit_safely(mm, curves, fitter, c.name)
         if err:
             rows.append({"model": mm.name, "value": None, "used": False, "why": err})
             continue
@@ -70,7 +80,7 @@ def model_spread(res, tier: int, models) -> dict:
                    "fit has no warning beyond untested modes"}
 
 
-def _headline(res, tier: int, why: str, spread_models) -> Headline:
+def _headline(res, tier: int, why: str, spread_models, fitter=None) -> Headline:
     c = res.compound
     s = res.stats.get("strand_density")
     pooled, pooled_ci = res.pooled_nu.get(tier, (None, None))
@@ -94,7 +104,7 @@ def _headline(res, tier: int, why: str, spread_models) -> Headline:
         "headline_note": "headline interval: specimen scatter with fit error",
     }
     if spread_models:
-        unc["model_spread"] = model_spread(res, tier, spread_models)
+        unc["model_spread"] = model_spread(res, tier, spread_models, fitter)
     note = why
     if n == 1:
         note = (note + "; " if note else "") + "one specimen: scatter unknown"
@@ -117,8 +127,77 @@ def analyse_compound(compound, m, service_temperature, fitter=None, exclude=None
     specimen_table(res, tier, why)
     T = res.test_temperature
     _service_part(res, T, T if service_temperature is None else float(service_temperature))
-    res.headline = _headline(res, tier, why, spread_models)
+    res.headline = _headline(res, tier, why, spread_models, fitter)
+    res.pooled = _pooled(res, m, fitter)
+    g = res.stats.get("G0")
+    if res.fit is not None and g is not None and g.mean is not None:  # where both G₀ are shown, say why
+        G0p = float(m.small_strain_modulus(**m.resolve(res.fit.values)))
+        res.crosslink_notes.append(
+            f"this table reads the pooled fit (G₀ = {G0p / 1e6:.4g} MPa: one fit to all the compound's curves, "
+            f"{getattr(res.fit, 'residual', '')} residuals); the compound's G₀ = {g.mean / 1e6:.4g} MPa elsewhere is "
+            f"the mean of {g.n} specimen fit(s) — they differ by specimen scatter and by how the test modes pull "
+            "the single fit")
     return res
+
+
+def _pooled(res, m, fitter) -> dict | None:
+    """One fit to the compound's counted curves (every curve the model covers, excluded specimens left out):
+    the same fit ``netstretch fit`` makes on those files with that model and the default weighting."""
+    from ..fitting.many import specimen_groups
+
+    excluded = [s.name for s in res.specimens if s.excluded]
+    fr = res.fit
+    curves = [c for c in res.compound.curves if m.supports(c.mode)]
+    if excluded:
+        groups = specimen_groups(curves)
+        curves = [c for name, cs in groups.items() if name not in excluded for c in cs]
+        fr, err = fit_safely(m, curves, fitter, res.name) if curves else (None, "no curves left")
+        if err:
+            return None
+    if fr is None:
+        return None
+    G0 = float(m.small_strain_modulus(**m.resolve(fr.values)))
+    return {"model": m.name, "G0": G0, "residual": getattr(fr, "residual", None), "curves": len(curves),
+            "excluded_specimens": excluded,
+            "basis": "pooled fit: one fit to all of the compound's curves the model covers"
+                     + (f", specimens {', '.join(excluded)} left out" if excluded else "")}
+
+
+def fit_basis(r: CompoundResult, residual: str | None) -> dict:
+    """How each of a compound's G₀ / ν / μ_j numbers was obtained (the JSON's ``compounds[].fit_basis``):
+    statistic (specimen mean or pooled fit), model, residual weighting, entanglement treatment and where G_e
+    came from, filler treatment — and, where two numbers of one quantity are shown together, why they differ."""
+    c = r.compound
+    m = get_model(r.model)
+    phi = c.filler_fraction
+    filler = f"removed (Guth–Gold, φ = {phi:g})" if phi > 0 else "none given (gum or φ not stated)"
+    separable = bool(r.fit is not None and m.modulus_split(r.fit.values).separable)
+    ge_src = f"the {m.title} fit (the model separates G_e)" if separable else \
+        f"the plateau modulus of {c.polymer} (polymer table, ∝ T; an upper bound)"
+    h = r.headline
+    tier = None if h is None else h.tier
+    ent = {0: "removed", 1: "counted as crosslinks (upper bound)"}.get(tier, "—")
+    n = r.n
+    common = {"model": m.name, "residual": residual}
+    mean = "specimen mean" if n >= 1 else "pooled fit (no specimen could be fitted alone)"
+    out = {
+        "G0": {"statistic": mean, "n": n, "main_mode": r.main_mode, **common,
+               "label": f"{mean} of {n} specimen fit(s) ({r.main_mode or '—'}), {m.name}, {residual} residuals"},
+        "pooled": {"statistic": "pooled fit", **common,
+                   "label": f"pooled fit of all curves, {m.name}, {residual} residuals"},
+        "headline": {"statistic": mean, "n": n, **common, "entanglements": ent,
+                     "G_e_source": ge_src if tier == 0 else None, "filler": filler,
+                     "label": f"{mean}, {m.name}, {residual} residuals, entanglements {ent}"
+                              + (f" (G_e from {ge_src})" if tier == 0 else "") + f", filler {filler}"},
+        "crosslink_table": {"statistic": "pooled fit", **common, "G_e_source": ge_src, "filler": filler,
+                            "label": "pooled fit; each row states its entanglement and filler treatment"},
+        "mu_j": {"statistic": mean, "relation": f"μ_j = 2ν/f with f = {c.f:g}, on the headline's basis"},
+        "why_differ": ("G0.mean averages the counted specimens' own fits (each specimen weighs the same); "
+                       "pooled.G0 and the crosslink table come from one fit to all the curves together (each point "
+                       "weighs by the residual weighting, every mode at once), so the two differ by specimen "
+                       "scatter and by how the modes pull the single fit"),
+    }
+    return out
 
 
 # ----- the comparison ----------------------------------------------------------------------------
@@ -132,6 +211,11 @@ class Comparison:
     exclusions: dict = field(default_factory=dict)
     #: the units stresses and densities are shown in (display_units.apply_to_comparison); values stay SI
     display_units: dict = field(default_factory=lambda: {"stress": "MPa", "density": "mol/m³"})
+    #: the residual weighting of every fit in this comparison
+    residual: str = "relative"
+    #: family-wise verdicts: "holm" adjusts each compound's verdict quantities together (Holm 1979), None keeps
+    #: one test per quantity at α = 0.05 (issue #20)
+    family_wise: str | None = None
     #: specifications in the design-target grammar, judged per compound (network_models.specs)
     specs: list = field(default_factory=list)
 
@@ -198,10 +282,10 @@ class Comparison:
         for r in self.results:
             if r is base or not r.ok:
                 continue
-            for q in VERDICT_QUANTITIES:
-                row = self._difference(r, base, q)
-                if row is not None:
-                    out.append(row)
+            rows = [row for q in VERDICT_QUANTITIES if (row := self._difference(r, base, q)) is not None]
+            if self.family_wise == "holm":
+                _holm(rows)
+            out.extend(rows)
         return out
 
     def _difference(self, r, base, q):
@@ -218,6 +302,7 @@ class Comparison:
             return None
         v = verdict(a, b)
         d = v.to_dict()
+        d["p_value"] = welch_p_value(a, b) if v.verdict != CANNOT_JUDGE else None
         d.update({"compound": r.name, "baseline": base.name, "quantity": q, "label": label, "unit": unit,
                   "basis": basis, "key": "nu" if q == "strand_density" else q,
                   "styled": v.verdict == DIFFERENT})
@@ -237,19 +322,37 @@ class Comparison:
             "notes": list(self.notes),
             "exclusions": [{"compound": c, "specimen": s, "reason": why} for c, d in self.exclusions.items()
                            for s, why in d.items()],
-            "compounds": [dict(result_to_dict(r), spec=spec_verdicts.get(r.name, [])) for r in self.results],
+            "residual": self.residual,
+            "compounds": [dict(result_to_dict(r, self.residual), spec=spec_verdicts.get(r.name, []))
+                          for r in self.results],
             "differences": self.differences(),
+            "family_wise": self.family_wise,
             "ultimate_differences": ultimate_differences(self.results, self.baseline),
             "dose_ladders": ladder_fits(self.results),
         }
+
+
+def _holm(rows) -> None:
+    """Holm's family-wise verdicts over one compound's quantities (statistics.holm_adjust): each row gains
+    ``p_holm`` and its verdict follows p_holm < α; the Welch interval stays the per-quantity 95 % one."""
+    adj = holm_adjust([d.get("p_value") for d in rows])
+    m = sum(p is not None for p in adj)
+    for d, p in zip(rows, adj, strict=True):
+        d["p_holm"] = p
+        d["family"] = f"Holm over the {m} judged quantities of this compound (family-wise α = {ALPHA:g})"
+        if p is not None:
+            d["verdict"] = DIFFERENT if p < ALPHA else NOT_DISTINGUISHABLE
+            d["styled"] = d["verdict"] == DIFFERENT
 
 
 def _stat_dict(s) -> dict | None:
     return None if s is None else s.to_dict()
 
 
-def result_to_dict(r: CompoundResult) -> dict:
+def result_to_dict(r: CompoundResult, residual: str | None = None) -> dict:
     c = r.compound
+    if residual is None:
+        residual = getattr(r.fit, "residual", None)
     return {
         "name": c.name, "ok": r.ok, "error": r.error, "polymer": c.polymer, "f": c.f, "notes": c.notes,
         "metadata": {k: (v if isinstance(v, (str, int, float, bool)) or v is None else str(v))
@@ -260,6 +363,8 @@ def result_to_dict(r: CompoundResult) -> dict:
         "G0": _stat_dict(r.stats.get("G0")) or {"n": 0, "mean": None, "sd": None, "median": None, "ci95": None},
         "statistics": {k: _stat_dict(v) for k, v in r.stats.items()},
         "headline": None if r.headline is None else r.headline.to_dict(),
+        "pooled": r.pooled,
+        "fit_basis": fit_basis(r, residual) if r.ok else None,
         "provenance": c.provenance(),
         "parameters": [p.to_dict() for p in r.params],
         "quantities": {k: q.to_dict() for k, q in r.quantities.items()},
@@ -291,14 +396,24 @@ def _exclusions(exclude) -> dict[str, dict[str, str]]:
 
 
 def compare(compounds, model="eight-chain", baseline: str | None = None, service_temperature: float | None = None,
-            fitter=None, *, exclude=None, pool: bool = False, spread_models=None) -> Comparison:
+            fitter=None, *, exclude=None, pool: bool = False, spread_models=None, holm: bool = False,
+            residual: str | None = None) -> Comparison:
     """Fit ``model`` to every compound (pooled and specimen by specimen) and compare with ``baseline``.
 
     ``service_temperature`` in K (None: the test temperature); ``baseline`` defaults to the compound marked
     baseline, else the first.  ``exclude={compound: {specimen: reason}}`` (or a list of specimen names) keeps
     specimens out of the statistics, with the reason recorded.  ``pool=True`` allows files that state
     different compounds to be fitted as one.  ``spread_models``: the models whose spread is shown beside the
-    headline (None: every registered model covering the compound's modes; ``()``: none)."""
+    headline (None: every registered model covering the compound's modes; ``()``: none).  ``holm=True``: verdicts
+    family-wise over each compound's quantities (Holm), instead of one test per quantity at 5 %.  ``residual``: the
+    weighting of every fit (None: ``fitting.DEFAULT_RESIDUAL``, as everywhere); a custom ``fitter`` is
+    expected to use the same weighting."""
+    from ..fitting import DEFAULT_RESIDUAL, fit_or_error
+
+    residual = residual or DEFAULT_RESIDUAL
+    if fitter is None and residual != DEFAULT_RESIDUAL:
+        def fitter(mm, curves):
+            return fit_or_error(mm, curves, residual=residual)
     if not compounds:
         raise ValueError("no compounds to compare; give at least one")
     names = [c.name for c in compounds]
@@ -322,7 +437,14 @@ def compare(compounds, model="eight-chain", baseline: str | None = None, service
     Ts = service_temperature if service_temperature is not None else (
         results[0].test_temperature if results else DEFAULT_TEST_TEMPERATURE)
     return Comparison(model=m.name, results=results, baseline=baseline, service_temperature=float(Ts),
-                      notes=_notes(compounds, results), exclusions=excl)
+                      notes=_notes(compounds, results) + ([HOLM_NOTE] if holm else []), exclusions=excl,
+                      family_wise="holm" if holm else None, residual=residual)
+
+
+#: the note a Holm comparison carries (README "Comparing compounds")
+HOLM_NOTE = ("Family-wise verdicts (--holm): each compound's quantities against the baseline are judged together "
+             "with Holm's step-down correction (Holm 1979), so the chance that equal compounds show any "
+             "'different' stays at most 5 %; the intervals shown remain the per-quantity 95 % Welch intervals.")
 
 
 def _notes(compounds, results) -> list:
@@ -333,7 +455,10 @@ def _notes(compounds, results) -> list:
              "Verdicts against the baseline: " + VERDICT_WORDING,
              "Strand density ν (headline) and junction density μ_j = 2ν/f: basis stated beside every number; "
              "preferred basis: affine, entanglement part removed.",
-             "Swelling ranges are χ ± 0.05, not statistical."]
+             "Swelling ranges are χ ± 0.05, not statistical.",
+             "Two G₀ per compound: the compound table's G₀ is the mean of the specimens' own fits; the crosslink "
+             "table and the pooled G₀ come from one fit to all of the compound's curves — they differ by "
+             "specimen scatter and by how the test modes pull the single fit (basis beside each number)."]
     if any(c.metadata.get("filler_phr") not in (None, 0, "0", "", 0.0) for c in compounds):
         notes.append("Filled compounds: ν is given with the filler reinforcement taken out by the Guth–Gold factor "
                      "where the filler volume fraction is known; Guth–Gold holds for well-dispersed, weakly "

@@ -73,7 +73,8 @@ def _param_rows(model, fr) -> list[ParamRow]:
             lo, hi = float(ci[0]), float(ci[1])
         held = bool(est.fixed) or (stderr is None and lo is None)
         rows.append(ParamRow(decl.name, decl.symbol, float(est.value), stderr, lo, hi, decl.unit,
-                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held))
+                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held,
+                             None if held else bool(getattr(est, "determined", True) and lo is not None)))
     return rows
 
 
@@ -118,7 +119,7 @@ def split_modulus(model, values: dict, polymer: str, T: float) -> tuple[float, f
 
 
 def strand_density_from_modulus(Gx: float, T: float) -> float:
-    """Affine: ν = G_x/(RT), mol/m³ (physics.md §3)."""
+    """Affine: ν = G_x/(RT), mol/m³ (docs/methods.md §affine)."""
     return Gx / (R * T)
 
 
@@ -305,7 +306,8 @@ def _trade_part(res, m, fr, values, compound, dof):
                 f"{key}_predicted", f"{key} predicted", pred if ok else None, "Pa",
                 *_iv(pred if ok else None, se if se is not None and math.isfinite(se) else None, dof),
                 basis=f"{m.title} fit at {strain}", display_unit="MPa", display_scale=1e-6,
-                note="" if ok else "past the model's locking stretch")
+                note=(str(fr.range_note("uniaxial", [lam]) or "") if ok and hasattr(fr, "range_note")
+                      else "" if ok else "past the model's locking stretch"))
 
 
 def _swelling_part(res, compound):
@@ -326,7 +328,8 @@ def _swelling_part(res, compound):
             "specimen": s.specimen or "", "source": s.source, "solvent": est.solvent.key, "chi": est.chi.chi,
             "chi_status": est.chi.status, "molar_volume_cm3_mol": est.solvent.molar_volume * 1e6,
             "phi": est.phi, "phi_measured": est.phi_measured, "nu": est.nu_affine, "nu_phantom": est.nu_phantom,
-            "nu_chi_minus_0.05": lo_b, "nu_chi_plus_0.05": hi_b, "f": compound.f, "notes": list(est.notes)})
+            "nu_chi_minus_0.05": lo_b, "nu_chi_plus_0.05": hi_b, "f": compound.f, "notes": list(est.notes),
+            "chi_used": est.chi_used, "chi_spread": est.chi_spread, "nu_band_chi": list(est.nu_band_chi["affine"])})
     if sw_vals:
         ends.extend(sw_vals)
         res.quantities["nu_swelling"] = Quantity(

@@ -66,6 +66,8 @@ class ParamRow:
     display_scale: float
     meaning: str
     held: bool = False
+    #: False when the data do not bound the parameter (no interval; issue #20), None for held parameters
+    determined: bool | None = None
 
     def to_dict(self):
         return dict(self.__dict__)
@@ -116,6 +118,8 @@ class CompoundResult:
     headline: Headline | None = None
     main_mode: str | None = None
     pooled_nu: dict = field(default_factory=dict)  # basis tier -> (ν, ci95) from the pooled fit
+    #: one fit to the compound's counted curves: {model, G0 (Pa), residual, curves, excluded_specimens, basis}
+    pooled: dict | None = None
 
     @property
     def name(self) -> str:

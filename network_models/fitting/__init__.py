@@ -19,9 +19,9 @@ The package, in the order a fit runs through it:
 
 Method
 ------
-* Least squares on the residual ``model − data`` in Pa (``residual="absolute"``, default: the stiff
-  high-stress points weigh most) or ``(model − data) / max(|data|, 2 % of the largest |stress| in that
-  mode)`` (``"relative"``: the small-strain region and a soft mode get equal say).
+* Least squares on the residual ``(model − data) / max(|data|, 2 % of the largest |stress| in that mode)``
+  (``residual="relative"``, the default ``DEFAULT_RESIDUAL``: the small-strain points that fix G₀ and a soft
+  mode get equal say) or ``model − data`` in Pa (``"absolute"``: the stiff high-stress points weigh most).
 * Variable projection (Golub & Pereyra 1973, SIAM J. Numer. Anal. 10:413 [from memory]): every model here is
   linear in its moduli (checked numerically once per model), so the free moduli are solved exactly by a
   small bounded linear least squares for each trial of the other parameters; the optimiser only moves N,
@@ -44,11 +44,12 @@ from ..errors import FitError, Notice
 from .core import fit
 from .diagnostics import STRAIN_CRYSTALLISING
 from .many import fit_many, fit_or_error, fit_specimens, specimen_groups
-from .problem import estimate_modulus
+from .problem import DEFAULT_RESIDUAL, RESIDUALS, estimate_modulus
 from .result import FitResult, ModeStats, ParamEstimate
 from .solver import levenberg_marquardt
 from .uncertainty import derived, derived_se
 
-__all__ = ["FitError", "FitResult", "ModeStats", "Notice", "ParamEstimate", "STRAIN_CRYSTALLISING", "derived",
+__all__ = ["DEFAULT_RESIDUAL", "RESIDUALS", "FitError", "FitResult", "ModeStats", "Notice", "ParamEstimate",
+           "STRAIN_CRYSTALLISING", "derived",
            "derived_se", "estimate_modulus", "fit", "fit_many", "fit_or_error", "fit_specimens",
            "levenberg_marquardt", "specimen_groups"]

@@ -3,21 +3,22 @@
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
 from ..errors import FitError
 from ..models import get_model
 from ..testdata import TestCurve
-from .diagnostics import curve_cycle, curve_polymer, diagnose
-from .problem import set_up
+from .diagnostics import curve_cycle, curve_polymer, diagnose, undetermined_notices
+from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats
 from .solver import solve
-from .uncertainty import covariance, estimates
+from .uncertainty import INTERVAL_METHODS, covariance, estimates, profile_interval, undetermined
 
 
-def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | None = None,
-        start: dict | None = None, polymer: str | None = None) -> FitResult:
+def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: dict | None = None,
+        start: dict | None = None, polymer: str | None = None, intervals: str = "transformed") -> FitResult:
     """Fit ``model`` (name or Model) to ``curves`` (TestCurve or list, any mix of modes).
 
     ``free``: held parameters to fit as well (e.g. ``{"beta"}``); ``fixed``: {name: value} kept at that
@@ -25,8 +26,13 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
     (e.g. ``"NR"``), used only to warn when a strain-crystallising rubber is fitted past λ ≈ 3 (taken from
     the curves' ``polymer`` metadata when not given; nothing is said when unknown).  Raises
     :class:`~network_models.errors.FitError` (a ValueError) with a sentence when the fit cannot be done or
-    does not converge.
+    does not converge.  ``intervals``: ``"transformed"`` (default; linearised on the transformed parameter,
+    always inside the domain) or ``"profile"`` (profile likelihood, a few dozen refits per parameter).  A
+    parameter the data do not bound is *not determined* (``ParamEstimate.determined``; no interval).
     """
+    if intervals not in INTERVAL_METHODS:
+        raise FitError(f"intervals must be one of {', '.join(INTERVAL_METHODS)}, not {intervals!r}",
+                       kind="bad-option")
     m = get_model(model) if isinstance(model, str) else model
     curves = [curves] if isinstance(curves, TestCurve) else list(curves)
     if not curves:
@@ -42,7 +48,23 @@ def fit(model, curves, *, residual: str = "absolute", free=None, fixed: dict | N
         result.polymer = polymer
         result.cycle, cycle_notes = curve_cycle(curves)
         result.warnings = [*pr.notices, *diagnose(result, pj, values, se_z, corr, polymer=polymer), *cycle_notes]
+        _mark_undetermined(result)
+        if intervals == "profile":
+            kw = dict(residual=residual, free=free, fixed=fixed, start=start, polymer=polymer)
+            for name in result.free:
+                est = result.params[name]
+                if est.determined:
+                    ci, ok = profile_interval(m, curves, name, kw, result)
+                    result.params[name] = replace(est, ci95=ci, determined=ok)
+        result.warnings.extend(undetermined_notices(result))
     return result
+
+
+def _mark_undetermined(result) -> None:
+    """A parameter that ended on a declared bound has no interval: the data do not bound it there."""
+    for n in result.notices("at-bound"):
+        if n.subject in result.params:
+            result.params[n.subject] = undetermined(result.params[n.subject])
 
 
 def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
@@ -70,4 +92,5 @@ def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
         modes=mode_stats, n=n, k=k, rss=rss_out, aic=aic, bic=bic, residual=pr.residual, converged=True,
         message=message, nfev=pj.nfev, curve_names=[c.name for c in pr.curves],
         temperature=temps.pop() if len(temps) == 1 else None, solver=solver,
+        max_stress=float(np.max(np.abs(data.P))) if data.P.size else None,
     )

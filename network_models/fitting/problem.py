@@ -13,10 +13,15 @@ from ..deformation import MODES
 from ..errors import FitError, Notice
 from ..testdata import TestCurve
 
+#: the one residual weighting default of netstretch (fit, compare, report, batch, app, study): relative
+#: residuals weight every point by its own stress, so the small-strain points that fix the modulus G₀ count
+#: as much as the stiff high-stretch points (absolute residuals let the last few points of a curve set G₀).
+DEFAULT_RESIDUAL = "relative"
+RESIDUALS = ("relative", "absolute")
 RELATIVE_FLOOR = 0.02  # relative residual denominator floor, fraction of the largest |stress| of a mode
 SMALL_STRAIN = (0.7, 1.5)  # stretch window for the start modulus
 
-_NEO_SHAPE = {  # nominal stress / G for the neo-Hookean solid (physics.md §2 with W₁ = G/2, W₂ = 0)
+_NEO_SHAPE = {  # nominal stress / G, neo-Hookean solid (docs/methods.md §stress-from-energy, W₁ = G/2, W₂ = 0)
     0: lambda x: x - x**-2,  # uniaxial
     1: lambda x: x - x**-5,  # equibiaxial
     2: lambda x: x - x**-3,  # planar
@@ -26,7 +31,7 @@ _KINEMATICS = ("l1", "l2", "l3", "I1", "I2", "A", "B", "l3_over_l1")
 
 
 def _stretches(mode_index: int, lam: np.ndarray):
-    """(λ₁, λ₂, λ₃) of the incompressible test modes, direction 3 stress-free (physics.md §2)."""
+    """(λ₁, λ₂, λ₃) of the incompressible test modes, direction 3 stress-free (docs/methods.md §test-modes)."""
     if mode_index == 0:
         lt = 1.0 / np.sqrt(lam)
         return lam, lt, lt
@@ -313,6 +318,12 @@ def set_up(m, curves, *, residual, free, fixed, start) -> Problem:
     if not free_names:
         raise FitError("every parameter is fixed: free at least one to fit", kind="bad-option")
     G0 = modulus_from_data(data, curves)
+    if G0 > 1e9:  # past every model's modulus domain: say which unit mix-up would explain it (issue #20)
+        from .diagnostics import unit_plausibility
+
+        why = "; ".join(str(n) for n in unit_plausibility(curves, G0))
+        raise FitError(f"the curves' small-strain modulus is {G0 / 1e6:.4g} MPa, far beyond any rubber: {why}",
+                       kind="bad-input")
     try:
         p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
     except ValueError as exc:

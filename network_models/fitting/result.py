@@ -20,6 +20,11 @@ def clean(x):
     return x if math.isfinite(x) else None
 
 
+#: a prediction past the tested range whose stress exceeds this multiple of the largest measured stress leaves
+#: the plausible band (issue #20; a threshold chosen here, see docs/methods.md §extrapolation)
+EXTRAPOLATION_FACTOR = 3.0
+
+
 def _has_null(d) -> bool:
     if isinstance(d, dict):
         return any(_has_null(v) for v in d.values())
@@ -42,6 +47,9 @@ class ParamEstimate:
     display_unit: str = ""
     display_scale: float = 1.0
     meaning: str = ""
+    #: False when the data do not bound the parameter (issue #20): no interval (``ci95 = (None, None)``), and
+    #: the JSON says ``"ci95": null, "determined": false``
+    determined: bool = True
 
     @property
     def relative_stderr(self) -> float | None:
@@ -50,9 +58,12 @@ class ParamEstimate:
         return abs(self.stderr / self.value)
 
     def to_dict(self) -> dict:
-        lo, hi = self.ci95
+        lo, hi = self.ci95 if self.ci95 is not None else (None, None)
+        lo, hi = clean(lo), clean(hi)
+        determined = None if self.fixed else bool(self.determined and lo is not None and hi is not None)
         return {"value": clean(self.value), "unit": self.unit, "stderr": clean(self.stderr),
-                "ci95": [clean(lo), clean(hi)], "fixed": self.fixed}
+                "ci95": [lo, hi] if lo is not None and hi is not None else None,
+                "determined": determined, "fixed": self.fixed}
 
 
 @dataclass(frozen=True)
@@ -96,6 +107,8 @@ class FitResult:
     polymer: str | None = None
     #: which optimiser found the optimum: "levenberg-marquardt" (the small one), "minpack-lm", "trf", "closed-form"
     solver: str = ""
+    #: the largest |nominal stress| among the fitted points, Pa (the plausible band of predictions is 3× it)
+    max_stress: float | None = None
 
     # ----- notebooks and pandas (network_models.frames) ------------------------------------------
     def to_frame(self):
@@ -143,9 +156,14 @@ class FitResult:
 
     def range_note(self, mode, lam) -> str | None:
         """A sentence when stretches in ``lam`` lie outside the tested range for ``mode`` (or the mode was
-        not tested); None when every stretch was covered by data."""
+        not tested); None when every stretch was covered by data.  When a prediction there exceeds
+        :data:`EXTRAPOLATION_FACTOR` (3×) the largest measured stress the notice is of kind
+        ``implausible-extrapolation`` and names the stress (:meth:`extrapolation_note`)."""
         mode = Mode.parse(mode)
         lam = np.asarray(lam, dtype=np.float64)
+        loud = self.extrapolation_note(mode, lam)
+        if loud is not None:
+            return loud
         if mode not in self.modes:
             return Notice(f"no {mode.value} data were fitted: {mode.value} predictions of the {self.title} model "
                           "are extrapolations from the other modes", "extrapolated-mode", mode.value)
@@ -155,6 +173,42 @@ class FitResult:
                           "extrapolations: check them against a test before relying on them",
                           "extrapolated-range", mode.value)
         return None
+
+    def extrapolation_note(self, mode, lam) -> Notice | None:
+        """A notice (kind ``implausible-extrapolation``) when, at stretches in ``lam`` outside the tested range of
+        ``mode`` (or in an untested mode), the fitted model predicts a stress of more than 3× the largest
+        measured one; None otherwise."""
+        mode = Mode.parse(mode)
+        lam = np.atleast_1d(np.asarray(lam, dtype=np.float64))
+        if not self.max_stress or not lam.size:
+            return None
+        if mode in self.modes:
+            lo, hi = self.modes[mode].tested_range
+            outside = (lam > hi * (1 + 1e-9)) | (lam < lo * (1 - 1e-9))
+        else:
+            outside = np.isfinite(lam)
+        if not outside.any():
+            return None
+        with np.errstate(all="ignore"):
+            P = np.abs(np.asarray(self.predict(mode, lam[outside]), dtype=np.float64))
+        band = EXTRAPOLATION_FACTOR * self.max_stress
+        over = np.isfinite(P) & (P > band)
+        locked = ~np.isfinite(P)
+        if not over.any() and locked.any():
+            # the fitted model has locked (or its energy is undefined) before this stretch: a number there
+            # would be invented, and silence would read as "fine" — say so (docs/methods.md §extrapolation)
+            j = int(np.argmax(locked))
+            return Notice(f"the {self.title} fit cannot reach λ = {lam[outside][j]:.3g} in {mode.value}: its fitted "
+                          "limit lies below that stretch, past the tested range — no plausible prediction there; "
+                          "test that range or fit data that reach it", "implausible-extrapolation", mode.value)
+        if not over.any():
+            return None
+        i = int(np.argmax(np.where(over, P, -np.inf)))
+        return Notice(f"the {self.title} fit predicts {P[i] / 1e6:.4g} MPa in {mode.value} at λ = "
+                      f"{lam[outside][i]:.3g}, past the tested range and more than {EXTRAPOLATION_FACTOR:g}× the "
+                      f"largest measured stress ({self.max_stress / 1e6:.3g} MPa): outside a plausible band — an "
+                      "extrapolation the data do not support; test that range before using it",
+                      "implausible-extrapolation", mode.value)
 
     def to_dict(self) -> dict:
         """One JSON-ready document (SI units; no NaN: undefined numbers are null with a warning)."""

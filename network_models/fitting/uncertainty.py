@@ -6,16 +6,100 @@ cov_z = (JᵀJ)⁻¹ s², s² = RSS/(n − k), from the SVD of J (singular J ⇒
 t·se with Student's t at n − k degrees of freedom (``constants.t_quantile``).  For log-scaled parameters
 the interval is formed on the log scale (asymmetric, always positive); their ``stderr`` is the
 delta-method value in SI units.
+
+Intervals respect each parameter's declared domain (``Param.bounds``, the one source of truth): the
+interval is formed on a transformed parameter — logit on a bounded domain (lo, hi), log(v − lo) on a
+half-open one, the value itself on the whole line — and mapped back, so it can never leave the domain
+(a δ or G_e interval never crosses zero).  A parameter is *not determined* (``ci95 = (None, None)``,
+``determined = False``) when its interval is unbounded, its ends differ by more than
+:data:`DETERMINED_RATIO` (10³×), or it sits on a declared bound.  ``fit(..., intervals="profile")`` gives
+profile-likelihood intervals instead (:func:`profile_interval`; docs/methods.md §uncertainty).
 """
 
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
 from ..constants import t_quantile
 from .result import ParamEstimate
+
+#: an interval whose ends differ by more than this factor is "not determined" (issue #20)
+DETERMINED_RATIO = 1e3
+#: the interval methods ``fit(intervals=...)`` accepts
+INTERVAL_METHODS = ("transformed", "profile")
+
+
+def _to_t(v, lo, hi):
+    """The domain transform t(v): logit on (lo, hi), log(v − lo) on (lo, ∞), log(hi − v) on (−∞, hi), v."""
+    if math.isfinite(lo) and math.isfinite(hi):
+        if not lo < v < hi:
+            return math.nan
+        return math.log((v - lo) / (hi - v))
+    if math.isfinite(lo):
+        return math.log(v - lo) if v > lo else math.nan
+    if math.isfinite(hi):
+        return -math.log(hi - v) if v < hi else math.nan
+    return v
+
+
+def _from_t(t, lo, hi):
+    if math.isfinite(lo) and math.isfinite(hi):
+        if t >= 0:
+            e = math.exp(-min(t, 745.0))
+            return (lo * e + hi) / (1.0 + e)
+        e = math.exp(max(t, -745.0))
+        return (lo + hi * e) / (1.0 + e)
+    if math.isfinite(lo):
+        return lo + _exp(t)
+    if math.isfinite(hi):
+        return hi - _exp(-t)
+    return t
+
+
+def _dt_dv(v, lo, hi):
+    if math.isfinite(lo) and math.isfinite(hi):
+        return (hi - lo) / ((v - lo) * (hi - v))
+    if math.isfinite(lo):
+        return 1.0 / (v - lo)
+    if math.isfinite(hi):
+        return 1.0 / (hi - v)
+    return 1.0
+
+
+def is_determined(ci, bounds) -> bool:
+    """The rule of issue #20: both ends finite, strictly inside the domain (an end on a domain edge means the
+    data do not bound the parameter on that side), and — for a one-signed interval — ends within 10³×."""
+    lo, hi = ci
+    if lo is None or hi is None or not (math.isfinite(lo) and math.isfinite(hi)):
+        return False
+    dlo, dhi = bounds
+    span = (dhi - dlo) if math.isfinite(dhi - dlo) else max(abs(lo), abs(hi), 1.0)
+    tol = 1e-9 * span
+    if (math.isfinite(dlo) and lo - dlo <= tol) or (math.isfinite(dhi) and dhi - hi <= tol):
+        return False
+    if lo > 0 or hi < 0:
+        return max(abs(lo), abs(hi)) <= DETERMINED_RATIO * min(abs(lo), abs(hi))
+    return True
+
+
+def domain_interval(v, se_v, tq, bounds):
+    """(ci, determined) of a parameter with value ``v`` and standard error ``se_v`` (SI) on its declared
+    ``bounds``: v's interval formed on the transformed parameter t(v) (see the module text), t ± tq·se_t with
+    se_t = se_v·|dt/dv|, mapped back.  ``((None, None), False)`` when it is not determined."""
+    lo, hi = float(bounds[0]), float(bounds[1])
+    t = _to_t(v, lo, hi)
+    if not (math.isfinite(t) and se_v is not None and math.isfinite(se_v)):
+        return (None, None), False
+    st = abs(se_v * _dt_dv(v, lo, hi))
+    if not math.isfinite(st):
+        return (None, None), False
+    ci = (_from_t(t - tq * st, lo, hi), _from_t(t + tq * st, lo, hi))
+    if not is_determined(ci, (lo, hi)):
+        return (None, None), False
+    return (float(ci[0]), float(ci[1])), True
 
 
 def _exp(x: float) -> float:
@@ -85,13 +169,66 @@ def estimates(pj, values, se_z, z) -> dict[str, ParamEstimate]:
             out[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, False, **kw)
             continue
         c = pj.co[i]
-        if c.log:
-            ci = (_exp(z[i] - tq * sz), _exp(z[i] + tq * sz))
-        else:
-            ci = (v - tq * sz * c.scale, v + tq * sz * c.scale)
-        out[q.name] = ParamEstimate(q.name, v, float(sz * abs(c.dv_dz(v))), (float(ci[0]), float(ci[1])),
-                                    q.unit, False, **kw)
+        se_v = float(sz * abs(c.dv_dz(v)))
+        ci, ok = domain_interval(v, se_v, tq, q.bounds)
+        out[q.name] = ParamEstimate(q.name, v, se_v, ci, q.unit, False, determined=ok, **kw)
     return out
+
+
+def undetermined(est: ParamEstimate) -> ParamEstimate:
+    """The same estimate, marked not determined (no interval)."""
+    return replace(est, ci95=(None, None), determined=False)
+
+
+def profile_interval(model, curves, name, fit_kw, base, *, level: float = 0.95):
+    """Profile-likelihood interval of one free parameter: the set of values v at which the best fit with
+    ``name`` held at v has RSS(v) ≤ RSŜ·(1 + t²/(n − k)) (the likelihood-ratio form of the Student-t
+    interval; Bates & Watts 1988, *Nonlinear Regression Analysis*, §6.1 [from memory]).  Searched on the
+    transformed parameter t(v) of :func:`domain_interval` outwards from the optimum, so every end lies inside
+    the domain; an end not found before the domain edge (or 60 steps) means the data do not bound it.
+    Returns ``(ci, determined)``; about 20–60 refits per parameter (an option, not the default)."""
+    from scipy.optimize import brentq
+
+    from .core import fit
+
+    est = base.params[name]
+    q = model.params[name]
+    lo, hi = float(q.bounds[0]), float(q.bounds[1])
+    t0 = _to_t(est.value, lo, hi)
+    if not math.isfinite(t0):
+        return (None, None), False
+    dof = base.n - base.k
+    limit = base.rss * (1.0 + t_quantile(dof, level) ** 2 / dof)
+    fixed = dict(fit_kw.get("fixed") or {})
+
+    def excess(t):
+        kw = dict(fit_kw, fixed={**fixed, name: _from_t(t, lo, hi)}, intervals="transformed")
+        try:
+            r = fit(model, curves, **kw)
+        except ValueError:
+            return math.inf
+        return r.rss - limit
+
+    st = est.stderr * _dt_dv(est.value, lo, hi) if est.stderr and math.isfinite(est.stderr) else 0.5
+    step = min(max(abs(st), 1e-3), 5.0)
+    ends = []
+    for sign in (-1.0, 1.0):
+        inner, t, found = t0, t0, None
+        for _ in range(60):
+            t = inner + sign * step
+            v = _from_t(t, lo, hi)
+            if not (lo < v < hi) or abs(t) > 700:
+                break
+            e = excess(t)
+            if e > 0:
+                found = brentq(excess, min(inner, t), max(inner, t), xtol=1e-6) if math.isfinite(e) else t
+                break
+            inner, step = t, step * 1.6
+        if found is None:
+            return (None, None), False
+        ends.append(_from_t(found, lo, hi))
+    ci = (min(ends), max(ends))
+    return (ci, True) if is_determined(ci, (lo, hi)) else ((None, None), False)
 
 
 def derived_se(result, fn) -> tuple[float, float | None]:
@@ -148,4 +285,5 @@ def _slope(fn, vals, name, v0):
     return math.nan
 
 
-__all__ = ["covariance", "derived", "estimates"]
+__all__ = ["DETERMINED_RATIO", "INTERVAL_METHODS", "covariance", "derived", "domain_interval", "estimates",
+           "is_determined", "profile_interval", "undetermined"]

