@@ -5,7 +5,8 @@ density is recomputed **on the design's basis** — its fitted small-strain modu
 network gives that G₀ under the design's model, polymer, f and entanglement policy, with the compound's own
 filler fraction (:func:`network_models.design_advice.nu_for_modulus`) — and a straight line
 ν = intercept + slope · phr is fitted to them by least squares (slope and intercept with standard errors from the
-residual scatter, n − 2 degrees of freedom; two doses: no scatter, uncertainty not determined).  The ν window's
+residual scatter, n − 2 degrees of freedom,
+docs/methods.md §dose-ladder; two doses: no scatter, uncertainty not determined).  The ν window's
 edges are inverted through the line (the point inverse, phr = (ν − intercept)/slope); the line's uncertainty is
 reported beside it.  Because the ladder's ν and the window's ν are read the same way, switching the
 entanglement share on or off moves both alike and gives the same dose window (for models whose small-strain

@@ -1,7 +1,8 @@
 """Shore A hardness ↔ Young's modulus (approximate): ``crosslinks --modulus 62ShoreA`` and design targets such as
 ``hardness=60..65ShoreA``.
 
-Relation (Gent 1958, "On the relation between indentation hardness and Young's modulus", Trans. Inst. Rubber
+Relation (docs/methods.md §shore-a;
+Gent 1958, "On the relation between indentation hardness and Young's modulus", Trans. Inst. Rubber
 Ind. 34:46–57 [memory: constants as commonly reprinted, not re-read in the paper]):
 
     E (MPa) = 0.0981 (56 + 7.62336 S) / (0.137505 (254 − 2.54 S)),   S the Shore A hardness.

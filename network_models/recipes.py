@@ -1,7 +1,7 @@
 """Recipes in phr: what a compound is made of, and the fractions the models need derived from it.
 
 A compounder writes a recipe in parts per hundred rubber (phr).  From the recipe and each ingredient's
-density and kind this module derives (docs/methods.md, "Recipes"):
+density and kind this module derives (docs/methods.md §recipes):
 
 * the filler volume fraction of the compound, φ = Σ_fillers(phr/ρ) / Σ_all(phr/ρ) — only ``kind = "filler"``
   counts as filler, every ingredient (oil included) is in the compound volume; it feeds Guth–Gold, Kraus,

@@ -3,7 +3,8 @@
 A specification is written in the design-target grammar (:mod:`network_models.design_targets`) and judged per
 compound from its specimens (the specimen is the statistical unit):
 
-* the compound's headline 95 % interval of the mean — specimen scatter with fit error,
+* (docs/methods.md §specifications)
+  the compound's headline 95 % interval of the mean — specimen scatter with fit error,
   :func:`network_models.statistics.combined_interval` (Student t, n − 1) — is compared with the limits:
   ``meets`` when it lies inside them, ``fails`` when it lies wholly outside, ``uncertain`` when it straddles a
   limit, ``cannot judge`` with fewer than two specimens (scatter unknown) or when the comparison does not

@@ -183,8 +183,8 @@ def polymer_volume_fraction(dry: float, swollen: float, rho_polymer: float, rho_
 
 def ellis_welding_fraction(T: float, D: float, swollen: float, F: float, rho_rubber: float,
                            rho_solvent: float) -> float:
-    """Rubber volume fraction of the swollen gel corrected for the recipe, Ellis & Welding 1964 (docs/methods.md,
-    "Swelling corrected for the recipe"): v_r = [(D − F·T)/ρ_r] / [(D − F·T)/ρ_r + A₀/ρ_s], with T the specimen
+    """Rubber volume fraction of the swollen gel corrected for the recipe, Ellis & Welding 1964 (docs/methods.md
+    §ellis-welding): v_r = [(D − F·T)/ρ_r] / [(D − F·T)/ρ_r + A₀/ρ_s], with T the specimen
     mass before swelling, D the re-dried (extracted) mass, F the insoluble mass fraction of the compound
     (fillers and other insoluble non-network ingredients), A₀ = swollen − D the absorbed solvent, ρ_r the
     polymer's and ρ_s the solvent's density (masses in any one unit)."""

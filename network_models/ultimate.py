@@ -1,6 +1,7 @@
 """Break properties of a tensile curve that runs to rupture: tensile strength, elongation and stress at break.
 
-**Rupture rule** (:func:`find_rupture`; common practice of tensile testers and the tensile standards, which
+**Rupture rule** (:func:`find_rupture`, docs/methods.md §break-properties;
+common practice of tensile testers and the tensile standards, which
 detect a break as a sudden fall of the force from its peak; the thresholds here are this project's choice):
 after the largest nominal stress σ_max the stress falls, between two consecutive points, by at least
 :data:`RUPTURE_STEP` (30 %) of σ_max to below :data:`RUPTURE_LEVEL` (50 %) of σ_max, and never climbs back above
