@@ -77,6 +77,9 @@ class CompareView(pn.viewable.Viewer):
         self.title = pn.widgets.TextInput.from_param(s.param.title, sizing_mode="stretch_width")
         self.purpose = pn.widgets.TextInput.from_param(s.param.purpose, sizing_mode="stretch_width",
                                                        placeholder="e.g. choose the cure dose for the mount")
+        self.specs = pn.widgets.TextAreaInput.from_param(
+            s.param.specs, sizing_mode="stretch_width", height=70, css_classes=["ns-cmp-specs"],
+            placeholder="one per line: G=0.55..0.68MPa · M100>=1.2MPa · EB>=450% · hardness=55..65ShoreA")
         self.run_btn = pn.widgets.Button(name="Compare", button_type="primary", width=140, css_classes=["ns-cmp-run"])
         self.run_btn.on_click(lambda e: self._run())
         from network_models.report.pdf import find_chromium
@@ -129,7 +132,8 @@ class CompareView(pn.viewable.Viewer):
         self._add = guarded(self.messages, "compare-upload", "New compound")(self._add)
         self._file = guarded(self.messages, "compare-download", "Download")(self._file)
         self._save_compound = guarded(self.messages, "compare-edit", "Compound")(self._save_compound)
-        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title"])
+        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title",
+                                                "specs"])
         self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
         self._on_store()
@@ -225,10 +229,11 @@ class CompareView(pn.viewable.Viewer):
         self.summary.object = style + rep.section_html("summary")
         # verdicts, then every specimen as a point per compound with mean and interval (legend tells them
         # apart, exclusions and outliers listed), then the uncertainty decomposed
-        self.table.object = style + "".join(rep.section_html(n) for n in ("comparison", "specimens", "uncertainty"))
+        self.table.object = style + "".join(rep.section_html(n) for n in (
+            "comparison", "conditions", "specifications", "specimens", "uncertainty", "ultimate", "ladders"))
         self.plots.object = style + rep.section_html("plots")
         self.details.object = style + "".join(rep.section_html(n) for n in (
-            "warnings", "params", "crosslink", "swelling", "provenance", "model"))
+            "warnings", "params", "crosslink", "swelling", "recipes", "provenance", "model"))
         if self._specimen_views is not None:
             self._specimen_views.set_comparison(cmp)
         failed = [r.error for r in cmp.results if r.error]
@@ -365,7 +370,7 @@ class CompareView(pn.viewable.Viewer):
         choose = pn.Column(
             html("<div class='ns-side-h'>Compounds</div>"), self.chosen,
             pn.Row(self.baseline, self.model, self.service, sizing_mode="stretch_width"),
-            self.title, self.purpose,
+            self.title, self.purpose, self.specs,
             pn.Row(self.run_btn, *(dl[k] for k, _label, _w in DOWNLOADS)), self.stale_note, self.messages,
             sizing_mode="stretch_width")
         edit = pn.Card(

@@ -70,3 +70,21 @@ def test_bad_spec_is_refused_with_a_sentence(capsys):
         parse_spec("G=0.55MPa")  # '=' needs a tolerance or a range
     assert main(["compare", "--spec", "G>=fast", "--compound", "A=nonexistent.csv"]) == 2
     assert "G>=fast" in capsys.readouterr().err
+
+
+def test_compare_tab_judges_typed_specifications_and_keeps_a_bad_row():
+    # the app's Compare tab: specification rows typed by the user, judged on Compare (same rule as above)
+    from app.main import create_app
+
+    pg = create_app()  # the invented sample set
+    cv = pg.ns_compare
+    cv.state.specs = "G=0.40..2.0MPa\nM100>=<script>1MPa"
+    cv._run()
+    assert "Specifications" not in cv.table.object or "M100>=&lt;script&gt;" not in cv.table.object
+    assert "M100>=<script>1MPa" in cv.state.specs  # nothing the user typed is lost
+    assert any("M100" in t for t in cv.messages.texts().values())
+    cv.state.specs = "G=0.40..2.0MPa"
+    cv._run()
+    html = cv.table.object
+    assert "Specifications" in html and "G=0.40..2.0MPa" in html
+    assert cv.state.comparison.to_dict()["compounds"][0]["spec"][0]["target"] == "G=0.40..2.0MPa"

@@ -107,7 +107,23 @@ class Report:
     # ----- HTML -----------------------------------------------------------------------------------
     SECTIONS = ("summary", "compounds", "specimens", "comparison", "uncertainty", "plots", "provenance", "params",
                 "crosslink", "swelling",
-                "warnings", "model")
+                "warnings", "model", "conditions", "recipes", "ultimate", "specifications", "ladders")
+
+    # issue #21's sections (report/recipe_sections.py), by name for section_html
+    def _conditions_html(self):
+        return recipe_sections.conditions_html(self.cmp)
+
+    def _recipes_html(self):
+        return recipe_sections.recipes_html(self.cmp)
+
+    def _ultimate_html(self):
+        return recipe_sections.ultimate_html(self.cmp)
+
+    def _specifications_html(self):
+        return recipe_sections.specs_html(self.cmp)
+
+    def _ladders_html(self):
+        return recipe_sections.ladders_html(self.cmp)
 
     def section_html(self, name: str) -> str:
         """One section of the report as an HTML fragment (for embedding, e.g. the app's Compare view);
