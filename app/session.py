@@ -50,6 +50,7 @@ class Session:
         self.compare = CompareState(data=self.data)
         self.swell = SwellState()
         self.design = DesignState()
+        self.design.dose_compounds = self._dose_compounds  # the Design tab's dose window reads the store
         self.units = DisplayUnits()
         self._study = None  # (store revision, Study)
         self.compare.study_source = self.study
@@ -57,6 +58,12 @@ class Session:
         self.saved_results: dict = {}
 
     # ----- the study -----------------------------------------------------------------------------------
+    def _dose_compounds(self) -> list:
+        """The store's compounds that have curves, as core Compounds (with their recipes) for a dose ladder."""
+        from .compare_state import build_compound
+
+        return [build_compound(self.data, n) for n in self.data.compounds if self.data.compound_files(n)]
+
     def study(self):
         """The session's one study: the store's compounds (rebuilt only when the store changes, so fits stay
         cached) with the settings the tabs hold now."""

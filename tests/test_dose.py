@@ -103,3 +103,28 @@ def test_report_lists_the_ladder():
     html = "".join(ladders_html(compare(_ladder(), model="neo-hookean", spread_models=())))
     assert "sulfur ladder" in html and "small-strain shear modulus" in html
     assert "<svg" in html and "sulfur (phr)" in html  # the ladder is plotted
+
+
+def test_design_tab_shows_the_dose_window_of_the_sessions_ladder():
+    # the app (sample set loaded: QM-S1/S2/S3 are a sulfur ladder) gives the same dose window as the CLI above
+    from pathlib import Path
+
+    from app.main import create_app
+    from network_models.compounds import load_manifest
+
+    pg = create_app()
+    dv = pg.ns_design
+    s = dv.state
+    s.param.update(model="eight-chain", dose_ingredient="sulfur")
+    for r in list(dv.rows.objects):
+        dv.rows.remove(r)
+    dv._add_row("G=0.5..0.6MPa")
+    dv.use_explorer.value = False
+    dv.compute()
+    man = Path(__file__).resolve().parent.parent / "sample_sets" / "compounds.toml"
+    want = dose_window(s.result, load_manifest(man).compounds, "sulfur")
+    assert s.dose["low"] == pytest.approx(want["low"], rel=1e-6) and s.dose["high"] == pytest.approx(want["high"])
+    assert "Dose window in sulfur" in dv.result.object
+    s.dose_ingredient = "DCP"  # no compound has peroxide: no ladder, a sentence instead of a number
+    dv.compute()
+    assert "no two compounds" in dv.result.object
