@@ -103,6 +103,9 @@ class CompareView(pn.viewable.Viewer):
                                             css_classes=["ns-cmp-f"])
         self.edit_filler = pn.widgets.FloatInput(name="Filler volume fraction φ", value=0.0, step=0.01, start=0,
                                                  end=0.45, width=170, css_classes=["ns-cmp-filler"])
+        self.edit_recipe = pn.widgets.TextAreaInput(
+            name="Recipe, phr (one 'ingredient = phr' per line; blank: none)", height=110, width=260,
+            css_classes=["ns-cmp-edit-recipe"], placeholder="NR = 100\nN330 = 50\nZnO = 5\nsulfur = 2")
         self.edit_save = pn.widgets.Button(name="Keep these values", button_type="primary", width=150,
                                            css_classes=["ns-cmp-edit-save"])
         self.edit_save.on_click(lambda e: self._save_compound())
@@ -202,13 +205,23 @@ class CompareView(pn.viewable.Viewer):
         if info is not None:
             self.edit_polymer.value = info.polymer if info.polymer in self.edit_polymer.options else "NR"
             self.edit_f.value, self.edit_filler.value = float(info.f), float(info.filler)
+            from network_models.recipes import recipe_text
+
+            self.edit_recipe.value = recipe_text(getattr(info, "recipe", None))
 
     def _save_compound(self):
         name = self.edit_name.value
         if not name:
             raise ValueError("there is no compound to edit yet: load files first")
+        from network_models.recipes import Recipe, parse_recipe_text
+
+        text = self.edit_recipe.value or ""
+        recipe = Recipe.from_phr(parse_recipe_text(text), where=f"compound {name!r}: recipe") if text.strip() \
+            else None
+        if recipe is not None:  # the recipe wins: φ comes from it (issue #21)
+            self.edit_filler.value = round(float(recipe.filler_volume_fraction), 6)
         self.data.set_compound_info(name, polymer=self.edit_polymer.value, f=float(self.edit_f.value),
-                                    filler=float(self.edit_filler.value or 0.0))
+                                    filler=float(self.edit_filler.value or 0.0), recipe=recipe)
         self.messages.show("compare-edit", f"Compound **{esc(name)}**: {esc(self.edit_polymer.value)}, "
                                            f"f = {self.edit_f.value:g}, φ = {self.edit_filler.value or 0:g} kept; "
                                            "press Compare.", "success")
@@ -375,7 +388,7 @@ class CompareView(pn.viewable.Viewer):
             sizing_mode="stretch_width")
         edit = pn.Card(
             self.compounds_html,
-            pn.Row(self.edit_name, self.edit_polymer, self.edit_f, self.edit_filler, self.edit_save),
+            pn.Row(self.edit_name, self.edit_polymer, self.edit_f, self.edit_filler, self.edit_recipe, self.edit_save),
             html("<div class='ns-small'>Each compound carries its own polymer, junction functionality f and filler "
                  "volume fraction φ; they enter its crosslink density and the Guth–Gold correction.</div>"),
             title="Compounds and their recipe facts", collapsed=False, sizing_mode="stretch_width",

@@ -37,7 +37,7 @@ from .errors import DataError, Notice
 __all__ = [
     "ENV_VAR", "KINDS", "NETWORK_KINDS", "SOLUBLE_DEFAULT", "Ingredient", "Recipe", "add_ingredients_option",
     "apply_ingredients_option", "builtin_ingredients", "get_ingredient", "ingredient_rows", "ingredients",
-    "load_ingredient_table", "recipe_notices", "use_ingredient_table",
+    "load_ingredient_table", "parse_recipe_text", "recipe_notices", "recipe_text", "use_ingredient_table",
 ]
 
 #: environment variable naming a user ingredient table (used when :func:`use_ingredient_table` was not called)
@@ -362,3 +362,31 @@ def apply_ingredients_option(args) -> None:
     path = getattr(args, "ingredients", None)
     if path:
         use_ingredient_table(path)
+
+
+def parse_recipe_text(text: str, limit: int = 60) -> dict[str, float]:
+    """A recipe typed as lines ``NAME = phr`` (also ``NAME: phr`` or ``NAME phr``) → {name: phr}; a line that
+    cannot be read is refused with a sentence naming it.  At most ``limit`` lines."""
+    out: dict[str, float] = {}
+    lines = [x.strip() for x in str(text or "").splitlines() if x.strip() and not x.strip().startswith("#")]
+    if len(lines) > limit:
+        raise DataError(f"a recipe of {len(lines)} lines is longer than {limit}; check what was pasted",
+                        kind="recipe")
+    for n, line in enumerate(lines, start=1):
+        parts = line.replace("=", " ").replace(":", " ").split()
+        try:
+            name, value = " ".join(parts[:-1]).strip(), float(parts[-1].replace(",", "."))
+        except (ValueError, IndexError):
+            name, value = "", None
+        if not name or value is None:
+            raise DataError(f"recipe line {n} ({line[:60]!r}) is not 'ingredient = phr', e.g. 'N330 = 50'",
+                            kind="recipe")
+        if name in out:
+            raise DataError(f"recipe line {n}: {name} is given twice", kind="recipe")
+        out[name] = value
+    return out
+
+
+def recipe_text(recipe: Recipe | None) -> str:
+    """The recipe as editable lines ``NAME = phr`` (empty for None)."""
+    return "" if recipe is None else "\n".join(f"{n} = {v:g}" for n, v in recipe.phr.items())

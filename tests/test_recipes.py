@@ -222,3 +222,22 @@ def test_swelling_table_in_the_app_reads_the_compare_value():
     for s in c.swelling:
         want = s.estimate(c.polymer, c.f, c.filler_fraction, **c.swelling_options()).nu_affine
         assert rows[("QM-S2", s.specimen)]["nu_affine"] == pytest.approx(want, rel=1e-9)
+
+
+def test_compound_editor_takes_a_recipe_and_keeps_a_bad_one():
+    from app.main import create_app
+
+    pg = create_app()
+    cv = pg.ns_compare
+    cv.edit_name.value = "QM-S2"
+    assert "ZnO = 5" in cv.edit_recipe.value  # the manifest's recipe, editable
+    cv.edit_recipe.value = "NR = 100\nN330 = 40\nsulfur = 2"
+    cv._save_compound()
+    info = pg.ns_data.state.compounds["QM-S2"]
+    phi = (40 / 1.80) / (100 / 0.91 + 40 / 1.80 + 2 / 2.07)  # by hand from phr and densities
+    assert info.recipe.filler_volume_fraction == pytest.approx(phi) and info.filler == pytest.approx(phi, abs=1e-6)
+    cv.edit_recipe.value = "NR = 100\nN330 = lots"
+    cv._save_compound()
+    assert "not 'ingredient = phr'" in cv.messages.texts()["compare-edit"]
+    assert cv.edit_recipe.value == "NR = 100\nN330 = lots"  # nothing the user typed is lost
+    assert pg.ns_data.state.compounds["QM-S2"].recipe.phr["N330"] == 40.0  # the last good recipe stays
