@@ -38,7 +38,7 @@ def build_compound(data: DataState, name: str, files=None):
     meta["filler_volume_fraction"] = float(info.filler)
     meta.setdefault("source", ", ".join(f.name for f in files))
     return Compound(name, curves, swelling=list(info.swelling), metadata=meta, polymer=info.polymer,
-                    f=float(info.f), notes=info.notes)
+                    f=float(info.f), notes=info.notes, recipe=getattr(info, "recipe", None))
 
 
 def compare_compounds(compounds: list, model: str, baseline: str | None, service_K: float | None):
@@ -88,6 +88,8 @@ class CompareState(param.Parameterized):
     comparison = param.Parameter(default=None, doc="the last Comparison")
     computed_with = param.Parameter(default=None, doc="the inputs the last comparison was computed with")
     scenario = param.String(default="")
+    specs = param.String(default="", label="Specifications (one per line, e.g. G=0.55..0.68MPa or M100>=1.2MPa)",
+                         doc="judged per compound on Compare (network_models.specs; the design-target grammar)")
 
     def __init__(self, data: DataState | None = None, study_source=None, **params):
         super().__init__(**params)
@@ -119,7 +121,12 @@ class CompareState(param.Parameterized):
     # ----- staleness ----------------------------------------------------------------------------------
     def inputs(self) -> tuple:
         """Everything the comparison depends on (choices, service temperature, the store's revision)."""
-        return (tuple(self.chosen), self.baseline, self.model, float(self.service_C), self.data.revision)
+        return (tuple(self.chosen), self.baseline, self.model, float(self.service_C), self.data.revision,
+                tuple(self.spec_lines()))
+
+    def spec_lines(self) -> list[str]:
+        """The specification rows typed on the tab (blank lines dropped; each row is data, never markup)."""
+        return [x.strip() for x in str(self.specs or "").splitlines() if x.strip()][:50]
 
     @property
     def stale(self) -> bool:
@@ -139,6 +146,11 @@ class CompareState(param.Parameterized):
             comps = [build_compound(self.data, n) for n in self.chosen]
             base = self.baseline if self.baseline in self.chosen else None
             cmp = compare_compounds(comps, self.model, base, self.service_C + ZERO_CELSIUS)
+        from network_models.specs import parse_spec
+
+        for text in self.spec_lines():  # a row that cannot be read: a sentence, the rows stay as typed
+            parse_spec(text)
+        cmp.specs = self.spec_lines()
         with param.parameterized.batch_call_watchers(self):
             self.computed_with = self.inputs()
             self.comparison = cmp

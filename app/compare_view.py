@@ -78,6 +78,9 @@ class CompareView(pn.viewable.Viewer):
         self.title = pn.widgets.TextInput.from_param(s.param.title, sizing_mode="stretch_width")
         self.purpose = pn.widgets.TextInput.from_param(s.param.purpose, sizing_mode="stretch_width",
                                                        placeholder="e.g. choose the cure dose for the mount")
+        self.specs = pn.widgets.TextAreaInput.from_param(
+            s.param.specs, sizing_mode="stretch_width", height=70, css_classes=["ns-cmp-specs"],
+            placeholder="one per line: G=0.55..0.68MPa · M100>=1.2MPa · EB>=450% · hardness=55..65ShoreA")
         self.run_btn = pn.widgets.Button(name="Compare", button_type="primary", width=140, css_classes=["ns-cmp-run"])
         self.run_btn.on_click(lambda e: self._run())
         from network_models.report.pdf import find_chromium
@@ -101,6 +104,9 @@ class CompareView(pn.viewable.Viewer):
                                             css_classes=["ns-cmp-f"])
         self.edit_filler = pn.widgets.FloatInput(name="Filler volume fraction φ", value=0.0, step=0.01, start=0,
                                                  end=0.45, width=170, css_classes=["ns-cmp-filler"])
+        self.edit_recipe = pn.widgets.TextAreaInput(
+            name="Recipe, phr (one 'ingredient = phr' per line; blank: none)", height=110, width=260,
+            css_classes=["ns-cmp-edit-recipe"], placeholder="NR = 100\nN330 = 50\nZnO = 5\nsulfur = 2")
         self.edit_save = pn.widgets.Button(name="Keep these values", button_type="primary", width=150,
                                            css_classes=["ns-cmp-edit-save"])
         self.edit_save.on_click(lambda e: self._save_compound())
@@ -130,7 +136,8 @@ class CompareView(pn.viewable.Viewer):
         self._add = guarded(self.messages, "compare-upload", "New compound")(self._add)
         self._file = guarded(self.messages, "compare-download", "Download")(self._file)
         self._save_compound = guarded(self.messages, "compare-edit", "Compound")(self._save_compound)
-        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title"])
+        s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title",
+                                                "specs"])
         self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
         self._on_store()
@@ -199,13 +206,23 @@ class CompareView(pn.viewable.Viewer):
         if info is not None:
             self.edit_polymer.value = info.polymer if info.polymer in self.edit_polymer.options else "NR"
             self.edit_f.value, self.edit_filler.value = float(info.f), float(info.filler)
+            from network_models.recipes import recipe_text
+
+            self.edit_recipe.value = recipe_text(getattr(info, "recipe", None))
 
     def _save_compound(self):
         name = self.edit_name.value
         if not name:
             raise ValueError("there is no compound to edit yet: load files first")
+        from network_models.recipes import Recipe, parse_recipe_text
+
+        text = self.edit_recipe.value or ""
+        recipe = Recipe.from_phr(parse_recipe_text(text), where=f"compound {name!r}: recipe") if text.strip() \
+            else None
+        if recipe is not None:  # the recipe wins: φ comes from it (issue #21)
+            self.edit_filler.value = round(float(recipe.filler_volume_fraction), 6)
         self.data.set_compound_info(name, polymer=self.edit_polymer.value, f=float(self.edit_f.value),
-                                    filler=float(self.edit_filler.value or 0.0))
+                                    filler=float(self.edit_filler.value or 0.0), recipe=recipe)
         self.messages.show("compare-edit", f"Compound **{esc(name)}**: {esc(self.edit_polymer.value)}, "
                                            f"f = {self.edit_f.value:g}, φ = {self.edit_filler.value or 0:g} kept; "
                                            "press Compare.", "success")
@@ -226,10 +243,11 @@ class CompareView(pn.viewable.Viewer):
         self.summary.object = style + rep.section_html("summary")
         # verdicts, then every specimen as a point per compound with mean and interval (legend tells them
         # apart, exclusions and outliers listed), then the uncertainty decomposed
-        self.table.object = style + "".join(rep.section_html(n) for n in ("comparison", "specimens", "uncertainty"))
+        self.table.object = style + "".join(rep.section_html(n) for n in (
+            "comparison", "conditions", "specifications", "specimens", "uncertainty", "ultimate", "ladders"))
         self.plots.object = style + rep.section_html("plots")
         self.details.object = style + "".join(rep.section_html(n) for n in (
-            "warnings", "params", "crosslink", "swelling", "provenance", "model"))
+            "warnings", "params", "crosslink", "swelling", "recipes", "provenance", "model"))
         if self._specimen_views is not None:
             self._specimen_views.set_comparison(cmp)
         failed = [r.error for r in cmp.results if r.error]
@@ -366,12 +384,12 @@ class CompareView(pn.viewable.Viewer):
         choose = pn.Column(
             html("<div class='ns-side-h'>Compounds</div>"), self.chosen,
             pn.Row(self.baseline, self.model, self.service, sizing_mode="stretch_width"),
-            self.title, self.purpose,
+            self.title, self.purpose, self.specs,
             pn.Row(self.run_btn, *(dl[k] for k, _label, _w in DOWNLOADS)), self.stale_note, self.messages,
             sizing_mode="stretch_width")
         edit = pn.Card(
             self.compounds_html,
-            pn.Row(self.edit_name, self.edit_polymer, self.edit_f, self.edit_filler, self.edit_save),
+            pn.Row(self.edit_name, self.edit_polymer, self.edit_f, self.edit_filler, self.edit_recipe, self.edit_save),
             html("<div class='ns-small'>Each compound carries its own polymer, junction functionality f and filler "
                  "volume fraction φ; they enter its crosslink density and the Guth–Gold correction.</div>"),
             title="Compounds and their recipe facts", collapsed=False, sizing_mode="stretch_width",

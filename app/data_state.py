@@ -59,6 +59,7 @@ class CompoundInfo:
     notes: str = ""
     metadata: dict = field(default_factory=dict)
     swelling: list = field(default_factory=list)  # network_models.compounds.SwellingTest
+    recipe: object = None  # network_models.recipes.Recipe from the manifest's [compound.recipe], or None
 
 
 def compound_from_filename(filename: str, curves=()) -> str:
@@ -502,7 +503,7 @@ def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
 
     info = dict(comp.info)
     meta = {"title": comp.title} if comp.title and comp.title != comp.key else {}
-    meta.update({k: v for k, v in info.items() if k not in ("notes", "note", "f", "baseline")})
+    meta.update({k: v for k, v in info.items() if k not in ("notes", "note", "f", "baseline", "recipe")})
     tests = []
     for r in swell_rows:
         if r.compound in (comp.key, comp.title):
@@ -511,7 +512,8 @@ def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
             except ValueError as exc:  # one bad row does not hide the compound
                 log.info("swelling row skipped: %s", exc)
     return CompoundInfo(polymer=comp.polymer, f=float(info.get("f", 4.0)), filler=float(comp.filler_fraction),
-                        notes=str(info.get("notes", info.get("note", ""))), metadata=meta, swelling=tests)
+                        notes=str(info.get("notes", info.get("note", ""))), metadata=meta, swelling=tests,
+                        recipe=comp.recipe)
 
 
 from .swell_state import SwellState  # noqa: E402  (re-exported: it used to live here)

@@ -39,6 +39,9 @@ class DesignState(param.Parameterized):
     map = param.Parameter(default=None)
     advice = param.Parameter(default=None)
     models = param.Parameter(default=None)
+    dose_ingredient = param.String(default="", label="Dose window in (ingredient, e.g. sulfur; blank: none)")
+    dose_compounds = param.Callable(default=None, doc="() -> the session's core Compounds (with recipes)")
+    dose = param.Parameter(default=None, doc="network_models.dose.dose_window's object, or {'error': sentence}")
 
     def sync_from(self, net_state):
         """Take polymer, temperature, f, filler, N coupling and entanglements from the explorer's state."""
@@ -79,10 +82,25 @@ class DesignState(param.Parameterized):
             advice = res.advise(self.compound_nu, self._ci())
         models = compare_models(res.targets, **kw) if self.with_models else None
         per = {name: self._compound(res, src) for name, src in self.compounds.items()}
+        dose = self._dose(res)
         with param.parameterized.batch_call_watchers(self):
             self.result, self.map, self.advice, self.models = res, dmap, advice, models
             self.compound_advice = per
+            self.dose = dose
         return res
+
+    def _dose(self, res):
+        """The dose window of the session's ladder in ``dose_ingredient`` (issue #21), or None; a ladder that
+        cannot be formed gives its sentence instead of a number."""
+        ing = self.dose_ingredient.strip()
+        if not ing or self.dose_compounds is None:
+            return None
+        from network_models.dose import dose_window
+
+        try:
+            return dose_window(res, self.dose_compounds(), ing)
+        except ValueError as exc:
+            return {"ingredient": ing, "error": str(exc)}
 
     @staticmethod
     def _compound(res, src):

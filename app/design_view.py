@@ -135,6 +135,8 @@ class DesignView(pn.viewable.Viewer):
                 pn.widgets.FloatInput.from_param(s.param.compound_nu, width=200, css_classes=["ns-design-nu"]),
                 pn.widgets.TextInput.from_param(s.param.compound_ci, width=200),
                 pn.widgets.Checkbox.from_param(s.param.with_models),
+                pn.widgets.TextInput.from_param(s.param.dose_ingredient, width=200, css_classes=["ns-design-dose"],
+                                                placeholder="e.g. sulfur"),
                 self.run_button, self.messages, width=360),
             pn.Column(self.result, self.map_pane, self.models_pane, sizing_mode="stretch_width"),
             sizing_mode="stretch_width", css_classes=["ns-design"])
@@ -210,6 +212,8 @@ class DesignView(pn.viewable.Viewer):
             from .modulus_card import entanglement_floor_sentences
 
             parts[:0] = [f"<p class='ns-design-floor'>{_esc(x)}</p>" for x in entanglement_floor_sentences(res)]
+        if s.dose is not None:
+            parts.insert(0, _dose_html(s.dose))
         self.result.object = "".join(parts)
         compound = None
         if s.compound_nu is not None:
@@ -283,3 +287,20 @@ def create_design_view(explorer_state=None, messages: Messages | None = None, on
     ``state``: the session's :class:`DesignState` (``Session.design``), so a project file keeps the targets."""
     return DesignView(explorer_state=explorer_state if explorer_state is not None else network_state,
                       messages=messages, on_pick=on_pick, state=state)
+
+
+def _dose_html(d: dict) -> str:
+    """The dose window beside the ν window (issue #21): the ladder's line inverted at the window's edges."""
+    if d.get("error"):
+        return f"<p class='ns-design-dose-result'><b>Dose window in {_esc(d['ingredient'])}:</b> {_esc(d['error'])}</p>"
+    ln = d["line"]
+    se = "" if ln["slope_se"] is None else f" ± {ln['slope_se']:.3g}"
+    pts = ", ".join(f"{_esc(p['compound'])} {p['phr']:g} phr" for p in d["ladder"])
+    if d.get("low") is None:
+        body = _esc(d.get("note", "no dose window"))
+    else:
+        body = (f"{d['low']:.3g} – {d['high']:.3g} phr" + (" <b>(extrapolated)</b>" if d["extrapolated"] else "")
+                + f"; tested {d['tested'][0]:g}–{d['tested'][1]:g} phr")
+    return (f"<p class='ns-design-dose-result'><b>Dose window in {_esc(d['ingredient'])}:</b> {body}<br>"
+            f"<small>ladder {pts}; line ν = {ln['intercept']:.4g} + {ln['slope']:.4g}{se} mol/m³ per phr, ν read "
+            f"on the design's basis</small></p>")

@@ -50,6 +50,7 @@ class Session:
         self.compare = CompareState(data=self.data)
         self.swell = SwellState()
         self.design = DesignState()
+        self.design.dose_compounds = self._dose_compounds  # the Design tab's dose window reads the store
         self.units = DisplayUnits()
         self._study = None  # (store revision, Study)
         self.compare.study_source = self.study
@@ -57,6 +58,12 @@ class Session:
         self.saved_results: dict = {}
 
     # ----- the study -----------------------------------------------------------------------------------
+    def _dose_compounds(self) -> list:
+        """The store's compounds that have curves, as core Compounds (with their recipes) for a dose ladder."""
+        from .compare_state import build_compound
+
+        return [build_compound(self.data, n) for n in self.data.compounds if self.data.compound_files(n)]
+
     def study(self):
         """The session's one study: the store's compounds (rebuilt only when the store changes, so fits stay
         cached) with the settings the tabs hold now."""
@@ -130,8 +137,11 @@ class Session:
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
                                        selected=f.name in d.selected))
+        from network_models.study import _recipe_record
+
         comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler_volume_fraction=i.filler, notes=i.notes,
-                                 metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling])
+                                 metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling],
+                                 **_recipe_record(i))  # the recipe travels with the study (issue #21)
                  for n, i in d.compounds.items()]
         settings = self.settings()
         try:
@@ -165,8 +175,14 @@ class Session:
         comps = {}
         for c in proj.compounds:
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in c.swelling]
+            recipe = None
+            if c.recipe:
+                from network_models.recipes import Recipe, ingredient_rows
+
+                recipe = Recipe.from_phr(c.recipe, ingredient_rows(c.ingredients, "project file"),
+                                         where=f"project file: compound {c.name!r}: recipe")
             comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler_volume_fraction, notes=c.notes,
-                                         metadata=dict(c.metadata), swelling=tests)
+                                         metadata=dict(c.metadata), swelling=tests, recipe=recipe)
         problems = list(getattr(proj, "notices", []))  # fields of the file that were ignored
         d = self.data
         d.manifest_title, d.manifest_note = "", ""

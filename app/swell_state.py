@@ -28,6 +28,9 @@ class SwellState(param.Parameterized):
     f = param.Number(default=4.0, bounds=(3.0, 64.0), label="Junction functionality f")
     filler = param.Number(default=0.0, bounds=(0.0, 0.45), label="Filler volume fraction φ (Kraus correction)")
     T_C = param.Number(default=23.0, bounds=(-50.0, 200.0), label="Test temperature (°C)")
+    insoluble = param.Number(default=None, allow_None=True, bounds=(0.0, 0.95),
+                             label="Insoluble mass fraction F (Ellis–Welding; blank: no recipe)",
+                             doc="from the compound's recipe (network_models.recipes) when prefilled from a manifest")
     sample_label = param.String(default="")
     sample_key = param.String(default="", doc="the prefill picker's label of the row the form holds")
     compound = param.String(default="", doc="the compound the form's specimen belongs to ('' = not said): its "
@@ -80,6 +83,15 @@ class SwellState(param.Parameterized):
             if comp is not None:
                 self.polymer = comp.polymer
                 self.filler = comp.filler_fraction
+                self.insoluble = None
+                chi = man.swelling_info.get("chi")
+                if isinstance(chi, (int, float)) and not isinstance(chi, bool):
+                    self.chi = float(chi)  # the manifest's χ (the one its swelling data were read with)
+                if isinstance(comp.info.get("recipe"), dict):  # the recipe wins (issue #21): φ and F from it
+                    from network_models.recipes import Recipe
+
+                    rec = Recipe.from_phr(comp.info["recipe"], where=f"compound {comp.key}")
+                    self.filler, self.insoluble = rec.filler_volume_fraction, rec.insoluble_mass_fraction
             if row.temperature:
                 self.T_C = row.temperature - ZERO_CELSIUS
             self.sample_label = f"{row.compound} {row.specimen or ''} (invented sample data)".strip()
@@ -113,7 +125,7 @@ class SwellState(param.Parameterized):
         ext = None if self.extracted_g in (None, 0) else self.extracted_g / 1000.0
         return swelling_estimate(self.dry_g / 1000.0, self.swollen_g / 1000.0, self.solvent, self.polymer,
                                  chi=self.chi, f=float(self.f), T=self.T_C + ZERO_CELSIUS, extracted=ext,
-                                 filler_fraction=float(self.filler))
+                                 filler_fraction=float(self.filler), insoluble_fraction=self.insoluble)
 
     # ----- a whole table of swelling results --------------------------------------------------------------
     def load_table(self, data: bytes, filename: str) -> int:
@@ -143,7 +155,11 @@ class SwellState(param.Parameterized):
             row = {"compound": r.compound, "specimen": r.specimen or "—", "polymer": poly, "f": f, "filler": phi,
                    "chi": chi, "chi_source": chi_from}
             try:
-                est = SwellingTest.from_record(r, chi=chi).estimate(poly, f=float(f), filler_fraction=float(phi))
+                rec = getattr(info, "recipe", None)  # Ellis–Welding with the compound's recipe (issue #21)
+                extra = {} if rec is None else {"insoluble_fraction": rec.insoluble_mass_fraction,
+                                                "rho_polymer": rec.polymer_density}
+                est = SwellingTest.from_record(r, chi=chi).estimate(poly, f=float(f), filler_fraction=float(phi),
+                                                                    **extra)
             except ValueError as exc:
                 row["problem"] = str(exc)
             else:

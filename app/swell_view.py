@@ -125,8 +125,10 @@ class SwellView(pn.viewable.Viewer):
             return
         s = self.state
         with pn.io.hold():
+            rec = getattr(info, "recipe", None)  # the recipe's insoluble fraction F: Ellis–Welding (issue #21)
             s.param.update(**({"polymer": info.polymer} if info.polymer in s.param.polymer.objects else {}),
-                           f=float(info.f), filler=float(info.filler), chi=compound_chi(info, s.solvent))
+                           f=float(info.f), filler=float(info.filler), chi=compound_chi(info, s.solvent),
+                           insoluble=None if rec is None else float(rec.insoluble_mass_fraction))
 
     def _fit_compound(self):
         name = self.state.compound

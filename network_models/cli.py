@@ -16,10 +16,14 @@ import sys
 from .constants import CAUTION
 from .errors import UserError
 from .materials import add_polymers_option, apply_polymers_option
+from .recipes import add_ingredients_option, apply_ingredients_option
 
 #: commands whose results depend on the polymer table (they all accept ``--polymers FILE``)
 _POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "models", "batch",
                      "project"}
+
+#: commands that read manifests whose recipes use the ingredient table (they accept ``--ingredients FILE``)
+_RECIPE_COMMANDS = {"swell", "report", "compare", "design", "batch"}
 
 #: sub-command modules, in the order ``--help`` lists them
 COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
@@ -48,6 +52,9 @@ def build_parser() -> argparse.ArgumentParser:
     for name, sp in sub.choices.items():
         if name in _POLYMER_COMMANDS and not any("--polymers" in a.option_strings for a in sp._actions):
             add_polymers_option(sp)
+        # commands that read manifests with recipes in phr read the user's ingredient table the same way
+        if name in _RECIPE_COMMANDS and not any("--ingredients" in a.option_strings for a in sp._actions):
+            add_ingredients_option(sp)
     return parser
 
 
@@ -89,6 +96,7 @@ def main(argv=None) -> int:
         return 0
     try:
         apply_polymers_option(args)
+        apply_ingredients_option(args)
         return int(args.run(args) or 0)
     except (UserError, ValueError, KeyError, FileNotFoundError, PermissionError, IsADirectoryError) as exc:
         msg = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)

@@ -31,6 +31,16 @@ Manifest format (TOML; JSON with the same keys also works)::
     swollen_g = 4.31                                 # blotted swollen mass, g
     extracted_g = 0.981                              # optional: re-dried mass after swelling, g
     chi = 0.39                                       # optional: Flory–Huggins χ (default: solvent table)
+    [compound.recipe]                                # optional: recipe in phr (network_models/recipes.py)
+    NR = 100.0
+    N330 = 50.0
+    ZnO = 5.0
+    [[ingredient]]                                   # optional: overrides or extends the ingredient table
+    name = "ZnO"
+    kind = "activator"                               # polymer | filler | plasticiser | curative | accelerator |
+                                                     # activator | antidegradant | other
+    soluble = false                                  # extracted by the swelling solvent? (defaults by kind)
+    density_g_cm3 = 5.60
 
 The ``[compounds.NAME]`` table form (one table per compound) is accepted too, and so is the sample-set
 manifest (``[scenario]`` + ``[[compound]]`` with ``key``, files as ``{ path, mode }``, one ``[swelling]``
@@ -101,11 +111,13 @@ class SwellingTest:
                    chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
 
-    def estimate(self, polymer="NR", f=4.0, filler_fraction=0.0):
+    def estimate(self, polymer="NR", f=4.0, filler_fraction=0.0, **recipe_options):
+        """``recipe_options``: ``insoluble_fraction`` and ``rho_polymer`` from :meth:`Compound.swelling_options`."""
         from .swelling import swelling_estimate
 
         return swelling_estimate(self.dry, self.swollen, self.solvent, polymer, chi=self.chi, f=f,
-                                 T=self.temperature, extracted=self.extracted, filler_fraction=filler_fraction)
+                                 T=self.temperature, extracted=self.extracted, filler_fraction=filler_fraction,
+                                 **recipe_options)
 
     def to_dict(self) -> dict:
         return {k: getattr(self, k) for k in ("dry", "swollen", "solvent", "chi", "extracted", "temperature",
@@ -124,16 +136,37 @@ class Compound:
     f: float = 4.0
     notes: str = ""
     baseline: bool = False
+    #: the recipe in phr (:class:`network_models.recipes.Recipe`; a dict of name = phr is resolved), or None
+    recipe: object = None
+    #: notices where the manifest's older fields disagree with the recipe (which wins)
+    recipe_notices: list = field(default_factory=list)
 
     def __post_init__(self):
         self.name = str(self.name).strip()
         if not self.name:
             raise DataError("a compound needs a name")
         self.swelling = [s if isinstance(s, SwellingTest) else SwellingTest.from_manifest(s) for s in self.swelling]
+        if self.recipe is not None:
+            from .recipes import Recipe, recipe_notices
+
+            if not isinstance(self.recipe, Recipe):
+                self.recipe = Recipe.from_phr(self.recipe, where=f"compound {self.name!r}: recipe")
+            if not self.recipe_notices:
+                self.recipe_notices = recipe_notices(self.recipe, self.metadata, self.name, self.polymer)
+
+    def swelling_options(self) -> dict:
+        """Keyword arguments for :meth:`SwellingTest.estimate` from the recipe (Ellis–Welding insoluble fraction
+        and the polymer's density); empty without a recipe."""
+        if self.recipe is None:
+            return {}
+        return {"insoluble_fraction": self.recipe.insoluble_mass_fraction, "rho_polymer": self.recipe.polymer_density}
 
     @property
     def filler_fraction(self) -> float:
-        """Filler volume fraction of the dry compound from the metadata (0 when not given)."""
+        """Filler volume fraction of the dry compound: from the recipe when there is one, else the metadata
+        (0 when not given)."""
+        if self.recipe is not None:
+            return float(self.recipe.filler_volume_fraction)
         for k in ("filler_volume_fraction", "filler_fraction"):
             v = self.metadata.get(k)
             if v not in (None, ""):
@@ -197,7 +230,7 @@ def _read(path, **opts) -> list[TestCurve]:
 
 
 def load_compound(name: str, files, *, polymer="NR", f=4.0, metadata=None, swelling=(), notes="",
-                  read_options=None, baseline=False) -> Compound:
+                  read_options=None, baseline=False, recipe=None) -> Compound:
     """A compound from one or more lab files (each may hold several curves)."""
     files = [files] if isinstance(files, (str, Path)) else list(files)
     if not files:
@@ -206,7 +239,7 @@ def load_compound(name: str, files, *, polymer="NR", f=4.0, metadata=None, swell
     for fpath in files:
         curves.extend(_read(fpath, **(read_options or {})))
     return Compound(name=name, curves=curves, swelling=list(swelling), metadata=dict(metadata or {}),
-                    polymer=polymer, f=float(f), notes=notes, baseline=baseline)
+                    polymer=polymer, f=float(f), notes=notes, baseline=baseline, recipe=recipe)
 
 
 def parse_spec(spec: str) -> tuple[str, list[str]]:
@@ -230,7 +263,20 @@ def compounds_from_specs(specs, **kw) -> list[Compound]:
     return out
 
 
-_KNOWN = {"name", "files", "file", "polymer", "f", "metadata", "swelling", "notes", "baseline", "read_options"}
+_KNOWN = {"name", "files", "file", "polymer", "f", "metadata", "swelling", "notes", "baseline", "read_options",
+          "recipe"}
+
+
+def _manifest_recipe(doc, entry: dict, key: str, p: Path):
+    """The compound's ``[compound.recipe]`` (name = phr) resolved against the manifest's ``[[ingredient]]``
+    rows and the ingredient table in force (network_models.recipes); None without a recipe."""
+    raw = entry.get("recipe")
+    if raw is None:
+        return None
+    from .recipes import Recipe, ingredient_rows
+
+    extra = ingredient_rows(doc.get("ingredient", []), f"manifest {p.name}") if isinstance(doc, dict) else {}
+    return Recipe.from_phr(raw, extra, where=f"manifest {p.name}: compound {key!r}: [compound.recipe]")
 
 
 def _manifest_entries(doc) -> list[dict]:
@@ -319,6 +365,7 @@ def load_manifest(path=None, **read_options) -> Manifest:
                                                                        if isinstance(doc, dict) else "NR"),
                 f=e.get("f", 4.0), metadata=meta, swelling=swell, notes=e.get("notes", ""),
                 read_options=opts, baseline=bool(e.get("baseline", False)),
+                recipe=_manifest_recipe(doc, e, e["name"], p),
             )
         except TypeError as exc:
             raise DataError(f"manifest {p.name}: compound {e['name']!r}: {exc}") from None
@@ -352,6 +399,8 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
     comps = []
     for entry in index:
         info = dict(entry.info)
+        recipe = _manifest_recipe(doc, info, entry.key, p)
+        info.pop("recipe", None)
         notes = str(info.pop("notes", info.pop("note", "")))
         baseline = bool(info.pop("baseline", False))
         f = float(info.pop("f", 4.0))
@@ -364,7 +413,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
         tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell
                  if r.compound in (entry.key, entry.title)]
         comps.append(Compound(name=entry.key, curves=curves, swelling=tests, metadata=meta, polymer=entry.polymer,
-                              f=f, notes=notes, baseline=baseline))
+                              f=f, notes=notes, baseline=baseline, recipe=recipe))
     baseline = scen.get("baseline") or next((c.name for c in comps if c.baseline), None)
     return Manifest(comps, title=str(scen.get("title", p.stem)), purpose=str(scen.get("purpose", scen.get("note", ""))),
                     baseline=baseline, path=str(p), extra=dict(scen), swelling_path=index.swelling,

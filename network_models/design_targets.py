@@ -149,7 +149,8 @@ class Target:
                 "high": self.hi, "nominal": self.nominal, "unit": "Pa" if self.unit == "MPa" else
                 ("1 (fraction; ×100 for %)" if self.kind == "reserve" else
                  "mol/m³" if self.kind == "nu" else "1"),
-                "temperature_K": self.temperature}
+                "temperature_K": self.temperature,
+                **({"hardness": dict(self.extras)} if self.extras.get("hardness") else {})}
 
 
 # ------------------------------------------------------------------------------------------------
@@ -334,6 +335,13 @@ def parse_target(text) -> Target:
     s = str(text).strip().replace("\u2212", "-")
     if not s:
         raise TargetError("an empty target was given; write e.g. 'M100=1.8MPa±5%'.", kind="design-target")
+    from .hardness import rewrite_target  # hardness=60..65ShoreA → the E target it stands for (Gent 1958)
+
+    hard = rewrite_target(s)
+    if hard is not None:
+        t = parse_target(hard[0])
+        return Target(text=s, lo=t.lo, hi=t.hi, nominal=t.nominal, kind=t.kind, name="E (from Shore A)",
+                      extras=hard[1])
     parts = _split_op(s)
     if parts is None or not parts[0].strip():
         raise _fail(s, "it has no comparison (=, >= or <=)")

@@ -49,7 +49,37 @@ def density_from_si(nu_mol_m3: float | None, unit: str, density_kg_m3: float | N
     raise ValueError(f"unknown density unit {unit!r}; use one of {', '.join(DENSITY_UNITS)}")
 
 
-def apply_to_comparison(cmp, stress: str = "MPa", density: str = "mol/m³"):
+#: how stretch-valued numbers are shown: as stretch λ, or as elongation (λ − 1)·100 % (a display choice)
+STRETCH_UNITS = ("stretch", "elongation")
+
+
+def stretch_shown(lam: float | None, unit: str = "stretch") -> float | None:
+    """A stretch λ shown as ``unit``: λ itself, or the elongation (λ − 1)·100 in %."""
+    if lam is None:
+        return None
+    if unit == "stretch":
+        return float(lam)
+    if unit == "elongation":
+        return (float(lam) - 1.0) * 100.0
+    raise ValueError(f"unknown stretch unit {unit!r}; use one of {', '.join(STRETCH_UNITS)}")
+
+
+def elongation_reserve(q):
+    """The uniaxial locking stretch quantity read as an **elongation reserve**: (λ_lock − 1)·100 %, the
+    elongation the network can take before it locks (an upper bound on the elongation at break), with its
+    interval mapped the same way."""
+    from dataclasses import replace
+
+    def e(x):
+        return stretch_shown(x, "elongation")
+
+    return replace(q, key="lock_elongation", label="elongation reserve to the uniaxial lock", value=e(q.value),
+                   unit="%", low=e(q.low), high=e(q.high), display_unit="%", display_scale=1.0,
+                   note=(q.note + "; " if q.note else "") + "(λ_lock − 1)·100 %: an upper bound on the elongation "
+                                                            "at break; real compounds break earlier")
+
+
+def apply_to_comparison(cmp, stress: str = "MPa", density: str = "mol/m³", stretch: str = "stretch"):
     """Show a comparison's stresses in ``stress`` and strand/junction densities in ``density`` (its tables,
     the CLI summary, the report and the CSV's display columns; SI values are untouched).  Returns ``cmp``."""
     if stress not in STRESS_UNITS:
@@ -65,9 +95,15 @@ def apply_to_comparison(cmp, stress: str = "MPa", density: str = "mol/m³"):
                 q.display_unit, q.display_scale = stress, stress_from_pa(1.0, stress)
             elif q.unit == "mol/m³":
                 q.display_unit, q.display_scale = density, density_from_si(1.0, density, rho)
-    cmp.display_units = {"stress": stress, "density": density}
+    if stretch not in STRETCH_UNITS:
+        raise ValueError(f"unknown stretch unit {stretch!r}; use one of {', '.join(STRETCH_UNITS)}")
+    if stretch == "elongation":
+        for r in cmp.results:
+            if r.quantities.get("lock") is not None and r.quantities["lock"].value is not None:
+                r.quantities["lock_elongation"] = elongation_reserve(r.quantities["lock"])
+    cmp.display_units = {"stress": stress, "density": density, "stretch": stretch}
     return cmp
 
 
-__all__ = ["DENSITY_UNITS", "STRESS_UNITS", "apply_to_comparison", "density_from_si", "pascal_per",
-           "stress_from_pa"]
+__all__ = ["DENSITY_UNITS", "STRESS_UNITS", "STRETCH_UNITS", "apply_to_comparison", "density_from_si",
+           "elongation_reserve", "pascal_per", "stress_from_pa", "stretch_shown"]

@@ -99,6 +99,9 @@ class ProjectCompound:
     swelling: list = field(default_factory=list)  # dicts of SwellingTest fields (kg, K)
     baseline: bool = False
     swelling_source: str = ""
+    #: the recipe in phr (name = phr) and the ingredient rows it needs beyond the built-in table (issue #21)
+    recipe: dict = field(default_factory=dict)
+    ingredients: list = field(default_factory=list)
 
     @property
     def filler(self) -> float:  # the version-1 name, for readers of the old attribute
@@ -177,7 +180,9 @@ def manifest_text(project: Project, files: list[str]) -> str:
         out.append(_table("compound", {"name": c.name, "polymer": c.polymer, "f": float(c.f),
                                        "filler_volume_fraction": float(c.filler_volume_fraction),
                                        "baseline": bool(c.baseline), "notes": c.notes, "metadata": c.metadata,
-                                       "swelling_source": c.swelling_source, "swelling": c.swelling}, array=True))
+                                       "swelling_source": c.swelling_source, "swelling": c.swelling,
+                                       **({"recipe": c.recipe, "ingredients": c.ingredients} if c.recipe else {})},
+                          array=True))
     for section, values in project.results.items():
         out.append(_table(f"results.{_key(section)}", values))
     return "".join(out)
@@ -260,7 +265,8 @@ def read_project(source) -> Project:
             name=str(c["name"]), polymer=str(c.get("polymer", "NR")), f=float(c.get("f", 4.0)),
             filler_volume_fraction=phi, notes=str(c.get("notes", "")), metadata=dict(c.get("metadata", {})),
             swelling=list(c.get("swelling", [])), baseline=bool(c.get("baseline", False)),
-            swelling_source=str(c.get("swelling_source", ""))))
+            swelling_source=str(c.get("swelling_source", "")),
+            recipe=dict(c.get("recipe", {})), ingredients=list(c.get("ingredients", []))))
     return Project(settings=dict(doc.get("settings", {})), inputs=inputs, compounds=compounds,
                    results=dict(doc.get("results", {})), title=str(head.get("title", "")),
                    created=str(head.get("created", "")), netstretch_version=str(head.get("netstretch_version", "")),

@@ -327,8 +327,14 @@ class Study:
             meta = dict(pc.metadata)
             meta.setdefault("filler_volume_fraction", pc.filler_volume_fraction)
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in pc.swelling]
+            recipe = None
+            if pc.recipe:  # the recipe travels with the study (issue #21)
+                from .recipes import Recipe, ingredient_rows
+
+                recipe = Recipe.from_phr(pc.recipe, ingredient_rows(pc.ingredients, "project file"),
+                                         where=f"project file: compound {pc.name!r}: recipe")
             comps.append(Compound(name=pc.name, curves=curves.pop(pc.name, []), swelling=tests, metadata=meta,
-                                  polymer=pc.polymer, f=pc.f, notes=pc.notes, baseline=pc.baseline))
+                                  polymer=pc.polymer, f=pc.f, notes=pc.notes, baseline=pc.baseline, recipe=recipe))
         for name, cs in curves.items():  # inputs of a compound the file does not describe: defaults
             comps.append(Compound(name=name or "uploaded", curves=cs))
         settings = Settings.from_dict(proj.settings.get("study", {}))
@@ -347,7 +353,8 @@ class Study:
         comps = [ProjectCompound(name=c.name, polymer=c.polymer, f=c.f, filler_volume_fraction=c.filler_fraction,
                                  notes=c.notes, metadata=dict(c.metadata), baseline=c.baseline,
                                  swelling_source=swell_src if c.swelling else "",
-                                 swelling=[_swelling_record(s) for s in c.swelling]) for c in self.compounds]
+                                 swelling=[_swelling_record(s) for s in c.swelling],
+                                 **_recipe_record(c)) for c in self.compounds]
         results = {}
         k = [key for key in self._results if key[0] == "comparison"]
         if k:
@@ -358,6 +365,16 @@ class Study:
         settings = {"study": self.settings.to_dict(), **(extra_settings or {})}
         return write_project(Project(settings=settings, inputs=list(self.inputs), compounds=comps, results=results,
                                      title=self.title, purpose=self.purpose, netstretch_version=__version__))
+
+
+def _recipe_record(c) -> dict:
+    """A compound's recipe for the project file: phr and the ingredient rows not in the built-in table."""
+    r = getattr(c, "recipe", None)
+    if r is None:
+        return {}
+    rows = [{"name": i.name, "kind": i.kind, "soluble": i.soluble, "density_g_cm3": i.density / 1000.0,
+             "source": i.source} for i in r.items.values() if i.origin not in ("built-in", "polymer table")]
+    return {"recipe": dict(r.phr), "ingredients": rows}
 
 
 _SWELL_FIELDS = ("dry", "swollen", "solvent", "chi", "extracted", "temperature", "specimen", "source")

@@ -42,7 +42,8 @@ from .materials import get_polymer, user_chi_rows
 
 __all__ = [
     "CHI_BAND", "CHI_STATUS_RANK", "CHI_TEMPERATURE_WINDOW", "FILLER_DENSITY_CARBON_BLACK", "KRAUS_C_CARBON_BLACK",
-    "ChiValue", "Solvent", "SwellingEstimate", "chi_values", "compare_with_modulus", "default_chi", "flory_rehner_nu",
+    "ChiValue", "Solvent", "SwellingEstimate", "chi_values", "compare_with_modulus", "default_chi",
+    "ellis_welding_fraction", "flory_rehner_nu",
     "from_record", "get_solvent", "kraus_gum_fraction", "kraus_roots", "polymer_volume_fraction", "solvents",
     "swelling_estimate", "swollen_fraction",
 ]
@@ -180,6 +181,27 @@ def polymer_volume_fraction(dry: float, swollen: float, rho_polymer: float, rho_
     return vr / (vr + vs)
 
 
+def ellis_welding_fraction(T: float, D: float, swollen: float, F: float, rho_rubber: float,
+                           rho_solvent: float) -> float:
+    """Rubber volume fraction of the swollen gel corrected for the recipe, Ellis & Welding 1964 (docs/methods.md
+    §ellis-welding): v_r = [(D − F·T)/ρ_r] / [(D − F·T)/ρ_r + A₀/ρ_s], with T the specimen
+    mass before swelling, D the re-dried (extracted) mass, F the insoluble mass fraction of the compound
+    (fillers and other insoluble non-network ingredients), A₀ = swollen − D the absorbed solvent, ρ_r the
+    polymer's and ρ_s the solvent's density (masses in any one unit)."""
+    for name, v in (("mass before swelling T", T), ("re-dried mass D", D), ("swollen mass", swollen)):
+        if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
+            raise ValueError(f"{name} must be a positive number; got {v!r}")
+    if swollen <= D:
+        raise ValueError(f"the swollen mass ({swollen:g}) must exceed the re-dried mass ({D:g}): check that the two "
+                         "were not swapped")
+    rubber = D - F * T
+    if not (rubber > 0):
+        raise ValueError(f"the insoluble fraction F = {F:g} of the {T:g} specimen exceeds its re-dried mass {D:g}: "
+                         "no rubber would be left; check the recipe (kinds and soluble flags) and the masses")
+    vr = rubber / rho_rubber
+    return vr / (vr + (swollen - D) / rho_solvent)
+
+
 def _mixing(phi, chi):
     return -(math.log1p(-phi) + phi + chi * phi * phi)
 
@@ -300,6 +322,7 @@ class SwellingEstimate:
     def chi_used(self) -> float:
         """The χ this result was computed with (table row or the caller's value)."""
         return self.chi.chi
+    insoluble_fraction: float | None = None  # F of the Ellis–Welding correction (None: not applied)
 
     def nu(self, network="affine") -> float:
         return self.nu_affine if network == "affine" else self.nu_phantom
@@ -338,6 +361,7 @@ class SwellingEstimate:
             "polymer_volume_fraction": self.phi, "polymer_volume_fraction_measured": self.phi_measured,
             "functionality": self.f, "temperature_K": self.T,
             "soluble_fraction": self.soluble_fraction, "kraus": self.kraus,
+            "insoluble_fraction": self.insoluble_fraction,
             "units": {"strand_density": "mol/m³", "junction_density": "mol/m³", "Mc": "kg/mol"},
             "rows": self.rows(), "notes": list(self.notes),
             "chi_used": self.chi.chi, "chi_spread": self.chi_spread, "chi_spread_basis": self.chi_spread_basis,
@@ -441,7 +465,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                       extracted: float | None = None, initial: float | None = None,
                       rubber_fraction: float | None = None, filler_fraction: float = 0.0,
                       kraus_c: float = KRAUS_C_CARBON_BLACK, filler_density: float = FILLER_DENSITY_CARBON_BLACK,
-                      rho_polymer: float | None = None) -> SwellingEstimate:
+                      rho_polymer: float | None = None, insoluble_fraction: float | None = None) -> SwellingEstimate:
     """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
     :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
     equilibrium, ``extracted`` (optional) re-dried after swelling — when given it is the network mass and
@@ -450,14 +474,26 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     ``extracted``/``initial``, not both).  ``chi`` overrides the table;
     ``filler_fraction`` (volume fraction of filler in the dry compound) switches the Kraus correction on;
     ``rubber_fraction`` is the rubber mass fraction of the dry compound (default: 1 for a gum, else from
-    the filler volume fraction and ``filler_density``, carbon black 1800 kg/m³ [memory])."""
+    the filler volume fraction and ``filler_density``, carbon black 1800 kg/m³ [memory]).
+
+    ``insoluble_fraction`` F (from the recipe, :attr:`network_models.recipes.Recipe.insoluble_mass_fraction`)
+    switches on the Ellis–Welding correction (:func:`ellis_welding_fraction`): the rubber network in the
+    re-dried specimen is D − F·T (T = ``dry``, D = ``extracted`` or T when not measured) — the soluble
+    ingredients have left it, the insoluble ones (filler, zinc oxide ...) have not; it replaces
+    ``rubber_fraction`` (give one of the two)."""
     poly = get_polymer(polymer)
     sol = get_solvent(solvent)
     rho_p = poly.density if rho_polymer is None else float(rho_polymer)
     notes = []
     if not (0.0 <= filler_fraction < 0.5):
         raise ValueError(f"filler volume fraction must be in [0, 0.5); got {filler_fraction!r}")
-    if rubber_fraction is None:
+    if insoluble_fraction is not None and rubber_fraction is not None:
+        raise ValueError("give either the insoluble mass fraction (Ellis–Welding, from the recipe) or the rubber "
+                         "mass fraction, not both")
+    if insoluble_fraction is not None:
+        if not (isinstance(insoluble_fraction, (int, float)) and 0 <= insoluble_fraction < 1):
+            raise ValueError(f"insoluble mass fraction F must be in [0, 1); got {insoluble_fraction!r}")
+    elif rubber_fraction is None:
         if filler_fraction > 0:
             vr, vf = (1.0 - filler_fraction) * rho_p, filler_fraction * filler_density
             rubber_fraction = vr / (vr + vf)
@@ -468,7 +504,13 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
             rubber_fraction = 1.0
     cv = _chi_for(poly, sol, chi, T, notes)
     network_mass, soluble = _network_mass(dry, extracted, initial, notes)
-    phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
+    if insoluble_fraction is not None:
+        T_mass = initial if initial is not None else dry
+        phi_m = ellis_welding_fraction(T_mass, network_mass, swollen, insoluble_fraction, rho_p, sol.density)
+        notes.append(f"Ellis–Welding: rubber network D − F·T with insoluble fraction F = {insoluble_fraction:.4f} "
+                     f"from the recipe, polymer density {rho_p:g} kg/m³; v_r = {phi_m:.4f}")
+    else:
+        phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
     check_absorbed_mass(network_mass, swollen)
     phi = phi_m
     kraus = None
@@ -478,7 +520,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                  "formula": "V_r0/V_rf = 1 − m φ/(1 − φ), m = 3c(1 − V_r0^⅓) + V_r0 − 1 (Kraus 1963 [memory])"}
         notes.append(f"Kraus correction for filler (φ_filler = {filler_fraction:g}, c = {kraus_c:g}): "
                      f"V_r = {phi_m:.4f} measured → {phi:.4f} gum-equivalent")
-    elif rubber_fraction < 1:
+    elif (rubber_fraction or 1.0) < 1:
         notes.append("filled compound without a Kraus correction: restricted swelling makes the swelling "
                      "density larger than the mechanical one")
     nu_a = flory_rehner_nu(phi, cv.chi, sol.molar_volume, f, "affine")
@@ -499,7 +541,8 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                  "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
     spread, basis, band_chi = _published_band(phi, cv, sol.molar_volume, f, notes)
     return SwellingEstimate(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes,
-                            chi_spread=spread, chi_spread_basis=basis, nu_band_chi=band_chi)
+                            chi_spread=spread, chi_spread_basis=basis, nu_band_chi=band_chi,
+                            insoluble_fraction=insoluble_fraction)
 
 
 def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:

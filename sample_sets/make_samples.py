@@ -54,6 +54,22 @@ COMPOUNDS = {
     "QM-S2A": dict(nu=147.0, sulfur_phr=2.0, filler_phr=0.0, phi=0.0, accelerator_phr=0.7,
                    title="NR gum, mid sulfur dose, accelerator 0.7 phr", Gc=361.9e3, Ge=347.8e3, delta=0.07868),
 }
+#: The invented recipes in phr (``[compound.recipe]`` in the manifest; ingredient names of
+#: network_models/ingredients.toml).  They agree with how :func:`swelling` makes the masses: the generator
+#: counts about 6 phr of non-rubber in every re-dried specimen; here that is 5 phr zinc oxide (insoluble,
+#: stays in the gel) with the curatives, while the 2 phr stearic acid is extracted — so the Ellis–Welding
+#: correction reads the generating strand density back (within the ~2 % scatter the generator adds).
+def _recipe(sulfur, cbs=0.6, black=0.0):
+    r = {"NR": 100.0}
+    if black:
+        r["N330"] = black
+    return r | {"ZnO": 5.0, "stearic-acid": 2.0, "sulfur": sulfur, "CBS": cbs}
+
+
+RECIPES = {
+    "QM-S1": _recipe(1.0), "QM-S2": _recipe(2.0), "QM-S3": _recipe(3.0),
+    "QM-S2B": _recipe(2.0, black=30.0), "QM-S2A": _recipe(2.0, cbs=0.7),
+}
 #: each specimen's stress factor (invented scatter, sd about 4 %), per compound, in file order
 SPECIMEN_FACTORS = {
     "QM-S1": (0.97, 1.02, 0.95, 1.04, 1.01),
@@ -93,11 +109,16 @@ def fmt(x, nd):
 
 # ---------------------------------------------------------------------------------------------------
 
+#: the tensile test conditions written into the uniaxial dumbbell files (invented; the report shows them)
+TEST_CONDITIONS = ("specimen type: dumbbell (invented)", "die: type 2 (invented)", "crosshead speed: 500 mm/min",
+                   "test date: 2026-01-12 (invented)")
+
+
 def uniaxial_s1(rng) -> str:
     """Stretch and stress in MPa, three specimens in one file with a specimen column."""
     out = [header([
         "compound: QM-S1", "mode: uniaxial", "temperature: 23 °C", "cycle: 1st loading, virgin specimens",
-        "test piece: dumbbell, 500 mm/min (invented)",
+        *TEST_CONDITIONS,
     ]), "specimen,stretch,stress (MPa)\n"]
     for k, factor in enumerate(SPECIMEN_FACTORS["QM-S1"], start=1):
         lam = np.linspace(1.0, 7.5, 60)
@@ -161,7 +182,7 @@ def uniaxial_s2a(k: int):
         factor = SPECIMEN_FACTORS["QM-S2A"][k - 1]
         out = [header([
             "compound: QM-S2A", f"specimen: A-{k}", "mode: uniaxial", "temperature: 23 °C",
-            "cycle: 1st loading, virgin specimen", "test piece: dumbbell, 500 mm/min (invented)",
+            "cycle: 1st loading, virgin specimen", *TEST_CONDITIONS,
         ]), "stretch,stress (MPa)\n"]
         lam = np.linspace(1.0, 7.0, 56)
         s = noisy(rng, nominal("QM-S2A", "uniaxial", lam, specimen=factor))
@@ -341,6 +362,9 @@ def manifest() -> str:
             out.append(f"    {{ path = {q(path)}, mode = {q(mode)}, note = {q(note)} }},\n")
         out += [
             "]\n",
+            "# the recipe in phr (invented); it wins over filler_volume_fraction, filler_phr and sulfur_phr above\n",
+            "[compound.recipe]\n",
+            *(f"{q(name)} = {phr:.1f}\n" for name, phr in RECIPES[key].items()),
             "# the values the invented curves were generated from (for demos of how well a fit recovers them)\n",
             "[compound.generator]\n",
             f"model = {q(GENERATOR.name)}\n",

@@ -442,9 +442,12 @@ def test_swelling_view_uses_the_manifest_chi_and_only_the_same_compounds_fit():
     assert s.chi == pytest.approx(0.39)  # the manifest's χ, not the solvent table's
     # Flory & Rehner 1943 (J. Chem. Phys. 11:521), affine, f = 4, with χ = 0.39:
     # ν = −[ln(1−v_r)+v_r+χv_r²]/(V₁(v_r^⅓ − v_r/2)); v_r from masses and densities (definition)
+    # v_r by Ellis & Welding 1964 with QM-S2's recipe (issue #21): rubber network D − F·T, F = ZnO 5 phr of
+    # 109.6 phr (NR 100, ZnO 5, stearic acid 2, sulfur 2, CBS 0.6; ZnO insoluble, the rest network or extracted)
     sol, poly = get_solvent("toluene"), get_polymer("NR")
-    dry = (s.extracted_g or s.dry_g) / 1000.0
-    vr = (dry / poly.density) / (dry / poly.density + (s.swollen_g / 1000.0 - dry) / sol.density)
+    T_, D_ = s.dry_g / 1000.0, (s.extracted_g or s.dry_g) / 1000.0
+    rubber = D_ - (5.0 / 109.6) * T_
+    vr = (rubber / poly.density) / (rubber / poly.density + (s.swollen_g / 1000.0 - D_) / sol.density)
     nu = -(math.log(1 - vr) + vr + 0.39 * vr**2) / (sol.molar_volume * (vr ** (1 / 3) - vr / 2))
     assert s.estimate().nu_affine == pytest.approx(nu, rel=1e-9)
     assert "stated for QM-S2" in v.chi_note.object

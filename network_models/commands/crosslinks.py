@@ -16,7 +16,9 @@ def add_parser(sub):
     p = sub.add_parser("crosslinks", help="crosslink density from a modulus (G, E, M100, M300, 2C1)",
                        description="Strand density ν and junction density μ_j = 2ν/f from one modulus, "
                                    "under each usual assumption.")
-    p.add_argument("--modulus", required=True, metavar="VALUE", help="the modulus with its unit, e.g. 0.55MPa")
+    p.add_argument("--modulus", required=True, metavar="VALUE",
+                   help="the modulus with its unit, e.g. 0.55MPa; or a Shore A hardness, e.g. 62ShoreA (then the "
+                        "kind is E, through Gent's 1958 hardness–modulus relation, approximate)")
     p.add_argument("--kind", default="G", type=str.upper, choices=KINDS,
                    help="G shear modulus, E Young's modulus, M100/M300 stress at 100 %%/300 %% elongation, "
                         "2C1 Mooney intercept (default G)")
@@ -52,6 +54,17 @@ def _molar_mass(text):
 
 
 def run(args):
+    from ..hardness import CAUTION as HARD_CAUTION
+    from ..hardness import SCATTER_POINTS, SOURCE, parse_shore_a, shore_a_band, shore_a_to_e
+
+    shore = parse_shore_a(args.modulus)  # "62ShoreA": the unit sets the kind (Young's modulus via Gent 1958)
+    if shore is not None:
+        if args.range:
+            raise ValueError("--range goes with a modulus; with a Shore A hardness the band is ±"
+                             f"{SCATTER_POINTS:g} points")
+        args.kind = "E"
+        args.range = [f"{e}Pa" for e in shore_a_band(shore)]
+        args.modulus = f"{shore_a_to_e(shore)}Pa"
     G = quantity(args.modulus, "pressure", "--modulus", "0.55MPa")
     T = quantity(args.temperature, "temperature", "--temperature", "23C")
     if not (0.0 <= args.filler < 0.5):
@@ -82,8 +95,14 @@ def run(args):
                          filler_fraction=args.filler, Mn=Mn, ci95=ci, c2=c2, sol_fraction=args.sol_fraction)
     if args.json:
         doc = {"command": "crosslinks", **table.to_dict(), "caution": CAUTION}
+        if shore is not None:
+            doc["hardness"] = {"shore_a": shore, "E_Pa": G, "E_band_Pa": [ci[0], ci[1]],
+                               "band": f"±{SCATTER_POINTS:g} Shore A", "source": SOURCE, "caution": HARD_CAUTION}
         print(json_document(doc))
         return 0
+    if shore is not None:
+        print(f"{shore:g} Shore A → E = {G / 1e6:.4g} MPa (band {ci[0] / 1e6:.3g}–{ci[1] / 1e6:.3g} MPa for "
+              f"±{SCATTER_POINTS:g} points); {SOURCE}\n  caution: {HARD_CAUTION}")
     print(f"{args.kind} = {G / 1e6:.4g} MPa → small-strain shear modulus G = {table.G / 1e6:.4g} MPa; "
           f"polymer {table.polymer}, T = {celsius(T):.1f} °C, f = {args.functionality:g}")
     print("\n".join(format_crosslink_table(table)))

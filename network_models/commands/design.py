@@ -70,6 +70,11 @@ def add_parser(sub):
     p.add_argument("--current-ci", metavar="LO..HI", help="95 %% interval of --current-nu, e.g. 235..265")
     p.add_argument("--current", action="append", metavar="FILE",
                    help="today's compound from its lab curves (fitted with --model; repeat for several files)")
+    p.add_argument("--manifest", metavar="FILE",
+                   help="a compounds manifest with recipes in phr: with --dose, its dose ladder")
+    p.add_argument("--dose", metavar="INGREDIENT",
+                   help="invert the ν window into a window of this ingredient's phr (e.g. sulfur), from the "
+                        "manifest's compounds that differ only in it (network_models.dose)")
     p.add_argument("--json", action="store_true", help="print one JSON object (SI units)")
     p.set_defaults(run=run)
 
@@ -156,6 +161,40 @@ def _current(args, result, study=None):
     return convert_current(result.setup, args.current_nu, ci, getattr(args, "current_basis", "design"))
 
 
+def _dose(args, result):
+    """The ``dose`` object (network_models.dose) for --manifest/--dose, or None."""
+    if not (args.dose or args.manifest):
+        return None
+    if not (args.dose and args.manifest):
+        raise UserError("--dose and --manifest go together: --manifest FILE --dose INGREDIENT (e.g. sulfur)")
+    from ..compounds import load_manifest
+    from ..dose import dose_window
+
+    return dose_window(result, load_manifest(args.manifest).compounds, args.dose)
+
+
+def _dose_lines(d) -> list[str]:
+    line = d["line"]
+    se = "" if line["slope_se"] is None else f" ± {line['slope_se']:.3g}"
+    pts = ", ".join(f"{p['compound']} {p['phr']:g} phr: ν {p['strand_density']:.4g}" for p in d["ladder"])
+    out = [f"Dose ladder in {d['ingredient']} ({pts}):",
+           f"  line ν = {line['intercept']:.4g} + {line['slope']:.4g}{se} mol/m³ per phr ({d['form']} used)"]
+    if d.get("low") is None:
+        out.append(f"  no dose window: {d.get('note', '')}")
+    else:
+        out.append(f"  dose window {d['ingredient']} {d['low']:.3g} – {d['high']:.3g} phr"
+                   + (" (EXTRAPOLATED)" if d["extrapolated"] else "")
+                   + f"; tested {d['tested'][0]:g}–{d['tested'][1]:g} phr")
+        if d.get("note"):
+            out.append(f"  note: {d['note']}")
+    for p in d["ladder"]:
+        if p.get("read") != "design model":
+            out.append(f"  note: {p['compound']}: ν {p.get('read')}")
+    for name, why in d["left_out"].items():
+        out.append(f"  left out: {name} ({why})")
+    return out
+
+
 def _n(x, digits=4):
     return "—" if x is None or not (isinstance(x, float | int) and math.isfinite(x)) else f"{x:.{digits}g}"
 
@@ -223,10 +262,13 @@ def run(args):
         from ..design_map import window_over
 
         over = window_over(r.targets, args.over, model=args.model, **kw)
+    dose = _dose(args, r)
     if args.json:
         from ..design_advice import nu_basis
 
         doc = {"command": "design", **r.to_dict(), "basis": nu_basis(r.setup)}
+        if dose is not None:
+            doc["dose"] = dose
         if advice is not None:
             doc["advice"] = {**_advice_json(advice), "basis": doc["basis"]["label"], "strand_density": cur[0],
                              "source": cur[2]}
@@ -263,6 +305,8 @@ def run(args):
         ok = [row[args.over] for row in over if row["feasible"]]
         lines.append(f"  some ν meets every target for {name} {min(ok):.4g}–{max(ok):.4g} (on this grid)" if ok
                      else f"  no {name} on this grid has a window")
+    if dose is not None:
+        lines += ["", *_dose_lines(dose)]
     lines += ["", CAUTION]
     print("\n".join(lines))
     return 0

@@ -15,6 +15,8 @@ from ..crosslinks import from_fit
 from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
 from ..jsonio import dumps
 from ..models import get_model
+from ..ultimate import RULE as ULTIMATE_RULE
+from ..ultimate import ultimate_rows
 
 CAUTION = "Caution: " + _CAUTION
 
@@ -37,6 +39,8 @@ def add_parser(sub):
     p.add_argument("--gauge-length", metavar="L", help="gauge length for extension columns, e.g. 20mm")
     p.add_argument("--width", metavar="W", help="specimen width for force columns, e.g. 4mm")
     p.add_argument("--thickness", metavar="H", help="specimen thickness for force columns, e.g. 2mm")
+    p.add_argument("--stretch-unit", default="stretch", choices=("stretch", "elongation"),
+                   help="show stretch-valued numbers as stretch λ (default) or as elongation %% (λ − 1)·100")
     p.add_argument("--residual", choices=RESIDUALS, default=DEFAULT_RESIDUAL,
                    help=f"residual weighting: relative (each point weighs by its own stress, so the small-strain "
                         f"points that fix G₀ count) or absolute (Pa: the stiff high-stretch points weigh most); "
@@ -154,7 +158,7 @@ def _read(args):
     return curves
 
 
-def _format_result(res, table) -> list[str]:
+def _format_result(res, table, stretch_unit="stretch") -> list[str]:
     out = [f"Model: {res.title}   ({res.n} points, {res.k} fitted parameter(s), {res.residual} residuals)"]
     out.append(f"  {'parameter':10s} {'value':>11s} {'± std. error':>13s} {'95 % interval':>25s}  unit")
     for p in res.params.values():
@@ -165,10 +169,14 @@ def _format_result(res, table) -> list[str]:
         out.append(f"  {(p.symbol or p.name):10s} {_num(p.value, scale):>11s} {_num(p.stderr, scale, 2):>13s} "
                    f"{ci:>25s}  {unit}{tag}")
     out.append(f"  small-strain shear modulus G₀ = {res.small_strain_modulus / 1e6:.4g} MPa")
-    out.append(f"  {'mode':12s} {'n':>4s} {'RMS / MPa':>10s} {'R²':>8s}   tested λ")
+    from ..display_units import stretch_shown
+
+    tested = "tested elongation %" if stretch_unit == "elongation" else "tested λ"
+    out.append(f"  {'mode':12s} {'n':>4s} {'RMS / MPa':>10s} {'R²':>8s}   {tested}")
     for m, s in res.modes.items():
+        lo, hi = (stretch_shown(x, stretch_unit) for x in s.tested_range)
         out.append(f"  {m.value:12s} {s.n:4d} {_num(s.rms, 1e-6, 3):>10s} {_num(s.r2, 1, 5):>8s}   "
-                   f"{s.tested_range[0]:.3g} – {s.tested_range[1]:.3g}")
+                   f"{lo:.3g} – {hi:.3g}")
     out.append(f"  AIC {res.aic:.1f}   BIC {res.bic:.1f}   (converged after {res.nfev} model evaluations)")
     if res.warnings:
         out.append("  Warnings:")
@@ -209,6 +217,7 @@ def run(args):
             "curves": [{"name": c.name, "mode": c.mode.value, "n": len(c), "source": c.source,
                         "temperature_K": c.temperature, "notices": list(c.notices)} for c in curves],
             "residual": args.residual,
+            "ultimate": ultimate_rows(curves), "ultimate_rule": ULTIMATE_RULE,
             "models": {},
             "caution": CAUTION,
         }
@@ -237,12 +246,19 @@ def run(args):
                                       else "not stated (23 °C assumed for the crosslink table)"))
         for n in notices:
             print(f"  file note: {n}")
+        broke = ultimate_rows(curves)
+        if broke:
+            print("break properties (nominal stress; " + ULTIMATE_RULE + "):")
+            for u in broke:
+                print(f"  {u['specimen']}: tensile strength {u['tensile_strength_Pa'] / 1e6:.3g} MPa, elongation at "
+                      f"break {u['elongation_at_break_percent']:.0f} %, stress at break "
+                      f"{u['stress_at_break_Pa'] / 1e6:.3g} MPa")
         for name, r in results.items():
             print()
             if isinstance(r, Exception):
                 print(f"Model: {get_model(name).title}: the fit failed — {r}")
                 continue
-            print("\n".join(_format_result(r, tables.get(name))))
+            print("\n".join(_format_result(r, tables.get(name), args.stretch_unit)))
         if len(ok) > 1:
             best = min(ok, key=lambda n: results[n].aic)
             print(f"\nLowest AIC on these curves: {results[best].title} (compare AIC only on the same curves and "

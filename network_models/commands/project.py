@@ -26,8 +26,7 @@ def add_parser(sub):
     p.add_argument("--target", action="append", default=[], metavar="TARGET",
                    help="a design target stored with the study, e.g. 'M100=1.7..1.9MPa' (repeat)")
     p.add_argument("--design-model", metavar="MODEL", help="model the design window uses (default affine)")
-    p.add_argument("--spec", action="append", default=[], metavar="SPEC",
-                   help="a specification stored with the study, e.g. 'M100=1.6..2.0MPa' (repeat)")
+    # --spec comes with _common (compare/report judge it; here it is stored with the study)
     p.add_argument("--chi-source", choices=("manifest", "table"),
                    help="χ of the swelling tests: the manifest's (default) or the solvent table's")
     p.add_argument("-o", "--output", required=True, metavar="FILE.zip", help="project file to write")

@@ -45,6 +45,13 @@ def _common(p):
                    help="unit stresses and moduli are shown in (tables, report; the CSV/JSON keep SI beside it)")
     p.add_argument("--density-unit", default="mol/m³", choices=DENSITY_UNITS,
                    help="unit strand and junction densities are shown in (mol/kg divides by the polymer density)")
+    p.add_argument("--stretch-unit", default="stretch", choices=("stretch", "elongation"),
+                   help="show stretch-valued numbers as stretch λ (default) or as elongation %% — the locking "
+                        "stretch then reads as the elongation reserve (λ_lock − 1)·100 %%")
+    p.add_argument("--spec", action="append", default=[], metavar="SPEC",
+                   help="a specification in the design-target grammar, judged per compound (meets / fails / "
+                        "uncertain / cannot judge), e.g. \"G=0.55..0.68MPa\", \"M100>=1.2MPa\", \"EB>=450%%\"; "
+                        "repeat it")
     p.add_argument("--no-model-spread", action="store_true",
                    help="skip fitting the other models for the model spread beside the headline (faster)")
     p.add_argument("--holm", action="store_true",
@@ -158,9 +165,16 @@ def parse_exclusions(items) -> dict[str, dict[str, str]]:
 
 
 def _compare(args):
+    from ..specs import parse_spec
+
+    for text in getattr(args, "spec", []):  # a bad specification is refused before any fitting
+        parse_spec(text)
     st = build_study(args)
     cmp = st.comparison()
-    apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit)
+    apply_to_comparison(cmp, stress=args.stress_unit, density=args.density_unit,
+                        stretch=getattr(args, "stretch_unit", "stretch"))
+    # the specifications given now, else those stored with the study (a project file)
+    cmp.specs = list(getattr(args, "spec", [])) or list(st.settings.specifications)
     return cmp, st.title, st.purpose
 
 
@@ -188,7 +202,8 @@ def summary(cmp) -> str:
              "values are specimen means, [95 % interval] from specimen scatter with fit error", ""]
     su, du = cmp.display_units["stress"], cmp.display_units["density"]
     cols = (("G0", f"G₀ ({su})"), ("nu", f"ν ({du})"), ("mu_j", f"μ_j ({du})"), ("Mc", "M_c (g/mol)"),
-            ("N", "N"), ("lock", "λ_lock uniaxial"), ("ent_share", "entanglement (%)"),
+            ("N", "N"), ("lock", "λ_lock uniaxial"), ("lock_elongation", "elongation reserve (%)"),
+            ("ent_share", "entanglement (%)"),
             ("G0_service", f"G₀ at T_s ({su})"), ("M100_measured", f"M100 meas. ({su})"),
             ("M100_predicted", f"M100 fit ({su})"), ("M300_measured", f"M300 meas. ({su})"),
             ("M300_predicted", f"M300 fit ({su})"), ("nu_swelling", f"ν swelling ({du})"))
@@ -264,6 +279,9 @@ def run_compare(args):
         print(dumps(doc))
     else:
         print(summary(cmp))
+        from ..specs import spec_lines
+
+        print("\n".join(spec_lines(cmp)))
         print("\n" + CAUTION)
     return 0 if any(r.ok for r in cmp.results) else 2
 

@@ -3,6 +3,8 @@
 
     netstretch swell --dry 1.000g --swollen 3.20g --solvent toluene --polymer NR
     netstretch swell --dry 1.000g --swollen 3.20g --extracted 0.962g --chi 0.39 --json
+    netstretch swell --dry 0.2340g --swollen 1.0384g --extracted 0.2249g --manifest sample_sets/compounds.toml \
+        --compound QM-S2          # Ellis–Welding with QM-S2's recipe; here --compound is a manifest KEY
 """
 
 from __future__ import annotations
@@ -36,6 +38,12 @@ def add_parser(sub):
                    help="filler volume fraction of the dry compound: applies the Kraus correction (default 0)")
     p.add_argument("--modulus", metavar="G", help="shear modulus with unit, e.g. 0.55MPa: show the modulus-based "
                                                  "strand density beside the swelling one")
+    p.add_argument("--manifest", metavar="FILE",
+                   help="a compounds manifest: with --compound KEY, that compound's recipe gives the Ellis–Welding "
+                        "insoluble fraction, the filler fraction and the polymer (and the manifest's χ when given)")
+    p.add_argument("--compound", metavar="KEY",
+                   help="the manifest key of the compound the specimen belongs to (here a KEY of --manifest, unlike "
+                        "compare's --compound NAME=FILES)")
     add_polymers_option(p)
     p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
     p.set_defaults(run=run)
@@ -57,6 +65,35 @@ def _mass(text, what):
     return v
 
 
+def _manifest_compound(path, key):
+    """(compound, χ of the manifest's [swelling] table or None) without reading its curve files."""
+    import tomllib
+    from pathlib import Path
+
+    from ..compounds import Compound, _manifest_recipe
+    from ..errors import DataError
+
+    p = Path(path)
+    try:
+        doc = tomllib.loads(p.read_text("utf-8"))
+    except OSError as e:
+        raise DataError(f"manifest {path}: cannot open it ({e.strerror or e})") from None
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
+        raise DataError(f"manifest {p.name}: not valid TOML ({e})") from None
+    entries = doc.get("compound", [])
+    entries = [dict(v, name=k) for k, v in entries.items()] if isinstance(entries, dict) else list(entries)
+    for e in entries:
+        if isinstance(e, dict) and str(e.get("key", e.get("name"))) == key:
+            meta = {k: v for k, v in e.items() if not isinstance(v, (dict, list))}
+            polymer = e.get("polymer", doc.get("scenario", {}).get("polymer", doc.get("polymer", "NR")))
+            comp = Compound(key, metadata=meta, polymer=str(polymer), f=float(e.get("f", 4.0)),
+                            recipe=_manifest_recipe(doc, e, key, p))
+            sw = doc.get("swelling")
+            return comp, (sw.get("chi") if isinstance(sw, dict) else None)
+    keys = ", ".join(str(e.get("key", e.get("name"))) for e in entries if isinstance(e, dict))
+    raise DataError(f"--compound {key!r} is not a compound of {p.name}; it lists {keys}")
+
+
 def _n(x, scale=1.0):
     return "—" if x is None else f"{x * scale:.4g}"
 
@@ -69,9 +106,30 @@ def run(args):
     T = quantity(args.temperature, "temperature", "--temperature", "23C") if args.temperature else None
     if not (args.functionality >= 3):
         raise ValueError(f"--functionality must be at least 3; got {args.functionality:g}")
-    est = swelling_estimate(dry, swollen, args.solvent, args.polymer, chi=args.chi, f=args.functionality, T=T,
+    polymer, chi, filler, f, extra, recipe_notes = args.polymer, args.chi, args.filler, args.functionality, {}, []
+    if bool(args.manifest) != bool(args.compound):
+        raise ValueError("--manifest and --compound go together: --manifest FILE --compound KEY (a key of the "
+                         "manifest's [[compound]] entries)")
+    if args.manifest:
+        comp, chi_m = _manifest_compound(args.manifest, args.compound)
+        polymer = comp.polymer
+        if chi is None and chi_m is not None:
+            chi = chi_m
+            recipe_notes.append(f"χ = {chi_m:g} from the manifest's [swelling] table")
+        if comp.recipe is None:
+            recipe_notes.append(f"compound {comp.name} has no [compound.recipe]: no Ellis–Welding correction")
+        else:
+            if args.rubber_fraction is not None or args.filler:
+                raise ValueError("--rubber-fraction and --filler come from the recipe when --compound has one; "
+                                 "leave them out")
+            extra = comp.swelling_options()
+            recipe_notes.append(f"recipe of {comp.name} from {args.manifest}")
+        filler = args.filler or comp.filler_fraction
+        recipe_notes += [str(n) for n in comp.recipe_notices]
+    est = swelling_estimate(dry, swollen, args.solvent, polymer, chi=chi, f=f, T=T,
                             extracted=extracted, rubber_fraction=args.rubber_fraction,
-                            filler_fraction=args.filler)
+                            filler_fraction=filler, **extra)
+    est.notes[:0] = recipe_notes
     side = None
     if args.modulus:
         from ..crosslinks import from_modulus

@@ -6,8 +6,10 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..constants import celsius
+from ..dose import ladder_fits
 from ..errors import Notice
 from ..models import MODELS, get_model
+from ..specs import judge as judge_specs
 from ..statistics import (
     ALPHA,
     CANNOT_JUDGE,
@@ -19,6 +21,7 @@ from ..statistics import (
     verdict,
     welch_p_value,
 )
+from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
 from .specimens import SPECIMEN_QUANTITIES, analyse_specimens, basis_label, row_key, specimen_table
@@ -213,6 +216,8 @@ class Comparison:
     #: family-wise verdicts: "holm" adjusts each compound's verdict quantities together (Holm 1979), None keeps
     #: one test per quantity at α = 0.05 (issue #20)
     family_wise: str | None = None
+    #: specifications in the design-target grammar, judged per compound (network_models.specs)
+    specs: list = field(default_factory=list)
 
     def to_frame(self):
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
@@ -305,6 +310,7 @@ class Comparison:
 
     def to_dict(self) -> dict:
         m = self.model_obj
+        spec_verdicts = judge_specs(self.results, self.specs)
         return {
             "model": {"name": m.name, "title": m.title, "equation": m.equation,
                       "references": list(m.references), "assumption": m.assumption},
@@ -317,9 +323,12 @@ class Comparison:
             "exclusions": [{"compound": c, "specimen": s, "reason": why} for c, d in self.exclusions.items()
                            for s, why in d.items()],
             "residual": self.residual,
-            "compounds": [result_to_dict(r, self.residual) for r in self.results],
+            "compounds": [dict(result_to_dict(r, self.residual), spec=spec_verdicts.get(r.name, []))
+                          for r in self.results],
             "differences": self.differences(),
             "family_wise": self.family_wise,
+            "ultimate_differences": ultimate_differences(self.results, self.baseline),
+            "dose_ladders": ladder_fits(self.results),
         }
 
 
@@ -363,7 +372,9 @@ def result_to_dict(r: CompoundResult, residual: str | None = None) -> dict:
         "crosslink_table": r.crosslink_rows,
         "crosslink_notes": r.crosslink_notes,
         "swelling": r.swelling_rows,
-        "warnings": list(r.warnings),
+        "recipe": None if getattr(c, "recipe", None) is None else c.recipe.to_dict(),
+        "ultimate": compound_ultimate(r),
+        "warnings": list(r.warnings) + [str(n) for n in getattr(c, "recipe_notices", [])],
     }
 
 
@@ -452,6 +463,7 @@ def _notes(compounds, results) -> list:
         notes.append("Filled compounds: ν is given with the filler reinforcement taken out by the Guth–Gold factor "
                      "where the filler volume fraction is known; Guth–Gold holds for well-dispersed, weakly "
                      "reinforcing filler at modest φ, so for carbon black treat ν as an estimate.")
+    notes.extend(n for c in compounds for n in getattr(c, "recipe_notices", []))  # the recipe wins (issue #21)
     judged = [r for r in results if r.ok and r.n < 2]
     if judged:
         notes.append(Notice(f"{', '.join(r.name for r in judged)}: fewer than two specimens — verdicts against them "

@@ -315,7 +315,8 @@ def _swelling_part(res, compound):
     sw_vals, ends = [], []
     for s in compound.swelling:
         try:
-            est = s.estimate(compound.polymer, compound.f, compound.filler_fraction)
+            est = s.estimate(compound.polymer, compound.f, compound.filler_fraction,
+                             **getattr(compound, "swelling_options", dict)())
         except (ValueError, KeyError) as exc:
             msg = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)
             res.warnings.append(f"{compound.name}: swelling test {s.specimen or s.source or ''} in {s.solvent}: {msg}")

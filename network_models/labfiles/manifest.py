@@ -34,6 +34,19 @@ class ManifestEntry:
     polymer: str = "NR"
     curve_files: list[CurveFile] = field(default_factory=list)
     info: dict = field(default_factory=dict)  # cure dose, filler phr, filler volume fraction, notes...
+    #: the manifest's [[ingredient]] rows (for the recipe in ``info["recipe"]``, network_models.recipes)
+    ingredient_rows: list = field(default_factory=list)
+
+    @property
+    def recipe(self):
+        """The ``[compound.recipe]`` resolved (:class:`network_models.recipes.Recipe`), or None."""
+        raw = self.info.get("recipe")
+        if not isinstance(raw, dict):
+            return None
+        from ..recipes import Recipe, ingredient_rows
+
+        extra = ingredient_rows(self.ingredient_rows, "manifest") if self.ingredient_rows else {}
+        return Recipe.from_phr(raw, extra, where=f"compound {self.key!r}: [compound.recipe]")
 
     def curves(self) -> list[TestCurve]:
         out = []
@@ -43,7 +56,9 @@ class ManifestEntry:
 
     @property
     def filler_fraction(self) -> float:
-        return float(self.info.get("filler_volume_fraction", 0.0))
+        """The recipe's filler volume fraction when there is a recipe (it wins), else the stated one."""
+        r = self.recipe
+        return float(r.filler_volume_fraction) if r is not None else float(self.info.get("filler_volume_fraction", 0.0))
 
 
 @dataclass
@@ -57,6 +72,8 @@ class ManifestIndex:
     swelling: Path | None = None
     force_temperature: list[Path] = field(default_factory=list)
     info: dict = field(default_factory=dict)
+    #: the [swelling] table's other keys (solvent, chi, note): the manifest's χ wins over the solvent table's
+    swelling_info: dict = field(default_factory=dict)
 
     def __getitem__(self, key: str) -> ManifestEntry:
         for c in self.compounds:
@@ -118,7 +135,9 @@ def manifest_index(raw: dict, p: Path) -> ManifestIndex:
             files.append(CurveFile(base / f["path"], mode, str(f.get("note", ""))))
         info = {k: v for k, v in c.items() if k not in ("key", "title", "polymer", "files")}
         compounds.append(ManifestEntry(str(c["key"]), str(c.get("title", c["key"])),
-                                       str(c.get("polymer", scen.get("polymer", "NR"))), files, info))
+                                       str(c.get("polymer", scen.get("polymer", "NR"))), files, info,
+                                       list(raw.get("ingredient", [])) if isinstance(raw.get("ingredient"), list)
+                                       else []))
     keys = [c.key for c in compounds]
     if len(set(keys)) != len(keys):
         raise DataError(f"{p.name}: compound keys must be unique; got {', '.join(keys)}")
@@ -127,4 +146,6 @@ def manifest_index(raw: dict, p: Path) -> ManifestIndex:
         swelling=base / raw["swelling"]["path"] if "swelling" in raw else None,
         force_temperature=[base / r["path"] for r in raw.get("force_temperature", [])],
         info=scen,
+        swelling_info={k: v for k, v in raw.get("swelling", {}).items() if k != "path"}
+        if isinstance(raw.get("swelling"), dict) else {},
     )

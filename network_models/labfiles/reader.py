@@ -12,6 +12,7 @@ import numpy as np
 from ..constants import ZERO_CELSIUS
 from ..curves import TestCurve
 from ..errors import DataError, Notice
+from ..ultimate import break_properties, find_rupture, rupture_notice
 from ..units import UnitError, unit_converter
 from . import tables
 from . import vocabulary as vocab
@@ -235,6 +236,10 @@ def _one_curve(x, y, idx, specimen, notices, stem, *, fn, source, values, number
                temperature, known, extra, comments, opts) -> TestCurve:
     compression = loading == "compression"
     lam, stress, kept = convert(fn, x, y, values, idx, numbers, gauge, area, notices, compression)
+    ruptured = None if compression else find_rupture(lam, stress)  # break properties (network_models.ultimate)
+    if ruptured is not None:
+        dropped = lam.size - ruptured
+        lam, stress, kept = lam[:ruptured], stress[:ruptured], kept[:ruptured]
     lam, stress, kept = clean(fn, lam, stress, kept, notices, y, compression)
     compound = known.get("compound")
     md = {
@@ -251,6 +256,10 @@ def _one_curve(x, y, idx, specimen, notices, stem, *, fn, source, values, number
     if comments:
         md["comments"] = comments
     name = " ".join(s for s in (compound or stem, specimen) if s)
+    if ruptured is not None:
+        u = break_properties(specimen or name, lam, stress, dropped)
+        md["ultimate"] = u.to_dict()
+        notices.append(rupture_notice(u, fn))
     return TestCurve(mode=mode, stretch=lam, stress=stress, name=name, source=source, specimen=specimen,
                      temperature=temperature, cycle=known.get("cycle"), metadata=md, notices=notices)
 

@@ -36,6 +36,8 @@ def nice_ticks(lo: float, hi: float, n: int = 6) -> list[float]:
         return [0.0, 1.0]
     if hi <= lo:
         hi = lo + (abs(lo) or 1.0)
+    elif hi - lo <= 1e-9 * max(abs(lo), abs(hi)):  # equal up to rounding: a step below the float spacing hangs
+        lo, hi = lo - 0.05 * abs(lo), hi + 0.05 * abs(hi)
     raw = (hi - lo) / max(n - 1, 1)
     mag = 10 ** math.floor(math.log10(raw))
     step = next(m * mag for m in (1, 2, 2.5, 5, 10) if m * mag >= raw)
@@ -212,9 +214,18 @@ def svg_bar_chart(categories: list[str], groups: list[dict], ylabel: str, title:
 
 
 # ----- plots of a comparison ---------------------------------------------------------------------------
+def _stretch_axis(cmp):
+    """(x transform, axis label, x0) for the comparison's stretch display choice (display_units: stretch or
+    elongation (λ − 1)·100 %)."""
+    if getattr(cmp, "display_units", {}).get("stretch") == "elongation":
+        return (lambda lam: (np.asarray(lam) - 1.0) * 100.0), "elongation (%)", 0.0
+    return (lambda lam: lam), "stretch λ (1)", 1.0
+
+
 def curve_plots(cmp: Comparison) -> list[tuple[str, str]]:
     """(mode, svg): every compound's data (markers) and fit (line) overlaid, one chart per mode."""
     m = get_model(cmp.model)
+    X, xlabel, x0 = _stretch_axis(cmp)
     plots = []
     for mode in MODES:
         series = []
@@ -225,16 +236,16 @@ def curve_plots(cmp: Comparison) -> list[tuple[str, str]]:
                 continue
             lam = np.concatenate([c.stretch for c in cs])
             P = np.concatenate([c.stress for c in cs])
-            series.append({"label": f"{r.name} data", "x": lam, "y": P / 1e6, "color": color, "style": "markers"})
+            series.append({"label": f"{r.name} data", "x": X(lam), "y": P / 1e6, "color": color, "style": "markers"})
             if r.ok and m.supports(mode):
                 grid = np.linspace(1.0, float(lam.max()), 160)
                 fit = m.nominal_stress(mode, grid, r.param_values())
-                series.append({"label": f"{r.name} fit", "x": grid, "y": fit / 1e6, "color": color,
+                series.append({"label": f"{r.name} fit", "x": X(grid), "y": fit / 1e6, "color": color,
                                "style": "line"})
         if series:
             plots.append((mode.value, svg_line_chart(
-                series, "stretch λ (1)", "nominal stress P (MPa)",
-                f"{mode.value.capitalize()} tension: data and {m.title} fit", x0=1.0)))
+                series, xlabel, "nominal stress P (MPa)",
+                f"{mode.value.capitalize()} tension: data and {m.title} fit", x0=x0)))
     return plots
 
 

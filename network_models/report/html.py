@@ -22,7 +22,7 @@ from ..constants import CAUTION, METHOD_MANUAL_REFERENCE
 from ..errors import merge_notices
 from ..jsonio import dumps
 from ..models import get_model
-from . import sections, tables
+from . import recipe_sections, sections, tables
 from .charts import crosslink_bar_plot, curve_plots, service_plot
 from .text import esc as _e
 from .text import fmt
@@ -38,7 +38,8 @@ CAUTIONS = (
 )
 
 #: quantities shown in the comparison table, in order
-TABLE_KEYS = ("G0", "nu", "mu_j", "Mc", "N", "lock", "ent_share", "G0_service", "M100_measured", "M100_predicted",
+TABLE_KEYS = ("G0", "nu", "mu_j", "Mc", "N", "lock", "lock_elongation", "ent_share", "G0_service", "M100_measured",
+              "M100_predicted",
               "M300_measured", "M300_predicted", "nu_swelling")
 
 
@@ -106,7 +107,23 @@ class Report:
     # ----- HTML -----------------------------------------------------------------------------------
     SECTIONS = ("summary", "compounds", "specimens", "comparison", "uncertainty", "plots", "provenance", "params",
                 "crosslink", "swelling",
-                "warnings", "model")
+                "warnings", "model", "conditions", "recipes", "ultimate", "specifications", "ladders")
+
+    # issue #21's sections (report/recipe_sections.py), by name for section_html
+    def _conditions_html(self):
+        return recipe_sections.conditions_html(self.cmp)
+
+    def _recipes_html(self):
+        return recipe_sections.recipes_html(self.cmp)
+
+    def _ultimate_html(self):
+        return recipe_sections.ultimate_html(self.cmp)
+
+    def _specifications_html(self):
+        return recipe_sections.specs_html(self.cmp)
+
+    def _ladders_html(self):
+        return recipe_sections.ladders_html(self.cmp)
 
     def section_html(self, name: str) -> str:
         """One section of the report as an HTML fragment (for embedding, e.g. the app's Compare view);
@@ -137,12 +154,15 @@ class Report:
         parts += self._compounds_html()
         parts += self._specimens_html()
         parts += self._comparison_html()
+        parts += recipe_sections.conditions_html(self.cmp)
         parts += self._uncertainty_html()
         parts += self._plots_html()
         parts += self._provenance_html()
         parts += self._params_html()
         parts += self._crosslink_html()
         parts += self._swelling_html()
+        parts += recipe_sections.recipes_html(self.cmp) + recipe_sections.ultimate_html(self.cmp)
+        parts += recipe_sections.specs_html(self.cmp) + recipe_sections.ladders_html(self.cmp)
         parts += self._warnings_html()
         parts += self._model_html()
         parts.append("<h2>Cautions</h2><ul>" + "".join(f"<li>{_e(x)}</li>" for x in CAUTIONS) + "</ul>")
