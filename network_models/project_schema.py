@@ -16,7 +16,8 @@ _PROJECT = {"format": _TEXT, "version": "whole number", "created": _TEXT, "netst
 _INPUT = {"file": _TEXT, "name": _TEXT, "compound": _TEXT, "kind": _TEXT, "selected": _BOOL, "options": _TABLE}
 # `filler` is version 1's name of the filler volume fraction (still read)
 _COMPOUND = {"name": _TEXT, "polymer": _TEXT, "f": _NUM, "filler": _NUM, "filler_volume_fraction": _NUM,
-             "baseline": _BOOL, "notes": _TEXT, "metadata": _TABLE, "swelling_source": _TEXT, "swelling": _LIST}
+             "baseline": _BOOL, "notes": _TEXT, "metadata": _TABLE, "swelling_source": _TEXT, "swelling": _LIST,
+             "recipe": _TABLE, "ingredients": _LIST}  # recipe: ingredient name = phr; ingredients: own rows
 _TOP = {"project": _TABLE, "settings": _TABLE, "input": _LIST, "compound": _LIST, "results": _TABLE}
 
 
@@ -79,6 +80,12 @@ def check_manifest(doc: dict, name: str, error=ValueError) -> dict:
         c = _check_table(c, _COMPOUND, f"[[compound]] {i}", name, error, notices)
         if not all(isinstance(s, dict) for s in c.get("swelling", [])):
             raise error(f"{name}: [[compound]] {i} swelling must be a list of tables; save the project again")
+        if not all(isinstance(s, dict) for s in c.get("ingredients", [])):
+            raise error(f"{name}: [[compound]] {i} ingredients must be a list of tables; save the project again")
+        bad = [k for k, v in c.get("recipe", {}).items() if not _is(v, _NUM)]
+        if bad:
+            raise error(f"{name}: [[compound]] {i} recipe {bad[0]} must be a number (phr); fix that field or save "
+                        "the project again")
         comps.append(c)
     doc["compound"] = comps
     for key in ("settings", "results"):

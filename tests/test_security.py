@@ -605,6 +605,7 @@ def test_project_unknown_fields_ignored_with_a_notice(project_bar):
     (_manifest(version='"two"'), "version"),
     (_manifest(options='"fast"'), "options"),
     (_manifest(extra="title2 = 1").replace('title = "t"', "title = 5"), "title"),
+    (_manifest() + '[[compound]]\nname = "A"\n[compound.recipe]\nNR = "lots"\n', "recipe NR"),
 ])
 def test_project_wrong_types_refused_naming_the_field(project_bar, manifest, field):
     bar = project_bar
