@@ -174,8 +174,8 @@ class FileStore(param.Parameterized):
 
     def set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
                   new_info: CompoundInfo | None = None):
-        """Replace the store's files (and compounds; and, through ``_select``, the fit selection) in one
-        change: one revision, one redraw.  Compounds no file belongs to any more are dropped; a new group gets
+        """Replace the store's files (and compounds; and tell the subscribers — a fit state picks ``selected``) in
+        one change: one revision, one redraw.  Compounds no file belongs to any more are dropped; a new group gets
         ``new_info`` (or ``_default_info()``)."""
         names = [f.name for f in files]
         comps = dict(compounds if compounds is not None else self.compounds)
