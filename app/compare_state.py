@@ -15,14 +15,14 @@ import param
 from network_models.constants import ZERO_CELSIUS
 from network_models.models import MODELS
 
-from .data_state import CompoundInfo, DataState, LoadedFile
+from .data_state import CompoundInfo, DataState, FileStore, LoadedFile
 
 DEFAULT_MODEL = "extended-tube"
 STALE = "out of date — recompute"
 
 
 # ----- adapters to the core ----------------------------------------------------------------------------
-def build_compound(data: DataState, name: str, files=None):
+def build_compound(data: FileStore | DataState, name: str, files=None):
     """A core :class:`network_models.compounds.Compound` from the store: the compound's files (or the given
     ``files``), its polymer, f, filler fraction (as metadata, where the core reads it), swelling and notes."""
     from network_models.compounds import Compound
@@ -93,15 +93,17 @@ class CompareState(param.Parameterized):
 
     def __init__(self, data: DataState | None = None, study_source=None, **params):
         super().__init__(**params)
+        #: the fit tab's state (its selection: "compare the selected files") and the session's file store
         self.data = data if data is not None else DataState()
+        self.store = self.data.store
         #: the session's ``Session.study`` (set by the session): the comparison is the study's, cached there
         self.study_source = study_source
-        self.data.param.watch(lambda *e: self._sync(), ["compounds"])
+        self.store.param.watch(lambda *e: self._sync(), ["compounds"])
         self._sync()
 
     def _sync(self):
         """Follow the store: new compounds are offered (and chosen), vanished ones dropped."""
-        names = self.data.compound_names()
+        names = self.store.compound_names()
         old = list(self.param.chosen.objects)
         new = [n for n in names if n not in old]
         self.param.chosen.objects = names
@@ -109,19 +111,19 @@ class CompareState(param.Parameterized):
         with param.parameterized.batch_call_watchers(self):
             self.chosen = [n for n in self.chosen if n in names] + new
             if self.baseline not in names:
-                hint = self.data.manifest_baseline
+                hint = self.store.manifest_baseline
                 self.baseline = hint if hint in names else (names[0] if names else None)
 
     def use_samples_title(self):
-        if self.data.manifest_title:
-            self.scenario = self.data.manifest_title
+        if self.store.manifest_title:
+            self.scenario = self.store.manifest_title
             if self.title == self.param.title.default:
-                self.title = self.data.manifest_title
+                self.title = self.store.manifest_title
 
     # ----- staleness ----------------------------------------------------------------------------------
     def inputs(self) -> tuple:
         """Everything the comparison depends on (choices, service temperature, the store's revision)."""
-        return (tuple(self.chosen), self.baseline, self.model, float(self.service_C), self.data.revision,
+        return (tuple(self.chosen), self.baseline, self.model, float(self.service_C), self.store.revision,
                 tuple(self.spec_lines()))
 
     def spec_lines(self) -> list[str]:
@@ -143,7 +145,7 @@ class CompareState(param.Parameterized):
                 raise ValueError(f"compound {missing[0]!r} has no test curves; upload its files in 'Test data & fits'")
             cmp = st.comparison()
         else:
-            comps = [build_compound(self.data, n) for n in self.chosen]
+            comps = [build_compound(self.store, n) for n in self.chosen]
             base = self.baseline if self.baseline in self.chosen else None
             cmp = compare_compounds(comps, self.model, base, self.service_C + ZERO_CELSIUS)
         from network_models.specs import parse_spec
@@ -167,14 +169,14 @@ class CompareState(param.Parameterized):
     def _set(self, comps: dict, chosen=None, baseline=None):
         """Put core ``Compound`` objects into the store (their curves, polymer, f, filler, swelling), then
         choose ``chosen`` with ``baseline``."""
-        files, infos = list(self.data.files), dict(self.data.compounds)
+        files, infos = list(self.store.files), dict(self.store.compounds)
         for name, c in comps.items():
             files = [f for f in files if f.group != name]
             files.append(LoadedFile(name=f"{name} (curves)", group=name, curves=list(c.curves),
                                     detected_mode=c.curves[0].mode.value if c.curves else "uniaxial"))
             infos[name] = CompoundInfo(polymer=c.polymer, f=float(c.f), filler=float(c.filler_fraction),
                                        notes=c.notes, metadata=dict(c.metadata), swelling=list(c.swelling))
-        self.data.set_files(files, compounds=infos)
+        self.store.set_files(files, compounds=infos)
         with param.parameterized.batch_call_watchers(self):
             if chosen is not None:
                 self.chosen = [n for n in chosen if n in self.param.chosen.objects]
@@ -188,12 +190,12 @@ class CompareState(param.Parameterized):
         name = (name or "").strip()
         if not name:
             raise ValueError("give the new compound a name before adding its files")
-        if name in self.data.compounds:
+        if name in self.store.compounds:
             raise ValueError(f"there is already a compound called {name!r}; choose another name")
         if not files:
             raise ValueError("choose one or more test files for the new compound first")
         opts = {"mode": mode} if mode else {}
-        loaded = [self.data.add_upload(fn, data, compound=name, **opts) for fn, data in files]
-        self.data.accept_uploads(loaded, CompoundInfo(polymer=polymer, f=float(f), filler=float(filler),
+        loaded = [self.store.add_upload(fn, data, compound=name, **opts) for fn, data in files]
+        self.store.accept_uploads(loaded, CompoundInfo(polymer=polymer, f=float(f), filler=float(filler),
                                                       notes=notes))
-        return build_compound(self.data, name)
+        return build_compound(self.store, name)

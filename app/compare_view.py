@@ -65,7 +65,7 @@ class CompareView(pn.viewable.Viewer):
         self.state = s = state
         #: called as ask_missing(name, bytes, missing_items, compound) for a file that lacks geometry
         self.ask_missing = ask_missing
-        self.data = s.data
+        self.store = s.store  # the session's file store (CompareState.store)
         self.messages = Messages(area="compare")
         self.chosen = pn.widgets.MultiChoice.from_param(s.param.chosen, sizing_mode="stretch_width",
                                                         css_classes=["ns-cmp-chosen"])
@@ -138,7 +138,7 @@ class CompareView(pn.viewable.Viewer):
         self._save_compound = guarded(self.messages, "compare-edit", "Compound")(self._save_compound)
         s.param.watch(lambda *e: self._mark(), ["chosen", "baseline", "model", "service_C", "comparison", "title",
                                                 "specs"])
-        self.data.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
+        self.store.param.watch(lambda *e: self._on_store(), ["compounds", "revision"])
         self._layout = self._build()
         self._on_store()
 
@@ -171,13 +171,13 @@ class CompareView(pn.viewable.Viewer):
 
     # ----- the store and stale marks -------------------------------------------------------------------
     def _on_store(self):
-        names = self.data.compound_names()
+        names = self.store.compound_names()
         self.edit_name.options = names
         if self.edit_name.value not in names and names:
             self.edit_name.value = names[0]
         rows = [{"compound": n, "polymer": i.polymer, "f": f"{i.f:g}", "filler φ": f"{i.filler:.3g}",
-                 "files": ", ".join(f.name for f in self.data.compound_files(n)),
-                 "swelling tests": str(len(i.swelling))} for n, i in self.data.compounds.items()]
+                 "files": ", ".join(f.name for f in self.store.compound_files(n)),
+                 "swelling tests": str(len(i.swelling))} for n, i in self.store.compounds.items()]
         self.compounds_html.object = table_html(rows, "ns-cmp-compound-table")
         self._show_compound()
         self._mark()
@@ -202,7 +202,7 @@ class CompareView(pn.viewable.Viewer):
         self.results.css_classes = ["ns-cmp-results"] + (["ns-stale-results"] if stale else [])
 
     def _show_compound(self):
-        info = self.data.compounds.get(self.edit_name.value or "")
+        info = self.store.compounds.get(self.edit_name.value or "")
         if info is not None:
             self.edit_polymer.value = info.polymer if info.polymer in self.edit_polymer.options else "NR"
             self.edit_f.value, self.edit_filler.value = float(info.f), float(info.filler)
@@ -221,8 +221,8 @@ class CompareView(pn.viewable.Viewer):
             else None
         if recipe is not None:  # the recipe wins: φ comes from it (issue #21)
             self.edit_filler.value = round(float(recipe.filler_volume_fraction), 6)
-        self.data.set_compound_info(name, polymer=self.edit_polymer.value, f=float(self.edit_f.value),
-                                    filler=float(self.edit_filler.value or 0.0), recipe=recipe)
+        self.store.set_compound_info(name, polymer=self.edit_polymer.value, f=float(self.edit_f.value),
+                                     filler=float(self.edit_filler.value or 0.0), recipe=recipe)
         self.messages.show("compare-edit", f"Compound **{esc(name)}**: {esc(self.edit_polymer.value)}, "
                                            f"f = {self.edit_f.value:g}, φ = {self.edit_filler.value or 0:g} kept; "
                                            "press Compare.", "success")
@@ -268,7 +268,7 @@ class CompareView(pn.viewable.Viewer):
         name = (self.new_name.value or "").strip()
         if not name:
             raise ValueError("give the new compound a name before adding its files")
-        if name in self.data.compounds:
+        if name in self.store.compounds:
             raise ValueError(f"there is already a compound called {name!r}; choose another name")
         mode = None if self.new_mode.value == "from the file" else self.new_mode.value
         loaded, waiting = [], []
@@ -276,7 +276,7 @@ class CompareView(pn.viewable.Viewer):
             if data and len(data) > MAX_UPLOAD_BYTES:
                 raise ValueError(f"{fn}: over the {MAX_UPLOAD_BYTES / 1e6:.0f} MB upload limit")
             try:
-                loaded.append(self.data.add_upload(fn, data, compound=name, **({"mode": mode} if mode else {})))
+                loaded.append(self.store.add_upload(fn, data, compound=name, **({"mode": mode} if mode else {})))
             except ValueError as exc:
                 miss = missing_items(exc)
                 if not miss or self.ask_missing is None:
@@ -292,7 +292,7 @@ class CompareView(pn.viewable.Viewer):
                 return
         recipe = CompoundInfo(polymer=self.edit_polymer.value, f=float(self.edit_f.value),
                               filler=float(self.edit_filler.value or 0.0))
-        self.data.accept_uploads(loaded, recipe)
+        self.store.accept_uploads(loaded, recipe)
         self.new_name.value = ""
         self.edit_name.value = name
         self.messages.show("compare-upload", f"Compound **{esc(name)}** added ({sum(len(f.curves) for f in loaded)} "

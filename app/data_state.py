@@ -1,12 +1,16 @@
-"""The session's file store and the fit view's state, as two classes — no Panel import.
+"""The session's file store and the fit tab's state: two classes, two objects — no Panel import.
 
-:class:`FileStore` is the one store every tab reads: the files the user loaded (bytes kept so per-file
-settings can re-read them and a project file can hold them) and the compound each file belongs to with that
-compound's polymer, functionality and filler (:class:`CompoundInfo`).  :class:`DataState` extends it with the
-fit tab's state: the files chosen for the fit, the models, the weighting, the fit results and the crosslink
-table (one object per session still carries both, so the views' watchers keep working; the session's
-``store`` names the store role).  A file that cannot be read raises a
-``ValueError`` whose message names the file and what to do; the state is left exactly as it was.
+:class:`FileStore` is the one store every tab reads (``Session.store``): the files the user loaded (bytes kept
+so per-file settings can re-read them and a project file can hold them) and the compound each file belongs to
+with that compound's polymer, functionality and filler (:class:`CompoundInfo`).  :class:`DataState` is the fit
+tab's state (``Session.data``) and *holds* a store (``DataState.store``, composition): the files chosen for the
+fit, the models, the weighting, the fit results and the crosslink table.  The store knows nothing of a
+selection; it tells its subscribers (:meth:`FileStore.subscribe`) which files a change points at (new uploads,
+the sample set's baseline), and a fit state picks them.  Views watch the store's ``files``/``compounds``/
+``revision`` on ``state.store`` and the fit's ``selected``/``results`` on the state.  For the fit tab's own
+code and scripts, a DataState also reads and loads through its store (``files``, ``compounds``, ``get``,
+``add_upload``, ``load_samples`` ... are the store's).  A file that cannot be read raises a ``ValueError``
+whose message names the file and what to do; the state is left exactly as it was.
 """
 
 from __future__ import annotations
@@ -129,8 +133,9 @@ class FileStore(param.Parameterized):
     """The session's file store — the one place every tab reads files and compounds from: the loaded files
     (bytes kept, so per-file settings can re-read them and a project file can hold them), the compound each
     file belongs to with that compound's recipe facts (:class:`CompoundInfo`), a revision counter and the
-    sample set's title/baseline.  No fit state: :class:`DataState` adds the fit tab's (selection, models,
-    weighting, results) on top, through the two hooks ``_select`` and ``_default_info``."""
+    sample set's title/baseline.  No fit state: a :class:`DataState` holds a store and subscribes to it
+    (:meth:`subscribe`) to follow which files a change points at; ``new_compound_info`` (a callable, set by the
+    fit state) gives the recipe of a compound new to the store."""
 
     files = param.List(default=[], item_type=LoadedFile, doc="loaded files, in load order")
     compounds = param.Dict(default={}, doc="compound name -> CompoundInfo (every compound a file belongs to)")
@@ -139,13 +144,21 @@ class FileStore(param.Parameterized):
     manifest_note = param.String(default="")
     manifest_baseline = param.String(default="", doc="the sample set's baseline compound")
 
-    # ----- hooks the fit tab's state fills in ----------------------------------------------------
-    def _select(self, names: list[str], selected: list[str] | None) -> None:
-        """Called inside :meth:`set_files`' one change with the new file names (a store has no selection)."""
+    def __init__(self, **params):
+        super().__init__(**params)
+        self._subscribers: list = []
+        #: () -> CompoundInfo for a compound new to the store (None: the defaults); the fit state sets it
+        self.new_compound_info = None
+
+    # ----- who follows the store ------------------------------------------------------------------
+    def subscribe(self, fn) -> None:
+        """``fn(names, selected)`` is called inside every :meth:`set_files` change with the new file names and
+        the files the change points at (None: keep what you had) — how a fit state follows the store."""
+        self._subscribers.append(fn)
 
     def _default_info(self) -> CompoundInfo:
         """The recipe a compound new to the store gets when none is given."""
-        return CompoundInfo()
+        return self.new_compound_info() if self.new_compound_info is not None else CompoundInfo()
 
     # ----- loading -----------------------------------------------------------------------------
     def _unique(self, name: str) -> str:
@@ -162,8 +175,8 @@ class FileStore(param.Parameterized):
 
     def set_files(self, files: list[LoadedFile], selected: list[str] | None = None, compounds=None,
                   new_info: CompoundInfo | None = None):
-        """Replace the store's files (and compounds; and, through ``_select``, the fit selection) in one
-        change: one revision, one redraw.  Compounds no file belongs to any more are dropped; a new group gets
+        """Replace the store's files (and compounds; and tell the subscribers — a fit state picks ``selected``) in
+        one change: one revision, one redraw.  Compounds no file belongs to any more are dropped; a new group gets
         ``new_info`` (or ``_default_info()``)."""
         names = [f.name for f in files]
         comps = dict(compounds if compounds is not None else self.compounds)
@@ -175,7 +188,8 @@ class FileStore(param.Parameterized):
         with param.parameterized.batch_call_watchers(self):
             self.compounds = comps
             self.files = files
-            self._select(names, selected)
+            for fn in self._subscribers:
+                fn(names, selected)
             self.revision += 1
 
     # ----- compounds ----------------------------------------------------------------------------
@@ -310,11 +324,21 @@ class FileStore(param.Parameterized):
         return new
 
 
-class DataState(FileStore):
-    """The fit tab's state over the session's file store (:class:`FileStore`, which it extends): the files
-    chosen for the fit, the models, the residual weighting, the polymer/f/filler the fit view shows, the fit
-    results and the crosslink table."""
+#: the store's reading and loading API, which a DataState offers through its store (``state.files`` is
+#: ``state.store.files``); watch these on ``state.store``
+STORE_ATTRIBUTES = ("files", "compounds", "revision", "manifest_title", "manifest_note", "manifest_baseline")
+STORE_METHODS = ("set_files", "compound_names", "compound_files", "set_compound_info", "assign", "add_upload",
+                 "accept_uploads", "remove", "get", "set_options")
 
+
+class DataState(param.Parameterized):
+    """The fit tab's state, holding the session's file store (``store``, a :class:`FileStore` — its own object,
+    shared with every tab): the files chosen for the fit, the models, the residual weighting, the
+    polymer/f/filler the fit view shows, the fit results and the crosslink table.  ``DataState()`` alone makes
+    its own store (scripts, tests)."""
+
+    store = param.ClassSelector(class_=FileStore, instantiate=False, constant=True,
+                                doc="the session's file store (every tab's files and compounds)")
     selected = param.ListSelector(default=[], objects=[], label="Files in the fit")
 
     fit_models = param.ListSelector(default=list(DEFAULT_FIT_MODELS), objects=list(MODELS), label="Models to fit")
@@ -327,17 +351,37 @@ class DataState(FileStore):
     results = param.Dict(default={}, doc="model name -> FitResult")
     failures = param.Dict(default={}, doc="model name -> sentence why the fit failed")
 
-    # ----- the store's hooks ------------------------------------------------------------------------
+    def __init__(self, store: FileStore | None = None, **params):
+        super().__init__(store=store if store is not None else FileStore(), **params)
+        #: the last fit's inputs (curve ids, models, weighting, polymer), its results and curves (held, so the
+        #: ids cannot be reused): run_fit with the same inputs and those results still shown does not refit
+        self._fit_key, self._fit_results, self._fit_curves = None, None, None
+        self.store.subscribe(self._select)
+        self.store.new_compound_info = self._default_info
+        self.store.param.watch(lambda *e: self._prefill_from_selection(), ["compounds"])
+        self._select([f.name for f in self.store.files], None)
+
+    # ----- the store, through this state ---------------------------------------------------------------
+    def __getattr__(self, name):
+        # only reached when normal lookup fails: the store's attributes and methods (STORE_*), nothing else
+        if name in STORE_ATTRIBUTES or name in STORE_METHODS:
+            return getattr(self.store, name)
+        raise AttributeError(f"{type(self).__name__!r} object has no attribute {name!r}")
+
     def _select(self, names, selected):
-        self.param.selected.objects = names
-        self.selected = [n for n in (selected if selected is not None else self.selected) if n in names]
+        """The store changed its files: offer them, keep the chosen ones that remain (or take the ones the
+        change points at)."""
+        with param.parameterized.batch_call_watchers(self):
+            self.param.selected.objects = names
+            self.selected = [n for n in (selected if selected is not None else self.selected) if n in names]
 
     def _default_info(self) -> CompoundInfo:
         return CompoundInfo(polymer=self.polymer, f=float(self.f), filler=float(self.filler))
 
     def load_samples(self, manifest_path=None) -> list[str]:
-        """:meth:`FileStore.load_samples`, then the fit view shows the selected (baseline) compound's recipe."""
-        problems = super().load_samples(manifest_path)
+        """The store's :meth:`FileStore.load_samples`, then the fit view shows the selected (baseline)
+        compound's recipe."""
+        problems = self.store.load_samples(manifest_path)
         self._prefill_from_selection()
         return problems
 
@@ -346,7 +390,7 @@ class DataState(FileStore):
         groups = {f.group for f in self.files if f.name in self.selected}
         return groups.pop() if len(groups) == 1 else None
 
-    @param.depends("selected", "compounds", watch=True)
+    @param.depends("selected", watch=True)
     def _prefill_from_selection(self):
         """The fit view shows the recipe of the compound it fits (kept in step when either changes)."""
         info = self.compounds.get(self.selected_compound() or "")
@@ -405,6 +449,9 @@ class DataState(FileStore):
             if not self.files:
                 return []  # nothing loaded yet: nothing to say
             raise ValueError("no test curves selected: tick at least one loaded file under 'Files in the fit'")
+        key = (tuple(id(c) for c in curves), tuple(self.fit_models), self.residual, self.polymer)
+        if key == self._fit_key and self.results is self._fit_results:
+            return list(self.failures.values())  # the same curves, models and weighting: the fits stand
         data_modes = {c.mode for c in curves}
         results, failures = {}, {}
         for name in self.fit_models:
@@ -425,6 +472,7 @@ class DataState(FileStore):
             self.results, self.failures = results, failures
             if self.table_model not in names:
                 self.table_model = self._preferred(names)
+        self._fit_key, self._fit_results, self._fit_curves = key, results, curves
         return list(failures.values())
 
     @staticmethod
@@ -518,5 +566,5 @@ def _manifest_info(comp, swell_rows, chi=None) -> CompoundInfo:
 
 from .swell_state import SwellState  # noqa: E402  (re-exported: it used to live here)
 
-__all__ = ["CompoundInfo", "DataState", "LoadedFile", "MAX_UPLOAD_BYTES", "SwellState", "compound_from_filename",
-           "missing_items"]
+__all__ = ["CompoundInfo", "DataState", "FileStore", "LoadedFile", "MAX_UPLOAD_BYTES", "SwellState",
+           "compound_from_filename", "missing_items"]

@@ -78,7 +78,9 @@ class DataView(pn.viewable.Viewer):
         self._show_file = guarded(self.messages, "file", "Preview")(self._show_file)
         self._read_pending = guarded(self.messages, "upload", "Upload")(self._read_pending)
         # one watcher for the store: an upload changes files and selection together and is drawn once
-        s.param.watch(self._on_store, ["files", "selected"])
+        self._store_key = None  # (file identities, selection) last drawn
+        s.store.param.watch(self._on_store, ["files"])  # the session's file store (its own object)
+        s.param.watch(self._on_store, ["selected"])  # the fit's choice of files
         s.param.watch(lambda *e: self._refit(), ["fit_models", "residual", "polymer"])  # polymer: the fit's notices
         self.units.param.watch(lambda *e: self._show_file(), ["stress"])
         self._built = self._build()
@@ -87,8 +89,16 @@ class DataView(pn.viewable.Viewer):
 
     # ----- callbacks ----------------------------------------------------------------------------------
     def _on_store(self, *events):
-        if any(e.name == "files" for e in events):
+        """The store's files or the fit's selection changed (one change of both arrives twice: once per
+        object); redraw once per new (files, selection)."""
+        s = self.state
+        files = tuple(id(f) for f in s.store.files)
+        key = (files, tuple(s.selected))
+        if key == self._store_key:
+            return
+        if self._store_key is None or files != self._store_key[0]:
             self._files_changed()
+        self._store_key, self._store_files = key, list(s.store.files)  # held: their ids stay theirs
         self._refit()
 
     def _upload_items(self, event) -> list[tuple[str, bytes]]:

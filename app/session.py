@@ -1,7 +1,8 @@
 """One browser session's states, made once and handed to every view — no Panel import.
 
-``Session()`` holds the explorer's :class:`NetworkState`, the one data store :class:`DataState` (files and
-compounds every tab reads), the Compare tab's :class:`CompareState` (over that store), the swelling form's
+``Session()`` holds the explorer's :class:`NetworkState`, the one file store :class:`FileStore` (``store``:
+files and compounds every tab reads), the fit tab's :class:`DataState` (``data``, a separate object holding that
+store), the Compare tab's :class:`CompareState` (over that store), the swelling form's
 :class:`SwellState`, the Design tab's :class:`DesignState` and the display units — and the session's one
 :class:`network_models.study.Study` (:meth:`Session.study`): the store's compounds with the settings the tabs
 write (Compare: model, baseline, service temperature, chosen compounds; fit view: residual weighting; Design:
@@ -18,7 +19,7 @@ from dataclasses import replace
 from network_models.project import Project, ProjectCompound, ProjectInput, read_project, write_project
 
 from .compare_state import CompareState, build_compound
-from .data_state import CompoundInfo, DataState, LoadedFile
+from .data_state import CompoundInfo, DataState, FileStore, LoadedFile
 from .design_state import DesignState
 from .display_units import DisplayUnits
 from .state import NetworkState
@@ -43,10 +44,10 @@ SETTINGS = {
 class Session:
     def __init__(self):
         self.network = NetworkState()
-        self.data = DataState()
-        #: the file store role of ``data`` (FileStore API: files, compounds, set_files, ...); compare, swelling
-        #: and the study read the store through it, the fit tab through ``data``
-        self.store = self.data
+        #: the session's file store (files and compounds every tab reads) and the fit tab's state, two objects:
+        #: the fit state holds the store (``data.store is store``) and follows its files
+        self.store = FileStore()
+        self.data = DataState(store=self.store)
         self.compare = CompareState(data=self.data)
         self.swell = SwellState()
         self.design = DesignState()
@@ -71,15 +72,15 @@ class Session:
 
         from . import shared
 
-        d, c = self.data, self.compare
-        if self._study is None or self._study[0] != d.revision:
+        d, c, store = self.data, self.compare, self.store
+        if self._study is None or self._study[0] != store.revision:
             comps = []
-            for name in d.compound_names():
+            for name in store.compound_names():
                 try:
-                    comps.append(build_compound(d, name))
+                    comps.append(build_compound(store, name))
                 except ValueError:  # a compound without curves yet: not part of the comparison
                     continue
-            self._study = (d.revision, Study(comps, title=c.title, purpose=c.purpose,
+            self._study = (store.revision, Study(comps, title=c.title, purpose=c.purpose,
                                              fit_function=shared.fit_or_error, compare_function=shared.compare))
         st = self._study[1]
         from network_models.constants import ZERO_CELSIUS
@@ -185,10 +186,10 @@ class Session:
                                          metadata=dict(c.metadata), swelling=tests, recipe=recipe)
         problems = list(getattr(proj, "notices", []))  # fields of the file that were ignored
         d = self.data
-        d.manifest_title, d.manifest_note = "", ""
+        self.store.manifest_title, self.store.manifest_note = "", ""
         selected = [i.name for i in proj.inputs if i.selected]
         d.results, d.failures = {}, {}
-        d.set_files(files, selected, compounds={**comps, **{f.group: replace(CompoundInfo()) for f in files
+        self.store.set_files(files, selected, compounds={**comps, **{f.group: replace(CompoundInfo()) for f in files
                                                             if f.group not in comps}})
         from network_models import MODELS
 

@@ -81,8 +81,8 @@ class SwellView(pn.viewable.Viewer):
         self.units.param.watch(lambda *e: (self._update(), self._draw_table()), ["density"])
         if data is not None:
             data.param.watch(lambda *e: self._update(), ["results", "table_model"])
-            data.param.watch(lambda *e: self._draw_table(), ["compounds"])
-            data.param.watch(lambda *e: self._refresh_compounds(), ["compounds"])
+            data.store.param.watch(lambda *e: self._draw_table(), ["compounds"])  # the session's file store
+            data.store.param.watch(lambda *e: self._refresh_compounds(), ["compounds"])
         if s.compound:
             self._apply_compound(s.compound)
         self._update()

@@ -8,7 +8,9 @@ session is released about a second later instead of Bokeh's default 15 s; nothin
 * Session-ready time: wall time of an HTTP GET of the page.  The server builds the session's whole page
   (Bokeh document) before it answers, so this is the server time a new colleague waits for.  One
   session alone (median of 3), then 12 requests at once (median and slowest; their wall time / 12 is the
-  server time per session when they queue on one process).
+  server time per session when they queue on one process); the server process's CPU time over those 12
+  requests / 12 (``/proc/PID/stat``) is ``session_server_cpu_s_12``, the figure other work on the machine
+  does not inflate.
 * Memory kept per closed session: sessions are opened over the websocket (``bokeh.client.pull_session``,
   as a browser does) and closed, in rounds; after each round the server's resident set (``/proc/PID``
   VmRSS) is read once the sessions are released.  The first round is warm-up (imports, caches, allocator
@@ -41,6 +43,15 @@ def served(lifetime_s: float = 1.0, timeout_s: float = 90.0, extra=()):
     """``netstretch serve`` on a free localhost port with sessions released ``lifetime_s`` after they close;
     yields (process, url, log path).  Always stopped."""
     return netstretch_server("127.0.0.1", ("--session-lifetime", str(lifetime_s), *extra), timeout_s)
+
+
+def cpu_s(pid: int) -> float:
+    """CPU seconds (user + system) process ``pid`` has used, from /proc/PID/stat (Linux)."""
+    import os
+
+    with open(f"/proc/{pid}/stat", encoding="ascii") as fh:
+        fields = fh.read().rpartition(")")[2].split()
+    return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
 
 
 def get_page(url: str, timeout: float = 180.0) -> float:
@@ -101,13 +112,15 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
     twelve = left is None or left >= QUICK_NEEDS_S
     if left is not None and left < QUICK_NEEDS_ONE_S:
         return {"session_ready_s_1": None, "session_ready_s_12_median": None, "session_server_s_12": None,
-                "memory_kept_mib_per_session": None,
+                "session_server_cpu_s_12": None, "memory_kept_mib_per_session": None,
                 "notes": [f"not run: less than {QUICK_NEEDS_ONE_S:.0f} s of the quick run's time budget left "
                           "(the full run `python -m benchmarks` measures it)"]}
     with served() as (proc, url, log_path):
         get_page(url)  # first page pays the imports
         single = [get_page(url) for _ in range(2 if quick else 3)]
+        cpu0 = cpu_s(proc.pid)
         many, wall = ready_times(url, 12) if twelve else (None, None)
+        cpu12 = (cpu_s(proc.pid) - cpu0) / 12 if twelve else None
         rss = [] if quick else soak(proc, url, rounds, per_round)
         log_text = log_path.read_text("utf-8", errors="replace")
     kept = kept_per_session(rss, per_round) if rss else None
@@ -121,6 +134,7 @@ def run(quick: bool = False, deadline: float | None = None) -> dict:
         "session_ready_s_1": statistics.median(single),
         "session_ready_s_12_median": statistics.median(many) if many else None,
         "session_server_s_12": wall / 12 if wall else None,
+        "session_server_cpu_s_12": cpu12,
         "memory_kept_mib_per_session": kept,
         "detail": {
             "single_s": single, "twelve_s": many, "twelve_wall_s": wall,

@@ -45,9 +45,25 @@ def kelvin(T_celsius: float) -> float:
 def t_quantile(dof: int, level: float = 0.95) -> float:
     """Two-sided Student-t quantile for a ``level`` interval with ``dof`` degrees of freedom
     (scipy.stats.t.ppf((1 + level)/2, dof)); dof < 1 is clipped to 1."""
-    from scipy import stats
-
-    return float(stats.t.ppf(0.5 + level / 2.0, max(int(dof), 1)))
+    return student_t_ppf(0.5 + level / 2.0, max(int(dof), 1))
 
 
-__all__ = ["CAUTION", "R", "ZERO_CELSIUS", "LAB_TEMPERATURE", "TRADE_MODULI", "celsius", "kelvin", "t_quantile"]
+# Student-t through scipy.special (the functions scipy.stats.t calls): the same numbers bit for bit
+# (tests/test_benchmarks_fastpaths.py checks them against scipy.stats.t) without importing scipy.stats,
+# which costs about half a second — most of a cold `netstretch compare`.
+def student_t_ppf(q: float, dof: float) -> float:
+    """Student-t quantile: ``scipy.stats.t.ppf(q, dof)``."""
+    from scipy.special import stdtrit
+
+    return float(stdtrit(dof, q))
+
+
+def student_t_sf(x: float, dof: float) -> float:
+    """Student-t upper tail: ``scipy.stats.t.sf(x, dof)``."""
+    from scipy.special import stdtr
+
+    return float(stdtr(dof, -x))
+
+
+__all__ = ["CAUTION", "R", "ZERO_CELSIUS", "LAB_TEMPERATURE", "TRADE_MODULI", "celsius", "kelvin", "student_t_ppf",
+           "student_t_sf", "t_quantile"]

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .constants import t_quantile
+from .constants import student_t_ppf, student_t_sf, t_quantile
 
 #: two-sided significance level of the verdicts
 ALPHA = 0.05
@@ -145,18 +145,14 @@ def _t(dof: float, level: float) -> float:
     """Two-sided Student-t quantile at a possibly non-integer dof (Welch)."""
     if float(dof).is_integer():
         return t_quantile(int(dof), level)
-    from scipy import stats
-
-    return float(stats.t.ppf(0.5 + level / 2.0, max(dof, 1.0)))
+    return student_t_ppf(0.5 + level / 2.0, max(dof, 1.0))
 
 
 def detectable_difference(se: float, dof: float, alpha: float = ALPHA, power: float = POWER) -> float:
     """Smallest true difference a two-sided test at ``alpha`` detects with probability ``power``:
     (t₁₋α/₂,ν + t_power,ν)·SE (Zar 1999, §8.4; from memory, checked against the non-central t in tests)."""
-    from scipy import stats
-
     dof = max(float(dof), 1.0)
-    return (float(stats.t.ppf(1.0 - alpha / 2.0, dof)) + float(stats.t.ppf(power, dof))) * se
+    return (student_t_ppf(1.0 - alpha / 2.0, dof) + student_t_ppf(power, dof)) * se
 
 
 @dataclass(frozen=True)
@@ -218,8 +214,6 @@ def verdict(values, baseline_values, level: float = 1.0 - ALPHA) -> Verdict:
 def welch_p_value(values, baseline_values) -> float | None:
     """Two-sided p of Welch's t test of equal means (Welch 1947; the same decision as :func:`verdict`'s
     interval at α = 0.05); None when either side has fewer than two values or no scatter."""
-    from scipy.stats import t as student_t
-
     a, b = _clean(values), _clean(baseline_values)
     if a.size < 2 or b.size < 2:
         return None
@@ -228,7 +222,7 @@ def welch_p_value(values, baseline_values) -> float | None:
     if se == 0:
         return None
     tstat = float(a.mean() - b.mean()) / se
-    return float(2.0 * student_t.sf(abs(tstat), welch_dof(sa, int(a.size), sb, int(b.size))))
+    return float(2.0 * student_t_sf(abs(tstat), welch_dof(sa, int(a.size), sb, int(b.size))))
 
 
 def holm_adjust(p_values) -> list[float | None]:

@@ -173,6 +173,8 @@ class Study:
     stale: bool = False
     #: the results summary a reopened project carried (for showing, marked out of date)
     saved_results: dict = field(default_factory=dict)
+    #: a reopened project's other ``[settings.<section>]`` tables (the app's), written back by ``to_project``
+    extra_settings: dict = field(default_factory=dict)
     #: the fit call behind every fit (None: ``fitting.fit_or_error``); same signature and weighting keyword
     fit_function: object = None
     #: the comparison call (None: ``compare.compare``); the app passes its process-level cache of the
@@ -338,12 +340,31 @@ class Study:
         for name, cs in curves.items():  # inputs of a compound the file does not describe: defaults
             comps.append(Compound(name=name or "uploaded", curves=cs))
         settings = Settings.from_dict(proj.settings.get("study", {}))
-        return cls(comps, settings=settings, title=proj.title, purpose=proj.purpose, inputs=list(proj.inputs),
-                   force_temperature=ft, stale=True, saved_results=dict(proj.results))
+        extra = {k: v for k, v in proj.settings.items() if k != "study"}
+        st = cls(comps, settings=settings, title=proj.title, purpose=proj.purpose, inputs=list(proj.inputs),
+                 force_temperature=ft, stale=True, saved_results=dict(proj.results), extra_settings=extra)
+        if "study" not in proj.settings:
+            st._legacy_compare_settings(extra.get("compare"))
+        return st
+
+    def _legacy_compare_settings(self, cmp) -> None:
+        """A file written before ``[settings.study]`` existed (an older app save or results-library export):
+        its ``[settings.compare]`` model, baseline and chosen compounds — what the app restores from it — become
+        the study's settings, so the command line and the app read it alike."""
+        if not isinstance(cmp, dict):
+            return
+        chosen = [n for n in cmp.get("chosen") or [] if n in self.names and self[n].curves]
+        changes: dict = {"chosen": tuple(chosen)} if chosen and chosen != self.names else {}
+        if isinstance(cmp.get("model"), str):
+            changes["model"] = cmp["model"]
+        if cmp.get("baseline") in (chosen or self.names):
+            changes["baseline"] = cmp["baseline"]
+        self.update(**changes)
 
     def to_project(self, extra_settings: dict | None = None) -> bytes:
         """The project file (zip bytes): inputs byte for byte, compounds, every setting, a results summary
-        (when results were computed).  ``extra_settings``: further ``[settings.<section>]`` (the app's)."""
+        (when results were computed).  ``extra_settings``: further ``[settings.<section>]`` (the app's; None:
+        those the study was opened with)."""
         from . import __version__
 
         if not self.inputs:
@@ -362,7 +383,8 @@ class Study:
             results["study"] = {"model": cmp.model, "up_to_date": not self.stale,
                                 "headline_mol_m3": {r.name: r.headline.value for r in cmp.results
                                                     if r.headline is not None and r.headline.value is not None}}
-        settings = {"study": self.settings.to_dict(), **(extra_settings or {})}
+        extra = self.extra_settings if extra_settings is None else extra_settings
+        settings = {"study": self.settings.to_dict(), **{k: v for k, v in extra.items() if k != "study"}}
         return write_project(Project(settings=settings, inputs=list(self.inputs), compounds=comps, results=results,
                                      title=self.title, purpose=self.purpose, netstretch_version=__version__))
 

@@ -21,10 +21,13 @@ SI targets per dimension: length m, area m², force N, pressure Pa, temperature 
 from __future__ import annotations
 
 import math
+import os
 import re
+import shutil
 import unicodedata
 from dataclasses import dataclass
 from functools import lru_cache
+from pathlib import Path
 
 from .errors import UnitError
 
@@ -59,12 +62,33 @@ _NUMBER = r"[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?"
 _QUANTITY_RE = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 
 
+def _cache_folder(pint_version: str) -> Path | None:
+    """Where pint keeps its parsed definitions between runs: ``$NETSTRETCH_CACHE_DIR`` (``off``: nowhere),
+    else ``$XDG_CACHE_HOME/netstretch`` or ``~/.cache/netstretch``; one folder per pint version."""
+    env = os.environ.get("NETSTRETCH_CACHE_DIR", "")
+    if env.lower() == "off":
+        return None
+    base = Path(env) if env else Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache") / "netstretch"
+    return base / f"pint-{pint_version}"
+
+
 @lru_cache(maxsize=1)
 def _registry():
+    """The one pint registry.  Parsing pint's definitions file takes 0.2–0.7 s, a large share of a cold
+    command; pint's own disk cache of the parsed definitions makes it about 15 ms from the second run on.
+    The registry (and so every factor) is the same either way (tests/test_benchmarks_fastpaths.py); a cache
+    that cannot be written or read (read-only home, a file half-written by a stopped process) is removed and
+    the definitions are parsed as before."""
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-    return ureg
+    folder = _cache_folder(pint.__version__)
+    if folder is not None:
+        try:
+            folder.mkdir(parents=True, exist_ok=True)
+            return pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
+        except Exception:  # any cache trouble: parse the definitions (slower, same registry)
+            shutil.rmtree(folder, ignore_errors=True)
+    return pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
 
 
 def _dimensionality(dimension: str):

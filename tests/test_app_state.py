@@ -285,3 +285,29 @@ def test_mixed_upload_keeps_the_good_file_and_names_the_bad_one():
     assert "bad.csv" in msg and "good.csv loaded" in msg
     assert dv.state.selected == ["good.csv"]
     assert dv.state.results  # the good file was fitted
+
+
+def test_the_sessions_file_store_and_the_fit_state_are_two_objects():
+    """Issue #18 (structure): the file store every tab reads and the fit tab's state are separate objects; the
+    fit state holds the store and follows it, and a refit with the same curves and settings is not made."""
+    from app.data_state import FileStore
+    from app.session import Session
+
+    s = Session()
+    assert s.store is not s.data and isinstance(s.store, FileStore) and not isinstance(s.data, FileStore)
+    assert s.data.store is s.store and s.compare.store is s.store
+    for fit_only in ("selected", "results", "fit_models", "residual", "run_fit"):
+        assert not hasattr(s.store, fit_only)  # the store has no fit state
+    s.data.load_samples()
+    names = [f.name for f in s.store.files]
+    assert s.data.param.selected.objects == names and s.data.selected
+    assert {f.group for f in s.store.files if f.name in s.data.selected} == {s.store.manifest_baseline}
+    other = DataState(store=s.store)  # a second fit state over the same store sees the same files
+    assert other.param.selected.objects == names
+    s.data.run_fit()
+    first = s.data.results
+    s.data.run_fit()  # the same curves, models and weighting: the fits stand
+    assert s.data.results is first
+    s.data.residual = "absolute" if s.data.residual == "relative" else "relative"
+    s.data.run_fit()
+    assert s.data.results is not first

@@ -185,7 +185,7 @@ def test_a_file_that_is_not_a_project_is_refused_in_a_sentence():
 def test_missing_geometry_form_asks_for_exactly_the_missing_items(page, monkeypatch):
     dv = page.ns_data
     calls = []
-    real = dv.state.add_upload
+    real = dv.state.store.add_upload  # uploads are read by the session's file store (its own object)
 
     def fake(name, data, compound=None, **opts):
         calls.append(opts)
@@ -195,7 +195,7 @@ def test_missing_geometry_form_asks_for_exactly_the_missing_items(page, monkeypa
             raise err
         return real(name, gauss_csv(130.0), compound, mode="uniaxial")
 
-    monkeypatch.setattr(dv.state, "add_upload", fake)
+    monkeypatch.setattr(dv.state.store, "add_upload", fake)
     dv._on_upload(SimpleNamespace(new={"RAW-9_force.csv": b"force,extension\n0,0\n1,1\n"}))
     assert dv.missing_box.visible
     assert list(dv.missing_inputs) == ["gauge_length", "width", "thickness"]
@@ -339,7 +339,7 @@ def test_curves_made_in_code_survive_a_project_round_trip():
 
 def test_compare_sends_a_file_lacking_geometry_to_the_form(page, monkeypatch):
     cv, dv = page.ns_compare, page.ns_data
-    real = dv.state.add_upload
+    real = dv.state.store.add_upload  # uploads are read by the session's file store (its own object)
 
     def fake(name, data, compound=None, **opts):
         if "gauge_length" not in opts:
@@ -348,7 +348,7 @@ def test_compare_sends_a_file_lacking_geometry_to_the_form(page, monkeypatch):
             raise err
         return real(name, gauss_csv(110.0), compound, mode="uniaxial")
 
-    monkeypatch.setattr(dv.state, "add_upload", fake)
+    monkeypatch.setattr(dv.state.store, "add_upload", fake)
     cv.upload.value, cv.upload.filename = [b"force,extension\n0,0\n"], ["RAW-5.csv"]
     cv.new_name.value = "Trial 5"
     cv._add()

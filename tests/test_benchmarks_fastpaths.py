@@ -319,3 +319,59 @@ def test_browser_benchmark_skips_with_a_note_when_the_quick_budget_is_spent():
     out = bench_app.run(quick=True, deadline=time.monotonic() + 1.0)
     assert out["slider_update_ms_median"] is None and out["slider_update_ms_p95"] is None
     assert "budget" in out["notes"][0]
+
+
+# ----- the study's cold start: Student-t without scipy.stats, pint's definitions cache ------------------
+def test_student_t_through_scipy_special_equals_scipy_stats_bit_for_bit():
+    """Reference: scipy.stats.t (the library's own distribution object); the fast path must give the same
+    floats exactly, so no interval, verdict or p-value of a comparison changes."""
+    from scipy import stats
+
+    from network_models.constants import student_t_ppf, student_t_sf, t_quantile
+
+    rng = np.random.default_rng(18)
+    dofs = [*range(1, 120), *rng.uniform(1.0, 300.0, 200)]
+    for dof in dofs:
+        for q in (0.5, 0.8, 0.9, 0.95, 0.975, 0.995):
+            assert student_t_ppf(q, dof) == float(stats.t.ppf(q, dof))
+        for x in rng.uniform(0.0, 12.0, 4):
+            assert student_t_sf(x, dof) == float(stats.t.sf(x, dof))
+    # textbook check: t_{0.975, 10} = 2.228 (two-sided 95 %, 10 dof; Student-t tables, e.g. Zar 1999 App. B.3)
+    assert round(t_quantile(10), 3) == 2.228
+    t_quantile.cache_clear()
+
+
+def test_pint_definitions_cache_gives_the_same_factors(tmp_path, monkeypatch):
+    """A registry from pint's disk cache converts exactly as one parsed from pint's definitions file
+    (reference: pint itself, no cache); a broken cache falls back to parsing, with the same factors."""
+    import pint
+
+    from network_models import units
+
+    plain = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    texts = [("MPa", "pressure"), ("psi", "pressure"), ("kgf/cm**2", "pressure"), ("N", "force"),
+             ("lbf", "force"), ("mm", "length"), ("in", "length"), ("mm**2", "area"), ("degC", "temperature"),
+             ("degF", "temperature"), ("percent", "dimensionless")]
+
+    def factors(ureg):
+        out = []
+        for t, dim in texts:
+            target = units.DIMENSIONS[dim][0]
+            out.append((ureg.Quantity(0.0, t).to(target).magnitude, ureg.Quantity(1.0, t).to(target).magnitude))
+        return out
+
+    expected = factors(plain)
+    monkeypatch.setenv("NETSTRETCH_CACHE_DIR", str(tmp_path))
+    for _ in range(2):  # first: parses and writes the cache; second: reads it
+        units._registry.cache_clear()
+        assert factors(units._registry()) == expected
+    folder = units._cache_folder(pint.__version__)
+    assert folder is not None and any(folder.iterdir())
+    for f in folder.iterdir():  # a cache file cut short (a process stopped while writing)
+        if f.is_file() and f.suffix != ".json":
+            f.write_bytes(f.read_bytes()[:10])
+    units._registry.cache_clear()
+    assert factors(units._registry()) == expected
+    monkeypatch.setenv("NETSTRETCH_CACHE_DIR", "off")
+    assert units._cache_folder(pint.__version__) is None
+    units._registry.cache_clear()

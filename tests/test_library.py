@@ -543,3 +543,69 @@ def test_library_tab_finds_opens_trends_and_saves_with_the_login_name(tmp_path, 
     view.targets.value = "nu=120..160mol/m3"
     asyncio.run(view._clicked("search")())
     assert "library-find" not in view.messages.texts() and "compound(s) meet" in view.matches.object
+
+
+# ----- the library stores the study object (issue #18) ---------------------------------------------------------
+def _cli_json(argv, capsys):
+    capsys.readouterr()
+    assert main(argv) == 0
+    return json.loads(capsys.readouterr().out)
+
+
+def test_the_sample_study_imported_exported_and_compared_gives_the_manifest_numbers(tmp_path, capsys):
+    """The library stores the Study built from the manifest (its settings, its inputs by SHA-256, the results of
+    its own comparison); the exported project file is that study: `compare --project` on it gives, per compound,
+    the headline ν and G₀ that `compare --manifest` gives.  Reference: the CLI's own manifest comparison (the
+    issue's contract: one study, one answer, wherever it was stored)."""
+    url = f"sqlite:///{tmp_path / 's.sqlite'}"
+    manifest = str(SAMPLES / "compounds.toml")
+    res = _cli_json(["library", "import", "--manifest", manifest, "--db", url, "--json"], capsys)
+    assert res["created"] and res["compounds"] == 5
+    zpath = tmp_path / "sample.zip"
+    assert main(["library", "export", "--db", url, "--study", str(res["study"]), "-o", str(zpath)]) == 0
+    by_manifest = _cli_json(["compare", "--manifest", manifest, "--json"], capsys)
+    by_project = _cli_json(["compare", "--project", str(zpath), "--json"], capsys)
+
+    def per_compound(doc):
+        return {c["name"]: (c["headline"]["value"], c["headline"]["basis"], c["G0"]["mean"],
+                            (c.get("pooled") or {}).get("G0")) for c in doc["compounds"]}
+
+    assert per_compound(by_project) == per_compound(by_manifest)
+    assert by_project["residual"] == by_manifest["residual"] and by_project["model"] == by_manifest["model"]
+    # the stored numbers are the study's: each compound's headline row is the comparison's headline
+    eng = connect(url)
+    with eng.connect() as conn:
+        stored = dict(conn.execute(sa.select(S.compounds.c.name, S.results.c.value)
+                                   .join(S.compounds, S.compounds.c.id == S.results.c.compound_id)
+                                   .where(S.results.c.headline.is_(True))).all())
+        settings = json.loads(conn.execute(sa.select(S.studies.c.settings)).scalar())
+        roles = sorted(conn.execute(sa.select(S.inputs.c.role).distinct()).scalars())
+    assert stored == {c["name"]: c["headline"]["value"] for c in by_manifest["compounds"]}
+    assert settings["study"]["residual"] == "relative" and settings["study"]["model"] == by_manifest["model"]["name"]
+    assert roles == ["curve", "force_temperature", "manifest", "swelling"]  # every input of the study, by role
+    # importing the export again is the same study's numbers (a new study row: the settings text differs only
+    # by the manifest input, which a project does not carry)
+    again = import_study("project", zpath, url)
+    with eng.connect() as conn:
+        back = dict(conn.execute(sa.select(S.compounds.c.name, S.results.c.value)
+                                 .join(S.compounds, S.compounds.c.id == S.results.c.compound_id)
+                                 .where(S.results.c.headline.is_(True), S.compounds.c.study_id == again.study)).all())
+    assert back == stored
+
+
+def test_a_project_with_only_the_apps_compare_settings_keeps_its_model(tmp_path):
+    """A project written before [settings.study] existed (an older export or app save): the library, like the
+    app, reads its model and chosen compounds from [settings.compare]."""
+    from network_models.project import Project, ProjectInput, write_project
+
+    data = (QC / "QM-M7-B01.csv").read_bytes()
+    old = write_project(Project(settings={"compare": {"model": "affine", "chosen": ["A"]}},
+                                inputs=[ProjectInput(name="a.csv", data=data, compound="A"),
+                                        ProjectInput(name="b.csv", data=data, compound="B")]))
+    url = f"sqlite:///{tmp_path / 'o.sqlite'}"
+    res = import_study("project", old, url)
+    eng = connect(url)
+    with eng.connect() as conn:
+        assert conn.execute(sa.select(S.studies.c.model)).scalar() == "affine"
+        assert list(conn.execute(sa.select(S.compounds.c.name)).scalars()) == ["A"]
+    assert res.compounds == 1

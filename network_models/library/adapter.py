@@ -1,9 +1,11 @@
-"""The one place the library meets the rest of netstretch: what a study IS (its inputs with their bytes, its
-settings, its compounds) and how its results are computed.  :func:`study_from` is the adapter; when the Study
-object (network_models/study.py) lands, only this module is re-pointed at it.
+"""The one place the library meets the rest of netstretch: a study to store is the study object of
+:mod:`network_models.study` — its inputs with their bytes, its settings, its compounds and the results its own
+comparison gives.  :func:`study_from` builds that :class:`~network_models.study.Study` (``Study.from_manifest``,
+``Study.from_project``; the library parses no manifest or project file itself) and wraps it for storing.
 
-A study to store is a :class:`StudyInput`: the input files (bytes, by SHA-256), the settings, the compounds
-(with their curves, read from those bytes), the model and the date each compound was tested.
+A study to store is a :class:`StudyInput`: the input files (bytes, by SHA-256), the settings (the project file's
+``[settings.*]`` sections, ``study`` among them), the compounds (with their curves, read from those bytes), the
+model, and the :class:`Study` whose ``comparison()`` gives the stored results (None for a batch output).
 """
 
 from __future__ import annotations
@@ -50,6 +52,8 @@ class StudyInput:
     compounds: list = field(default_factory=list)  # network_models.compounds.Compound
     baseline: str | None = None
     exclusions: dict = field(default_factory=dict)
+    #: the study object (network_models.study.Study) the results come from; None for a batch output
+    study: object = None
 
     def content_hash(self) -> str:
         """SHA-256 over the inputs (name, bytes' hash, compound, options), the settings, the model and the compound
@@ -125,84 +129,49 @@ def study_from(kind: str, path, model: str | None = None) -> StudyInput:
     raise ValueError(f"unknown study kind {kind!r}")
 
 
-def _rel(path, folder: Path) -> str:
-    q = Path(path).resolve()
-    try:
-        return q.relative_to(folder).as_posix()
-    except ValueError:
-        return q.name
+#: project-file input kind → the library's input role (the manifest itself is stored as role "manifest")
+ROLE_OF_KIND = {"curves": "curve", "swelling": "swelling", "force-temperature": "force_temperature"}
+KIND_OF_ROLE = {v: k for k, v in ROLE_OF_KIND.items()}
+
+
+def _wrap(study, kind: str, title: str, source: str, extra_inputs=(), other_settings=None) -> StudyInput:
+    """The study as the library stores it: its inputs by role, its settings, the compounds it compares."""
+    s = study.settings
+    inputs = list(extra_inputs) + [InputFile(name=i.name, data=bytes(i.data), role=ROLE_OF_KIND.get(i.kind, "curve"),
+                                             compound=i.compound, options=dict(i.options)) for i in study.inputs]
+    comps = study.compounds if s.chosen is None else [study[n] for n in s.chosen]
+    settings = {**(other_settings or {}), "study": s.to_dict()}
+    return StudyInput(kind=kind, title=title, source=source, model=s.model, settings=settings, inputs=inputs,
+                      compounds=list(comps), baseline=s.baseline, exclusions=s.exclusion_dict, study=study)
 
 
 def _from_manifest(p: Path, model):
-    from ..compounds import load_manifest
-    from ..models import get_model
+    from ..errors import UserError
+    from ..study import Study
 
-    man = load_manifest(p)
-    folder = p.resolve().parent
-    inputs = [InputFile(name=p.name, data=p.read_bytes(), role="manifest")]
-    seen = set()
-    for c in man.compounds:
-        for cv in c.curves:
-            src = cv.source
-            if not src or src in seen:
-                continue
-            seen.add(src)
-            modes = {x.mode.value for x in c.curves if x.source == src}
-            inputs.append(InputFile(name=_rel(src, folder), data=Path(src).read_bytes(), role="curve",
-                                    compound=c.name, options={"mode": modes.pop()} if len(modes) == 1 else {}))
-    if man.swelling_path is not None:
-        inputs.append(InputFile(name=_rel(man.swelling_path, folder), data=Path(man.swelling_path).read_bytes(),
-                                role="swelling"))
-    for ft in man.force_temperature:
-        inputs.append(InputFile(name=_rel(ft, folder), data=Path(ft).read_bytes(), role="force_temperature"))
-    own = man.extra.get("model") if isinstance(man.extra.get("model"), str) else None
-    name = get_model(model or own or DEFAULT_MODEL).name
-    settings = {"compare": {"model": name, "baseline": man.baseline, "chosen": [c.name for c in man.compounds],
-                            "title": man.title, "purpose": man.purpose}}
-    return StudyInput(kind="manifest", title=man.title or p.stem, source=p.name, model=name, settings=settings,
-                      inputs=inputs, compounds=list(man.compounds), baseline=man.baseline)
+    try:
+        study = Study.from_manifest(p)
+        if model:
+            study.update(model=model)
+    except (UserError, ValueError) as exc:
+        raise LibraryError(f"{p.name}: {exc}") from None
+    return _wrap(study, "manifest", study.title or p.stem, p.name,
+                 extra_inputs=[InputFile(name=p.name, data=p.read_bytes(), role="manifest")])
 
 
 def _from_project(p, model):
-    from ..compounds import Compound, SwellingTest
-    from ..labfiles import read_curves_bytes
-    from ..models import get_model
+    from ..errors import UserError
+    from ..study import Study
 
-    mod = _project_module()
     name = "project" if isinstance(p, bytes) else p.name
     try:
-        proj = mod.read_project(p)
-    except ValueError as exc:
-        raise LibraryError(str(exc)) from None
-    facts = {c.name: c for c in proj.compounds}
-    curves: dict[str, list] = {}
-    inputs = []
-    for inp in proj.inputs:
-        group = inp.compound or "uploaded"
-        inputs.append(InputFile(name=inp.name, data=bytes(inp.data), role="curve", compound=group,
-                                options=dict(inp.options)))
-        curves.setdefault(group, []).extend(read_curves_bytes(inp.data, inp.name, **inp.options))
-    cmp_settings = dict(proj.settings.get("compare", {}))
-    chosen = [n for n in cmp_settings.get("chosen", []) if n in curves] or list(curves)
-    comps = []
-    for name in chosen:
-        fc = facts.get(name)
-        meta = dict(fc.metadata) if fc else {}
-        if fc and fc.filler and "filler_volume_fraction" not in meta:
-            meta["filler_volume_fraction"] = fc.filler
-        swell = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL}) for s in (fc.swelling if fc else [])]
-        comps.append(Compound(name=name, curves=curves[name], swelling=swell, metadata=meta,
-                              polymer=fc.polymer if fc else "NR", f=fc.f if fc else 4.0,
-                              notes=fc.notes if fc else ""))
-    own = cmp_settings.get("model")
-    mname = get_model(model or own or DEFAULT_MODEL).name
-    baseline = cmp_settings.get("baseline") if cmp_settings.get("baseline") in chosen else None
-    title = proj.title or (name if isinstance(p, bytes) else p.stem)
-    return StudyInput(kind="project", title=title, source=name, model=mname,
-                      settings=dict(proj.settings), inputs=inputs, compounds=comps, baseline=baseline)
-
-
-_SWELL = ("dry", "swollen", "solvent", "chi", "extracted", "temperature", "specimen", "source")
+        study = Study.from_project(p)
+        if model:
+            study.update(model=model)
+    except (UserError, ValueError) as exc:
+        raise LibraryError(f"{name}: {exc}") from None
+    title = study.title or (name if isinstance(p, bytes) else p.stem)
+    return _wrap(study, "project", title, name, other_settings=study.extra_settings)
 
 
 #: a batch output larger than this is refused (a results file of a million curves is ~200 MB)

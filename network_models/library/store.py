@@ -114,13 +114,16 @@ def _conditions(c) -> list[dict]:
 
 
 def _analyse(st: StudyInput, today) -> list[dict]:
-    """Compare the study's compounds with its model → one dict per compound with specimens and result rows."""
-    from ..compare import compare
+    """The study's own comparison (``Study.comparison()``: its model, weighting, χ source, exclusions — the
+    numbers `compare` gives for the same study) → one dict per compound with specimens and result rows."""
+    from ..errors import UserError
 
-    if not st.compounds:
+    if not st.compounds or st.study is None:
         raise LibraryError(f"{st.source}: the study has no compounds to store")
-    cmp = compare(st.compounds, model=st.model, baseline=st.baseline, exclude=st.exclusions or None,
-                  spread_models=())
+    try:
+        cmp = st.study.comparison()
+    except (UserError, ValueError) as exc:
+        raise LibraryError(f"{st.source}: {exc}") from None
     out = []
     for r in cmp.results:
         c = r.compound
@@ -277,10 +280,13 @@ def import_study(kind: str, path, db=None, *, model=None, saved_by=None, engine=
 
 # ----- export ------------------------------------------------------------------------------------------------------
 def export_study(study_id: int, db=None, *, engine=None) -> bytes:
-    """A stored study as project-file bytes: its inputs byte for byte, its settings and compound facts."""
+    """A stored study as its project file: the study rebuilt from its inputs (byte for byte, every kind), its
+    compound facts and its settings, then written by ``Study.to_project`` — so ``compare --project`` on the export
+    gives the numbers the study gave when it was imported."""
     from sqlalchemy import select
 
-    from .adapter import _project_module
+    from ..study import Study
+    from .adapter import KIND_OF_ROLE, _project_module
 
     mod = _project_module()
     eng = engine or connect(db)
@@ -297,7 +303,8 @@ def export_study(study_id: int, db=None, *, engine=None) -> bytes:
         raise LibraryError(f"study {study_id} is a batch output, not a comparison: it has no project file; its rows "
                            "are in the library's batch_rows table")
     inputs = [mod.ProjectInput(name=i["name"], data=bytes(i["data"]), compound=i["compound"],
-                               options=json.loads(i["options"]), selected=True) for i in ins if i["role"] == "curve"]
+                               options=json.loads(i["options"]), selected=True, kind=KIND_OF_ROLE[i["role"]])
+              for i in ins if i["role"] in KIND_OF_ROLE]
     pcs = []
     for c in comps:
         facts = json.loads(c["metadata"])
@@ -308,9 +315,14 @@ def export_study(study_id: int, db=None, *, engine=None) -> bytes:
                                        notes=facts.get("notes", ""), metadata=meta,
                                        swelling=list(facts.get("swelling", []))))
     settings = json.loads(st["settings"])
-    settings.setdefault("compare", {})["model"] = st["model"]
-    return mod.write_project(mod.Project(settings=settings, inputs=inputs, compounds=pcs, title=st["title"],
+    if "study" not in settings:  # stored before the library kept the study's settings: the model it was stored with
+        settings.setdefault("compare", {})["model"] = st["model"]
+    data = mod.write_project(mod.Project(settings=settings, inputs=inputs, compounds=pcs, title=st["title"],
                                          netstretch_version=st["netstretch_version"]))
+    try:
+        return Study.from_project(data).to_project()
+    except ValueError as exc:  # UserError or a project-file error: the stored study cannot be opened again
+        raise LibraryError(f"study {study_id} cannot be written as a project file ({exc})") from None
 
 
 __all__ = ["BASIS_KEYS", "DEFAULT_BASIS", "ImportResult", "export_study", "import_study", "store"]
