@@ -375,7 +375,7 @@ class Study:
                                  notes=c.notes, metadata=dict(c.metadata), baseline=c.baseline,
                                  swelling_source=swell_src if c.swelling else "",
                                  swelling=[_swelling_record(s) for s in c.swelling],
-                                 **_recipe_record(c)) for c in self.compounds]
+                                 **recipe_record(c)) for c in self.compounds]
         results = {}
         k = [key for key in self._results if key[0] == "comparison"]
         if k:
@@ -389,7 +389,7 @@ class Study:
                                      title=self.title, purpose=self.purpose, netstretch_version=__version__))
 
 
-def _recipe_record(c) -> dict:
+def recipe_record(c) -> dict:
     """A compound's recipe for the project file: phr and the ingredient rows not in the built-in table."""
     r = getattr(c, "recipe", None)
     if r is None:

@@ -104,6 +104,13 @@ def _recipe(c):
     return rec.to_dict() if hasattr(rec, "to_dict") else rec
 
 
+def _recipe_record(c) -> dict:
+    """The recipe as the project file holds it (phr and the ingredient rows it needs), so an export keeps it."""
+    from ..study import recipe_record
+
+    return recipe_record(c)
+
+
 def _conditions(c) -> list[dict]:
     """Test conditions per curve (file by name only — never the folder it was read from)."""
     from pathlib import PurePath
@@ -134,7 +141,7 @@ def _analyse(st: StudyInput, today) -> list[dict]:
             "metadata": _json({"metadata": c.metadata, "notes": c.notes,
                                "swelling": [s.to_dict() for s in c.swelling],
                                "test_temperature_K": r.test_temperature, "conditions": _conditions(c),
-                               "recipe": _recipe(c)}),
+                               "recipe": _recipe(c), "project_recipe": _recipe_record(c)}),
             "n": int(r.n), "error": r.error,
             "specimens": [{"name": s.name, "used": bool(s.used), "excluded": s.excluded,
                            "values": _json({k: _num(v) for k, v in s.values.items()})} for s in r.specimens],
@@ -313,7 +320,8 @@ def export_study(study_id: int, db=None, *, engine=None) -> bytes:
         pcs.append(mod.ProjectCompound(name=c["name"], polymer=c["polymer"], f=c["f"],
                                        filler_volume_fraction=c["filler"],
                                        notes=facts.get("notes", ""), metadata=meta,
-                                       swelling=list(facts.get("swelling", []))))
+                                       swelling=list(facts.get("swelling", [])),
+                                       **facts.get("project_recipe", {})))  # recipe and own ingredient rows
     settings = json.loads(st["settings"])
     if "study" not in settings:  # stored before the library kept the study's settings: the model it was stored with
         settings.setdefault("compare", {})["model"] = st["model"]
