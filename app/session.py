@@ -138,11 +138,11 @@ class Session:
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
                                        selected=f.name in d.selected))
-        from network_models.study import _recipe_record
+        from network_models.study import recipe_record
 
         comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler_volume_fraction=i.filler, notes=i.notes,
                                  metadata=dict(i.metadata), swelling=[s.to_dict() for s in i.swelling],
-                                 **_recipe_record(i))  # the recipe travels with the study (issue #21)
+                                 **recipe_record(i))  # the recipe travels with the study (issue #21)
                  for n, i in d.compounds.items()]
         settings = self.settings()
         try:
