@@ -163,7 +163,11 @@ class CompareState(param.Parameterized):
             raise ValueError("press Compare first: there is no comparison to put in a report yet")
         if self.stale:
             raise ValueError(f"the comparison is {STALE}: press Compare, then download")
-        return make_report(self.comparison, self.title, self.purpose)
+        from .display_units import displayed_comparison
+
+        # stretch shown as the session shows it (λ or elongation; issue #21) — a copy, the comparison stays as is
+        return make_report(displayed_comparison(self.comparison, getattr(self, "display_units", None)), self.title,
+                           self.purpose)
 
     # ----- compounds made in code or from files (kept for scripts and tests written against the old tab) --
     def _set(self, comps: dict, chosen=None, baseline=None):

@@ -94,7 +94,7 @@ class DataView(pn.viewable.Viewer):
         s.store.param.watch(self._on_store, ["files"])  # the session's file store (its own object)
         s.param.watch(self._on_store, ["selected"])  # the fit's choice of files
         s.param.watch(lambda *e: self._refit(), ["fit_models", "residual", "polymer"])  # polymer: the fit's notices
-        self.units.param.watch(lambda *e: self._show_file(), ["stress"])
+        self.units.param.watch(lambda *e: self._show_file(), ["stress", "stretch"])
         self._built = self._build()
         self._files_changed()
         self._refit()

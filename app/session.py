@@ -33,7 +33,7 @@ SETTINGS = {
                             "models", "lam_max", "lam_follows_data", "clamp_stretch", "expansion")),
     "fit": ("data", ("fit_models", "residual", "polymer", "f", "filler", "table_model")),
     "compare": ("compare", ("chosen", "baseline", "model", "service_C", "title", "purpose")),
-    "display": ("units", ("stress", "density")),
+    "display": ("units", ("stress", "density", "stretch")),
     # compound first: restoring it fills the recipe and stated χ, which the saved form values then override
     "swelling": ("swell", ("compound", "dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f",
                            "filler", "T_C")),
@@ -53,6 +53,7 @@ class Session:
         self.design = DesignState()
         self.design.dose_compounds = self._dose_compounds  # the Design tab's dose window reads the store
         self.units = DisplayUnits()
+        self.compare.display_units = self.units  # the Compare tab's tables follow the stretch display (#21)
         self._study = None  # (store revision, Study)
         self.compare.study_source = self.study
         #: the results summary of a reopened project, shown as out of date until the comparison is recomputed
