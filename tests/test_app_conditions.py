@@ -119,3 +119,19 @@ def test_the_project_reader_drops_unknown_conditions_and_refuses_wrong_types():
     bad = ProjectInput(name="a.csv", data=gauss_csv(), compound="A", conditions={"die": 3})
     with pytest.raises(ProjectFileError, match="conditions die must be text"):
         read_project(write_project(Project(inputs=[bad])))
+
+
+def test_the_command_line_reads_the_apps_conditions_from_a_project(page):
+    from network_models.report.recipe_sections import conditions_html
+    from network_models.study import Study
+
+    dv, s = page.ns_data, page.ns_session
+    dv.cond_inputs["die"].value = "cutter <7>"
+    dv._apply_conditions()
+    st = Study.from_project(s.to_project())  # what `compare --project` and `report --project` open
+    c = next(c for c in st.compounds if c.name == "K-1")
+    assert c.curves[0].metadata["conditions"]["die"] == "cutter <7>"
+    from network_models.compare import compare
+
+    html = "".join(conditions_html(compare([c], model="neo-hookean", spread_models=())))
+    assert "cutter &lt;7&gt;" in html
