@@ -56,9 +56,10 @@ def make_report(comparison, title: str = "", purpose: str = ""):
     return Report(comparison, title=title or "Compound design review", purpose=purpose)
 
 
-def fit_report(data: DataState, title: str = ""):
+def fit_report(data: DataState, title: str = "", units=None):
     """A single-compound report of the fit view's selection and model (the fit view's polymer, f and
-    filler).  Raises ValueError with a sentence when there is nothing to report."""
+    filler; stretch shown as ``units`` shows it).  Raises ValueError with a sentence when there is nothing to
+    report."""
     files = [f for f in data.files if f.name in data.selected]
     if not files:
         raise ValueError("tick at least one file under 'Files in the fit' first")
@@ -72,7 +73,9 @@ def fit_report(data: DataState, title: str = ""):
     comp = Compound(name, [c for f in files for c in f.curves], swelling=list(info.swelling) if info else [],
                     metadata=meta, polymer=data.polymer, f=float(data.f))
     cmp = compare_compounds([comp], data.table_model, None, None)
-    return make_report(cmp, title or f"Fit report: {name}", purpose="")
+    from .display_units import displayed_comparison
+
+    return make_report(displayed_comparison(cmp, units), title or f"Fit report: {name}", purpose="")
 
 
 # ----- the tab's state ------------------------------------------------------------------------------------

@@ -282,7 +282,7 @@ class FitPanel(pn.viewable.Viewer):
 
     # ----- actions --------------------------------------------------------------------------------------
     def _report_file(self):
-        rep = fit_report(self.state)
+        rep = fit_report(self.state, units=self.units)  # stretch as the session shows it
         self.action_messages.show("report", "Fit report written: it holds this fit with the polymer, f and filler set "
                                      "here.", "success")
         return io.BytesIO(rep.to_html().encode("utf-8"))

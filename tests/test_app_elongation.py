@@ -124,6 +124,15 @@ def test_compare_tables_show_the_lock_as_elongation_reserve(page, units):
     assert "elongation reserve" not in cv.table.object
 
 
+def test_the_fit_report_follows_the_toggle(page, units):
+    fit = page.ns_data.fit
+    before = fit._report_file().getvalue().decode()
+    assert "elongation (%)" not in before
+    units.stretch = "elongation"
+    after = fit._report_file().getvalue().decode()
+    assert "elongation (%)" in after  # the report's curve charts get an elongation axis
+
+
 def test_the_stretch_display_is_saved_with_the_project(page, units):
     from app.session import Session
 
