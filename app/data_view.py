@@ -292,10 +292,14 @@ class DataView(pn.viewable.Viewer):
         from network_models.conditions import stated_conditions
 
         stated = stated_conditions(f.curves[0]) if f.curves else {}
+        same = getattr(self, "_cond_file", None) == (f.name, id(f))
         for k, w in self.cond_inputs.items():
             w.placeholder = str(stated.get(k) or "not stated")
-            w.value = f.conditions.get(k, "")
-        self.cond_msg.object = ""
+            if not same:  # a redraw of the same file (a unit toggle, a refit) keeps what is typed
+                w.value = f.conditions.get(k, "")
+        if not same:
+            self.cond_msg.object = ""
+        self._cond_file = (f.name, id(f))
 
     def _apply_conditions(self):
         """Check and keep the typed conditions; a bad one gets its sentence here and its text stays typed."""

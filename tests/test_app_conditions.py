@@ -85,6 +85,9 @@ def test_a_negative_speed_gets_a_sentence_and_the_typed_text_stays(page):
     w["temperature"].value = "-300"
     dv._apply_conditions()
     assert "absolute zero" in dv.cond_msg.object and "<script>" not in dv.cond_msg.object
+    page.ns_session.units.stretch = "elongation"  # a redraw of the same file keeps the typed text and sentence
+    page.ns_session.units.stretch = "stretch"
+    assert w["temperature"].value == "-300" and "absolute zero" in dv.cond_msg.object
 
 
 def test_conditions_survive_a_re_read_and_a_project_round_trip(page):
