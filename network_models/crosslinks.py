@@ -62,6 +62,24 @@ def shear_modulus_from(value: float, kind: str = "G") -> float:
     return float(value)
 
 
+#: the headline bases, by tier: (gum row key, filled row key, label) of the crosslink table
+BASIS_TIERS = (
+    ("affine-no-entanglement", "affine-no-entanglement-no-filler", "affine network, entanglement part removed"),
+    ("affine", "affine-no-filler", "affine network, entanglements counted as crosslinks (upper bound)"),
+)
+
+
+def basis_label(tier: int, filled: bool, filler_fraction: float = 0.0) -> str:
+    label = BASIS_TIERS[tier][2]
+    if filled:
+        label += f", filler removed (Guth–Gold, φ = {filler_fraction:g})"
+    return label
+
+
+def row_key(tier: int, filled: bool) -> str:
+    return BASIS_TIERS[tier][1 if filled else 0]
+
+
 @dataclass
 class CrosslinkRow:
     key: str
@@ -149,8 +167,6 @@ class CrosslinkTable:
         filler removed when a filler fraction is given); when no positive crosslink modulus is left, the affine
         row with entanglements counted, and the basis says why.  ``design --model affine`` counts ν on the
         first basis by default.  ``{"value": mol/m³ or None, "row": key, "basis": label, "tier": 0|1}``."""
-        from .compare.specimens import basis_label, row_key
-
         phi = self.filler_fraction
         for tier in (0, 1):
             key = row_key(tier, phi > 0)

@@ -3,7 +3,7 @@
 When compounds of a study differ in one ingredient only (a cure-dose or filler ladder), each compound's strand
 density is recomputed **on the design's basis** — its fitted small-strain modulus G₀ turned into the ν whose
 network gives that G₀ under the design's model, polymer, f and entanglement policy, with the compound's own
-filler fraction (:func:`network_models.design_advice.nu_for_modulus`) — and a straight line
+filler fraction (:func:`network_models.design.advice.nu_for_modulus`) — and a straight line
 ν = intercept + slope · phr is fitted to them by least squares (slope and intercept with standard errors from the
 residual scatter, n − 2 degrees of freedom,
 docs/methods.md §dose-ladder; two doses: no scatter, uncertainty not determined).  The ν window's
@@ -149,7 +149,7 @@ def dose_window(result, compounds, ingredient: str, fitter=None) -> dict:
     """The ``dose`` object of ``design --dose`` for the design ``result`` (a feasible
     :class:`network_models.design.DesignResult`) and the manifest's compounds."""
     from .crosslinks import from_fit
-    from .design_advice import nu_for_modulus
+    from .design.advice import nu_for_modulus
     from .fitting import fit
 
     rows, left = ladder(compounds, ingredient)

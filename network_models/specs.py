@@ -1,6 +1,6 @@
 """Specifications: does a compared compound meet ``G=0.55..0.68MPa`` or ``M100>=1.2MPa``?
 
-A specification is written in the design-target grammar (:mod:`network_models.design_targets`) and judged per
+A specification is written in the design-target grammar (:mod:`network_models.design.targets`) and judged per
 compound from its specimens (the specimen is the statistical unit):
 
 * (docs/methods.md §specifications)
@@ -23,7 +23,7 @@ from __future__ import annotations
 import math
 import re
 
-from .design_targets import TargetError, parse_target
+from .design.targets import TargetError, parse_target
 from .statistics import CANNOT_JUDGE, combined_interval, summarize
 from .units import parse_quantity
 

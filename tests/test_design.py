@@ -15,8 +15,8 @@ from scipy.constants import R, kgf, psi, zero_Celsius
 
 from network_models import MODELS, Network, get_model, get_polymer
 from network_models.design import compare_models, design
-from network_models.design_advice import compound_from_fit
-from network_models.design_targets import TargetError, parse_target
+from network_models.design.advice import compound_from_fit
+from network_models.design.targets import TargetError, parse_target
 from network_models.network import N_MIN, lock_from_N
 
 T23 = zero_Celsius + 23.0

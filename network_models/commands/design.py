@@ -18,7 +18,7 @@ import math
 import re
 
 from ..design import CAUTION, compare_models, design
-from ..design_targets import EXAMPLES
+from ..design.targets import EXAMPLES
 from ..errors import UserError
 from ..jsonio import dumps
 
@@ -129,7 +129,7 @@ def _current(args, result, study=None):
         if not r.ok or g is None or g.mean is None:
             raise UserError(f"{args.compound} has no fitted small-strain modulus in this study "
                             f"({r.error or 'no specimen fitted'}); give --current-nu instead.")
-        from ..design_advice import nu_for_modulus
+        from ..design.advice import nu_for_modulus
 
         s = result.setup
         nu = nu_for_modulus(s, g.mean)
@@ -140,7 +140,7 @@ def _current(args, result, study=None):
     if args.current:
         if args.current_nu is not None:
             raise UserError("give today's compound either as --current-nu or as --current files, not both.")
-        from ..design_advice import compound_from_fit
+        from ..design.advice import compound_from_fit
         from ..fitting import fit
         from ..testdata import read_curves
 
@@ -156,7 +156,7 @@ def _current(args, result, study=None):
             raise UserError("--current-ci needs --current-nu.")
         return None
     ci = _ci(args.current_ci) if args.current_ci else None
-    from ..design_advice import convert_current
+    from ..design.advice import convert_current
 
     return convert_current(result.setup, args.current_nu, ci, getattr(args, "current_basis", "design"))
 
@@ -213,7 +213,7 @@ def _advice_json(advice) -> dict:
 
 
 def _table(r) -> list[str]:
-    from ..design_advice import nu_basis
+    from ..design.advice import nu_basis
 
     out = [f"Design window: {r.setup.describe()}", _basis_line(nu_basis(r.setup))]
     if r.feasible:
@@ -259,12 +259,12 @@ def run(args):
     models = compare_models(r.targets, **kw) if args.compare_models else None
     over = None
     if args.over:
-        from ..design_map import window_over
+        from ..design.compare import window_over
 
         over = window_over(r.targets, args.over, model=args.model, **kw)
     dose = _dose(args, r)
     if args.json:
-        from ..design_advice import nu_basis
+        from ..design.advice import nu_basis
 
         doc = {"command": "design", **r.to_dict(), "basis": nu_basis(r.setup)}
         if dose is not None:

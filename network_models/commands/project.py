@@ -52,7 +52,7 @@ def run(args):
     if args.purpose:
         st.purpose = args.purpose
     if st.settings.design_targets:  # a target that does not parse is refused now, not when the project is opened
-        from ..design_targets import parse_targets
+        from ..design.targets import parse_targets
 
         parse_targets(list(st.settings.design_targets))
     out = Path(args.output)

@@ -72,7 +72,6 @@ def run(args):
         import panel  # noqa: F401
 
         pkg = _app_package()
-        main = importlib.import_module(f"{pkg.__name__}.main")
         server = importlib.import_module(f"{pkg.__name__}.server")
     except ImportError as exc:
         raise UserError(
@@ -91,7 +90,7 @@ def run(args):
         print(f"shared on the network; pages from {', '.join(origins)} may connect"
               + ("; a password is asked" if auth else "; NO password is asked (see --password-file)"), flush=True)
     try:
-        main.serve(port=args.port, address=args.address, show=args.show, allow_websocket_origin=origins,
+        server.serve(port=args.port, address=args.address, show=args.show, allow_websocket_origin=origins,
                    basic_auth=auth, unused_session_lifetime_ms=int(args.session_lifetime * 1000))
     except OSError as exc:
         if exc.errno in (98, 48, 10048):  # address in use (Linux, macOS, Windows)

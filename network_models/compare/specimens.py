@@ -29,15 +29,11 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..constants import TRADE_MODULI, t_quantile
+from ..crosslinks import BASIS_TIERS, basis_label, from_fit, row_key
 from ..deformation import Mode
 from ..fitting.many import specimen_groups
 from ..network import get_polymer, lock_from_N
 
-#: the headline bases, by tier: (gum row key, filled row key, label) of the crosslink table
-BASIS_TIERS = (
-    ("affine-no-entanglement", "affine-no-entanglement-no-filler", "affine network, entanglement part removed"),
-    ("affine", "affine-no-filler", "affine network, entanglements counted as crosslinks (upper bound)"),
-)
 #: quantities summarised over specimens, with label, SI unit, display unit and scale
 SPECIMEN_QUANTITIES = {
     "G0": ("small-strain shear modulus G₀", "Pa", "MPa", 1e-6),
@@ -49,17 +45,6 @@ SPECIMEN_QUANTITIES = {
     "M100_predicted": ("M100 predicted", "Pa", "MPa", 1e-6),
     "M300_predicted": ("M300 predicted", "Pa", "MPa", 1e-6),
 }
-
-
-def basis_label(tier: int, filled: bool, filler_fraction: float = 0.0) -> str:
-    label = BASIS_TIERS[tier][2]
-    if filled:
-        label += f", filler removed (Guth–Gold, φ = {filler_fraction:g})"
-    return label
-
-
-def row_key(tier: int, filled: bool) -> str:
-    return BASIS_TIERS[tier][1 if filled else 0]
 
 
 def main_mode(groups: dict[str, list]) -> Mode | None:
@@ -135,8 +120,6 @@ def _se_from_ci(ci, dof) -> float | None:
 def read_specimen(model, fr, compound, T: float, spec: SpecimenResult, propagate) -> None:
     """Fill ``spec.values``/``fit_se`` from its fit ``fr``: G₀, ν on both basis tiers, N, lock and the trade
     moduli (measured on its curves, predicted by its fit).  ``propagate(func, fr)`` gives a fit standard error."""
-    from ..crosslinks import from_fit
-
     values = fr.values
     spec.params = {k: float(v) for k, v in values.items()}
     V, S = spec.values, spec.fit_se

@@ -54,7 +54,7 @@ def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: di
             for name in result.free:
                 est = result.params[name]
                 if est.determined:
-                    ci, ok = profile_interval(m, curves, name, kw, result)
+                    ci, ok = profile_interval(m, curves, name, kw, result, refit=fit)
                     result.params[name] = replace(est, ci95=ci, determined=ok)
         result.warnings.extend(undetermined_notices(result))
     return result

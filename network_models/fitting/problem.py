@@ -12,6 +12,7 @@ from scipy.optimize import brentq
 from ..deformation import MODES
 from ..errors import FitError, Notice
 from ..testdata import TestCurve
+from .plausibility import unit_plausibility
 
 #: the one residual weighting default of netstretch (fit, compare, report, batch, app, study): relative
 #: residuals weight every point by its own stress, so the small-strain points that fix the modulus G₀ count
@@ -319,9 +320,7 @@ def set_up(m, curves, *, residual, free, fixed, start) -> Problem:
         raise FitError("every parameter is fixed: free at least one to fit", kind="bad-option")
     G0 = modulus_from_data(data, curves)
     if G0 > 1e9:  # past every model's modulus domain: say which unit mix-up would explain it (issue #20)
-        from .diagnostics import unit_plausibility
-
-        why = "; ".join(str(n) for n in unit_plausibility(curves, G0))
+        why = "; ".join(str(n) for n in unit_plausibility(curves, G0, estimate_modulus))
         raise FitError(f"the curves' small-strain modulus is {G0 / 1e6:.4g} MPa, far beyond any rubber: {why}",
                        kind="bad-input")
     try:

@@ -78,7 +78,7 @@ def find(targets, db=None, *, polymer: str | None = None, model: str | None = No
     None: each study's own model."""
     from sqlalchemy import and_, or_, select
 
-    from ..design_targets import parse_targets
+    from ..design.targets import parse_targets
     from ..models import get_model
 
     tl = parse_targets(targets)

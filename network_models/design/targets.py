@@ -38,10 +38,10 @@ import math
 import re
 from dataclasses import dataclass, field
 
-from .constants import celsius
-from .deformation import Mode
-from .errors import UserError
-from .units import parse_number, parse_quantity
+from ..constants import celsius
+from ..deformation import Mode
+from ..errors import UserError
+from ..units import parse_number, parse_quantity
 
 __all__ = ["Target", "TargetError", "parse_target", "parse_targets", "EXAMPLES"]
 
@@ -335,7 +335,7 @@ def parse_target(text) -> Target:
     s = str(text).strip().replace("\u2212", "-")
     if not s:
         raise TargetError("an empty target was given; write e.g. 'M100=1.8MPa±5%'.", kind="design-target")
-    from .hardness import rewrite_target  # hardness=60..65ShoreA → the E target it stands for (Gent 1958)
+    from ..hardness import rewrite_target  # hardness=60..65ShoreA → the E target it stands for (Gent 1958)
 
     hard = rewrite_target(s)
     if hard is not None:

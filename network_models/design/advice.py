@@ -13,8 +13,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .design import _binding
-from .errors import UserError
+from ..errors import UserError
+from ._scan import binding
 
 __all__ = ["CURRENT_BASES", "Advice", "advise", "compound_from_fit", "convert_current", "nu_basis", "nu_for_modulus"]
 
@@ -68,7 +68,7 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
         return _advise_infeasible(self, nu, ci, a, b)
     w = min(self.windows, key=lambda iv: 0.0 if iv.contains(nu) else min(abs(math.log(nu / iv.lo)),
                                                                            abs(math.log(nu / iv.hi))))
-    lo_b, hi_b = _binding(self.outcomes, w.lo, "low"), _binding(self.outcomes, w.hi, "high")
+    lo_b, hi_b = binding(self.outcomes, w.lo, "low"), binding(self.outcomes, w.hi, "high")
     centre = None if (w.lo_open or w.hi_open) else math.sqrt(w.lo * w.hi) / nu - 1.0
     interval_txt = "" if ci is None else f" (95 % interval {a:.4g}–{b:.4g})"
     if w.contains(nu):
@@ -119,7 +119,7 @@ def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
     import numpy as np
     from scipy.optimize import brentq
 
-    from .models import get_model
+    from ..models import get_model
 
     m = get_model(setup.model)
     T = setup.T if T is None else T
@@ -149,7 +149,7 @@ def compound_from_fit(result, fit) -> tuple[float, tuple[float, float] | None]:
     small-strain modulus G₀ and its interval (from :func:`network_models.crosslinks.from_fit`, delta method)
     are each turned into the ν whose network gives that G₀ with the design's model, polymer, filler and f, at
     the fit's temperature.  This keeps the compound and the window on the same reading of ν."""
-    from .crosslinks import from_fit
+    from ..crosslinks import from_fit
 
     s = result.setup
     table = from_fit(fit, polymer=s.polymer, f=s.f, filler_fraction=s.filler)
@@ -171,8 +171,8 @@ def nu_basis(setup) -> dict:
     strands and the network's small-strain modulus is X·(νRT + G_e) for the affine model (G_e the polymer's
     plateau modulus ∝ T, X the Guth–Gold factor) — the basis of ``crosslinks``' headline; with it off, all of G
     is read as crosslinks (G = X·νRT)."""
-    from .models import get_model
-    from .network import get_polymer
+    from ..models import get_model
+    from ..network import get_polymer
 
     m = get_model(setup.model)
     p = get_polymer(setup.polymer)
@@ -192,8 +192,8 @@ def nu_basis(setup) -> dict:
 
 def _affine_modulus(setup, nu: float, basis: str) -> float:
     """The small-strain shear modulus (Pa) an affine ν on ``basis`` stands for at the design's T and filler."""
-    from .constants import R
-    from .network import get_polymer, guth_gold
+    from ..constants import R
+    from ..network import get_polymer, guth_gold
 
     p = get_polymer(setup.polymer)
     Ge = p.plateau_modulus * setup.T / p.plateau_temperature if basis == "entanglements-removed" else 0.0
@@ -216,7 +216,7 @@ def convert_current(setup, nu: float, ci, basis: str):
         out = nu_for_modulus(setup, G)
         ci_out = None if ci is None else tuple(nu_for_modulus(setup, _affine_modulus(setup, x, basis)) for x in ci)
     except UserError:
-        from .network import guth_gold
+        from ..network import guth_gold
 
         Ge = own["G_e_Pa"] * guth_gold(setup.filler)
         below = Ge > 0 and G <= Ge
