@@ -4,7 +4,7 @@
     >>> summary = run_batch(["qc_archive/"], model="eight-chain", output="results.csv", jobs=2)
 
 * Inputs: folders (walked recursively) and files.  Files with a readable suffix (``READABLE_SUFFIXES``) are
-  read with ``testdata.read_curves_bytes``; a file it cannot read is listed in ``<stem>.failures.csv``
+  read with ``labfiles.read_curves_bytes``; a file it cannot read is listed in ``<stem>.failures.csv``
   with the reader's sentence, and the run goes on.
 * Output: CSV (or parquet, with pyarrow), one row per curve, columns ``COLUMNS_FIRST`` + one per fitted
   parameter (SI, named as the model declares it) + ``COLUMNS_LAST``.  A curve whose fit failed keeps its
@@ -121,7 +121,7 @@ def fit_file(rel: str, source, model: str, polymer: str = "NR", f: float = 4.0) 
     """Read one file (``source``: a path, or the file's bytes) and fit every curve in it.
 
     Returns ``{"file": rel, "rows": [...], "error": None | sentence}``; never raises for a bad file."""
-    from .testdata import read_curves_bytes
+    from .labfiles import read_curves_bytes
 
     try:
         data = source if isinstance(source, (bytes, bytearray)) else Path(source).read_bytes()

@@ -7,7 +7,7 @@ The comparison (:mod:`network_models.compare`) fits the same model to every comp
 Ways to make compounds::
 
     Compound("A", curves=[TestCurve(...), ...], metadata={"cure": "2.0 phr S"})
-    load_compound("A", ["a_uniaxial.csv", "a_planar.csv"])          # lab files, read by testdata
+    load_compound("A", ["a_uniaxial.csv", "a_planar.csv"])          # lab files, read by labfiles
     compounds_from_specs(["A=a_uni.csv,a_pl.csv", "B=b_uni.csv"])  # the CLI's --compound NAME=FILE,...
     load_manifest("sample_sets/manifest.toml")                        # a manifest (TOML or JSON)
     load_folder("lab/")                                               # one sub-folder per compound
@@ -56,7 +56,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .constants import kelvin
-from .testdata import DataError, TestCurve
+from .curves import TestCurve
+from .errors import DataError
+from .labfiles import read_curves
 
 
 @dataclass
@@ -106,7 +108,7 @@ class SwellingTest:
 
     @classmethod
     def from_record(cls, r, chi=None) -> SwellingTest:
-        """From a :class:`network_models.testdata.SwellingResult` row (masses already in kg)."""
+        """From a :class:`network_models.curves.SwellingResult` row (masses already in kg)."""
         return cls(dry=r.dry_mass, swollen=r.swollen_mass, solvent=r.solvent or "toluene", extracted=r.extracted_mass,
                    chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
@@ -213,17 +215,12 @@ class Compound:
 
 # ----- loading ---------------------------------------------------------------------------------
 def _read(path, **opts) -> list[TestCurve]:
-    from . import testdata
-
-    reader = getattr(testdata, "read_curves", None)
-    if reader is None:  # pragma: no cover - only while the file readers are being built
-        raise DataError("reading lab files is not available in this build (testdata.read_curves is missing)")
     p = Path(path)
     if not p.exists():
         raise DataError(f"file {str(path)!r} not found; check the path")
     if p.is_dir():
         raise DataError(f"{str(path)!r} is a folder; give the test files inside it")
-    curves = reader(p, **opts)
+    curves = read_curves(p, **opts)
     if not curves:
         raise DataError(f"{p.name}: no test curve found in the file")
     return list(curves)
@@ -316,7 +313,7 @@ class Manifest:
                        f"{', '.join(c.name for c in self.compounds)}")
 
     def force_temperature_records(self) -> list:
-        from .testdata import read_force_temperature
+        from .labfiles import read_force_temperature
 
         return [read_force_temperature(p) for p in self.force_temperature]
 
@@ -325,7 +322,7 @@ def load_manifest(path=None, **read_options) -> Manifest:
     """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder.  Default: the
     bundled sample set (sample_sets/compounds.toml)."""
     if path is None:
-        from .testdata import SAMPLE_MANIFEST as path
+        from .labfiles import SAMPLE_MANIFEST as path
     p = Path(path)
     if p.is_dir():
         for cand in ("compounds.toml", "manifest.toml", "manifest.json"):
@@ -387,8 +384,8 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
     """The sample-set manifest format (``[scenario]`` + ``[[compound]]`` with ``key``, files as
     ``{ path, mode, note }``, one ``[swelling]`` table, ``[[force_temperature]]``; sample_sets/README.md),
     parsed by its one parser (:func:`network_models.labfiles.manifest.manifest_index`) and read here."""
+    from .labfiles import read_swelling
     from .labfiles.manifest import manifest_index
-    from .testdata import read_swelling
 
     index = manifest_index(doc, p)
     scen = index.info

@@ -367,7 +367,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                       kraus_c: float = KRAUS_C_CARBON_BLACK, filler_density: float = FILLER_DENSITY_CARBON_BLACK,
                       rho_polymer: float | None = None, insoluble_fraction: float | None = None) -> SwellingEstimate:
     """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
-    :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
+    :class:`network_models.curves.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
     equilibrium, ``extracted`` (optional) re-dried after swelling — when given it is the network mass and
     the soluble fraction (dry − extracted)/dry is reported.  The other convention is accepted too:
     ``dry`` = the re-dried network mass with ``initial`` = the mass before swelling (give one of
@@ -472,7 +472,7 @@ def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
 
 
 def from_record(record, polymer: str, **kw) -> SwellingEstimate:
-    """Estimate from a :class:`network_models.testdata.SwellingResult` row (``read_swelling``)."""
+    """Estimate from a :class:`network_models.curves.SwellingResult` row (``read_swelling``)."""
     kw.setdefault("T", record.temperature)
     return swelling_estimate(record.dry_mass, record.swollen_mass, record.solvent or "toluene", polymer,
                              extracted=record.extracted_mass, **kw)

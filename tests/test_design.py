@@ -213,7 +213,7 @@ def test_advice_carries_the_interval():
 
 def test_advice_from_a_fit():
     from network_models.fitting import fit
-    from network_models.testdata import read_curves_bytes
+    from network_models.labfiles import read_curves_bytes
 
     m = get_model("eight-chain")
     net = Network(polymer="NR", nu=210.0, T=T23)

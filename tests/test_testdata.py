@@ -16,8 +16,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from network_models import Mode
-from network_models import testdata as td
-from network_models.testdata import (
+from network_models import labfiles as td
+from network_models.labfiles import (
     DataError,
     TestCurve,
     read_curves,

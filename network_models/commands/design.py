@@ -142,7 +142,7 @@ def _current(args, result, study=None):
             raise UserError("give today's compound either as --current-nu or as --current files, not both.")
         from ..design.advice import compound_from_fit
         from ..fitting import fit
-        from ..testdata import read_curves
+        from ..labfiles import read_curves
 
         curves = [c for path in args.current for c in read_curves(path)]
         if not curves:

@@ -14,8 +14,8 @@ import json
 import numpy as np
 
 from ..constants import CAUTION, celsius
+from ..labfiles import read_force_temperature
 from ..materials import add_polymers_option, apply_polymers_option, get_polymer
-from ..testdata import read_force_temperature
 from ..thermo import DEPRECATED_KEYS, THERMOELASTIC_KEY, energetic_fraction, inversion_strain
 
 

@@ -15,6 +15,7 @@ import numpy as np
 
 from ..compounds import Compound
 from ..constants import TRADE_MODULI, R, celsius, t_quantile
+from ..curves import TestCurve
 from ..deformation import Mode
 from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..errors import about
@@ -22,7 +23,6 @@ from ..fitting import FitError, fit_or_error
 from ..fitting.uncertainty import derived_se
 from ..models import get_model
 from ..network import get_polymer
-from ..testdata import TestCurve
 from .records import DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, ParamRow, Quantity
 from .specimens import BASIS_TIERS, basis_label, row_key, stress_at
 

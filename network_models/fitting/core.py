@@ -7,9 +7,9 @@ from dataclasses import replace
 
 import numpy as np
 
+from ..curves import TestCurve
 from ..errors import FitError
 from ..models import get_model
-from ..testdata import TestCurve
 from .diagnostics import curve_cycle, curve_polymer, diagnose, undetermined_notices
 from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats

@@ -26,9 +26,9 @@ from functools import lru_cache
 import numpy as np
 
 from ..constants import celsius
+from ..curves import TestCurve
 from ..deformation import Mode
 from ..errors import Notice
-from ..testdata import TestCurve
 from . import plausibility
 from .evaluate import fast_evaluator
 from .problem import Data, estimate_modulus

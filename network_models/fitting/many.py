@@ -9,9 +9,9 @@ from pathlib import Path
 
 import numpy as np
 
+from ..curves import TestCurve
 from ..errors import FitError, Notice
 from ..models import get_model
-from ..testdata import TestCurve
 from .core import fit
 from .result import FitResult
 

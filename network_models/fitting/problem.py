@@ -9,9 +9,9 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
+from ..curves import TestCurve
 from ..deformation import MODES
 from ..errors import FitError, Notice
-from ..testdata import TestCurve
 from .plausibility import unit_plausibility
 
 #: the one residual weighting default of netstretch (fit, compare, report, batch, app, study): relative
