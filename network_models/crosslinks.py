@@ -80,7 +80,7 @@ def row_key(tier: int, filled: bool) -> str:
     return BASIS_TIERS[tier][1 if filled else 0]
 
 
-@dataclass
+@dataclass(kw_only=True)
 class CrosslinkRow:
     key: str
     label: str
@@ -217,15 +217,18 @@ def _row(key, label, assumes, Gx, Gx_ci, factor, T, f, rho, MK, note="", shift=0
     nu = nu_of(Gx)
     if nu is None:
         gone = "no positive crosslink modulus is left under this assumption"
-        return CrosslinkRow(key, label, assumes, Gx, None, None, None, None, None, None, None, None,
-                            f"{gone}; {note}" if note else gone, nu_kind)
+        return CrosslinkRow(key=key, label=label, assumes=assumes, modulus=Gx, nu=None, nu_ci=None,
+                            junction_density=None, junction_ci=None, Mc=None, Mc_ci=None, N=None, N_ci=None,
+                            note=f"{gone}; {note}" if note else gone, nu_kind=nu_kind)
     nu_ci = _map_ci(Gx_ci, lambda g: nu_of(g) if g > 0 else None)
     if Gx_ci is not None and nu_ci is None:
         note = (note + "; " if note else "") + "the lower end of the interval leaves no positive crosslink modulus"
     Mc = rho / nu
     return CrosslinkRow(
-        key, label, assumes, Gx, nu, nu_ci, 2.0 * nu / f, _map_ci(nu_ci, lambda x: 2.0 * x / f),
-        Mc, _map_ci(nu_ci, lambda x: rho / x), Mc / MK, _map_ci(nu_ci, lambda x: rho / x / MK), note, nu_kind,
+        key=key, label=label, assumes=assumes, modulus=Gx, nu=nu, nu_ci=nu_ci, junction_density=2.0 * nu / f,
+        junction_ci=_map_ci(nu_ci, lambda x: 2.0 * x / f),
+        Mc=Mc, Mc_ci=_map_ci(nu_ci, lambda x: rho / x), N=Mc / MK, N_ci=_map_ci(nu_ci, lambda x: rho / x / MK),
+        note=note, nu_kind=nu_kind,
     )
 
 

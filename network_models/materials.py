@@ -38,7 +38,7 @@ from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-from .constants import LAB_TEMPERATURE, kelvin
+from .constants import LAB_TEMPERATURE, celsius, kelvin
 from .errors import DataError
 
 __all__ = [
@@ -362,14 +362,14 @@ def temperature_notices(polymer, T, where: str = "") -> list:
     if tg is not None and T < tg + GLASS_MARGIN:
         state = "in the glass" if T < tg else "in the glass transition region"
         out.append(Notice(
-            f"{T - 273.15:.0f} °C{at} is {state} of {p.key} (T_g ≈ {tg - 273.15:.0f} °C; rubbery above about "
-            f"{tg + GLASS_MARGIN - 273.15:.0f} °C): the network models and G = νRT describe the rubbery state only — "
+            f"{celsius(T):.0f} °C{at} is {state} of {p.key} (T_g ≈ {celsius(tg):.0f} °C; rubbery above about "
+            f"{celsius(tg + GLASS_MARGIN):.0f} °C): the network models and G = νRT describe the rubbery state only — "
             "results here are not valid", "glass", p.key))
     smax = p.service_max
     if smax is not None and T > smax:
         out.append(Notice(
-            f"{T - 273.15:.0f} °C{at} is above the upper continuous service temperature of {p.key} "
-            f"(about {smax - 273.15:.0f} °C in air): the network ages (chain scission, further crosslinking) "
+            f"{celsius(T):.0f} °C{at} is above the upper continuous service temperature of {p.key} "
+            f"(about {celsius(smax):.0f} °C in air): the network ages (chain scission, further crosslinking) "
             "while tested or used there, so a result describes a changing rubber", "service-limit", p.key))
     return out
 
@@ -390,7 +390,7 @@ class Solvent:
         return self.molar_mass / self.density
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class ChiValue:
     polymer: str
     solvent: str
@@ -449,9 +449,11 @@ def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[C
             continue
         if solvent is not None and get_solvent(r["solvent"]).key != get_solvent(solvent).key:
             continue
-        rows.append(ChiValue(r["polymer"], get_solvent(r["solvent"]).key, float(r["chi"]),
-                             kelvin(r["temperature_C"]), bool(r["default"]), r["status"], r["source"],
-                             r.get("note", ""), _row_spread(r), str(r.get("spread_basis", ""))))
+        rows.append(ChiValue(polymer=r["polymer"], solvent=get_solvent(r["solvent"]).key, chi=float(r["chi"]),
+                             temperature=kelvin(r["temperature_C"]), default=bool(r["default"]), status=r["status"],
+                             source=r["source"],
+                             note=r.get("note", ""), spread=_row_spread(r),
+                             spread_basis=str(r.get("spread_basis", ""))))
     return rows
 
 

@@ -292,7 +292,8 @@ def _chi_for(poly, sol, chi, T, notes) -> ChiValue:
     else:
         if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
             raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
-        cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
+        cv = ChiValue(polymer=poly.key, solvent=sol.key, chi=float(chi), temperature=T or float("nan"), default=False,
+                      status="user", source="given by the user")
         notes.append(f"χ = {chi:g} as given")
     return cv
 

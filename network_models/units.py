@@ -26,6 +26,7 @@ import unicodedata
 from dataclasses import dataclass
 from functools import lru_cache
 
+from .constants import ZERO_CELSIUS
 from .errors import UnitError
 
 __all__ = [
@@ -287,7 +288,7 @@ def format_si(value: float, dimension: str) -> str:
     if dimension == "pressure":
         return f"{value / 1e6:g} MPa"
     if dimension == "temperature":
-        return f"{value - 273.15:g} °C"
+        return f"{value - ZERO_CELSIUS:g} °C"
     if dimension == "force":
         return f"{value:g} N"
     return f"{value:g}"

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from ..constants import celsius
 from ..crosslinks import KINDS, from_modulus
+from ._options import add_functionality, add_json, add_polymer
 from .fit import CAUTION, format_crosslink_table, json_document, quantity
 
 
@@ -26,15 +27,15 @@ def add_parser(sub):
     p.add_argument("--range", nargs=2, metavar=("LOW", "HIGH"),
                    help="95 %% interval of the modulus, same kind, with units (gives intervals on every row)")
     p.add_argument("--temperature", default="23C", metavar="T", help="test temperature (default 23C)")
-    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
+    add_polymer(p)
+    add_functionality(p)
     p.add_argument("--filler", type=float, default=0.0, metavar="PHI",
                    help="filler volume fraction, adds a Guth–Gold row (default 0)")
     p.add_argument("--mn", metavar="M", help="primary-chain M_n before crosslinking, e.g. 250kg/mol (dangling ends)")
     p.add_argument("--sol-fraction", type=float, default=None, metavar="W",
                    help="sol (extractable) mass fraction 0…1 from extraction: adds rows with only the trapped "
                         "entanglements removed (Langley trapping factor)")
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 

@@ -7,11 +7,12 @@ import numpy as np
 from ..constants import CAUTION, kelvin
 from ..models import MODELS
 from ..network import Network
+from ._options import add_polymer
 
 
 def add_parser(sub):
     p = sub.add_parser("demo", help="print every model's stress on a sample network")
-    p.add_argument("--polymer", default="NR")
+    add_polymer(p)
     p.add_argument("--nu", type=float, default=150.0, help="strand density, mol/m³ (default 150)")
     p.add_argument("--temperature", type=float, default=23.0, help="°C (default 23)")
     p.set_defaults(run=run)

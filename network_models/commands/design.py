@@ -21,6 +21,7 @@ from ..design import CAUTION, compare_models, design
 from ..design.targets import EXAMPLES
 from ..errors import UserError
 from ..jsonio import dumps
+from ._options import add_functionality, add_json, add_polymer
 
 _GRAMMAR = ("targets: G, E, M100/M200/M300, uniaxial@λ, planar@λ, equibiaxial@λ (each optionally @temperature, "
             "e.g. G@100C), lock, lock(planar), reserve, reserve@50%, Q(solvent); operators = (with ±tolerance or "
@@ -34,8 +35,8 @@ def add_parser(sub):
                                    "temperature and filler; which target binds at each edge; which targets "
                                    "conflict; what change brings a measured compound into the window.",
                        epilog=_GRAMMAR)
-    p.add_argument("--polymer", default=None, help="polymer from the polymer table (default NR, or the project "
-                                                   "compound's)")
+    add_polymer(p, "polymer from the polymer table (default NR, or the project "
+                   "compound's)", default=None)
     p.add_argument("--temperature", default=None, metavar="T", help="design (test) temperature, e.g. 23C "
                                                                    "(default 23C, or the project compound's)")
     p.add_argument("--model", default=None, metavar="MODEL", help="model (default eight-chain, or the project's "
@@ -44,8 +45,7 @@ def add_parser(sub):
                    help="a target such as 'M100=1.8MPa±5%%' (repeat for several; default: the project's targets)")
     p.add_argument("--filler", type=float, default=None, metavar="PHI",
                    help="filler volume fraction (default 0, or the project compound's)")
-    p.add_argument("--functionality", type=float, default=None, metavar="F",
-                   help="junction functionality f (default 4, or the project compound's)")
+    add_functionality(p, "junction functionality f (default 4, or the project compound's)", default=None)
     p.add_argument("--project", metavar="FILE.zip",
                    help="a project file: its design targets and model, and the polymer, f, filler and test "
                         "temperature of --compound (default its baseline); options given here override them")
@@ -75,7 +75,7 @@ def add_parser(sub):
     p.add_argument("--dose", metavar="INGREDIENT",
                    help="invert the ν window into a window of this ingredient's phr (e.g. sulfur), from the "
                         "manifest's compounds that differ only in it (network_models.dose)")
-    p.add_argument("--json", action="store_true", help="print one JSON object (SI units)")
+    add_json(p, "print one JSON object (SI units)")
     p.set_defaults(run=run)
 
 

@@ -11,12 +11,14 @@ import math
 import re
 
 from ..constants import CAUTION as _CAUTION
+from ..constants import celsius
 from ..crosslinks import from_fit
 from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
 from ..jsonio import dumps
 from ..models import get_model
 from ..ultimate import RULE as ULTIMATE_RULE
 from ..ultimate import ultimate_rows
+from ._options import add_functionality, add_json, add_polymer
 
 CAUTION = "Caution: " + _CAUTION
 
@@ -47,15 +49,13 @@ def add_parser(sub):
                         f"default {DEFAULT_RESIDUAL}, the same in compare, report, batch and the app")
     p.add_argument("--relative", dest="residual", action="store_const", const="relative",
                    help="alias of --residual relative")
-    p.add_argument("--polymer", default="NR",
-                   help="polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
-                        "(default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
-                   help="junction functionality f for the crosslink table (default 4)")
+    add_polymer(p, "polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
+                   "(default NR)")
+    add_functionality(p, "junction functionality f for the crosslink table (default 4)")
     p.add_argument("--intervals", choices=("transformed", "profile"), default="transformed",
                    help="95 %% intervals: 'transformed' (default; linearised on log/logit of the parameter, always "
                         "inside its domain) or 'profile' (profile likelihood; slower)")
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 
@@ -182,7 +182,7 @@ def _format_result(res, table, stretch_unit="stretch") -> list[str]:
         out.append("  Warnings:")
         out.extend(f"   - {w}" for w in res.warnings)
     if table is not None:
-        out.append(f"  Network estimate (polymer {table.polymer}, T = {table.T - 273.15:.1f} °C, f = {table.f:g}):")
+        out.append(f"  Network estimate (polymer {table.polymer}, T = {celsius(table.T):.1f} °C, f = {table.f:g}):")
         out.extend(format_crosslink_table(table))
     return out
 
@@ -242,7 +242,7 @@ def run(args):
         print(f"{len(curves)} curve(s) from {len(args.files)} file(s): "
               + ", ".join(f"{k} {v}" for k, v in modes.items()))
         temps = sorted({c.temperature for c in curves if c.temperature is not None})
-        print("test temperature: " + (", ".join(f"{t - 273.15:.1f} °C" for t in temps) if temps
+        print("test temperature: " + (", ".join(f"{celsius(t):.1f} °C" for t in temps) if temps
                                       else "not stated (23 °C assumed for the crosslink table)"))
         for n in notices:
             print(f"  file note: {n}")

@@ -8,6 +8,7 @@ import json
 
 from ..materials import add_polymers_option, apply_polymers_option, polymer_listing
 from ..models import MODELS
+from ._options import add_json
 
 
 def add_parser(sub):
@@ -15,7 +16,7 @@ def add_parser(sub):
     p.add_argument("--list-polymers", action="store_true",
                    help="list the polymer table instead: every value with its unit and source")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document")
+    add_json(p, "print one JSON document")
     p.set_defaults(run=run)
 
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 from ..display_units import DENSITY_UNITS, STRESS_UNITS, apply_to_comparison
 from ..errors import merge_notices
 from ..study import DEFAULT_MODEL  # the comparison's default model (one constant, in the study)
+from ._options import add_functionality, add_json, add_polymer
 
 
 def _common(p):
@@ -34,9 +35,8 @@ def _common(p):
                    "temperature)")
     p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar"),
                    help="test mode for --compound files that do not state it")
-    p.add_argument("--polymer", default="NR", help="polymer of --compound compounds (default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
-                   help="junction functionality f of --compound compounds (default 4)")
+    add_polymer(p, "polymer of --compound compounds (default NR)")
+    add_functionality(p, "junction functionality f of --compound compounds (default 4)")
     p.add_argument("--exclude", action="append", default=[], metavar="COMPOUND:SPECIMEN[:REASON]",
                    help="keep a specimen out of the statistics, with the reason (repeat it); listed in the results")
     p.add_argument("--pool", action="store_true",
@@ -75,7 +75,7 @@ def add_parser(sub):
     c = sub.add_parser("compare", help="compare compounds on one model: table on screen (or --json)",
                        description="Fit one model to every compound and print the comparison.")
     _common(c)
-    c.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(c)
     c.set_defaults(run=run_compare)
 
 

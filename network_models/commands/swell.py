@@ -13,6 +13,7 @@ import re
 
 from ..materials import add_polymers_option, apply_polymers_option
 from ..swelling import CHI_BAND, compare_with_modulus, solvents, swelling_estimate
+from ._options import add_functionality, add_json, add_polymer
 from .fit import CAUTION, json_document, quantity
 
 _MASS_UNITS = {"g": 1e-3, "mg": 1e-6, "kg": 1.0}
@@ -27,10 +28,10 @@ def add_parser(sub):
     p.add_argument("--extracted", metavar="MASS",
                    help="mass re-dried after swelling (sol removed); used as the network mass when given")
     p.add_argument("--solvent", default="toluene", help=f"solvent (default toluene; table: {', '.join(solvents())})")
-    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
+    add_polymer(p)
     p.add_argument("--chi", type=float, metavar="CHI", help="polymer–solvent χ (default: the solvent table's value)")
     p.add_argument("--temperature", metavar="T", help="swelling temperature, e.g. 23C (recorded; χ is not rescaled)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
+    add_functionality(p)
     p.add_argument("--rubber-fraction", type=float, metavar="W",
                    help="rubber mass fraction of the dry compound from the recipe (default: 1 for a gum, else "
                         "estimated from --filler with carbon-black density)")
@@ -45,7 +46,7 @@ def add_parser(sub):
                    help="the manifest key of the compound the specimen belongs to (here a KEY of --manifest, unlike "
                         "compare's --compound NAME=FILES)")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 

@@ -17,18 +17,18 @@ from ..constants import CAUTION, celsius
 from ..labfiles import read_force_temperature
 from ..materials import add_polymers_option, apply_polymers_option, get_polymer
 from ..thermo import DEPRECATED_KEYS, THERMOELASTIC_KEY, energetic_fraction, inversion_strain
+from ._options import add_json, add_polymer
 
 
 def add_parser(sub):
     p = sub.add_parser("thermo", help="energetic fraction of the force from a force–temperature record")
     p.add_argument("file", help="CSV/TXT/xlsx with 'temperature (°C)' and 'force (N)' columns, '# stretch: λ' line")
     p.add_argument("--stretch", type=float, default=None, help="clamped stretch λ (wins over the file)")
-    p.add_argument("--polymer", default=None,
-                   help="take the volume expansion coefficient β from this polymer's table row")
+    add_polymer(p, "take the volume expansion coefficient β from this polymer's table row", default=None)
     p.add_argument("--expansion", type=float, default=None,
                    help="volume expansion coefficient β in 1/K (wins over --polymer)")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document")
+    add_json(p, "print one JSON document")
     p.set_defaults(run=run)
 
 

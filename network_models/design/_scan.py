@@ -29,7 +29,7 @@ GRID = 97  # log grid points over NU_RANGE (about 24 per decade); edges are refi
 
 
 # ------------------------------------------------------------------------------------------------
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class DesignSetup:
     """What the user fixes: polymer, design temperature (K), model, filler volume fraction, f, N (None =
     coupled to ν through the polymer, N = M_c/M_K) and whether the entanglement contribution is on."""
@@ -194,7 +194,7 @@ class Evaluator:
 
 
 # ------------------------------------------------------------------------------------------------
-@dataclass
+@dataclass(kw_only=True)
 class TargetOutcome:
     """Where one target is met: its sets of ν, the range of values it takes over the scan, reasons for
     points where it cannot be evaluated."""
@@ -301,7 +301,7 @@ def outcome(ev: Evaluator, t: Target, grid: np.ndarray) -> TargetOutcome:
         k = j + 1
     finite = vals[np.isfinite(vals)]
     vr = (float(finite.min()), float(finite.max())) if finite.size else None
-    return TargetOutcome(t, intervals, vr, list(ev.reasons.get(t.text, [])))
+    return TargetOutcome(target=t, intervals=intervals, value_range=vr, reasons=list(ev.reasons.get(t.text, [])))
 
 
 def intersect(a: list[Interval], b: list[Interval]) -> list[Interval]:
@@ -371,8 +371,9 @@ def setup(polymer, temperature, model, filler, f, N, entanglements) -> DesignSet
         poly = get_polymer(polymer)
     except KeyError as exc:
         raise UserError(str(exc.args[0]) + ".") from None
-    setup = DesignSetup(poly.key, T, m.name, float(filler or 0.0), float(f), None if N is None else float(N),
-                        bool(entanglements))
+    setup = DesignSetup(polymer=poly.key, T=T, model=m.name, filler=float(filler or 0.0), f=float(f),
+                        N=None if N is None else float(N),
+                        entanglements=bool(entanglements))
     try:
         setup.network(math.sqrt(setup.nu_range[0] * setup.nu_range[1]))
     except ValueError as exc:

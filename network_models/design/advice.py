@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ..constants import celsius
 from ..errors import UserError
 from ._scan import binding
 
@@ -180,7 +181,7 @@ def nu_basis(setup) -> dict:
     if setup.entanglements:
         Ge = p.plateau_modulus * setup.T / p.plateau_temperature
         src = (f"plateau modulus of {p.key} G_N⁰ = {p.plateau_modulus / 1e6:.3g} MPa at "
-               f"{p.plateau_temperature - 273.15:.4g} °C scaled ∝ T (polymer table, {p.status})")
+               f"{celsius(p.plateau_temperature):.4g} °C scaled ∝ T (polymer table, {p.status})")
         label = f"{m.title}: ν counts crosslink strands only, entanglement part removed (G_e = {Ge / 1e6:.3g} MPa)"
     else:
         Ge, src = 0.0, "none: entanglements switched off, so all of G is read as crosslinks"

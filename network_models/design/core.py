@@ -43,7 +43,7 @@ __all__ = ["CAUTION", "DesignResult", "design"]
 
 
 # ------------------------------------------------------------------------------------------------
-@dataclass
+@dataclass(kw_only=True)
 class DesignResult:
     """The answer: is there a window of ν meeting every target, where, which targets bind, and if not,
     which targets conflict and the closest compromise.  ``to_dict()`` is the JSON contract."""
@@ -269,5 +269,6 @@ def _design(setup: DesignSetup, tl: list[Target]) -> DesignResult:
         notices.append(Notice(f"the targets are met in {len(windows)} separate ranges of ν: "
                               + ", ".join(f"{iv.lo:.4g}–{iv.hi:.4g}" for iv in windows)
                               + " mol/m³; the widest is reported as the window", "several-windows"))
-    return DesignResult(setup, tl, outcomes, windows, window, binding, conflicts, unreachable, compromise, why,
-                        notices, scan, ev)
+    return DesignResult(setup=setup, targets=tl, outcomes=outcomes, windows=windows, window=window, binding=binding,
+                        conflicts=conflicts, unreachable=unreachable, compromise=compromise, why=why,
+                        notices=notices, scan=scan, _ev=ev)

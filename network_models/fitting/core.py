@@ -77,8 +77,9 @@ def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
         dev = Pd - float(Pd.sum()) / k_m
         sst = float(np.dot(dev, dev))
         ssr = float(np.dot(e, e))
-        mode_stats[mode] = ModeStats(mode, k_m, math.sqrt(ssr / k_m), (1.0 - ssr / sst) if sst > 0 else None,
-                                     data.ranges[mode])
+        mode_stats[mode] = ModeStats(mode=mode, n=k_m, rms=math.sqrt(ssr / k_m),
+                                     r2=(1.0 - ssr / sst) if sst > 0 else None,
+                                     tested_range=data.ranges[mode])
     rss_out = rss * (pr.G0 * pr.G0 if pr.residual == "absolute" else 1.0)  # Pa² for absolute residuals
     if rss_out > 0:
         aic = n * math.log(rss_out / n) + 2 * k

@@ -161,17 +161,20 @@ def estimates(pj, values, se_z, z) -> dict[str, ParamEstimate]:
         v = float(values[q.name])
         kw = dict(symbol=q.symbol, display_unit=q.display_unit, display_scale=q.display_scale, meaning=q.meaning)
         if q.name not in names:
-            out[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, True, **kw)
+            out[q.name] = ParamEstimate(name=q.name, value=v, stderr=None, ci95=(None, None), unit=q.unit, fixed=True,
+                                        **kw)
             continue
         i = names.index(q.name)
         sz = float(se_z[i])
         if not math.isfinite(sz):
-            out[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, False, **kw)
+            out[q.name] = ParamEstimate(name=q.name, value=v, stderr=None, ci95=(None, None), unit=q.unit,
+                                        fixed=False, **kw)
             continue
         c = pj.co[i]
         se_v = float(sz * abs(c.dv_dz(v)))
         ci, ok = domain_interval(v, se_v, tq, q.bounds)
-        out[q.name] = ParamEstimate(q.name, v, se_v, ci, q.unit, False, determined=ok, **kw)
+        out[q.name] = ParamEstimate(name=q.name, value=v, stderr=se_v, ci95=ci, unit=q.unit, fixed=False,
+                                    determined=ok, **kw)
     return out
 
 

@@ -69,10 +69,12 @@ class MooneyRivlin(Model):
     title = "Mooney–Rivlin"
     family = "phenomenological"
     params = ParamSet((
-        Param("C1", "C₁", "Pa", (0.0, 1e9), (0.02e6, 1.5e6), 0.18e6, "Mooney–Rivlin C₁ (2C₁: Mooney intercept)",
-              "Mooney 1940, J. Appl. Phys. 11:582", "MPa", 1e-6),
-        Param("C2", "C₂", "Pa", (-1e9, 1e9), (0.0, 0.5e6), 0.05e6, "Mooney–Rivlin C₂ (2C₂: Mooney slope)",
-              "Rivlin 1948, Phil. Trans. R. Soc. A241:379", "MPa", 1e-6),
+        Param(name="C1", symbol="C₁", unit="Pa", bounds=(0.0, 1e9), typical=(0.02e6, 1.5e6), default=0.18e6,
+              meaning="Mooney–Rivlin C₁ (2C₁: Mooney intercept)",
+              source="Mooney 1940, J. Appl. Phys. 11:582", display_unit="MPa", display_scale=1e-6),
+        Param(name="C2", symbol="C₂", unit="Pa", bounds=(-1e9, 1e9), typical=(0.0, 0.5e6), default=0.05e6,
+              meaning="Mooney–Rivlin C₂ (2C₂: Mooney slope)",
+              source="Rivlin 1948, Phil. Trans. R. Soc. A241:379", display_unit="MPa", display_scale=1e-6),
     ))
     equation = "W = C₁(I₁ − 3) + C₂(I₂ − 3);  σ* = 2C₁ + 2C₂/λ"
     references = ("Mooney 1940, J. Appl. Phys. 11:582", "Rivlin 1948, Phil. Trans. R. Soc. A241:379")
@@ -119,9 +121,9 @@ class ConstrainedJunction(Model):
     has_stretch_part = True
     params = ParamSet((
         shear_modulus_param("G_ph", "G_ph", "phantom part ξRT", 0.2e6),
-        Param("kappa", "κ", "1", (0.0, 1e4), (0.5, 20.0), 5.0,
-              "constraint strength on junction fluctuations (κ→0 phantom, κ→∞ affine)",
-              "Flory & Erman 1982, Macromolecules 15:800 [paper, as printed in Arruda & Boyce 1993 appendix]"),
+        Param(name="kappa", symbol="κ", unit="1", bounds=(0.0, 1e4), typical=(0.5, 20.0), default=5.0,
+              meaning="constraint strength on junction fluctuations (κ→0 phantom, κ→∞ affine)",
+              source="Flory & Erman 1982, Macromolecules 15:800 [paper, as printed in Arruda & Boyce 1993 appendix]"),
         FUNCTIONALITY,
     ))
     equation = ("W = ½ξRT(I₁ − 3) + ½μ_jRT Σ[Bᵢ + Dᵢ − ln(1 + Bᵢ) − ln(1 + Dᵢ)],  "

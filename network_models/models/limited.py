@@ -15,8 +15,8 @@ class Gent(Model):
     family = "phenomenological"
     params = ParamSet((
         shear_modulus_param(),
-        Param("Jm", "J_m", "1", (1e-6, 1e6), (10.0, 500.0), 80.0,
-              "limiting value of I₁ − 3 (locks there)", "Gent 1996, Rubber Chem. Technol. 69:59",
+        Param(name="Jm", symbol="J_m", unit="1", bounds=(1e-6, 1e6), typical=(10.0, 500.0), default=80.0,
+              meaning="limiting value of I₁ − 3 (locks there)", source="Gent 1996, Rubber Chem. Technol. 69:59",
               log_scale=True),
     ))
     equation = "W = −(G J_m/2) ln(1 − (I₁ − 3)/J_m)"

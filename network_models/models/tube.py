@@ -145,13 +145,13 @@ class ExtendedTube(Model):
     has_stretch_part = True
     params = ParamSet((
         _GC, _GE,
-        Param("delta", "δ", "1", (0.0, DELTA_MAX), (0.02, 0.3), 0.1,
-              "finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
-              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602; bound δ² < ½ derived in "
+        Param(name="delta", symbol="δ", unit="1", bounds=(0.0, DELTA_MAX), typical=(0.02, 0.3), default=0.1,
+              meaning="finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
+              source="Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602; bound δ² < ½ derived in "
               "docs/methods.md §extended-tube"),
-        Param("beta", "β", "1", (1e-6, 1.0), (0.05, 1.0), 0.2,
-              "tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
-              "Kaliske & Heinrich 1999 [memory]", held=True),
+        Param(name="beta", symbol="β", unit="1", bounds=(1e-6, 1.0), typical=(0.05, 1.0), default=0.2,
+              meaning="tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
+              source="Kaliske & Heinrich 1999 [memory]", held=True),
     ))
     equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
                 "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
