@@ -142,7 +142,8 @@ def fit_file(rel: str, source, model: str, polymer: str = "NR", f: float = 4.0) 
             base["error"] = f"the fit did not succeed ({type(exc).__name__}: {exc})"
         notices = [str(n) for n in c.notices]
         if notices:
-            base["warnings"] = " | ".join([*notices, *filter(None, [base.get("warnings", "")])])
+            earlier = str(base.get("warnings") or "")
+            base["warnings"] = " | ".join([*notices, earlier] if earlier else notices)
         rows.append(base)
     return {"file": rel, "rows": rows, "error": None}
 
@@ -189,7 +190,7 @@ def to_frame(path):
 
 
 def _check_existing(rows: list[dict], model: str, path: Path):
-    models = {r.get("model") for r in rows if r.get("model")}
+    models = {str(r["model"]) for r in rows if r.get("model")}
     if models and models != {model}:
         raise UserError(f"{path} holds results of model {', '.join(sorted(models))}, not {model}; "
                         "write this model's results to another file with -o")

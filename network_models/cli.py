@@ -58,7 +58,8 @@ _NEGATIVE_VALUE = re.compile(r"^-(\d|\.\d)")
 
 def _value_options(parser) -> set[str]:
     """Long options (of the command and every sub-command) that take exactly one value."""
-    out, parsers = set(), [parser]
+    out: set[str] = set()
+    parsers = [parser]
     while parsers:
         p = parsers.pop()
         for a in p._actions:
@@ -72,7 +73,7 @@ def _value_options(parser) -> set[str]:
 def negative_values(parser, argv: list[str]) -> list[str]:
     """``--temperature -20C`` as ``--temperature=-20C``: argparse takes a word starting with '-' for an option
     unless it is a plain number, so a negative quantity with its unit after an option is joined to it."""
-    takes, out = _value_options(parser), []
+    takes, out = _value_options(parser), list[str]()
     for tok in argv:
         if out and _NEGATIVE_VALUE.match(tok) and out[-1] in takes:
             out[-1] = f"{out[-1]}={tok}"

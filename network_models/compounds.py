@@ -54,6 +54,7 @@ import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from .constants import kelvin
 from .curves import TestCurve
@@ -139,7 +140,7 @@ class Compound:
     notes: str = ""
     baseline: bool = False
     #: the recipe in phr (:class:`network_models.recipes.Recipe`; a dict of name = phr is resolved), or None
-    recipe: object = None
+    recipe: Any = None
     #: notices where the manifest's older fields disagree with the recipe (which wins)
     recipe_notices: list = field(default_factory=list)
 
@@ -251,7 +252,7 @@ def parse_spec(spec: str) -> tuple[str, list[str]]:
 
 
 def compounds_from_specs(specs, **kw) -> list[Compound]:
-    out = []
+    out: list[Compound] = []
     for spec in specs:
         name, files = parse_spec(spec)
         if any(c.name == name for c in out):
@@ -399,7 +400,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
         recipe = _manifest_recipe(doc, info, entry.key, p)
         info.pop("recipe", None)
         notes = str(info.pop("notes", info.pop("note", "")))
-        baseline = bool(info.pop("baseline", False))
+        is_baseline = bool(info.pop("baseline", False))
         f = float(info.pop("f", 4.0))
         meta = ({"title": entry.title} if entry.title != entry.key else {}) | info
         curves = []
@@ -410,7 +411,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
         tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell
                  if r.compound in (entry.key, entry.title)]
         comps.append(Compound(name=entry.key, curves=curves, swelling=tests, metadata=meta, polymer=entry.polymer,
-                              f=f, notes=notes, baseline=baseline, recipe=recipe))
+                              f=f, notes=notes, baseline=is_baseline, recipe=recipe))
     baseline = scen.get("baseline") or next((c.name for c in comps if c.baseline), None)
     return Manifest(comps, title=str(scen.get("title", p.stem)), purpose=str(scen.get("purpose", scen.get("note", ""))),
                     baseline=baseline, path=str(p), extra=dict(scen), swelling_path=index.swelling,

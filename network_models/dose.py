@@ -70,7 +70,7 @@ def fit_line(x, y) -> Line:
         se_b = math.sqrt(s2 / sxx)
         se_a = math.sqrt(s2 * (1.0 / n + xm * xm / sxx))
     else:
-        se_b = se_a = None
+        se_b = se_a = None  # type: ignore[assignment]  # not determined from two points
     return Line(b, a, se_b, se_a, n, rss)
 
 
@@ -125,7 +125,8 @@ def ladder(compounds, ingredient: str):
     """``(rows, left_out)``: the compounds that differ only in ``ingredient`` — rows of (compound, phr), phr
     of the ingredient (0 when the recipe lacks it) — and {name: why} for the others."""
     k = _key(ingredient)
-    groups, left = {}, {}
+    groups: dict = {}
+    left: dict = {}
     for c in compounds:
         r = getattr(c, "recipe", None)
         if r is None:
@@ -134,7 +135,7 @@ def ladder(compounds, ingredient: str):
         dose = r.phr_of(ingredient) or 0.0
         rest = tuple(sorted((_key(n), v) for n, v in r.phr.items() if _key(n) != k and _key(r.items[n].name) != k))
         groups.setdefault(rest, []).append((c, dose))
-    best = max(groups.values(), key=lambda g: (len({d for _c, d in g}), len(g)), default=[])
+    best: list = max(groups.values(), key=lambda g: (len({d for _c, d in g}), len(g)), default=[])
     if len({d for _c, d in best}) < 2:
         raise UserError(f"no two compounds with recipes differ only in {ingredient!r}: a dose ladder needs at "
                         "least two doses of one ingredient with everything else equal")
@@ -214,7 +215,7 @@ LADDER_QUANTITIES = {"nu": "strand density ν (headline basis)", "G0": "small-st
 
 def find_ladders(compounds) -> list[str]:
     """Ingredients in which at least three compounds with recipes differ while everything else is equal."""
-    names = {}
+    names: dict = {}
     for c in compounds:
         r = getattr(c, "recipe", None)
         if r is not None:

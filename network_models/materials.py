@@ -37,6 +37,7 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
+from typing import Any
 
 from .constants import LAB_TEMPERATURE, celsius, kelvin
 from .errors import DataError
@@ -258,7 +259,7 @@ def load_polymer_table(path) -> UserTable:
 
 
 _UNSET = object()
-_active: object = _UNSET
+_active: Any = _UNSET
 
 
 def use_polymer_table(path) -> UserTable | None:

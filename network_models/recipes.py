@@ -195,7 +195,7 @@ def ingredients() -> dict[str, Ingredient]:
         _active = load_ingredient_table(env) if env else None
     out = dict(builtin_ingredients())
     if _active:
-        out.update(_active)
+        out.update(_active)  # type: ignore[call-overload]  # a loaded table: dict[str, Ingredient]
     return out
 
 

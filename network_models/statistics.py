@@ -254,6 +254,7 @@ def combined_interval(summary: Summary, fit_se, level: float = 0.95) -> tuple[fl
         return None
     ses = [float(s) for s in (fit_se or []) if s is not None and math.isfinite(float(s))]
     fit_var = sum(s * s for s in ses) / (summary.n ** 2) if ses else 0.0
+    assert summary.se is not None and summary.mean is not None  # scatter known: n ≥ 2
     half = t_quantile(summary.n - 1, level) * math.sqrt(summary.se ** 2 + fit_var)
     return (summary.mean - half, summary.mean + half)
 

@@ -411,7 +411,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         notes.append(f"Ellis–Welding: rubber network D − F·T with insoluble fraction F = {insoluble_fraction:.4f} "
                      f"from the recipe, polymer density {rho_p:g} kg/m³; v_r = {phi_m:.4f}")
     else:
-        phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
+        phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, float(rubber_fraction or 1.0))
     check_absorbed_mass(network_mass, swollen)
     phi = phi_m
     kraus = None
@@ -429,7 +429,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     check_repeat_unit(nu_a, nu_p, rho_p, poly, notes)
     band = {}
     for net in ("affine", "phantom"):
-        vals = []
+        vals: list[float | None] = []
         for c in (cv.chi - CHI_BAND, cv.chi + CHI_BAND):
             try:
                 vals.append(flory_rehner_nu(phi, c, sol.molar_volume, f, net))
@@ -457,7 +457,7 @@ def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
                  else "no published spread stated for this row: the fixed ± 0.05 band")
     band = {}
     for net in ("affine", "phantom"):
-        vals = []
+        vals: list[float | None] = []
         for c in (cv.chi - spread, cv.chi + spread):
             try:
                 vals.append(flory_rehner_nu(phi, c, V1, f, net))

@@ -3,10 +3,12 @@ of an archive, one row per curve, resumable; unreadable files listed in ``<stem>
 
 from __future__ import annotations
 
+import argparse
+
 from ._options import add_db, add_functionality, add_polymer
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
         "batch", help="fit every curve in folders of lab files: one row per curve (CSV or parquet), resumable",
         description="Walk folders (csv, tsv, txt, xlsx and the other formats the reader knows), fit MODEL to every "
@@ -28,7 +30,7 @@ def add_parser(sub):
     p.set_defaults(run=run)
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     import sys
 
     from ..batch import run_batch

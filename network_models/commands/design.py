@@ -14,6 +14,7 @@ sentence naming the conflicting targets when infeasible), plus M_c, junction den
 
 from __future__ import annotations
 
+import argparse
 import math
 import re
 
@@ -28,7 +29,7 @@ _GRAMMAR = ("targets: G, E, M100/M200/M300, uniaxial@λ, planar@λ, equibiaxial@
             "a..b range), >=, <=; e.g. " + ", ".join(f"'{v}'" for v in EXAMPLES.values()))
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("design", help="targets → the window of strand density that meets them (binding target, "
                                       "conflicts, what to change)",
                        description="Which strand density ν meets a set of targets with a chosen model, polymer, "
@@ -247,7 +248,7 @@ def _table(r) -> list[str]:
     return out
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     study = _project_defaults(args)
     kw = dict(polymer=args.polymer, temperature=args.temperature, filler=args.filler, f=args.functionality,
               N=args.N, entanglements=not args.no_entanglements)

@@ -7,13 +7,15 @@ statistics, warnings in plain words and the crosslink-density table.
 
 from __future__ import annotations
 
+import argparse
 import math
 import re
+from typing import cast
 
 from ..constants import CAUTION as _CAUTION
 from ..constants import celsius
 from ..crosslinks import from_fit
-from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
+from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, FitResult, fit_many
 from ..jsonio import dumps
 from ..models import get_model
 from ..ultimate import RULE as ULTIMATE_RULE
@@ -23,7 +25,7 @@ from ._options import add_functionality, add_json, add_polymer
 CAUTION = "Caution: " + _CAUTION
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 %% intervals, crosslink density)",
                        description="Fit network models to tensile, planar or equibiaxial curves.")
     p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT, .xlsx, .xls or .ods)")
@@ -62,7 +64,7 @@ def add_parser(sub):
 # ------------------------------------------------------------------------------------------------
 # shared helpers (also used by the crosslinks and swell commands)
 # ------------------------------------------------------------------------------------------------
-def quantity(text, dimension, what, example):
+def quantity(text, dimension, what, example) -> float:
     """Parse a command-line quantity that must carry a unit, e.g. '23C', '20mm', '0.55MPa'."""
     from ..units import parse_quantity
 
@@ -187,7 +189,7 @@ def _format_result(res, table, stretch_unit="stretch") -> list[str]:
     return out
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..network import get_polymer
 
     names = args.model or ["eight-chain"]
@@ -233,10 +235,10 @@ def run(args):
                                            "residuals (statistics.small_strain_modulus_Pa)"}
                 doc["models"][name] = d
         if len(ok) > 1:
-            doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)
+            doc["best_by_aic"] = min(ok, key=lambda n: cast(FitResult, results[n]).aic)
         print(dumps(doc))
     else:
-        modes = {}
+        modes: dict = {}
         for c in curves:
             modes[c.mode.value] = modes.get(c.mode.value, 0) + 1
         print(f"{len(curves)} curve(s) from {len(args.files)} file(s): "
@@ -260,8 +262,8 @@ def run(args):
                 continue
             print("\n".join(_format_result(r, tables.get(name), args.stretch_unit)))
         if len(ok) > 1:
-            best = min(ok, key=lambda n: results[n].aic)
-            print(f"\nLowest AIC on these curves: {results[best].title} (compare AIC only on the same curves and "
+            best = cast(FitResult, results[min(ok, key=lambda n: cast(FitResult, results[n]).aic)])
+            print(f"\nLowest AIC on these curves: {best.title} (compare AIC only on the same curves and "
                   "residual choice; a lower AIC is a better fit per parameter, not proof of the physics)")
         print()
         print(CAUTION)

@@ -11,13 +11,14 @@
 
 from __future__ import annotations
 
+import argparse
 import json
 import sys
 
 from ._options import add_db, add_json, add_polymer
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("library", help="the results library: import studies, find compounds by targets, QC trends",
                        description="A database of studies (inputs by SHA-256, settings, compounds, specimens and "
                                    "their results per model and basis): import, find by design targets, follow a "
@@ -75,7 +76,7 @@ def _out(obj):
     print(json.dumps(obj, indent=2, ensure_ascii=False, allow_nan=False))
 
 
-def run_import(args):
+def run_import(args: argparse.Namespace) -> int:
     from ..library import import_study
 
     kind, path = next((k, getattr(args, k)) for k in ("manifest", "project", "batch") if getattr(args, k))
@@ -102,7 +103,7 @@ def _shown(key, v) -> str:
     return f"{key}: {_fmt(v['value'], u)}{ci}{unit}"
 
 
-def run_find(args):
+def run_find(args: argparse.Namespace) -> int:
     from ..errors import UserError
     from ..library import find
 
@@ -125,7 +126,7 @@ def run_find(args):
     return 0
 
 
-def run_trend(args):
+def run_trend(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from ..library import trend, trend_svg
@@ -153,7 +154,7 @@ def run_trend(args):
     return 0
 
 
-def run_export(args):
+def run_export(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from ..library import export_study
@@ -164,7 +165,7 @@ def run_export(args):
     return 0
 
 
-def run_list(args):
+def run_list(args: argparse.Namespace) -> int:
     from ..library.query import studies
 
     rows = studies(args.db)

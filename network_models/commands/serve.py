@@ -8,11 +8,12 @@ variable NETSTRETCH_PASSWORD — never from the command line, where other users 
 
 from __future__ import annotations
 
+import argparse
 import importlib
 from pathlib import Path
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("serve", help="serve the browser app (local assets only; works without internet)",
                        description="Serve the browser app.  For a server a lab leaves running see README "
                                    "'Serving a lab'; for Panel's own options use `panel serve` on the file "
@@ -54,7 +55,7 @@ def _app_package():
         return importlib.import_module("app")
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..errors import UserError
 
     if args.entry_file:

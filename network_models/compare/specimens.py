@@ -155,7 +155,7 @@ def finish_specimen(spec: SpecimenResult, tier: int, compound) -> None:
         poly = get_polymer(compound.polymer)
         spec.values["N"] = poly.density / nu / poly.kuhn_molar_mass
     if spec.values.get("lock") is None and spec.values.get("N"):
-        spec.values["lock"] = lock_from_N(max(spec.values["N"], 1.0 + 1e-6), Mode.UNIAXIAL)
+        spec.values["lock"] = lock_from_N(max(float(spec.values["N"] or 0.0), 1.0 + 1e-6), Mode.UNIAXIAL)
 
 
 def choose_tier(pooled_nu: dict[int, float | None], specimens: list[SpecimenResult]) -> tuple[int, str]:
@@ -185,7 +185,7 @@ def _serious(warnings) -> list[str]:
             and not any(h in str(w) for h in _HARMLESS)]
 
 
-def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> None:
+def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> tuple[int, str]:
     """Fit every specimen of ``res.compound`` alone, flag outliers, apply exclusions, choose the headline
     basis, summarise every specimen quantity (``res.stats``) and put the specimen means and intervals into
     the comparison table."""
@@ -200,7 +200,8 @@ def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> N
     for name, cs in groups.items():
         spec = SpecimenResult(name, cs, counted=any(cv.mode is main for cv in cs))
         if not spec.counted:
-            spec.note = f"not counted: tested in {', '.join(spec.modes)}, the statistics use {main.value} specimens"
+            main_text = "no" if main is None else main.value
+            spec.note = f"not counted: tested in {', '.join(spec.modes)}, the statistics use {main_text} specimens"
         if name in exclude:
             spec.excluded = str(exclude.pop(name) or "excluded by the user")
         fr, err = fit_safely(m, cs, fitter, f"{c.name} specimen {name}")
@@ -249,7 +250,9 @@ def specimen_table(res, tier: int, why: str) -> None:
         if s.n >= 2:
             fit_se = [sp.fit_se.get(q) for sp in res.specimens if sp.used and sp.values.get(q) is not None]
             qt.value = s.mean
-            qt.low, qt.high = combined_interval(s, fit_se)
+            ci = combined_interval(s, fit_se)
+            assert ci is not None  # n ≥ 2: scatter known
+            qt.low, qt.high = ci
             qt.interval = SPECIMEN_INTERVAL
         elif qt.has_interval:
             sc = qt.display_scale

@@ -131,7 +131,7 @@ class Evaluator:
             return t.chi, "given"
         key = t.solvent
         if key not in self._chi:
-            sol = get_solvent(t.solvent)
+            sol = get_solvent(str(t.solvent))
             rows = chi_values(self.setup.polymer, sol.key)
             if not rows:
                 raise TargetError(f"target {t.text!r}: the solvent table has no χ for {self.setup.polymer}–{sol.key}; "
@@ -156,12 +156,13 @@ class Evaluator:
             G = float(m.small_strain_modulus(**p))
             return 3.0 * G if t.kind == "E" else G
         if t.kind == "stress":
+            assert t.mode is not None and t.stretch is not None
             v = float(m.nominal_stress(t.mode, np.array([t.stretch]), p)[0])
             if not math.isfinite(v):
                 self._note(t, f"the network locks before λ = {t.stretch:g} in {t.mode.value} tension")
             return v
         lock = self._lock(t, net, p)
-        return lock if t.kind == "lock" else lock - t.stretch
+        return lock if t.kind == "lock" else lock - float(t.stretch or 1.0)  # reserve: λ_service
 
     def _lock(self, t, net, p) -> float:
         lim = self.model.stretch_limit(t.mode, p)
@@ -175,7 +176,7 @@ class Evaluator:
 
     def _swelling(self, t: Target, nu: float) -> float:
         chi, _status = self.chi(t)
-        V1 = get_solvent(t.solvent).molar_volume
+        V1 = get_solvent(str(t.solvent)).molar_volume
         try:
             phi0 = swollen_fraction(nu, chi, V1, f=self.setup.f, network="affine")
         except ValueError as exc:
@@ -381,12 +382,12 @@ def setup(polymer, temperature, model, filler, f, N, entanglements) -> DesignSet
     return setup
 
 
-def check_modes(setup: DesignSetup, targets: list[Target]):
+def check_modes(setup: DesignSetup, targets: list[Target]) -> None:
     m = get_model(setup.model)
     for t in targets:
         if t.kind == "Q":
             try:
-                get_solvent(t.solvent)
+                get_solvent(str(t.solvent))
             except KeyError as exc:
                 raise TargetError(f"target {t.text!r}: {exc.args[0]}; write it like 'Q(toluene)<=3.5'.",
                                   kind="design-target") from None

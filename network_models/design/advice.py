@@ -132,7 +132,8 @@ def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
             return math.nan
         return v if v > 0 else math.nan
 
-    grid = np.geomspace(*setup.nu_range, 97)
+    lo, hi = setup.nu_range
+    grid = np.geomspace(lo, hi, 97)
     vals = [g0(v) for v in grid]
     for k in range(len(grid) - 1):
         a, b = vals[k], vals[k + 1]

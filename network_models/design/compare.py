@@ -4,6 +4,7 @@ range of strand density all of them agree on (if any)."""
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -87,7 +88,8 @@ def window_over(targets, axis: str = "filler", values=None, **kw) -> list[dict]:
     kw.pop(axis, None)
     rows = []
     for v in values:
-        r = design(targets, **{axis: float(v)}, **kw)
+        kw_v: dict[str, Any] = {**kw, axis: float(v)}
+        r = design(targets, **kw_v)
         w = r.window
         rows.append({axis: float(v), "feasible": r.feasible, "low": None if w is None else w.lo,
                      "high": None if w is None else w.hi,

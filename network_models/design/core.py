@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from typing import Any
 
 from ..constants import CAUTION, LAB_TEMPERATURE
 from ..errors import Notice
@@ -98,7 +99,7 @@ class DesignResult:
     # ----- output --------------------------------------------------------------------------------------
     def to_dict(self) -> dict:
         w = self.window
-        doc = {
+        doc: dict[str, Any] = {
             "feasible": self.feasible,
             "strand_density": None if w is None else {
                 "low": w.lo, "high": w.hi, "unit": "mol/m³", "low_is_scan_limit": w.lo_open,
@@ -110,6 +111,7 @@ class DesignResult:
         }
         if w is not None:
             mc, mj = self.Mc_window(), self.junction_window()
+            assert mc is not None and mj is not None  # a window gives both
             doc["Mc"] = {"low": mc[0], "high": mc[1], "unit": "kg/mol", "meaning": "strand molar mass ρ/ν"}
             doc["junction_density"] = {"low": mj[0], "high": mj[1], "unit": "mol/m³", "functionality": self.setup.f,
                                        "meaning": "crosslink junctions μ_j = 2ν/f"}
@@ -246,8 +248,10 @@ def _design(setup: DesignSetup, tl: list[Target]) -> DesignResult:
     for o in outcomes:
         windows = _scan.intersect(windows, o.intervals)
     window = max(windows, key=lambda iv: math.log(iv.hi / iv.lo)) if windows else None
-    binding = {"low": [], "high": []}
-    conflicts, unreachable, compromise = [], [], None
+    binding: dict[str, list[str]] = {"low": [], "high": []}
+    conflicts: list[tuple[str, str]] = []
+    unreachable: list[str] = []
+    compromise: dict | None = None
     if window is not None:
         binding = {"low": [] if window.lo_open else _scan.binding(outcomes, window.lo, "low"),
                    "high": [] if window.hi_open else _scan.binding(outcomes, window.hi, "high")}

@@ -187,7 +187,7 @@ def _misfit(out, result, data):
 def _grid(top: float, modes: tuple[str, ...]):
     """Stretch grid 1.001…top in each mode, as fitting data (kinematics computed once)."""
     grid = np.linspace(1.0 + 1e-3, top, 100)
-    curves = [TestCurve(md, grid, np.zeros_like(grid), name="grid") for md in modes]
+    curves = [TestCurve(mode=Mode.parse(md), stretch=grid, stress=np.zeros_like(grid), name="grid") for md in modes]
     return grid, Data(curves)
 
 

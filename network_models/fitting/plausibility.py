@@ -84,8 +84,8 @@ def unit_plausibility(curves, G0, modulus_of: Callable[[list], float]) -> list[N
                 if lo <= g <= hi:
                     fixes.append((abs(math.log(g / TYPICAL_G0)),
                                   f"{text} and strain fractions under a % header (G₀ would be {g / 1e6:.3g} MPa)"))
-        fixes = [t for _, t in sorted(fixes)[:2]]
-        what = ("; likely mix-up: " + "; or ".join(fixes)) if fixes else ""
+        named = [t for _, t in sorted(fixes)[:2]]
+        what = ("; likely mix-up: " + "; or ".join(named)) if named else ""
         out.append(Notice(f"G₀ = {G0 / 1e6:.4g} MPa is not a plausible rubber modulus (solid rubbers lie between "
                           f"{lo / 1e6:g} and {hi / 1e6:g} MPa){what}{_headers(curves)}; check the columns' units "
                           "before using the fit", "implausible-unit", "G0"))

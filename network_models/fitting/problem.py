@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 from scipy.optimize import brentq
@@ -278,7 +279,7 @@ class Coord:
 class Problem:
     """Everything the solver and the uncertainty step need, set up once per fit."""
 
-    model: object
+    model: Any
     curves: list
     data: Data
     residual: str
@@ -289,8 +290,8 @@ class Problem:
     lb: dict
     ub: dict
     locks: dict  # name -> (threshold, valid side)
-    weight: np.ndarray = None
-    wd: np.ndarray = None
+    weight: np.ndarray | None = None
+    wd: np.ndarray | None = None
     notices: list = field(default_factory=list)
 
     @property

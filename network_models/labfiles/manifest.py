@@ -6,7 +6,7 @@ read until asked).  :func:`network_models.compounds.load_manifest` builds loaded
 from __future__ import annotations
 
 import tomllib
-from collections.abc import Iterable
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -81,7 +81,7 @@ class ManifestIndex:
                 return c
         raise KeyError(f"no compound {key!r} in {self.path.name}; it lists {', '.join(c.key for c in self.compounds)}")
 
-    def __iter__(self) -> Iterable[ManifestEntry]:
+    def __iter__(self) -> Iterator[ManifestEntry]:
         return iter(self.compounds)
 
     def swelling_results(self) -> list[SwellingResult]:

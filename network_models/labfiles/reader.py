@@ -11,6 +11,7 @@ import numpy as np
 
 from ..constants import ZERO_CELSIUS
 from ..curves import TestCurve
+from ..deformation import Mode
 from ..errors import DataError, Notice
 from ..ultimate import break_properties, find_rupture, rupture_notice
 from ..units import UnitError, unit_converter
@@ -243,7 +244,7 @@ class TableRead:
     numbers: list  # the file's line/row number of each data row
     gauge: float | None  # gauge length, m
     area: float | None  # cross-section, m²
-    mode: object  # deformation.Mode
+    mode: Mode
     loading: str  # "tension" | "compression"
     temperature: float | None  # K
     known: dict  # metadata read from the file's preamble
