@@ -115,7 +115,7 @@ class CrosslinkRow:
                 "note": self.note, "strand_density_kind": self.nu_kind, "bound": self.bound or None}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class CrosslinkTable:
     rows: list[CrosslinkRow]
     polymer: str
@@ -321,8 +321,9 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
                  f"(crosslink) density μ_j = 2ν/f (f = {f:g}); N = M_c/M_K with M_K = {MK * 1000:.4g} g/mol for "
                  f"{poly.key} [{poly.status}]")
     notes.append(f"evaluated at T = {celsius(T):.1f} °C; R from scipy.constants (CODATA)")
-    return CrosslinkTable(rows, poly.key, float(T), float(f), float(G), G_ci, dict(inputs or {}), notes,
-                          share, share_text)
+    return CrosslinkTable(rows=rows, polymer=poly.key, T=float(T), f=float(f), G=float(G), G_ci=G_ci,
+                          inputs=dict(inputs or {}), notes=notes,
+                          entanglement_share=share, entanglement_share_text=share_text)
 
 
 def _mark_bounds(rows, upper, X) -> list[str]:

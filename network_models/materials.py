@@ -376,7 +376,7 @@ def temperature_notices(polymer, T, where: str = "") -> list:
 
 
 # ----- solvents and χ (solvents.toml): beside the polymer table, read by swelling and design --------------
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Solvent:
     key: str
     title: str
@@ -415,8 +415,8 @@ def _solvent_table():
 def solvents() -> dict[str, Solvent]:
     out = {}
     for key, r in _solvent_table()["solvent"].items():
-        out[key] = Solvent(key, r["title"], r["formula"], r["molar_mass_g_mol"] / 1000.0,
-                           r["density_g_cm3"] * 1000.0, r["density_source"])
+        out[key] = Solvent(key=key, title=r["title"], formula=r["formula"], molar_mass=r["molar_mass_g_mol"] / 1000.0,
+                           density=r["density_g_cm3"] * 1000.0, density_source=r["density_source"])
     return out
 
 

@@ -196,7 +196,7 @@ def kraus_gum_fraction(v_rf: float, filler_fraction: float, c: float = KRAUS_C_C
 
 
 # ------------------------------------------------------------------------------------------------
-@dataclass
+@dataclass(kw_only=True)
 class SwellingEstimate:
     phi: float  # rubber volume fraction used in Flory–Rehner (Kraus-corrected when filled)
     phi_measured: float  # before any Kraus correction
@@ -441,7 +441,9 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     notes.append("Flory–Rehner assumes a perfect network in equilibrium with pure solvent at the test "
                  "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
     spread, basis, band_chi = _published_band(phi, cv, sol.molar_volume, f, notes)
-    return SwellingEstimate(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes,
+    return SwellingEstimate(phi=phi, phi_measured=phi_m, chi=cv, solvent=sol, polymer=poly.key, f=float(f), T=T,
+                            nu_affine=nu_a, nu_phantom=nu_p, band=band, rho_polymer=rho_p, soluble_fraction=soluble,
+                            kraus=kraus, notes=notes,
                             chi_spread=spread, chi_spread_basis=basis, nu_band_chi=band_chi,
                             insoluble_fraction=insoluble_fraction)
 

@@ -54,7 +54,7 @@ class Quantity:
                 "note": self.note, "n": self.n, "interval": self.interval}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class ParamRow:
     name: str
     symbol: str

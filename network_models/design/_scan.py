@@ -66,7 +66,7 @@ class DesignSetup:
                 "N": self.N, "N_coupled": self.N is None, "entanglements": self.entanglements}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Interval:
     """A range of ν (mol/m³).  ``lo_open``/``hi_open``: the edge is the end of the scanned range, not a target."""
 
@@ -293,7 +293,7 @@ def outcome(ev: Evaluator, t: Target, grid: np.ndarray) -> TargetOutcome:
             j += 1
         lo = grid[0] if k == 0 else _refine(ev, t, grid[k], grid[k - 1])
         hi = grid[-1] if j == n - 1 else _refine(ev, t, grid[j], grid[j + 1])
-        iv = Interval(float(lo), float(hi), k == 0, j == n - 1)
+        iv = Interval(lo=float(lo), hi=float(hi), lo_open=k == 0, hi_open=j == n - 1)
         if k > 0 and not math.isfinite(vals[k - 1]):
             iv.lo_reason = _reason_at(ev, t, grid[k - 1])
         if j < n - 1 and not math.isfinite(vals[j + 1]):
@@ -313,7 +313,7 @@ def intersect(a: list[Interval], b: list[Interval]) -> list[Interval]:
             if lo < hi:
                 lo_open = (x.lo_open if x.lo >= y.lo else True) and (y.lo_open if y.lo >= x.lo else True)
                 hi_open = (x.hi_open if x.hi <= y.hi else True) and (y.hi_open if y.hi <= x.hi else True)
-                out.append(Interval(lo, hi, lo_open, hi_open))
+                out.append(Interval(lo=lo, hi=hi, lo_open=lo_open, hi_open=hi_open))
     return sorted(out, key=lambda iv: iv.lo)
 
 

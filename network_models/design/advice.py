@@ -20,7 +20,7 @@ from ._scan import binding
 __all__ = ["CURRENT_BASES", "Advice", "advise", "compound_from_fit", "convert_current", "nu_basis", "nu_for_modulus"]
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Advice:
     """What to change in a measured compound (strand density ``nu`` with 95 % interval ``ci``) to land in
     the window.  ``change`` and ``change_range`` are fractions (0.08 = +8 %); ``change_range`` carries the
@@ -80,7 +80,8 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
             out.append(f"its interval reaches above the high edge {w.hi:.4g} mol/m³ ({' and '.join(hi_b)})")
         s = (f"Keep ν: the compound's ν = {nu:.4g} mol/m³{interval_txt} is inside the window "
              f"{w.lo:.4g}–{w.hi:.4g} mol/m³" + ("; but " + " and ".join(out) if out else "") + ".")
-        return Advice(nu, ci, "keep", 0.0, (0.0, 0.0), [], centre, None, [], s)
+        return Advice(nu=nu, ci=ci, action="keep", change=0.0, change_range=(0.0, 0.0), binding=[], to_centre=centre,
+                      limit=None, limit_binding=[], sentence=s)
     raise_ = nu < w.lo
     edge, far, bind, far_bind = (w.lo, w.hi, lo_b, hi_b) if raise_ else (w.hi, w.lo, hi_b, lo_b)
     far_open = w.hi_open if raise_ else w.lo_open
@@ -98,19 +99,22 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
         s += f"; {verb} by no more than {_pct(limit)} or {' and '.join(far_bind)} is missed"
     if centre is not None:
         s += f"; {_pct(centre)} lands at the window's centre"
-    return Advice(nu, ci, verb, change, rng, bind, centre, limit, far_bind if limit is not None else [], s + ".")
+    return Advice(nu=nu, ci=ci, action=verb, change=change, change_range=rng, binding=bind, to_centre=centre,
+                  limit=limit, limit_binding=far_bind if limit is not None else [], sentence=s + ".")
 
 def _advise_infeasible(self, nu, ci, a, b) -> Advice:
     if self.compromise is None:
-        return Advice(nu, ci, "none", 0.0, (0.0, 0.0), [], None, None, [],
-                      "No strand density meets these targets and no compromise can be computed: see why.")
+        return Advice(nu=nu, ci=ci, action="none", change=0.0, change_range=(0.0, 0.0), binding=[], to_centre=None,
+                      limit=None, limit_binding=[],
+                      sentence="No strand density meets these targets and no compromise can be computed: see why.")
     c = self.compromise["strand_density"]
     change = c / nu - 1.0
     rng = tuple(sorted((c / b - 1.0, c / a - 1.0)))
     verb = "raise" if change > 0 else "lower"
     s = (f"No window exists for these targets (see why); toward the closest compromise ν = {c:.4g} mol/m³: "
          f"{verb} ν by {_pct_range(*rng)} ({_pct(change)} from the nominal ν = {nu:.4g} mol/m³).")
-    return Advice(nu, ci, "none", change, rng, [], None, None, [], s)
+    return Advice(nu=nu, ci=ci, action="none", change=change, change_range=rng, binding=[], to_centre=None,
+                  limit=None, limit_binding=[], sentence=s)
 
 
 def nu_for_modulus(setup, G: float, T: float | None = None) -> float:

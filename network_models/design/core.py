@@ -244,7 +244,7 @@ def _design(setup: DesignSetup, tl: list[Target]) -> DesignResult:
     ev = _scan.Evaluator(setup)
     grid = _scan.scan_grid(setup)
     outcomes = [_scan.outcome(ev, t, grid) for t in tl]
-    windows = [Interval(float(grid[0]), float(grid[-1]), True, True)]
+    windows = [Interval(lo=float(grid[0]), hi=float(grid[-1]), lo_open=True, hi_open=True)]
     for o in outcomes:
         windows = _scan.intersect(windows, o.intervals)
     window = max(windows, key=lambda iv: math.log(iv.hi / iv.lo)) if windows else None

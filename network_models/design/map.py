@@ -28,7 +28,7 @@ TARGET_COLOURS = ("#1f77b4", "#d62728", "#9467bd", "#8c564b", "#e377c2", "#17bec
 FEASIBLE_COLOUR = "#2ca02c"
 
 
-@dataclass
+@dataclass(kw_only=True)
 class DesignMap:
     """Where each target is met over (ν, y); ``masks[text]`` and ``feasible`` are bool arrays (len(y), len(ν))."""
 
@@ -99,7 +99,7 @@ def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 30
     if axis == "N":
         p = get_polymer(base.polymer)
         coupled = p.density / (nu * p.kuhn_molar_mass)
-    return DesignMap(axis, nu, y, masks, feasible, base, coupled)
+    return DesignMap(axis=axis, nu=nu, y=y, masks=masks, feasible=feasible, setup=base, coupled_N=coupled)
 
 
 # ------------------------------------------------------------------------------------------------

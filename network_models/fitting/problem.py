@@ -275,7 +275,7 @@ class Coord:
         return self.v_of_z(self.z_of_x(x))
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Problem:
     """Everything the solver and the uncertainty step need, set up once per fit."""
 
@@ -328,8 +328,8 @@ def set_up(m, curves, *, residual, free, fixed, start) -> Problem:
         p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
     except ValueError as exc:
         raise FitError(f"start values rejected: {exc}", kind="bad-option") from None
-    pr = Problem(m, curves, data, residual, free_names, start, G0, p0,
-                 {q.name: q.bounds[0] for q in m.params}, {q.name: q.bounds[1] for q in m.params}, {})
+    pr = Problem(model=m, curves=curves, data=data, residual=residual, free_names=free_names, start=start, G0=G0, p0=p0,
+                 lb={q.name: q.bounds[0] for q in m.params}, ub={q.name: q.bounds[1] for q in m.params}, locks={})
     _lock_bounds(pr)
     _drop_points_past_lock(pr)
     n, k = pr.n, pr.k

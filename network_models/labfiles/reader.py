@@ -26,7 +26,7 @@ from .tables import Table, cell_text
 X_KINDS, Y_KINDS = vocab.X_KINDS, vocab.Y_KINDS
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Header:
     """The header row, the optional unit row below it and the classified columns."""
 
@@ -58,7 +58,7 @@ def read_header(table: Table, opts: dict, *, strict: bool = True) -> Header:
     names += [""] * (ncols - len(names))
     cols = [classify(i, h, unit_row[i] if unit_row and i < len(unit_row) else None,
                      kinds=opts.get("columns"), units=opts.get("units")) for i, h in enumerate(names)]
-    return Header(names, start, unit_row, cols)
+    return Header(names=names, start=start, unit_row=unit_row, columns=cols)
 
 
 def pair_columns(cols: list[Column]) -> list[tuple[list[Column], list[Column]]]:

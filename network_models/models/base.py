@@ -39,7 +39,7 @@ class ModulusSplit:
     basis: str = ""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class ChainReading:
     """One way a model's fitted parameters read as network numbers beyond G₀ (asked by the crosslink
     table, which turns it into a row with intervals from the fit).

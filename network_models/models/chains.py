@@ -42,8 +42,9 @@ def _three_chain_modulus_per_mu(N: float) -> float:
 
 
 def _chain_reading(model):
-    return [ChainReading("model-chain-modulus", f"{model.title}: chain modulus μ = νRT",
-                         "μ = nkT = νRT (affine chain density); N as fitted", "mu", 1.0, N_param="N",
+    return [ChainReading(key="model-chain-modulus", label=f"{model.title}: chain modulus μ = νRT",
+                         assumes="μ = nkT = νRT (affine chain density); N as fitted", modulus_param="mu", factor=1.0,
+                         N_param="N",
                          note="N here is the fitted Kuhn number (filler-amplified when the compound is filled)")]
 
 

@@ -186,8 +186,9 @@ class ConstrainedJunction(Model):
 
     def network_reading(self, values) -> list:
         f = float(values["f"])
-        return [ChainReading("model-phantom-part", f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
-                             f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", "G_ph", 1.0 - 2.0 / f, f=f)]
+        return [ChainReading(key="model-phantom-part", label=f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
+                             assumes=f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", modulus_param="G_ph",
+                             factor=1.0 - 2.0 / f, f=f)]
 
     def guess(self, modulus) -> dict:
         return {"G_ph": 0.6 * modulus, "kappa": 5.0}
