@@ -27,6 +27,14 @@ from .ui import CSS, html
 log = logging.getLogger("netstretch.app")
 
 
+def warm_imports():
+    """Modules a session loads only on demand (HoloViews and its Bokeh plotting, for Compare's specimen
+    card): the server imports them once before its port opens, so no user's first click pays for them."""
+    from .specimen_view import _ensure_backend
+
+    _ensure_backend()
+
+
 def create_app(load_samples: bool = True):
     """One browser session's page.  If building it fails, the page says so in a sentence (the details go
     to the server log), never with a traceback."""

@@ -339,10 +339,11 @@ def _return_free_memory():
 def _warm_up():
     """Build one page before the port opens: imports, the sample set and its fits are then ready, so the
     first colleague does not wait for them.  A failure here is logged and the first session shows it."""
-    from .main import create_app
+    from .main import create_app, warm_imports
 
     try:
         _release(create_app())
+        warm_imports()
     except Exception:
         log.exception("warming up the page failed")
     gc.collect()
