@@ -17,10 +17,12 @@ run: $(STAMP)
 
 test: $(STAMP)
 	$(PY) -m ruff check .
+	$(PY) -m mypy
 	$(PY) -m pytest -q
 
 lint: $(STAMP)
 	$(PY) -m ruff check .
+	$(PY) -m mypy
 
 bench: $(STAMP)
 	$(PY) -m benchmarks

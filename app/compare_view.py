@@ -127,12 +127,14 @@ class CompareView(pn.viewable.Viewer):
         self.table = html("", css_classes=["ns-cmp-table"])
         self.plots = html("", css_classes=["ns-cmp-plots"])
         self.details = html("", css_classes=["ns-cmp-details"])
-        #: the linked per-specimen plots (HoloViews), made when the tab is first shown (``show_specimens``)
+        #: the linked per-specimen plots (HoloViews), made when the user first opens their card
+        #: (``open_specimens``); the collapsed card itself is placed when the tab is first shown
+        #: (``show_specimens``) — five HoloViews plots would otherwise be most of the tab's first visit
         self._specimen_views = None
+        self._specimens_card = None
+        self._specimens_inner = Deferred(lambda: [self.specimen_views])
         self._svg = False
-        self._specimens_place = Deferred(lambda: [pn.Card(
-            self.specimen_views, title="Specimens one by one: values, residuals, data and fit (linked)",
-            collapsed=False, sizing_mode="stretch_width", css_classes=["ns-cmp-specimens"])])
+        self._specimens_place = Deferred(self._specimens_section)
         self.results = pn.Column(self.stale_results, self.summary, self.table, self._specimens_place.slot,
                                  self.plots, self.details, sizing_mode="stretch_width", css_classes=["ns-cmp-results"])
         self._run = guarded(self.messages, "compare", "Compare")(self._run)
@@ -156,9 +158,26 @@ class CompareView(pn.viewable.Viewer):
             self._specimen_views.set_comparison(self.state.comparison)
         return self._specimen_views
 
+    def _specimens_section(self):
+        """The specimen card, collapsed: its plots are built the first time it is opened (made here, inside
+        the tab's deferred builder, so the card goes with the page's clean-up like every other widget)."""
+        card = pn.Card(self._specimens_inner.slot,
+                       title="Specimens one by one: values, residuals, data and fit (linked) — open to draw",
+                       collapsed=True, sizing_mode="stretch_width", css_classes=["ns-cmp-specimens"])
+        card.param.watch(lambda e: None if e.new else self._specimens_inner.ensure(), "collapsed")
+        self._specimens_card = card
+        return [card]
+
     def show_specimens(self):
-        """The tab is on screen: build the specimen plots (once; later comparisons redraw them)."""
+        """The tab is on screen: place the specimen card, collapsed (once; its plots wait for ``open_specimens``)."""
         self._specimens_place.ensure()
+
+    def open_specimens(self):
+        """Open the specimen card (what a click on its header does): the linked plots are built then, once;
+        later comparisons redraw them."""
+        self.show_specimens()
+        self._specimens_card.collapsed = False
+        return self._specimens_inner.ensure()
 
     @property
     def svg(self) -> bool:

@@ -47,10 +47,10 @@ GEOMETRY_ITEMS = {"gauge_length": ("mm", "Gauge length"), "width": ("mm", "Width
 
 
 def _testdata():
-    """The readers (network_models.testdata); imported lazily so a missing piece gives a message."""
-    from network_models import testdata
+    """The file readers (:mod:`network_models.labfiles`), loaded when a file is first read."""
+    from network_models import labfiles
 
-    return testdata
+    return labfiles
 
 
 @dataclass

@@ -1,7 +1,7 @@
 """State and logic of the Design tab (param only, no Panel): targets as text, the fixed settings, the last
 design result, its feasibility map and the advice for today's compound.
 
-Every number comes from :mod:`network_models.design` / :mod:`network_models.design_map`, so the tab, the
+Every number comes from :mod:`network_models.design` / :mod:`network_models.design.map`, so the tab, the
 ``netstretch design`` command and the report agree.
 """
 
@@ -14,7 +14,7 @@ import param
 from network_models import MODELS, get_polymer, polymers
 from network_models.constants import ZERO_CELSIUS
 from network_models.design import compare_models, design
-from network_models.design_map import feasibility_map, nu_span
+from network_models.design.map import feasibility_map, nu_span
 
 DEFAULT_TARGETS = ["M100=1.7..1.9MPa", "lock>=6", "G@100C>=0.4MPa"]
 
@@ -105,7 +105,7 @@ class DesignState(param.Parameterized):
     @staticmethod
     def _compound(res, src):
         """(ν, interval, sentence) for one measured compound; a compound that cannot be read gets its reason."""
-        from network_models.design_advice import compound_from_fit
+        from network_models.design.advice import compound_from_fit
 
         try:
             nu, ci = compound_from_fit(res, src) if hasattr(src, "params") else (float(src[0]), src[1])

@@ -22,7 +22,7 @@ from bokeh.events import Tap
 from bokeh.models import ColumnDataSource, LogTicker
 from bokeh.plotting import figure
 
-from network_models.design_map import FEASIBLE_COLOUR, TARGET_COLOURS, strip_svg
+from network_models.design.map import FEASIBLE_COLOUR, TARGET_COLOURS, strip_svg
 
 from .design_state import DesignState
 from .messages import Messages, guarded
@@ -36,7 +36,7 @@ def _esc(x) -> str:
 
 
 def map_figure(dmap, current=None, compound=None, height=360, measured=None):
-    """Bokeh figure of a :class:`~network_models.design_map.DesignMap`: a translucent band per target, the
+    """Bokeh figure of a :class:`~network_models.design.map.DesignMap`: a translucent band per target, the
     feasible cells in green, the N = M_c/M_K line (axis N), the explorer's network and today's compound."""
     ylog = dmap.axis == "N"
     xe, ye = dmap.edges(dmap.nu, True), dmap.edges(dmap.y, ylog)
@@ -176,7 +176,7 @@ class DesignView(pn.viewable.Viewer):
             self._syncing = False
 
     def _add_clicked(self):
-        from network_models.design_targets import parse_target
+        from network_models.design.targets import parse_target
 
         text = (self.new_target.value or "").strip()
         if not text:

@@ -16,6 +16,7 @@ from .design_view import create_design_view
 from .explorer import ExplorerViews, NetworkControls
 from .messages import Messages
 from .modulus_card import ModulusCard
+from .panel_setup import WEBSOCKET_MAX_MESSAGE_SIZE, configure_panel  # noqa: F401  (panel_app.py, tests)
 from .plots import set_output_backend
 from .project_view import ProjectBar
 from .session import Session
@@ -26,27 +27,12 @@ from .ui import CSS, html
 log = logging.getLogger("netstretch.app")
 
 
-#: Cap on one websocket message (a FileInput upload travels as one base64 message): 25 MB.  Files above
-#: app.data_state.MAX_UPLOAD_BYTES (20 MB) are refused with a message before they are read.
-WEBSOCKET_MAX_MESSAGE_SIZE = 25 * 1024 * 1024
+def warm_imports():
+    """Modules a session loads only on demand (HoloViews and its Bokeh plotting, for Compare's specimen
+    card): the server imports them once before its port opens, so no user's first click pays for them."""
+    from .specimen_view import _ensure_backend
 
-
-def configure_panel():
-    """Offline-safe Panel settings: every asset from this server, no CDN, no remote fonts."""
-    pn.config.inline = False
-    pn.config.design = None
-    pn.config.raw_css = []
-    pn.config.notifications = False
-    from .server import local_stylesheets
-
-    local_stylesheets()  # no CDN fallback for stylesheets of components updated in callbacks
-    pn.config.throttled = False
-    # a callback error that slipped past guarded(): log it on the server, keep it off the page
-    pn.config.exception_handler = lambda exc: log.error("callback error: %s", exc, exc_info=exc)
-    try:
-        pn.extension(design="native", inline=False)
-    except Exception:
-        pn.extension(inline=False)
+    _ensure_backend()
 
 
 def create_app(load_samples: bool = True):
@@ -169,11 +155,3 @@ def _switch_backend(page, svg: bool, lazy_views=()):
     set_output_backend([p.object for p in panes], svg)
     for p in panes:
         p.param.trigger("object")
-
-
-def serve(port: int = 5006, address: str = "localhost", show: bool = False, **kw):
-    """Serve the app (blocking) on ``address:port`` with every asset served locally; see ``app.server.serve``
-    for origins, password and session clean-up.  ``NETSTRETCH_DEBUG=1`` logs timings of the app's callbacks."""
-    from .server import serve as _serve
-
-    return _serve(port=port, address=address, show=show, **kw)

@@ -339,10 +339,11 @@ def _return_free_memory():
 def _warm_up():
     """Build one page before the port opens: imports, the sample set and its fits are then ready, so the
     first colleague does not wait for them.  A failure here is logged and the first session shows it."""
-    from .main import create_app
+    from .main import create_app, warm_imports
 
     try:
         _release(create_app())
+        warm_imports()
     except Exception:
         log.exception("warming up the page failed")
     gc.collect()
@@ -358,7 +359,7 @@ def serve(port: int = 5006, address: str = "localhost", show: bool = False, allo
     """Serve the app (blocking).  Every asset is served by this process; origins are never ``*``."""
     import panel as pn
 
-    from .main import WEBSOCKET_MAX_MESSAGE_SIZE, configure_panel
+    from .panel_setup import WEBSOCKET_MAX_MESSAGE_SIZE, configure_panel
 
     if not log.handlers:
         handler = logging.StreamHandler()
@@ -387,31 +388,3 @@ def serve(port: int = 5006, address: str = "localhost", show: bool = False, allo
     server.start()
     server.io_loop.start()
     return server
-
-
-def local_stylesheets():
-    """Panel falls back to its internet CDN for a component's stylesheets (``loading.css``, the theme's
-    ``default.css``/``native.css``) whenever the component's model is not (yet) in a document — e.g. a pane
-    on a tab that is not open, updated by a callback (an upload refreshes the explorer's legends).  In a
-    served session that fallback is replaced by this server's own copy; outside a session (a saved HTML
-    file) nothing changes."""
-    import panel.reactive as reactive
-    from panel.io import resources
-
-    if getattr(resources.patch_stylesheet, "_netstretch", False):
-        return
-    original = resources.patch_stylesheet
-
-    def patch_stylesheet(stylesheet, dist_url):
-        from panel.io.state import state
-
-        doc = state.curdoc
-        if dist_url == resources.CDN_DIST and doc is not None and getattr(doc, "session_context", None):
-            rel = state.rel_path
-            dist_url = doc._template_variables.get(
-                "dist_url", f"{rel}/{resources.LOCAL_DIST}" if rel else resources.LOCAL_DIST)
-        return original(stylesheet, dist_url)
-
-    patch_stylesheet._netstretch = True
-    resources.patch_stylesheet = patch_stylesheet  # read at call time by the theme code
-    reactive.patch_stylesheet = patch_stylesheet  # imported once by the component code

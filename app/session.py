@@ -160,7 +160,7 @@ class Session:
         Returns sentences about settings that could not be restored; raises ValueError when the file
         cannot be used at all (then nothing changes)."""
         from network_models.compounds import SwellingTest
-        from network_models.testdata import read_curves_bytes
+        from network_models.labfiles import read_curves_bytes
 
         proj = read_project(source)
         files, seen, cond_problems = [], set(), []

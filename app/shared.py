@@ -42,9 +42,9 @@ def _freeze(curves):
 
 
 def sample_curves(path, mode=None) -> list:
-    """``testdata.read_curves(path, mode=mode)``, read once per process (the file's mtime is part of the
+    """``labfiles.read_curves(path, mode=mode)``, read once per process (the file's mtime is part of the
     key, so a regenerated sample file is read again).  The curves are shared: do not modify them."""
-    from network_models.testdata import read_curves
+    from network_models.labfiles import read_curves
 
     key = (*_stamp(path), getattr(mode, "value", mode))
     with _lock:

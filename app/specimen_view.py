@@ -14,6 +14,8 @@ comparison, where composing overlays is worth more than milliseconds.
 
 from __future__ import annotations
 
+import weakref
+
 import holoviews as hv
 import numpy as np
 import pandas as pd
@@ -135,8 +137,13 @@ class SpecimenViews(pn.viewable.Viewer):
         return dm
 
     def _hooks(self):
+        # HoloViews keeps an element's options (these hooks among them) in its process-wide option store, so
+        # the hook refers to the view weakly: a strong reference kept every session's views alive for ever
+        me = weakref.ref(self)
+
         def backend(plot, element):
-            plot.state.output_backend = "svg" if self.svg else "canvas"
+            view = me()
+            plot.state.output_backend = "svg" if view is not None and view.svg else "canvas"
             plot.state.toolbar.logo = None
         return [backend]
 

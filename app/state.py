@@ -2,7 +2,8 @@
 
 Every browser session gets its own :class:`NetworkState`, :class:`DataState` and :class:`SwellState`
 (made by ``app.main.create_app``); nothing here is module-level mutable state.  The views in
-``app/views.py`` are thin: they build widgets from these parameters and draw what these methods return.
+``app/explorer.py``, ``app/data_view.py``, ``app/fit_panel.py`` and ``app/swell_view.py`` are thin: they build
+widgets from these parameters and draw what these methods return.
 
 Units: the core is SI; the state keeps what the user types in trade units (°C for temperature,
 mol/m³ for the strand density ν) and converts once, in :meth:`NetworkState.network`.
@@ -16,7 +17,10 @@ import numpy as np
 import param
 
 from network_models import MODELS, MODES, Mode, Network, get_model, polymers
-from network_models.constants import CAUTION  # noqa: F401 (the one caution sentence; views import it here)
+from network_models.constants import (
+    CAUTION,  # noqa: F401 (the one caution sentence; views import it here)
+    ZERO_CELSIUS,
+)
 from network_models.entanglement import G_E_POLICY
 from network_models.materials import temperature_notices
 from network_models.network import N_MIN
@@ -31,7 +35,7 @@ DATA_COLOURS = ("#111111", "#8a5a00", "#0f7c8c", "#a0307a", "#5f6f00", "#4b5a66"
 DEFAULT_MODELS = ["affine", "phantom", "eight-chain", "non-affine-tube", "extended-tube", "slip-tube"]
 
 
-_K0 = 273.15
+_K0 = ZERO_CELSIUS
 _KUHN = kuhn_number_param()
 
 

@@ -9,9 +9,10 @@ from network_models.constants import ZERO_CELSIUS
 
 
 def _testdata():
-    from network_models import testdata
+    """The file readers (:mod:`network_models.labfiles`), loaded when a file is first read."""
+    from network_models import labfiles
 
-    return testdata
+    return labfiles
 
 
 class SwellState(param.Parameterized):
@@ -35,7 +36,7 @@ class SwellState(param.Parameterized):
     sample_key = param.String(default="", doc="the prefill picker's label of the row the form holds")
     compound = param.String(default="", doc="the compound the form's specimen belongs to ('' = not said): its "
                                             "recipe and stated χ fill the form; only its own fit is set beside it")
-    table_rows = param.List(default=[], doc="a whole swelling table (testdata.SwellingResult rows)")
+    table_rows = param.List(default=[], doc="a whole swelling table (curves.SwellingResult rows)")
     table_name = param.String(default="")
 
     def __init__(self, **params):
@@ -66,7 +67,7 @@ class SwellState(param.Parameterized):
         comp = next((c for c in man if c.key == row.compound), None)
         # the manifest's values win (χ stated with the swelling data, the compound's f): the same reading the
         # comparison, the report and the study make of this specimen (issue #18: one answer)
-        from network_models.testdata import SAMPLE_MANIFEST
+        from network_models.labfiles import SAMPLE_MANIFEST
 
         from . import shared
 

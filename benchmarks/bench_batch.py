@@ -120,7 +120,7 @@ def _timed_run(folder, out, **kw) -> float:
 
 def command_path(n_files: int, deadline: float | None = None) -> dict:
     """``run_batch`` over ``n_files`` one-curve CSV files: 1 and 2 local workers, and a local Dask cluster."""
-    from network_models.testdata import curves_to_csv
+    from network_models.labfiles import curves_to_csv
 
     out: dict = {"files": n_files, "notes": [], "load_average_1min_before": os.getloadavg()[0]}
     with tempfile.TemporaryDirectory(prefix="netstretch-bench-batch-") as tmp:

@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from network_models import get_model
-from network_models.testdata import TestCurve
+from network_models.curves import TestCurve
 
 #: Invented "true" parameters of compound BX-1 (extended tube, SI units).  Not a real material.
 #: δ = 0.15 puts the lock (I₁ − 3 = 1/δ²) within reach, so the data show the upturn and both the

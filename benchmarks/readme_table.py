@@ -76,6 +76,8 @@ def table(d: dict) -> str:
         ("App: first visit to a tab, the slowest ("
          + str(_get(d, "details", "actions", "slowest_tab") or "—") + ", server CPU)",
          _f(d.get("action_tab_first_visit_cpu_s"), "{:.2f} s"), "≤ 1 s", "action_tab_first_visit_cpu_s"),
+        ("App: opening Compare's specimen card (server CPU)", _f(d.get("action_specimens_open_cpu_s"), "{:.2f} s"),
+         "≤ 1 s", "action_specimens_open_cpu_s"),
         ("App: Design's *Find the window* (server CPU)", _f(d.get("action_design_window_cpu_s"), "{:.2f} s"),
          "≤ 1 s", "action_design_window_cpu_s"),
         ("App: opening a saved study (server CPU)", _f(d.get("action_open_study_cpu_s"), "{:.2f} s"), "≤ 1 s",

@@ -4,7 +4,7 @@
     >>> summary = run_batch(["qc_archive/"], model="eight-chain", output="results.csv", jobs=2)
 
 * Inputs: folders (walked recursively) and files.  Files with a readable suffix (``READABLE_SUFFIXES``) are
-  read with ``testdata.read_curves_bytes``; a file it cannot read is listed in ``<stem>.failures.csv``
+  read with ``labfiles.read_curves_bytes``; a file it cannot read is listed in ``<stem>.failures.csv``
   with the reader's sentence, and the run goes on.
 * Output: CSV (or parquet, with pyarrow), one row per curve, columns ``COLUMNS_FIRST`` + one per fitted
   parameter (SI, named as the model declares it) + ``COLUMNS_LAST``.  A curve whose fit failed keeps its
@@ -121,7 +121,7 @@ def fit_file(rel: str, source, model: str, polymer: str = "NR", f: float = 4.0) 
     """Read one file (``source``: a path, or the file's bytes) and fit every curve in it.
 
     Returns ``{"file": rel, "rows": [...], "error": None | sentence}``; never raises for a bad file."""
-    from .testdata import read_curves_bytes
+    from .labfiles import read_curves_bytes
 
     try:
         data = source if isinstance(source, (bytes, bytearray)) else Path(source).read_bytes()
@@ -142,7 +142,8 @@ def fit_file(rel: str, source, model: str, polymer: str = "NR", f: float = 4.0) 
             base["error"] = f"the fit did not succeed ({type(exc).__name__}: {exc})"
         notices = [str(n) for n in c.notices]
         if notices:
-            base["warnings"] = " | ".join([*notices, *filter(None, [base.get("warnings", "")])])
+            earlier = str(base.get("warnings") or "")
+            base["warnings"] = " | ".join([*notices, earlier] if earlier else notices)
         rows.append(base)
     return {"file": rel, "rows": rows, "error": None}
 
@@ -189,7 +190,7 @@ def to_frame(path):
 
 
 def _check_existing(rows: list[dict], model: str, path: Path):
-    models = {r.get("model") for r in rows if r.get("model")}
+    models = {str(r["model"]) for r in rows if r.get("model")}
     if models and models != {model}:
         raise UserError(f"{path} holds results of model {', '.join(sorted(models))}, not {model}; "
                         "write this model's results to another file with -o")

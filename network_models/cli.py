@@ -25,8 +25,8 @@ _POLYMER_COMMANDS = {"demo", "fit", "crosslinks", "swell", "thermo", "report", "
 #: commands that read manifests whose recipes use the ingredient table (they accept ``--ingredients FILE``)
 _RECIPE_COMMANDS = {"swell", "report", "compare", "design", "batch"}
 
-#: sub-command modules, in the order ``--help`` lists them
-COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "compare", "design", "batch",
+#: sub-command modules, in the order ``--help`` lists them (``commands/report.py`` also adds ``compare``)
+COMMANDS = ("demo", "models", "fit", "crosslinks", "swell", "thermo", "report", "design", "batch",
             "project", "samples", "serve", "library")
 
 
@@ -40,14 +40,8 @@ def build_parser() -> argparse.ArgumentParser:
 
     parser.add_argument("--version", action="version", version=f"netstretch {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for name in COMMANDS:
-        try:
-            mod = importlib.import_module(f"network_models.commands.{name}")
-        except ModuleNotFoundError as exc:
-            if exc.name and exc.name.endswith(f"commands.{name}"):
-                continue  # command not built yet
-            raise
-        mod.add_parser(sub)
+    for name in COMMANDS:  # a missing command module is an error (ModuleNotFoundError), never skipped
+        importlib.import_module(f"network_models.commands.{name}").add_parser(sub)
     # every command that names a polymer reads the user's own polymer table the same way
     for name, sp in sub.choices.items():
         if name in _POLYMER_COMMANDS and not any("--polymers" in a.option_strings for a in sp._actions):
@@ -64,7 +58,8 @@ _NEGATIVE_VALUE = re.compile(r"^-(\d|\.\d)")
 
 def _value_options(parser) -> set[str]:
     """Long options (of the command and every sub-command) that take exactly one value."""
-    out, parsers = set(), [parser]
+    out: set[str] = set()
+    parsers = [parser]
     while parsers:
         p = parsers.pop()
         for a in p._actions:
@@ -78,7 +73,7 @@ def _value_options(parser) -> set[str]:
 def negative_values(parser, argv: list[str]) -> list[str]:
     """``--temperature -20C`` as ``--temperature=-20C``: argparse takes a word starting with '-' for an option
     unless it is a plain number, so a negative quantity with its unit after an option is joined to it."""
-    takes, out = _value_options(parser), []
+    takes, out = _value_options(parser), list[str]()
     for tok in argv:
         if out and _NEGATIVE_VALUE.match(tok) and out[-1] in takes:
             out[-1] = f"{out[-1]}={tok}"

@@ -7,7 +7,7 @@ The comparison (:mod:`network_models.compare`) fits the same model to every comp
 Ways to make compounds::
 
     Compound("A", curves=[TestCurve(...), ...], metadata={"cure": "2.0 phr S"})
-    load_compound("A", ["a_uniaxial.csv", "a_planar.csv"])          # lab files, read by testdata
+    load_compound("A", ["a_uniaxial.csv", "a_planar.csv"])          # lab files, read by labfiles
     compounds_from_specs(["A=a_uni.csv,a_pl.csv", "B=b_uni.csv"])  # the CLI's --compound NAME=FILE,...
     load_manifest("sample_sets/manifest.toml")                        # a manifest (TOML or JSON)
     load_folder("lab/")                                               # one sub-folder per compound
@@ -54,9 +54,12 @@ import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from .constants import kelvin
-from .testdata import DataError, TestCurve
+from .curves import TestCurve
+from .errors import DataError
+from .labfiles import read_curves
 
 
 @dataclass
@@ -106,7 +109,7 @@ class SwellingTest:
 
     @classmethod
     def from_record(cls, r, chi=None) -> SwellingTest:
-        """From a :class:`network_models.testdata.SwellingResult` row (masses already in kg)."""
+        """From a :class:`network_models.curves.SwellingResult` row (masses already in kg)."""
         return cls(dry=r.dry_mass, swollen=r.swollen_mass, solvent=r.solvent or "toluene", extracted=r.extracted_mass,
                    chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
@@ -137,7 +140,7 @@ class Compound:
     notes: str = ""
     baseline: bool = False
     #: the recipe in phr (:class:`network_models.recipes.Recipe`; a dict of name = phr is resolved), or None
-    recipe: object = None
+    recipe: Any = None
     #: notices where the manifest's older fields disagree with the recipe (which wins)
     recipe_notices: list = field(default_factory=list)
 
@@ -213,17 +216,12 @@ class Compound:
 
 # ----- loading ---------------------------------------------------------------------------------
 def _read(path, **opts) -> list[TestCurve]:
-    from . import testdata
-
-    reader = getattr(testdata, "read_curves", None)
-    if reader is None:  # pragma: no cover - only while the file readers are being built
-        raise DataError("reading lab files is not available in this build (testdata.read_curves is missing)")
     p = Path(path)
     if not p.exists():
         raise DataError(f"file {str(path)!r} not found; check the path")
     if p.is_dir():
         raise DataError(f"{str(path)!r} is a folder; give the test files inside it")
-    curves = reader(p, **opts)
+    curves = read_curves(p, **opts)
     if not curves:
         raise DataError(f"{p.name}: no test curve found in the file")
     return list(curves)
@@ -254,7 +252,7 @@ def parse_spec(spec: str) -> tuple[str, list[str]]:
 
 
 def compounds_from_specs(specs, **kw) -> list[Compound]:
-    out = []
+    out: list[Compound] = []
     for spec in specs:
         name, files = parse_spec(spec)
         if any(c.name == name for c in out):
@@ -316,7 +314,7 @@ class Manifest:
                        f"{', '.join(c.name for c in self.compounds)}")
 
     def force_temperature_records(self) -> list:
-        from .testdata import read_force_temperature
+        from .labfiles import read_force_temperature
 
         return [read_force_temperature(p) for p in self.force_temperature]
 
@@ -325,7 +323,7 @@ def load_manifest(path=None, **read_options) -> Manifest:
     """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder.  Default: the
     bundled sample set (sample_sets/compounds.toml)."""
     if path is None:
-        from .testdata import SAMPLE_MANIFEST as path
+        from .labfiles import SAMPLE_MANIFEST as path
     p = Path(path)
     if p.is_dir():
         for cand in ("compounds.toml", "manifest.toml", "manifest.json"):
@@ -387,8 +385,8 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
     """The sample-set manifest format (``[scenario]`` + ``[[compound]]`` with ``key``, files as
     ``{ path, mode, note }``, one ``[swelling]`` table, ``[[force_temperature]]``; sample_sets/README.md),
     parsed by its one parser (:func:`network_models.labfiles.manifest.manifest_index`) and read here."""
+    from .labfiles import read_swelling
     from .labfiles.manifest import manifest_index
-    from .testdata import read_swelling
 
     index = manifest_index(doc, p)
     scen = index.info
@@ -402,7 +400,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
         recipe = _manifest_recipe(doc, info, entry.key, p)
         info.pop("recipe", None)
         notes = str(info.pop("notes", info.pop("note", "")))
-        baseline = bool(info.pop("baseline", False))
+        is_baseline = bool(info.pop("baseline", False))
         f = float(info.pop("f", 4.0))
         meta = ({"title": entry.title} if entry.title != entry.key else {}) | info
         curves = []
@@ -413,7 +411,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
         tests = [SwellingTest.from_record(r, chi=raw_swell.get("chi")) for r in swell
                  if r.compound in (entry.key, entry.title)]
         comps.append(Compound(name=entry.key, curves=curves, swelling=tests, metadata=meta, polymer=entry.polymer,
-                              f=f, notes=notes, baseline=baseline, recipe=recipe))
+                              f=f, notes=notes, baseline=is_baseline, recipe=recipe))
     baseline = scen.get("baseline") or next((c.name for c in comps if c.baseline), None)
     return Manifest(comps, title=str(scen.get("title", p.stem)), purpose=str(scen.get("purpose", scen.get("note", ""))),
                     baseline=baseline, path=str(p), extra=dict(scen), swelling_path=index.swelling,

@@ -62,7 +62,25 @@ def shear_modulus_from(value: float, kind: str = "G") -> float:
     return float(value)
 
 
-@dataclass
+#: the headline bases, by tier: (gum row key, filled row key, label) of the crosslink table
+BASIS_TIERS = (
+    ("affine-no-entanglement", "affine-no-entanglement-no-filler", "affine network, entanglement part removed"),
+    ("affine", "affine-no-filler", "affine network, entanglements counted as crosslinks (upper bound)"),
+)
+
+
+def basis_label(tier: int, filled: bool, filler_fraction: float = 0.0) -> str:
+    label = BASIS_TIERS[tier][2]
+    if filled:
+        label += f", filler removed (Guth–Gold, φ = {filler_fraction:g})"
+    return label
+
+
+def row_key(tier: int, filled: bool) -> str:
+    return BASIS_TIERS[tier][1 if filled else 0]
+
+
+@dataclass(kw_only=True)
 class CrosslinkRow:
     key: str
     label: str
@@ -97,7 +115,7 @@ class CrosslinkRow:
                 "note": self.note, "strand_density_kind": self.nu_kind, "bound": self.bound or None}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class CrosslinkTable:
     rows: list[CrosslinkRow]
     polymer: str
@@ -149,8 +167,6 @@ class CrosslinkTable:
         filler removed when a filler fraction is given); when no positive crosslink modulus is left, the affine
         row with entanglements counted, and the basis says why.  ``design --model affine`` counts ν on the
         first basis by default.  ``{"value": mol/m³ or None, "row": key, "basis": label, "tier": 0|1}``."""
-        from .compare.specimens import basis_label, row_key
-
         phi = self.filler_fraction
         for tier in (0, 1):
             key = row_key(tier, phi > 0)
@@ -201,15 +217,18 @@ def _row(key, label, assumes, Gx, Gx_ci, factor, T, f, rho, MK, note="", shift=0
     nu = nu_of(Gx)
     if nu is None:
         gone = "no positive crosslink modulus is left under this assumption"
-        return CrosslinkRow(key, label, assumes, Gx, None, None, None, None, None, None, None, None,
-                            f"{gone}; {note}" if note else gone, nu_kind)
+        return CrosslinkRow(key=key, label=label, assumes=assumes, modulus=Gx, nu=None, nu_ci=None,
+                            junction_density=None, junction_ci=None, Mc=None, Mc_ci=None, N=None, N_ci=None,
+                            note=f"{gone}; {note}" if note else gone, nu_kind=nu_kind)
     nu_ci = _map_ci(Gx_ci, lambda g: nu_of(g) if g > 0 else None)
     if Gx_ci is not None and nu_ci is None:
         note = (note + "; " if note else "") + "the lower end of the interval leaves no positive crosslink modulus"
     Mc = rho / nu
     return CrosslinkRow(
-        key, label, assumes, Gx, nu, nu_ci, 2.0 * nu / f, _map_ci(nu_ci, lambda x: 2.0 * x / f),
-        Mc, _map_ci(nu_ci, lambda x: rho / x), Mc / MK, _map_ci(nu_ci, lambda x: rho / x / MK), note, nu_kind,
+        key=key, label=label, assumes=assumes, modulus=Gx, nu=nu, nu_ci=nu_ci, junction_density=2.0 * nu / f,
+        junction_ci=_map_ci(nu_ci, lambda x: 2.0 * x / f),
+        Mc=Mc, Mc_ci=_map_ci(nu_ci, lambda x: rho / x), N=Mc / MK, N_ci=_map_ci(nu_ci, lambda x: rho / x / MK),
+        note=note, nu_kind=nu_kind,
     )
 
 
@@ -302,8 +321,9 @@ def _table(G, G_ci, *, polymer, T, f, filler_fraction, Mn, Ge=None, Ge_source=No
                  f"(crosslink) density μ_j = 2ν/f (f = {f:g}); N = M_c/M_K with M_K = {MK * 1000:.4g} g/mol for "
                  f"{poly.key} [{poly.status}]")
     notes.append(f"evaluated at T = {celsius(T):.1f} °C; R from scipy.constants (CODATA)")
-    return CrosslinkTable(rows, poly.key, float(T), float(f), float(G), G_ci, dict(inputs or {}), notes,
-                          share, share_text)
+    return CrosslinkTable(rows=rows, polymer=poly.key, T=float(T), f=float(f), G=float(G), G_ci=G_ci,
+                          inputs=dict(inputs or {}), notes=notes,
+                          entanglement_share=share, entanglement_share_text=share_text)
 
 
 def _mark_bounds(rows, upper, X) -> list[str]:

@@ -11,6 +11,7 @@ Compression is uniaxial loading with λ < 1 and negative nominal stress (the cor
 from __future__ import annotations
 
 from dataclasses import InitVar, dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -43,13 +44,16 @@ class TestCurve:
     stress: np.ndarray  # nominal (engineering) stress, Pa
     name: str = "curve"
     source: str = ""  # file the curve came from ("" when made in code)
-    specimen: InitVar[str | None] = None
+    if TYPE_CHECKING:  # for the type checker an ordinary attribute (a property over metadata at run time)
+        specimen: str | None = None
+    else:
+        specimen: InitVar[str | None] = None
     temperature: float | None = None  # K
     cycle: str | None = None
     metadata: dict = field(default_factory=dict)
     notices: list = field(default_factory=list)
 
-    def __post_init__(self, specimen):
+    def __post_init__(self, specimen: str | None = None) -> None:
         self.mode = Mode.parse(self.mode)
         self.stretch = np.asarray(self.stretch, dtype=np.float64)
         self.stress = np.asarray(self.stress, dtype=np.float64)
@@ -84,7 +88,7 @@ def _set_specimen(self, value) -> None:
 
 # a property over the constructor's InitVar: set after the dataclass is built so the constructor keeps
 # its ``specimen=`` argument (default None) and the value lives in one place, the metadata
-TestCurve.specimen = property(_get_specimen, _set_specimen, doc=_get_specimen.__doc__)
+TestCurve.specimen = property(_get_specimen, _set_specimen, doc=_get_specimen.__doc__)  # type: ignore[assignment]
 
 
 @dataclass

@@ -3,7 +3,7 @@
 When compounds of a study differ in one ingredient only (a cure-dose or filler ladder), each compound's strand
 density is recomputed **on the design's basis** — its fitted small-strain modulus G₀ turned into the ν whose
 network gives that G₀ under the design's model, polymer, f and entanglement policy, with the compound's own
-filler fraction (:func:`network_models.design_advice.nu_for_modulus`) — and a straight line
+filler fraction (:func:`network_models.design.advice.nu_for_modulus`) — and a straight line
 ν = intercept + slope · phr is fitted to them by least squares (slope and intercept with standard errors from the
 residual scatter, n − 2 degrees of freedom,
 docs/methods.md §dose-ladder; two doses: no scatter, uncertainty not determined).  The ν window's
@@ -70,7 +70,7 @@ def fit_line(x, y) -> Line:
         se_b = math.sqrt(s2 / sxx)
         se_a = math.sqrt(s2 * (1.0 / n + xm * xm / sxx))
     else:
-        se_b = se_a = None
+        se_b = se_a = None  # type: ignore[assignment]  # not determined from two points
     return Line(b, a, se_b, se_a, n, rss)
 
 
@@ -125,7 +125,8 @@ def ladder(compounds, ingredient: str):
     """``(rows, left_out)``: the compounds that differ only in ``ingredient`` — rows of (compound, phr), phr
     of the ingredient (0 when the recipe lacks it) — and {name: why} for the others."""
     k = _key(ingredient)
-    groups, left = {}, {}
+    groups: dict = {}
+    left: dict = {}
     for c in compounds:
         r = getattr(c, "recipe", None)
         if r is None:
@@ -134,7 +135,7 @@ def ladder(compounds, ingredient: str):
         dose = r.phr_of(ingredient) or 0.0
         rest = tuple(sorted((_key(n), v) for n, v in r.phr.items() if _key(n) != k and _key(r.items[n].name) != k))
         groups.setdefault(rest, []).append((c, dose))
-    best = max(groups.values(), key=lambda g: (len({d for _c, d in g}), len(g)), default=[])
+    best: list = max(groups.values(), key=lambda g: (len({d for _c, d in g}), len(g)), default=[])
     if len({d for _c, d in best}) < 2:
         raise UserError(f"no two compounds with recipes differ only in {ingredient!r}: a dose ladder needs at "
                         "least two doses of one ingredient with everything else equal")
@@ -149,7 +150,7 @@ def dose_window(result, compounds, ingredient: str, fitter=None) -> dict:
     """The ``dose`` object of ``design --dose`` for the design ``result`` (a feasible
     :class:`network_models.design.DesignResult`) and the manifest's compounds."""
     from .crosslinks import from_fit
-    from .design_advice import nu_for_modulus
+    from .design.advice import nu_for_modulus
     from .fitting import fit
 
     rows, left = ladder(compounds, ingredient)
@@ -214,7 +215,7 @@ LADDER_QUANTITIES = {"nu": "strand density ν (headline basis)", "G0": "small-st
 
 def find_ladders(compounds) -> list[str]:
     """Ingredients in which at least three compounds with recipes differ while everything else is equal."""
-    names = {}
+    names: dict = {}
     for c in compounds:
         r = getattr(c, "recipe", None)
         if r is not None:

@@ -70,6 +70,8 @@ class Notice(str):
     """
 
     __slots__ = ("kind", "subject")
+    kind: str
+    subject: str | None
 
     def __new__(cls, text: str, kind: str = "note", subject: str | None = None):
         obj = super().__new__(cls, text)

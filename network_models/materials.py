@@ -37,13 +37,17 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
+from typing import Any
 
+from .constants import LAB_TEMPERATURE, celsius, kelvin
 from .errors import DataError
 
 __all__ = [
     "ENV_VAR", "FIELDS", "Polymer", "UserTable", "active_polymer_table", "add_polymers_option",
     "apply_polymers_option", "builtin_polymers", "get_polymer", "load_polymer_table", "polymer_listing",
     "polymers", "temperature_notices", "use_polymer_table", "user_chi_rows", "GLASS_MARGIN", "OPTIONAL_FIELDS",
+    "CHI_STATUS_RANK", "CHI_TEMPERATURE_WINDOW", "ChiValue", "Solvent", "chi_values", "default_chi", "get_solvent",
+    "solvents",
 ]
 
 #: environment variable naming a user polymer table (used when :func:`use_polymer_table` was not called)
@@ -243,8 +247,6 @@ def load_polymer_table(path) -> UserTable:
     chi = _chi_rows(raw.pop("chi"), origin) if "chi" in raw else []
     base = builtin_polymers()
     rows = {_key(k): _row(_key(k), r, origin, base.get(_key(k))) for k, r in raw.items()}
-    from .swelling import get_solvent  # here, not at the top: swelling imports this module
-
     for i, r in enumerate(chi, start=1):
         if r["polymer"] not in rows and r["polymer"] not in base:
             _fail(origin, f"polymer {r['polymer']!r} is neither in this file nor in the built-in table", f"chi #{i}",
@@ -257,7 +259,7 @@ def load_polymer_table(path) -> UserTable:
 
 
 _UNSET = object()
-_active: object = _UNSET
+_active: Any = _UNSET
 
 
 def use_polymer_table(path) -> UserTable | None:
@@ -361,13 +363,123 @@ def temperature_notices(polymer, T, where: str = "") -> list:
     if tg is not None and T < tg + GLASS_MARGIN:
         state = "in the glass" if T < tg else "in the glass transition region"
         out.append(Notice(
-            f"{T - 273.15:.0f} °C{at} is {state} of {p.key} (T_g ≈ {tg - 273.15:.0f} °C; rubbery above about "
-            f"{tg + GLASS_MARGIN - 273.15:.0f} °C): the network models and G = νRT describe the rubbery state only — "
+            f"{celsius(T):.0f} °C{at} is {state} of {p.key} (T_g ≈ {celsius(tg):.0f} °C; rubbery above about "
+            f"{celsius(tg + GLASS_MARGIN):.0f} °C): the network models and G = νRT describe the rubbery state only — "
             "results here are not valid", "glass", p.key))
     smax = p.service_max
     if smax is not None and T > smax:
         out.append(Notice(
-            f"{T - 273.15:.0f} °C{at} is above the upper continuous service temperature of {p.key} "
-            f"(about {smax - 273.15:.0f} °C in air): the network ages (chain scission, further crosslinking) "
+            f"{celsius(T):.0f} °C{at} is above the upper continuous service temperature of {p.key} "
+            f"(about {celsius(smax):.0f} °C in air): the network ages (chain scission, further crosslinking) "
             "while tested or used there, so a result describes a changing rubber", "service-limit", p.key))
     return out
+
+
+# ----- solvents and χ (solvents.toml): beside the polymer table, read by swelling and design --------------
+@dataclass(frozen=True, kw_only=True)
+class Solvent:
+    key: str
+    title: str
+    formula: str
+    molar_mass: float  # kg/mol
+    density: float  # kg/m³
+    density_source: str
+
+    @property
+    def molar_volume(self) -> float:
+        """V₁ = M/ρ, m³/mol."""
+        return self.molar_mass / self.density
+
+
+@dataclass(frozen=True, kw_only=True)
+class ChiValue:
+    polymer: str
+    solvent: str
+    chi: float
+    temperature: float  # K
+    default: bool
+    status: str  # "handbook" | "common" | "memory" | "estimate" | "user"
+    source: str
+    note: str = ""
+    #: half-width of the band of published χ for this pair around ``chi`` (docs/methods.md §chi-table);
+    #: None when the row states none (then :data:`CHI_BAND` serves)
+    spread: float | None = None
+    spread_basis: str = ""
+
+
+@lru_cache(maxsize=1)
+def _solvent_table():
+    return tomllib.loads(resources.files(__package__).joinpath("solvents.toml").read_text("utf-8"))
+
+
+def solvents() -> dict[str, Solvent]:
+    out = {}
+    for key, r in _solvent_table()["solvent"].items():
+        out[key] = Solvent(key=key, title=r["title"], formula=r["formula"], molar_mass=r["molar_mass_g_mol"] / 1000.0,
+                           density=r["density_g_cm3"] * 1000.0, density_source=r["density_source"])
+    return out
+
+
+def get_solvent(key: str) -> Solvent:
+    table = solvents()
+    k = str(key).strip().lower().replace(" ", "-")
+    aliases = {"mek": "2-butanone", "methyl-ethyl-ketone": "2-butanone", "heptane": "n-heptane"}
+    k = aliases.get(k, k)
+    if k not in table:
+        raise KeyError(f"unknown solvent {key!r}; the table has {', '.join(table)}")
+    return table[k]
+
+
+def _row_spread(r) -> float | None:
+    """The ``spread`` of a χ row (published spread around its χ, docs/methods.md §chi), checked."""
+    v = r.get("spread")
+    if v is None:
+        return None
+    v = float(v)
+    if not (math.isfinite(v) and 0 <= v < 1):
+        raise ValueError(f"χ row {r.get('polymer')}–{r.get('solvent')}: spread must be a number in [0, 1); got {v!r}")
+    return v
+
+
+def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[ChiValue]:
+    """χ rows of ``solvents.toml`` (built-in rows, then any ``[[chi]]`` rows of the active user polymer
+    table), optionally for one polymer and/or solvent."""
+    rows = []
+    for r in list(_solvent_table()["chi"]) + user_chi_rows():
+        if polymer is not None and r["polymer"] != str(polymer).strip().upper():
+            continue
+        if solvent is not None and get_solvent(r["solvent"]).key != get_solvent(solvent).key:
+            continue
+        rows.append(ChiValue(polymer=r["polymer"], solvent=get_solvent(r["solvent"]).key, chi=float(r["chi"]),
+                             temperature=kelvin(r["temperature_C"]), default=bool(r["default"]), status=r["status"],
+                             source=r["source"],
+                             note=r.get("note", ""), spread=_row_spread(r),
+                             spread_basis=str(r.get("spread_basis", ""))))
+    return rows
+
+
+#: which χ row wins when the user gives none: rows measured within :data:`CHI_TEMPERATURE_WINDOW` of the
+#: swelling temperature first; among those the user's own rows, then rows read in a handbook or paper, then
+#: recalled ones, then solubility-parameter estimates; ``default = true`` only breaks ties within one rank.
+CHI_STATUS_RANK = {"user": 0, "handbook": 1, "read": 1, "common": 1, "memory": 2, "estimate": 3}
+CHI_TEMPERATURE_WINDOW = 30.0  # K
+
+
+def default_chi(polymer: str, solvent: str, T: float | None = None) -> ChiValue:
+    """The χ row used when the user gives none (rule: :data:`CHI_STATUS_RANK`): a sourced value beats a
+    recalled one, a recalled one beats an estimate, but a row measured far from the swelling temperature
+    ``T`` (K; default the lab's 23 °C) only serves when no row near it exists."""
+    rows = chi_values(polymer, solvent)
+    if not rows:
+        raise KeyError(
+            f"the solvent table has no χ for {polymer}–{get_solvent(solvent).key}; give χ yourself "
+            "(--chi 0.4, or chi=0.4 from Python) from a source you trust"
+        )
+    T = LAB_TEMPERATURE if T is None else T
+
+    def rank(ir):
+        i, r = ir
+        far = not (abs(r.temperature - T) <= CHI_TEMPERATURE_WINDOW)
+        return (far, CHI_STATUS_RANK.get(r.status, 4), not r.default, i)
+
+    return min(enumerate(rows), key=rank)[1]

@@ -24,6 +24,7 @@ from dataclasses import dataclass, field, replace
 
 from scipy.constants import R
 
+from .constants import LAB_TEMPERATURE
 from .deformation import MODES, Mode
 from .entanglement import G_E_POLICY
 from .errors import ParameterError
@@ -57,7 +58,7 @@ class Network:
     nu: float | None = None
     Mc: float | None = None
     N: float | None = None
-    T: float = 296.15
+    T: float = LAB_TEMPERATURE
     f: float = 4.0
     filler_fraction: float = 0.0
     Mn: float | None = None  # primary-chain molar mass before crosslinking, kg/mol (dangling ends)
@@ -134,32 +135,44 @@ class Network:
 
     # ----- densities --------------------------------------------------------------------------
     @property
+    def _nu(self) -> float:
+        """ν as a number: ``__post_init__`` always sets it (from ν or M_c)."""
+        assert self.nu is not None
+        return self.nu
+
+    @property
+    def _N(self) -> float:
+        """N as a number: ``__post_init__`` always sets it (given, or M_c/M_K)."""
+        assert self.N is not None
+        return self.N
+
+    @property
     def strand_density(self) -> float:
         """ν, elastically active strands per m³ (mol/m³), as given."""
-        return self.nu
+        return self._nu
 
     @property
     def junction_density(self) -> float:
         """μ_j = 2ν/f, junctions (crosslinks) per m³ (mol/m³)."""
-        return 2.0 * self.nu / self.f
+        return 2.0 * self._nu / self.f
 
     @property
     def chemical_strand_density(self) -> float:
         """ν_chem = ν + 2ρ/M_n (mol/m³): all strands between junctions and chain ends, dangling ends
         included (Flory [from memory]); equal to ν without M_n.  Not what the modulus measures."""
         if self.Mn is None:
-            return self.nu
-        return self.nu + 2.0 * self.poly.density / self.Mn
+            return self._nu
+        return self._nu + 2.0 * self.poly.density / self.Mn
 
     @property
     def dangling_factor(self) -> float:
         """Fraction of the chemical strands that are elastically active, ν/ν_chem = 1 − 2M_c,chem/M_n."""
-        return self.nu / self.chemical_strand_density
+        return self._nu / self.chemical_strand_density
 
     @property
     def effective_strand_density(self) -> float:
         """ν itself: the network's strand density is the elastically active one (kept for old callers)."""
-        return self.nu
+        return self._nu
 
     @property
     def N_source(self) -> str:
@@ -174,7 +187,7 @@ class Network:
     def N_effective(self) -> float:
         """Kuhn number of a gum network that locks where this filled one does: 1 + (N − 1)/X (amplified
         first invariant, see the module text); N itself without filler."""
-        return filler_amplified_N(self.N, self.filler_factor)
+        return filler_amplified_N(self._N, self.filler_factor)
 
     @property
     def affine_modulus(self) -> float:
@@ -212,11 +225,11 @@ class Network:
     def locking_stretch(self, mode) -> float:
         """Locking stretch in tension of a network with N Kuhn segments per strand and its filler
         (:func:`lock_from_N`)."""
-        return lock_from_N(self.N, mode, self.filler_factor)
+        return lock_from_N(self._N, mode, self.filler_factor)
 
     def locking_range(self, mode) -> tuple[float, float]:
         """(lower, upper) locking stretches in the mode (below 1 the free direction reaches the lock)."""
-        return lock_range_from_N(self.N, mode, self.filler_factor)
+        return lock_range_from_N(self._N, mode, self.filler_factor)
 
     # ----- to models -----------------------------------------------------------------------------
     def model_params(self, model) -> dict[str, float]:

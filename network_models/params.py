@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from .errors import ParameterError
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Param:
     """One model parameter, in SI units.
 
@@ -84,25 +84,26 @@ class ParamSet:
 
 # Shared declarations used by several models (declared once here).
 TEMPERATURE = Param(
-    "T", "T", "K", (1.0, 1000.0), (233.15, 423.15), 296.15,
-    "absolute temperature", "SI", "°C", 1.0, held=True,
+    name="T", symbol="T", unit="K", bounds=(1.0, 1000.0), typical=(233.15, 423.15), default=296.15,
+    meaning="absolute temperature", source="SI", display_unit="°C", display_scale=1.0, held=True,
 )
 FUNCTIONALITY = Param(
-    "f", "f", "1", (3.0, 64.0), (3.0, 8.0), 4.0,
-    "junction functionality (strands meeting at one crosslink)",
-    "Flory, Principles of Polymer Chemistry (1953): f = 4 for a tetrafunctional crosslink [common practice]",
+    name="f", symbol="f", unit="1", bounds=(3.0, 64.0), typical=(3.0, 8.0), default=4.0,
+    meaning="junction functionality (strands meeting at one crosslink)",
+    source="Flory, Principles of Polymer Chemistry (1953): f = 4 for a tetrafunctional crosslink [common practice]",
     held=True,
 )
 STRAND_DENSITY = Param(
-    "nu", "ν", "mol/m³", (1e-6, 1e5), (20.0, 600.0), 150.0,
-    "elastically active strand density", "definition (docs/methods.md §densities)", "mol/m³", 1.0, log_scale=True,
+    name="nu", symbol="ν", unit="mol/m³", bounds=(1e-6, 1e5), typical=(20.0, 600.0), default=150.0,
+    meaning="elastically active strand density", source="definition (docs/methods.md §densities)",
+    display_unit="mol/m³", display_scale=1.0, log_scale=True,
 )
 
 
 def shear_modulus_param(name="G", symbol="G", meaning="small-strain shear modulus", default=0.4e6):
     return Param(
-        name, symbol, "Pa", (0.0, 1e9), (0.05e6, 3e6), default, meaning,
-        "definition", "MPa", 1e-6,
+        name=name, symbol=symbol, unit="Pa", bounds=(0.0, 1e9), typical=(0.05e6, 3e6), default=default, meaning=meaning,
+        source="definition", display_unit="MPa", display_scale=1e-6,
     )
 
 
@@ -113,8 +114,8 @@ KUHN_N_MIN = 1.01
 
 def kuhn_number_param(default=26.5):
     return Param(
-        "N", "N", "1", (KUHN_N_MIN, 1e6), (3.0, 200.0), default,
-        "Kuhn segments per network strand (sets the locking stretch; at least 1.01: nearer 1 the chain is "
+        name="N", symbol="N", unit="1", bounds=(KUHN_N_MIN, 1e6), typical=(3.0, 200.0), default=default,
+        meaning="Kuhn segments per network strand (sets the locking stretch; at least 1.01: nearer 1 the chain is "
         "straight at rest and the small-strain modulus grows without bound)",
-        "Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389", log_scale=True,
+        source="Arruda & Boyce 1993, J. Mech. Phys. Solids 41:389", log_scale=True,
     )

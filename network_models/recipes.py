@@ -57,7 +57,7 @@ def _norm(name) -> str:
     return str(name).strip().lower().replace("_", "-").replace(" ", "-")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Ingredient:
     """One ingredient: name, kind, density (kg/m³, SI), whether the swelling solvent extracts it, source."""
 
@@ -128,7 +128,8 @@ def ingredient_row(name, r, origin, base: Ingredient | None = None) -> Ingredien
             _fail(origin, "every row must name its source", name, "source")
         source = "given by the user (no source stated)"
     title = str(r.get("title", base.title if base is not None else name))
-    return Ingredient(str(name), kind, density, soluble, source, title, str(origin))
+    return Ingredient(name=str(name), kind=kind, density=density, soluble=soluble, source=source, title=title,
+                      origin=str(origin))
 
 
 @lru_cache(maxsize=1)
@@ -195,7 +196,7 @@ def ingredients() -> dict[str, Ingredient]:
         _active = load_ingredient_table(env) if env else None
     out = dict(builtin_ingredients())
     if _active:
-        out.update(_active)
+        out.update(_active)  # type: ignore[call-overload]  # a loaded table: dict[str, Ingredient]
     return out
 
 
@@ -217,8 +218,9 @@ def get_ingredient(name: str, extra: dict[str, Ingredient] | None = None) -> Ing
         raise DataError(f"recipe ingredient {name!r} is neither a polymer of the polymer table nor in the ingredient "
                         f"table ({known}); add it as an [[ingredient]] row with kind and density_g_cm3, or in your "
                         "--ingredients file", kind="recipe") from None
-    return Ingredient(p.key, "polymer", p.density, False, f"polymer table: {p.value_source('density_kg_m3')}",
-                      p.title, "polymer table")
+    return Ingredient(name=p.key, kind="polymer", density=p.density, soluble=False,
+                      source=f"polymer table: {p.value_source('density_kg_m3')}",
+                      title=p.title, origin="polymer table")
 
 
 @dataclass

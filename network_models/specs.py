@@ -1,6 +1,6 @@
 """Specifications: does a compared compound meet ``G=0.55..0.68MPa`` or ``M100>=1.2MPa``?
 
-A specification is written in the design-target grammar (:mod:`network_models.design_targets`) and judged per
+A specification is written in the design-target grammar (:mod:`network_models.design.targets`) and judged per
 compound from its specimens (the specimen is the statistical unit):
 
 * (docs/methods.md §specifications)
@@ -23,7 +23,7 @@ from __future__ import annotations
 import math
 import re
 
-from .design_targets import TargetError, parse_target
+from .design.targets import TargetError, parse_target
 from .statistics import CANNOT_JUDGE, combined_interval, summarize
 from .units import parse_quantity
 
@@ -94,7 +94,7 @@ def parse_spec(text: str) -> SpecTarget:
             name = "E"
         elif t.kind == "lock" and t.mode is not None and t.mode.value == "uniaxial":
             name = "lock"
-        elif t.kind == "stress" and t.mode is not None and t.mode.value == "uniaxial" and \
+        elif t.kind == "stress" and t.mode is not None and t.mode.value == "uniaxial" and t.stretch is not None and \
                 any(abs(t.stretch - s) < 1e-9 for s in (2.0, 4.0)):
             name = "M100" if abs(t.stretch - 2.0) < 1e-9 else "M300"
     return SpecTarget(text, name, t.lo, t.hi, t.unit, t.scale, t)
@@ -141,6 +141,7 @@ def judge_one(result, spec: SpecTarget) -> dict:
         return out | {"verdict": CANNOT_JUDGE, "ci95": None,
                       "reason": "one specimen: scatter unknown" if summ.n == 1 else "no specimen value"}
     ci = combined_interval(summ, se)
+    assert ci is not None  # n ≥ 2: scatter known
     lo, hi = ci
     below = spec.lo is not None and hi < spec.lo
     above = spec.hi is not None and lo > spec.hi

@@ -66,7 +66,7 @@ def _clean(values) -> np.ndarray:
     return x[np.isfinite(x)]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Summary:
     """Specimen statistics of one quantity: n, mean, sample sd (n − 1), median, the standard error of the
     mean and its 95 % interval (Student t, n − 1); sd/se/ci95 are None for n < 2 (scatter unknown)."""
@@ -102,14 +102,14 @@ def summarize(values, level: float = 0.95) -> Summary:
     x = _clean(values)
     n = int(x.size)
     if n == 0:
-        return Summary(0, None, None, None, None, None)
+        return Summary(n=0, mean=None, sd=None, median=None, se=None, ci95=None)
     mean, median = float(x.mean()), float(np.median(x))
     if n < 2:
-        return Summary(1, mean, None, median, None, None)
+        return Summary(n=1, mean=mean, sd=None, median=median, se=None, ci95=None)
     sd = float(x.std(ddof=1))
     se = sd / math.sqrt(n)
     half = t_quantile(n - 1, level) * se
-    return Summary(n, mean, sd, median, se, (mean - half, mean + half))
+    return Summary(n=n, mean=mean, sd=sd, median=median, se=se, ci95=(mean - half, mean + half))
 
 
 def modified_z(values) -> list[float | None]:
@@ -155,7 +155,7 @@ def detectable_difference(se: float, dof: float, alpha: float = ALPHA, power: fl
     return (student_t_ppf(1.0 - alpha / 2.0, dof) + student_t_ppf(power, dof)) * se
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Verdict:
     """A compound against the baseline on one quantity (from specimen values)."""
 
@@ -185,30 +185,35 @@ def verdict(values, baseline_values, level: float = 1.0 - ALPHA) -> Verdict:
     a, b = _clean(values), _clean(baseline_values)
     na, nb = int(a.size), int(b.size)
     if na == 0 or nb == 0:
-        return Verdict(CANNOT_JUDGE, na, nb, None, None, None, None, None, None, None,
-                       "no specimen value on one side")
+        return Verdict(verdict=CANNOT_JUDGE, n=na, n_baseline=nb, difference=None, percent=None, ci95=None,
+                       ci95_percent=None, dof=None, detectable=None, detectable_percent=None,
+                       reason="no specimen value on one side")
     d = float(a.mean() - b.mean())
     base = float(b.mean())
     pct = d / abs(base) * 100.0 if base else None
     if na < 2 or nb < 2:
         who = "the compound" if na < 2 else "the baseline"
-        return Verdict(CANNOT_JUDGE, na, nb, d, pct, None, None, None, None, None,
-                       f"{who} has one specimen: its scatter is unknown, so no verdict (a fit's own error is "
+        return Verdict(verdict=CANNOT_JUDGE, n=na, n_baseline=nb, difference=d, percent=pct, ci95=None,
+                       ci95_percent=None, dof=None, detectable=None, detectable_percent=None,
+                       reason=f"{who} has one specimen: its scatter is unknown, so no verdict (a fit's own error is "
                        "not specimen scatter)")
     sa, sb = float(a.std(ddof=1)), float(b.std(ddof=1))
     se = math.sqrt(sa * sa / na + sb * sb / nb)
     dof = welch_dof(sa, na, sb, nb)
     if se == 0:  # identical specimens on both sides: any difference is exact
         v = DIFFERENT if d != 0 else NOT_DISTINGUISHABLE
-        return Verdict(v, na, nb, d, pct, (d, d), None if pct is None else (pct, pct), dof, 0.0, 0.0,
-                       "no scatter at all on either side")
+        return Verdict(verdict=v, n=na, n_baseline=nb, difference=d, percent=pct, ci95=(d, d),
+                       ci95_percent=None if pct is None else (pct, pct), dof=dof, detectable=0.0,
+                       detectable_percent=0.0,
+                       reason="no scatter at all on either side")
     half = _t(dof, level) * se
     ci = (d - half, d + half)
     v = DIFFERENT if (ci[0] > 0 or ci[1] < 0) else NOT_DISTINGUISHABLE
     mdd = detectable_difference(se, dof, 1.0 - level)
     scale = 100.0 / abs(base) if base else None
-    return Verdict(v, na, nb, d, pct, ci, None if scale is None else (ci[0] * scale, ci[1] * scale), dof, mdd,
-                   None if scale is None else mdd * scale)
+    return Verdict(verdict=v, n=na, n_baseline=nb, difference=d, percent=pct, ci95=ci,
+                   ci95_percent=None if scale is None else (ci[0] * scale, ci[1] * scale), dof=dof, detectable=mdd,
+                   detectable_percent=None if scale is None else mdd * scale)
 
 
 def welch_p_value(values, baseline_values) -> float | None:
@@ -248,6 +253,7 @@ def combined_interval(summary: Summary, fit_se, level: float = 0.95) -> tuple[fl
         return None
     ses = [float(s) for s in (fit_se or []) if s is not None and math.isfinite(float(s))]
     fit_var = sum(s * s for s in ses) / (summary.n ** 2) if ses else 0.0
+    assert summary.se is not None and summary.mean is not None  # scatter known: n ≥ 2
     half = t_quantile(summary.n - 1, level) * math.sqrt(summary.se ** 2 + fit_var)
     return (summary.mean - half, summary.mean + half)
 

@@ -313,8 +313,8 @@ class Study:
     def from_project(cls, source) -> Study:
         """From a project file (path or zip bytes): the inputs re-read with their stored options, the stored
         compounds and settings.  The study is ``stale`` until a result is recomputed."""
+        from .labfiles import read_force_temperature
         from .labfiles.api import read_curves_bytes
-        from .testdata import read_force_temperature
 
         proj = read_project(source)
         curves: dict[str, list] = {}

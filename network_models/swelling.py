@@ -29,16 +29,23 @@ concentration and crosslink density, so every result carries ν at χ ± 0.05.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
-from functools import lru_cache
-from importlib import resources
 
 from scipy.optimize import brentq
 
-from .constants import LAB_TEMPERATURE, ZERO_CELSIUS, kelvin
+from .constants import LAB_TEMPERATURE, ZERO_CELSIUS
 from .errors import Notice
-from .materials import get_polymer, user_chi_rows
+from .materials import (  # the solvent and χ tables live beside the polymer table; re-exported here
+    CHI_STATUS_RANK,
+    CHI_TEMPERATURE_WINDOW,
+    ChiValue,
+    Solvent,
+    chi_values,
+    default_chi,
+    get_polymer,
+    get_solvent,
+    solvents,
+)
 
 __all__ = [
     "CHI_BAND", "CHI_STATUS_RANK", "CHI_TEMPERATURE_WINDOW", "FILLER_DENSITY_CARBON_BLACK", "KRAUS_C_CARBON_BLACK",
@@ -53,113 +60,6 @@ CHI_BAND = 0.05
 KRAUS_C_CARBON_BLACK = 1.17
 #: density of carbon black, kg/m³ [memory: about 1.8 g/cm³]
 FILLER_DENSITY_CARBON_BLACK = 1800.0
-
-
-@dataclass(frozen=True)
-class Solvent:
-    key: str
-    title: str
-    formula: str
-    molar_mass: float  # kg/mol
-    density: float  # kg/m³
-    density_source: str
-
-    @property
-    def molar_volume(self) -> float:
-        """V₁ = M/ρ, m³/mol."""
-        return self.molar_mass / self.density
-
-
-@dataclass(frozen=True)
-class ChiValue:
-    polymer: str
-    solvent: str
-    chi: float
-    temperature: float  # K
-    default: bool
-    status: str  # "handbook" | "common" | "memory" | "estimate" | "user"
-    source: str
-    note: str = ""
-    #: half-width of the band of published χ for this pair around ``chi`` (docs/methods.md §chi-table);
-    #: None when the row states none (then :data:`CHI_BAND` serves)
-    spread: float | None = None
-    spread_basis: str = ""
-
-
-@lru_cache(maxsize=1)
-def _table():
-    return tomllib.loads(resources.files(__package__).joinpath("solvents.toml").read_text("utf-8"))
-
-
-def solvents() -> dict[str, Solvent]:
-    out = {}
-    for key, r in _table()["solvent"].items():
-        out[key] = Solvent(key, r["title"], r["formula"], r["molar_mass_g_mol"] / 1000.0,
-                           r["density_g_cm3"] * 1000.0, r["density_source"])
-    return out
-
-
-def get_solvent(key: str) -> Solvent:
-    table = solvents()
-    k = str(key).strip().lower().replace(" ", "-")
-    aliases = {"mek": "2-butanone", "methyl-ethyl-ketone": "2-butanone", "heptane": "n-heptane"}
-    k = aliases.get(k, k)
-    if k not in table:
-        raise KeyError(f"unknown solvent {key!r}; the table has {', '.join(table)}")
-    return table[k]
-
-
-def _row_spread(r) -> float | None:
-    """The ``spread`` of a χ row (published spread around its χ, docs/methods.md §chi), checked."""
-    v = r.get("spread")
-    if v is None:
-        return None
-    v = float(v)
-    if not (math.isfinite(v) and 0 <= v < 1):
-        raise ValueError(f"χ row {r.get('polymer')}–{r.get('solvent')}: spread must be a number in [0, 1); got {v!r}")
-    return v
-
-
-def chi_values(polymer: str | None = None, solvent: str | None = None) -> list[ChiValue]:
-    """χ rows of the table (built-in rows, then any ``[[chi]]`` rows of the active user polymer table,
-    :mod:`network_models.materials`), optionally for one polymer and/or solvent."""
-    rows = []
-    for r in list(_table()["chi"]) + user_chi_rows():
-        if polymer is not None and r["polymer"] != str(polymer).strip().upper():
-            continue
-        if solvent is not None and get_solvent(r["solvent"]).key != get_solvent(solvent).key:
-            continue
-        rows.append(ChiValue(r["polymer"], get_solvent(r["solvent"]).key, float(r["chi"]),
-                             kelvin(r["temperature_C"]), bool(r["default"]), r["status"], r["source"],
-                             r.get("note", ""), _row_spread(r), str(r.get("spread_basis", ""))))
-    return rows
-
-
-#: which χ row wins when the user gives none: rows measured within :data:`CHI_TEMPERATURE_WINDOW` of the
-#: swelling temperature first; among those the user's own rows, then rows read in a handbook or paper, then
-#: recalled ones, then solubility-parameter estimates; ``default = true`` only breaks ties within one rank.
-CHI_STATUS_RANK = {"user": 0, "handbook": 1, "read": 1, "common": 1, "memory": 2, "estimate": 3}
-CHI_TEMPERATURE_WINDOW = 30.0  # K
-
-
-def default_chi(polymer: str, solvent: str, T: float | None = None) -> ChiValue:
-    """The χ row used when the user gives none (rule: :data:`CHI_STATUS_RANK`): a sourced value beats a
-    recalled one, a recalled one beats an estimate, but a row measured far from the swelling temperature
-    ``T`` (K; default the lab's 23 °C) only serves when no row near it exists."""
-    rows = chi_values(polymer, solvent)
-    if not rows:
-        raise KeyError(
-            f"the solvent table has no χ for {polymer}–{get_solvent(solvent).key}; give χ yourself "
-            "(--chi 0.4, or chi=0.4 from Python) from a source you trust"
-        )
-    T = LAB_TEMPERATURE if T is None else T
-
-    def rank(ir):
-        i, r = ir
-        far = not (abs(r.temperature - T) <= CHI_TEMPERATURE_WINDOW)
-        return (far, CHI_STATUS_RANK.get(r.status, 4), not r.default, i)
-
-    return min(enumerate(rows), key=rank)[1]
 
 
 # ------------------------------------------------------------------------------------------------
@@ -296,7 +196,7 @@ def kraus_gum_fraction(v_rf: float, filler_fraction: float, c: float = KRAUS_C_C
 
 
 # ------------------------------------------------------------------------------------------------
-@dataclass
+@dataclass(kw_only=True)
 class SwellingEstimate:
     phi: float  # rubber volume fraction used in Flory–Rehner (Kraus-corrected when filled)
     phi_measured: float  # before any Kraus correction
@@ -392,7 +292,8 @@ def _chi_for(poly, sol, chi, T, notes) -> ChiValue:
     else:
         if not (isinstance(chi, (int, float)) and math.isfinite(chi) and 0 <= chi < 1.5):
             raise ValueError(f"χ must be a number between 0 and 1.5; got {chi!r}")
-        cv = ChiValue(poly.key, sol.key, float(chi), T or float("nan"), False, "user", "given by the user")
+        cv = ChiValue(polymer=poly.key, solvent=sol.key, chi=float(chi), temperature=T or float("nan"), default=False,
+                      status="user", source="given by the user")
         notes.append(f"χ = {chi:g} as given")
     return cv
 
@@ -467,7 +368,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
                       kraus_c: float = KRAUS_C_CARBON_BLACK, filler_density: float = FILLER_DENSITY_CARBON_BLACK,
                       rho_polymer: float | None = None, insoluble_fraction: float | None = None) -> SwellingEstimate:
     """ν (affine and phantom) from one swelling test.  Masses in any one unit (kg in SI), named as in
-    :class:`network_models.testdata.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
+    :class:`network_models.curves.SwellingResult`: ``dry`` before swelling, ``swollen`` blotted at
     equilibrium, ``extracted`` (optional) re-dried after swelling — when given it is the network mass and
     the soluble fraction (dry − extracted)/dry is reported.  The other convention is accepted too:
     ``dry`` = the re-dried network mass with ``initial`` = the mass before swelling (give one of
@@ -510,7 +411,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
         notes.append(f"Ellis–Welding: rubber network D − F·T with insoluble fraction F = {insoluble_fraction:.4f} "
                      f"from the recipe, polymer density {rho_p:g} kg/m³; v_r = {phi_m:.4f}")
     else:
-        phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, rubber_fraction)
+        phi_m = polymer_volume_fraction(network_mass, swollen, rho_p, sol.density, float(rubber_fraction or 1.0))
     check_absorbed_mass(network_mass, swollen)
     phi = phi_m
     kraus = None
@@ -528,7 +429,7 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     check_repeat_unit(nu_a, nu_p, rho_p, poly, notes)
     band = {}
     for net in ("affine", "phantom"):
-        vals = []
+        vals: list[float | None] = []
         for c in (cv.chi - CHI_BAND, cv.chi + CHI_BAND):
             try:
                 vals.append(flory_rehner_nu(phi, c, sol.molar_volume, f, net))
@@ -540,7 +441,9 @@ def swelling_estimate(dry: float, swollen: float, solvent: str = "toluene", poly
     notes.append("Flory–Rehner assumes a perfect network in equilibrium with pure solvent at the test "
                  "temperature; χ is the largest uncertainty (the band shows χ ± 0.05)")
     spread, basis, band_chi = _published_band(phi, cv, sol.molar_volume, f, notes)
-    return SwellingEstimate(phi, phi_m, cv, sol, poly.key, float(f), T, nu_a, nu_p, band, rho_p, soluble, kraus, notes,
+    return SwellingEstimate(phi=phi, phi_measured=phi_m, chi=cv, solvent=sol, polymer=poly.key, f=float(f), T=T,
+                            nu_affine=nu_a, nu_phantom=nu_p, band=band, rho_polymer=rho_p, soluble_fraction=soluble,
+                            kraus=kraus, notes=notes,
                             chi_spread=spread, chi_spread_basis=basis, nu_band_chi=band_chi,
                             insoluble_fraction=insoluble_fraction)
 
@@ -556,7 +459,7 @@ def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
                  else "no published spread stated for this row: the fixed ± 0.05 band")
     band = {}
     for net in ("affine", "phantom"):
-        vals = []
+        vals: list[float | None] = []
         for c in (cv.chi - spread, cv.chi + spread):
             try:
                 vals.append(flory_rehner_nu(phi, c, V1, f, net))
@@ -572,7 +475,7 @@ def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
 
 
 def from_record(record, polymer: str, **kw) -> SwellingEstimate:
-    """Estimate from a :class:`network_models.testdata.SwellingResult` row (``read_swelling``)."""
+    """Estimate from a :class:`network_models.curves.SwellingResult` row (``read_swelling``)."""
     kw.setdefault("T", record.temperature)
     return swelling_estimate(record.dry_mass, record.swollen_mass, record.solvent or "toluene", polymer,
                              extracted=record.extracted_mass, **kw)

@@ -1,10 +1,15 @@
-"""Compatibility module: the names the README and DEVELOPERS documented here, now living in
-:mod:`network_models.curves` (the data types) and :mod:`network_models.labfiles` (the readers).
+"""Deprecated compatibility shim for code outside the project: the names once documented here live in
+:mod:`network_models.curves` (``TestCurve``, ``ForceTemperatureRecord``, ``SwellingResult``),
+:mod:`network_models.errors` (``DataError``) and :mod:`network_models.labfiles` (the readers).
 
-New code imports from those modules; this one only re-exports them.
+Importing this module emits a :class:`DeprecationWarning`; nothing in the project imports it
+(``tests/test_testdata_shim.py`` checks), and it will be removed in a later release.  Replace
+``from network_models.testdata import read_curves`` by ``from network_models.labfiles import read_curves``.
 """
 
 from __future__ import annotations
+
+import warnings
 
 from .curves import ForceTemperatureRecord, SwellingResult, TestCurve
 from .errors import DataError
@@ -35,3 +40,6 @@ __all__ = [
     "inspect_bytes", "load_profile", "read_curves", "read_curves_bytes", "read_force_temperature", "read_manifest",
     "read_swelling", "save_profile",
 ]
+
+warnings.warn("network_models.testdata is deprecated: import TestCurve and the other data types from "
+              "network_models.curves and the readers from network_models.labfiles", DeprecationWarning, stacklevel=2)

@@ -95,7 +95,7 @@ METHOD_CONSTANT_VOLUME = ("constant-volume energetic fraction: the constant-pres
                           "(Flory, Ciferri & Hoeve 1960 [memory])")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class EnergeticFraction:
     value: float
     stderr: float
@@ -168,5 +168,6 @@ def energetic_fraction(T, force, stretch, expansion=None):
                 "it more than the forces do; measure at a larger stretch (λ ≥ 1.15)",
                 kind="correction-dominates", subject="thermo"))
     value = -Tm * slope - corr
-    return EnergeticFraction(float(value), float(Tm * se), float(slope), float(stretch), method, int(T.size),
-                             basis, float(corr), tuple(notices))
+    return EnergeticFraction(value=float(value), stderr=float(Tm * se), slope=float(slope), stretch=float(stretch),
+                             method=method, n_points=int(T.size),
+                             basis=basis, correction=float(corr), notices=tuple(notices))

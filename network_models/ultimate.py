@@ -43,7 +43,7 @@ RULE = (f"rupture: after the largest nominal stress σ_max the stress falls betw
         "stress at break = the last point before the fall; points after it are left out of the fit")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class Ultimate:
     """Break properties of one specimen (SI: Pa; elongation in %)."""
 
@@ -95,8 +95,10 @@ def split_at_rupture(curve):
 
 def break_properties(specimen, lam, s, dropped=0) -> Ultimate:
     """Break properties of a curve already cut at the break (its last point is the point before the fall)."""
-    return Ultimate(str(specimen), float(np.max(s)), float((lam[-1] - 1.0) * 100.0), float(s[-1]), float(lam[-1]),
-                    int(dropped))
+    return Ultimate(specimen=str(specimen), tensile_strength=float(np.max(s)),
+                    elongation_at_break=float((lam[-1] - 1.0) * 100.0), stress_at_break=float(s[-1]),
+                    stretch_at_break=float(lam[-1]),
+                    points_dropped=int(dropped))
 
 
 def rupture_notice(u: Ultimate, subject=None) -> Notice:
@@ -111,8 +113,9 @@ def ultimate_of(curve) -> Ultimate | None:
     d = curve.metadata.get("ultimate") if isinstance(curve.metadata, dict) else None
     if not d:
         return None
-    return Ultimate(d["specimen"], d["tensile_strength_Pa"], d["elongation_at_break_percent"], d["stress_at_break_Pa"],
-                    d["stretch_at_break"], d.get("points_after_break_left_out", 0))
+    return Ultimate(specimen=d["specimen"], tensile_strength=d["tensile_strength_Pa"],
+                    elongation_at_break=d["elongation_at_break_percent"], stress_at_break=d["stress_at_break_Pa"],
+                    stretch_at_break=d["stretch_at_break"], points_dropped=d.get("points_after_break_left_out", 0))
 
 
 def ultimate_rows(curves) -> list[dict]:

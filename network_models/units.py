@@ -29,6 +29,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
+from .constants import ZERO_CELSIUS
 from .errors import UnitError
 
 __all__ = [
@@ -311,7 +312,7 @@ def format_si(value: float, dimension: str) -> str:
     if dimension == "pressure":
         return f"{value / 1e6:g} MPa"
     if dimension == "temperature":
-        return f"{value - 273.15:g} °C"
+        return f"{value - ZERO_CELSIUS:g} °C"
     if dimension == "force":
         return f"{value:g} N"
     return f"{value:g}"

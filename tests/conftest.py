@@ -27,6 +27,10 @@ ROOT = Path(__file__).resolve().parent.parent
 # CI runs the property tests on a fixed sequence of examples (reproducible, no timing deadline on a shared
 # machine); a developer's run draws new examples each time and may find new cases — add those as @example.
 settings.register_profile("ci", derandomize=True, deadline=None)
+
+# the readers' last line of defence (labfiles.api.guarded) turns any exception into a DataError for the user;
+# under the tests a programming error (IndexError, TypeError …) is re-raised so the fuzz tests catch a crash
+os.environ["NETSTRETCH_STRICT_READERS"] = "1"
 if os.environ.get("CI"):
     settings.load_profile("ci")
 

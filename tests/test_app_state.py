@@ -252,7 +252,7 @@ def test_swelling_sample_picker_prefills_the_form():
     assert v.messages.texts() == {}
     assert v.state.sample_label.startswith(label)
     # grams at the edge: the form holds the table's masses (kg in the reader) × 1000
-    from network_models.testdata import read_manifest
+    from network_models.labfiles import read_manifest
 
     rows = read_manifest().swelling_results()
     row = rows[[f"{r.compound} {r.specimen or ''}".strip() for r in rows].index(label)]

@@ -322,7 +322,7 @@ def test_fit_plots_follow_the_stress_unit(page):
 
 def test_curves_made_in_code_survive_a_project_round_trip():
     from network_models.compounds import Compound
-    from network_models.testdata import TestCurve
+    from network_models.curves import TestCurve
 
     lam = np.linspace(1.0, 2.5, 12)
     P = 0.4e6 * (lam - lam**-2)  # any smooth curve; checked only for exact round-tripping

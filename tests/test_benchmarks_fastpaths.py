@@ -201,10 +201,10 @@ def test_core_move_evaluates_every_supported_model_and_mode():
 
 
 def test_app_stress_curves_equal_the_core_path():
-    st_mod = pytest.importorskip("app.state", reason="app.state not available")
+    from app.state import NetworkState
     from benchmarks.bench_models import core_move
 
-    st = st_mod.NetworkState(models=list(MODELS), lam_max=5.0)
+    st = NetworkState(models=list(MODELS), lam_max=5.0)
     st.nu = 222.0
     app = st.stress_curves()["curves"]
     lam = app["uniaxial"]["lam"]
@@ -235,7 +235,6 @@ def test_runner_writes_one_json_document_with_nulls_and_notes(capsys):
 
 @pytest.mark.parametrize("model", ["eight-chain", "extended-tube"])
 def test_fast_fit_reaches_the_naive_optimum(model):
-    pytest.importorskip("network_models.fitting", reason="fitting not available")
     from benchmarks.bench_fit import compare
     from benchmarks.datasets import three_mode_curves
 
@@ -245,8 +244,8 @@ def test_fast_fit_reaches_the_naive_optimum(model):
 
 
 def test_batch_fit_of_one_curve_equals_the_naive_fit():
-    fitting = pytest.importorskip("network_models.fitting", reason="fitting not available")
     from benchmarks.datasets import batch_curves
+    from network_models import fitting
 
     c = batch_curves(3)[2]
     fast = fitting.fit("eight-chain", c, residual="absolute").values  # the naive fit's weighting

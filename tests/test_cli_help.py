@@ -16,15 +16,23 @@ def test_top_level_help(capsys):
         assert name in out
 
 
-@pytest.mark.parametrize("name", COMMANDS)
+@pytest.mark.parametrize("name", [*COMMANDS, "compare"])
 def test_each_command_help(name, capsys):
     parser = build_parser()
     sub = parser._subparsers._group_actions[0].choices
-    if name not in sub:
-        pytest.skip(f"command {name} not built")
+    assert name in sub, f"command {name} is listed in cli.COMMANDS but has no parser"
     sub[name].format_help()  # raises on a stray % in a help text
 
 
 def test_no_command_prints_help(capsys):
     assert main([]) == 0
     assert "COMMAND" in capsys.readouterr().out
+
+
+def test_a_missing_command_module_is_an_error(monkeypatch):
+    """A command listed in ``cli.COMMANDS`` whose module does not exist stops the parser (no silent skip)."""
+    import network_models.cli as cli
+
+    monkeypatch.setattr(cli, "COMMANDS", (*cli.COMMANDS, "no_such_command"))
+    with pytest.raises(ModuleNotFoundError, match="no_such_command"):
+        cli.build_parser()

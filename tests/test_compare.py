@@ -20,7 +20,7 @@ from scipy.constants import R  # CODATA gas constant
 from network_models.compare import TRADE_MODULI, compare, measured_at
 from network_models.compounds import Compound, SwellingTest, compounds_from_specs, load_manifest, parse_spec
 from network_models.deformation import Mode
-from network_models.testdata import DataError, TestCurve
+from network_models.labfiles import DataError, TestCurve
 
 ROOT = Path(__file__).resolve().parent.parent
 T23 = 296.15

@@ -8,9 +8,9 @@ from scipy.constants import R  # CODATA gas constant, J/(mol·K)
 
 from network_models import get_model
 from network_models.crosslinks import crosslink_table, from_fit, from_modulus, shear_modulus_from
+from network_models.curves import TestCurve
 from network_models.fitting import fit
 from network_models.network import get_polymer
-from network_models.testdata import TestCurve
 
 T = 296.15
 

@@ -15,8 +15,8 @@ from scipy.constants import R, kgf, psi, zero_Celsius
 
 from network_models import MODELS, Network, get_model, get_polymer
 from network_models.design import compare_models, design
-from network_models.design_advice import compound_from_fit
-from network_models.design_targets import TargetError, parse_target
+from network_models.design.advice import compound_from_fit
+from network_models.design.targets import TargetError, parse_target
 from network_models.network import N_MIN, lock_from_N
 
 T23 = zero_Celsius + 23.0
@@ -213,7 +213,7 @@ def test_advice_carries_the_interval():
 
 def test_advice_from_a_fit():
     from network_models.fitting import fit
-    from network_models.testdata import read_curves_bytes
+    from network_models.labfiles import read_curves_bytes
 
     m = get_model("eight-chain")
     net = Network(polymer="NR", nu=210.0, T=T23)

@@ -14,7 +14,7 @@ from app.design_view import create_design_view  # noqa: E402
 from app.messages import Messages  # noqa: E402
 from app.state import NetworkState  # noqa: E402
 from network_models.design import design  # noqa: E402
-from network_models.design_map import feasibility_map  # noqa: E402
+from network_models.design.map import feasibility_map  # noqa: E402
 
 
 def test_view_finds_the_window_and_shows_binding():

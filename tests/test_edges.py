@@ -17,8 +17,8 @@ import scipy.constants
 from scipy.constants import R  # CODATA gas constant, J/(mol·K)
 
 from network_models import get_model
+from network_models.curves import TestCurve
 from network_models.fitting import fit
-from network_models.testdata import TestCurve
 
 # Treloar 1944 (Trans. Faraday Soc. 40:59), uniaxial tension of a gum natural-rubber vulcanisate at 20 °C:
 # stretch and nominal stress in kgf/cm² as the table is commonly reprinted (checked against a public reprint

@@ -14,8 +14,8 @@ import pytest
 from scipy import stats
 
 from network_models import get_model
+from network_models.curves import TestCurve
 from network_models.fitting import FitError, estimate_modulus, fit, fit_many
-from network_models.testdata import TestCurve
 
 EIGHT = get_model("eight-chain")
 TRUE_8CH = {"mu": 0.30e6, "N": 12.0}

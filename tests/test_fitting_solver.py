@@ -17,9 +17,9 @@ from scipy.optimize import least_squares
 
 from network_models import get_model
 from network_models.constants import t_quantile
+from network_models.curves import TestCurve
 from network_models.fitting import derived, fit, fit_specimens, levenberg_marquardt
 from network_models.fitting import solver as solver_mod
-from network_models.testdata import TestCurve
 
 
 # ------------------------------------------------------------------------------------------------

@@ -28,7 +28,7 @@ sa = pytest.importorskip("sqlalchemy")
 pytest.importorskip("alembic")
 
 from network_models.cli import main  # noqa: E402
-from network_models.design_targets import TargetError, parse_target  # noqa: E402
+from network_models.design.targets import TargetError, parse_target  # noqa: E402
 from network_models.library import (  # noqa: E402
     LibraryError,
     connect,

@@ -313,14 +313,14 @@ def test_default_prefers_sourced_over_recalled():
     assert cv.status == "common" and cv.chi == 0.39
     rows = [r.__class__(**{**r.__dict__, "status": "memory" if r.status == "common" else r.status,
                            "default": r.status == "common"}) for r in nr]
-    from network_models import swelling
+    from network_models import materials
 
-    orig = swelling.chi_values
+    orig = materials.chi_values
     try:
-        swelling.chi_values = lambda p=None, s=None: rows
-        assert swelling.default_chi("NR", "toluene").status == "handbook"
+        materials.chi_values = lambda p=None, s=None: rows
+        assert materials.default_chi("NR", "toluene").status == "handbook"
     finally:
-        swelling.chi_values = orig
+        materials.chi_values = orig
 
 
 def test_default_keeps_to_the_test_temperature():

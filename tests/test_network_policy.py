@@ -19,11 +19,11 @@ from scipy.optimize import brentq
 
 from network_models import MODELS, Mode, Network, get_model, get_polymer
 from network_models.crosslinks import from_fit, from_modulus
+from network_models.curves import TestCurve
 from network_models.entanglement import G_E_POLICY, entanglement_share, policy_modulus, trapping_factor
 from network_models.errors import ParameterError
 from network_models.fitting import fit
 from network_models.network import N_MIN, lock_from_N, lock_range_from_N
-from network_models.testdata import TestCurve
 from tests.reference import langevin_series_coefficients, mp_inverse_langevin, revert_odd_series
 
 # (name, first invariant as a function of λ) per mode (docs/methods.md §test-modes table)

@@ -151,7 +151,7 @@ def _mr_compound(name, C1, C2, T=296.15):
     """Noise-free Mooney–Rivlin curves (uniaxial P = 2(C₁ + C₂/λ)(λ − λ⁻²), planar P = 2(C₁ + C₂)(λ − λ⁻³);
     Treloar 1975), three identical uniaxial specimens and one planar curve."""
     from network_models.compounds import Compound
-    from network_models.testdata import TestCurve
+    from network_models.curves import TestCurve
 
     lam = np.linspace(1.05, 4.0, 50)
     lp = np.linspace(1.05, 3.0, 30)

@@ -16,7 +16,7 @@ import pytest
 import setuptools
 
 import network_models
-from network_models import samples, testdata
+from network_models import labfiles, samples
 from network_models.cli import main
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -62,9 +62,9 @@ def test_python_dash_m_entry():
 
 
 def test_sample_manifest_is_the_one_module():
-    assert testdata.SAMPLE_MANIFEST == samples.SAMPLE_MANIFEST
+    assert labfiles.SAMPLE_MANIFEST == samples.SAMPLE_MANIFEST
     assert samples.SAMPLE_MANIFEST.is_file()
-    man = testdata.read_manifest()
+    man = labfiles.read_manifest()
     assert man.compounds and all(cf.path.is_file() for c in man for cf in c.curve_files)
 
 
@@ -73,13 +73,13 @@ def test_samples_command_writes_a_usable_set(tmp_path, capsys):
     assert main(["samples", str(dest)]) == 0
     names = {p.name for p in dest.iterdir()}
     assert "compounds.toml" in names and "make_samples.py" not in names
-    man = testdata.read_manifest(dest / "compounds.toml")  # the copy reads on its own
-    assert {c.key for c in man} == {c.key for c in testdata.read_manifest()}
+    man = labfiles.read_manifest(dest / "compounds.toml")  # the copy reads on its own
+    assert {c.key for c in man} == {c.key for c in labfiles.read_manifest()}
     assert "compare --manifest" in capsys.readouterr().out
     # the raw instrument exports come along in their sub-folder and read from there
     raw = sorted((dest / "raw_exports").glob("*.csv"))
     assert [p.name for p in raw] == sorted(p.name for p in (samples.sample_dir() / "raw_exports").glob("*.csv"))
-    assert all(testdata.read_curves(p) for p in raw)
+    assert all(labfiles.read_curves(p) for p in raw)
     # a second time into the same folder: identical files, nothing refused
     assert main(["samples", str(dest)]) == 0
     (dest / "compounds.toml").write_text("changed", encoding="utf-8")

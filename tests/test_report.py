@@ -5,9 +5,7 @@ from __future__ import annotations
 
 import json
 import math
-import os
 import re
-import shutil
 from html.parser import HTMLParser
 
 import numpy as np
@@ -16,8 +14,8 @@ import pytest
 from network_models.cli import main
 from network_models.compare import compare
 from network_models.compounds import Compound
+from network_models.curves import TestCurve
 from network_models.report import CAUTIONS, Report, fmt, nice_ticks, read_csv, svg_line_chart
-from network_models.testdata import TestCurve
 
 T23 = 296.15
 
@@ -258,38 +256,25 @@ def test_cli_errors_are_one_sentence_exit_2(argv, words, capsys):
 
 
 # ----- browser -----------------------------------------------------------------------------------
-def _chromium():
-    path = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
-    if not path:
-        if os.environ.get("NETSTRETCH_REQUIRE_BROWSER") == "1":
-            pytest.fail("NETSTRETCH_REQUIRE_BROWSER=1 but no Chromium found (set NETSTRETCH_CHROMIUM)")
-        pytest.skip("no Chromium on this machine (set NETSTRETCH_CHROMIUM or install chromium)")
-    return path
-
-
 @pytest.mark.ui
-def test_report_opens_offline_with_visible_plots(report, tmp_path):
-    exe = _chromium()
-    sync_playwright = pytest.importorskip("playwright.sync_api").sync_playwright
+def test_report_opens_offline_with_visible_plots(report, tmp_path, chromium_browser):
+    # the session's shared browser (tests/conftest.py): a skip without Chromium/Playwright, a failure under
+    # NETSTRETCH_REQUIRE_BROWSER=1, and no second Playwright started beside it
     html = report.write(tmp_path / "review.html")["html"]
     requests = []
-    with sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=exe, args=[
-            "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-            "--disable-sync", "--no-first-run"])
-        try:
-            page = browser.new_page(viewport={"width": 1200, "height": 900})
-            page.on("request", lambda r: requests.append(r.url))
-            page.goto(html.as_uri())
-            page.wait_for_load_state("load")
-            boxes = page.eval_on_selector_all(
-                "svg.chart", "els => els.map(e => {const r = e.getBoundingClientRect(); "
-                "return [r.width, r.height, e.querySelectorAll('polyline,rect,circle').length]})")
-            title = page.title()
-            os.makedirs("/tmp/shots", exist_ok=True)
-            page.screenshot(path="/tmp/shots/report_ui.png", full_page=True)
-        finally:
-            browser.close()
+    ctx = chromium_browser.new_context(viewport={"width": 1200, "height": 900})
+    try:
+        page = ctx.new_page()
+        page.on("request", lambda r: requests.append(r.url))
+        page.goto(html.as_uri())
+        page.wait_for_load_state("load")
+        boxes = page.eval_on_selector_all(
+            "svg.chart", "els => els.map(e => {const r = e.getBoundingClientRect(); "
+            "return [r.width, r.height, e.querySelectorAll('polyline,rect,circle').length]})")
+        title = page.title()
+        page.screenshot(path=str(tmp_path / "report_ui.png"), full_page=True)
+    finally:
+        ctx.close()
     assert requests == [html.as_uri()], requests  # the file itself, nothing else
     assert title == "Test review (invented data)"
     assert len(boxes) >= 4
@@ -302,7 +287,7 @@ def test_app_compare_tab_shows_table_and_downloads_the_report(app_page, deep_tex
     # the Compare tab of the served app: the sample set is compared at start; the downloaded report holds
     # the same strand densities as the core run on the same manifest (one pipeline for app, CLI and Python)
     from network_models.compounds import load_manifest
-    from network_models.testdata import SAMPLE_MANIFEST
+    from network_models.labfiles import SAMPLE_MANIFEST
 
     page = app_page
     page.locator(".bk-tab", has_text="Compare").first.click()

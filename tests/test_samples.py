@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 
 from network_models import Mode
-from network_models.testdata import SAMPLE_MANIFEST, read_curves, read_manifest
+from network_models.labfiles import SAMPLE_MANIFEST, read_curves, read_manifest
 
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_sets"
 

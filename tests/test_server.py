@@ -114,9 +114,14 @@ def test_released_page_frees_its_views(open_tabs):
             tabs.active = i
         del tabs
         assert page.ns_data.fit._figs is not None and "mod_nu" in page.ns_explorer._lazy
+        page.ns_compare.open_specimens()  # Compare's specimen card, opened: its HoloViews plots drawn
+        extra = [page.ns_compare.specimen_views]
     else:
         assert page.ns_data.fit._figs is None and not page.ns_explorer._lazy  # hidden tabs cost nothing yet
-    refs = [weakref.ref(o) for o in (page.ns_explorer, page.ns_data.fit, page.ns_data, page.ns_session)]
+        assert page.ns_compare._specimen_views is None
+        extra = []
+    refs = [weakref.ref(o) for o in (page.ns_explorer, page.ns_data.fit, page.ns_data, page.ns_session, *extra)]
+    del extra
     server._release(page)
     del page
     gc.collect()

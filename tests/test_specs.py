@@ -17,7 +17,7 @@ from scipy import stats
 from network_models.compare import compare
 from network_models.compounds import Compound
 from network_models.curves import TestCurve
-from network_models.design_targets import TargetError
+from network_models.design.targets import TargetError
 from network_models.specs import parse_spec
 
 LAM = np.linspace(1.02, 2.5, 25)

@@ -16,8 +16,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from network_models import Mode
-from network_models import testdata as td
-from network_models.testdata import (
+from network_models import labfiles as td
+from network_models.labfiles import (
     DataError,
     TestCurve,
     read_curves,
@@ -621,3 +621,23 @@ def test_notices_have_kinds(tmp_path):
     (c,) = read_curves(p)
     kinds = {n.kind for n in c.notices}
     assert {"cleanup", "assumed-mode"} <= kinds  # the return branch dropped; the mode defaulted
+
+
+def test_fuzz_harness_fails_when_a_reader_crashes(monkeypatch):
+    # a future bug in a reader (here: an IndexError injected into the table → curves step) must fail the fuzz
+    # tests, not pass as "a DataError"; the test suite runs the readers strict (tests/conftest.py)
+    from network_models.labfiles import api
+
+    def crash(*args, **kw):
+        raise IndexError("list index out of range")
+
+    monkeypatch.setattr(api, "curves_from_table", crash)
+    good = b"stretch,stress (MPa)\n1.0,0\n1.5,0.4\n2.0,0.7\n2.5,1.0\n"
+    with pytest.raises(IndexError):
+        _read_or_error(good, "f.csv")
+    with pytest.raises(IndexError):
+        test_fuzz_random_bytes.hypothesis.inner_test(good, "f.csv")
+    # for a user (no strict flag) the same crash is still one readable DataError, never a traceback
+    monkeypatch.delenv(api.STRICT_ENV)
+    with pytest.raises(DataError, match="could not be read as a lab table"):
+        read_curves_bytes(good, "f.csv")

@@ -107,7 +107,10 @@ def test_hidden_tabs_build_on_first_view_and_compare_links_specimens(app_page):
     page = app_page
     open_tab(page, "Mooney", ".ns-mooney-plot canvas")
     open_tab(page, "Moduli", ".ns-lock-table")
-    open_tab(page, "Compare", ".ns-spec-pick select")
+    open_tab(page, "Compare", ".ns-cmp-specimens")
+    # the specimen card is placed collapsed (its plots are drawn when it is first opened): open it
+    page.locator(".ns-cmp-specimens .card-header").first.click()
+    page.locator(".ns-spec-pick select").first.wait_for(state="attached", timeout=30000)
     page.locator(".ns-spec-plots canvas").first.wait_for(state="attached", timeout=30000)
     sel = page.locator(".ns-spec-pick select").first
     options = sel.locator("option").all_inner_texts()

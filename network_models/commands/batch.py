@@ -3,8 +3,12 @@ of an archive, one row per curve, resumable; unreadable files listed in ``<stem>
 
 from __future__ import annotations
 
+import argparse
 
-def add_parser(sub):
+from ._options import add_db, add_functionality, add_polymer
+
+
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
         "batch", help="fit every curve in folders of lab files: one row per curve (CSV or parquet), resumable",
         description="Walk folders (csv, tsv, txt, xlsx and the other formats the reader knows), fit MODEL to every "
@@ -18,17 +22,15 @@ def add_parser(sub):
     p.add_argument("--scheduler", metavar="ADDRESS",
                    help="send the work to a running Dask distributed scheduler, e.g. tcp://lab-pc-01:8786 "
                         "(pip install 'netstretch[cluster]')")
-    p.add_argument("--polymer", default="NR", help="polymer for the crosslink density (default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
-                   help="junction functionality f for the crosslink density (default 4)")
+    add_polymer(p, "polymer for the crosslink density (default NR)")
+    add_functionality(p, "junction functionality f for the crosslink density (default 4)")
     p.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
-    from .library import add_db_option
 
-    add_db_option(p)  # also store the rows in the results library (`netstretch library`)
+    add_db(p)  # also store the rows in the results library (`netstretch library`)
     p.set_defaults(run=run)
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     import sys
 
     from ..batch import run_batch

@@ -7,12 +7,15 @@ M300 or Mooney 2C1), as a table of stated assumptions.
 
 from __future__ import annotations
 
+import argparse
+
 from ..constants import celsius
 from ..crosslinks import KINDS, from_modulus
+from ._options import add_functionality, add_json, add_polymer
 from .fit import CAUTION, format_crosslink_table, json_document, quantity
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("crosslinks", help="crosslink density from a modulus (G, E, M100, M300, 2C1)",
                        description="Strand density ν and junction density μ_j = 2ν/f from one modulus, "
                                    "under each usual assumption.")
@@ -26,15 +29,15 @@ def add_parser(sub):
     p.add_argument("--range", nargs=2, metavar=("LOW", "HIGH"),
                    help="95 %% interval of the modulus, same kind, with units (gives intervals on every row)")
     p.add_argument("--temperature", default="23C", metavar="T", help="test temperature (default 23C)")
-    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
+    add_polymer(p)
+    add_functionality(p)
     p.add_argument("--filler", type=float, default=0.0, metavar="PHI",
                    help="filler volume fraction, adds a Guth–Gold row (default 0)")
     p.add_argument("--mn", metavar="M", help="primary-chain M_n before crosslinking, e.g. 250kg/mol (dangling ends)")
     p.add_argument("--sol-fraction", type=float, default=None, metavar="W",
                    help="sol (extractable) mass fraction 0…1 from extraction: adds rows with only the trapped "
                         "entanglements removed (Langley trapping factor)")
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 
@@ -53,7 +56,7 @@ def _molar_mass(text):
     return v
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..hardness import CAUTION as HARD_CAUTION
     from ..hardness import SCATTER_POINTS, SOURCE, parse_shore_a, shore_a_band, shore_a_to_e
 
@@ -93,15 +96,16 @@ def run(args):
         raise ValueError(f"--sol-fraction is a mass fraction between 0 and 1; got {args.sol_fraction:g}")
     table = from_modulus(G, args.kind, polymer=args.polymer, T=T, f=args.functionality,
                          filler_fraction=args.filler, Mn=Mn, ci95=ci, c2=c2, sol_fraction=args.sol_fraction)
+    band = ci or (G, G)  # a Shore A value always comes with its band (set above)
     if args.json:
         doc = {"command": "crosslinks", **table.to_dict(), "caution": CAUTION}
         if shore is not None:
-            doc["hardness"] = {"shore_a": shore, "E_Pa": G, "E_band_Pa": [ci[0], ci[1]],
+            doc["hardness"] = {"shore_a": shore, "E_Pa": G, "E_band_Pa": [band[0], band[1]],
                                "band": f"±{SCATTER_POINTS:g} Shore A", "source": SOURCE, "caution": HARD_CAUTION}
         print(json_document(doc))
         return 0
     if shore is not None:
-        print(f"{shore:g} Shore A → E = {G / 1e6:.4g} MPa (band {ci[0] / 1e6:.3g}–{ci[1] / 1e6:.3g} MPa for "
+        print(f"{shore:g} Shore A → E = {G / 1e6:.4g} MPa (band {band[0] / 1e6:.3g}–{band[1] / 1e6:.3g} MPa for "
               f"±{SCATTER_POINTS:g} points); {SOURCE}\n  caution: {HARD_CAUTION}")
     print(f"{args.kind} = {G / 1e6:.4g} MPa → small-strain shear modulus G = {table.G / 1e6:.4g} MPa; "
           f"polymer {table.polymer}, T = {celsius(T):.1f} °C, f = {args.functionality:g}")

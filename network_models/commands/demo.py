@@ -2,23 +2,27 @@
 
 from __future__ import annotations
 
+import argparse
+
 import numpy as np
 
 from ..constants import CAUTION, kelvin
 from ..models import MODELS
 from ..network import Network
+from ._options import add_polymer
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("demo", help="print every model's stress on a sample network")
-    p.add_argument("--polymer", default="NR")
+    add_polymer(p)
     p.add_argument("--nu", type=float, default=150.0, help="strand density, mol/m³ (default 150)")
     p.add_argument("--temperature", type=float, default=23.0, help="°C (default 23)")
     p.set_defaults(run=run)
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     net = Network(polymer=args.polymer, nu=args.nu, T=kelvin(args.temperature))
+    assert net.Mc is not None and net.N is not None  # derived from ν
     print(f"Network: {net.poly.title}; strand density ν = {net.nu:.1f} mol/m³, "
           f"junction density μ_j = {net.junction_density:.1f} mol/m³ (f = {net.f:g}), "
           f"M_c = {net.Mc * 1000:.0f} g/mol, N = {net.N:.1f} ({net.N_source}), T = {args.temperature:g} °C")

@@ -14,28 +14,30 @@ sentence naming the conflicting targets when infeasible), plus M_c, junction den
 
 from __future__ import annotations
 
+import argparse
 import math
 import re
 
 from ..design import CAUTION, compare_models, design
-from ..design_targets import EXAMPLES
+from ..design.targets import EXAMPLES
 from ..errors import UserError
 from ..jsonio import dumps
+from ._options import add_functionality, add_json, add_polymer
 
 _GRAMMAR = ("targets: G, E, M100/M200/M300, uniaxial@λ, planar@λ, equibiaxial@λ (each optionally @temperature, "
             "e.g. G@100C), lock, lock(planar), reserve, reserve@50%, Q(solvent); operators = (with ±tolerance or "
             "a..b range), >=, <=; e.g. " + ", ".join(f"'{v}'" for v in EXAMPLES.values()))
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("design", help="targets → the window of strand density that meets them (binding target, "
                                       "conflicts, what to change)",
                        description="Which strand density ν meets a set of targets with a chosen model, polymer, "
                                    "temperature and filler; which target binds at each edge; which targets "
                                    "conflict; what change brings a measured compound into the window.",
                        epilog=_GRAMMAR)
-    p.add_argument("--polymer", default=None, help="polymer from the polymer table (default NR, or the project "
-                                                   "compound's)")
+    add_polymer(p, "polymer from the polymer table (default NR, or the project "
+                   "compound's)", default=None)
     p.add_argument("--temperature", default=None, metavar="T", help="design (test) temperature, e.g. 23C "
                                                                    "(default 23C, or the project compound's)")
     p.add_argument("--model", default=None, metavar="MODEL", help="model (default eight-chain, or the project's "
@@ -44,8 +46,7 @@ def add_parser(sub):
                    help="a target such as 'M100=1.8MPa±5%%' (repeat for several; default: the project's targets)")
     p.add_argument("--filler", type=float, default=None, metavar="PHI",
                    help="filler volume fraction (default 0, or the project compound's)")
-    p.add_argument("--functionality", type=float, default=None, metavar="F",
-                   help="junction functionality f (default 4, or the project compound's)")
+    add_functionality(p, "junction functionality f (default 4, or the project compound's)", default=None)
     p.add_argument("--project", metavar="FILE.zip",
                    help="a project file: its design targets and model, and the polymer, f, filler and test "
                         "temperature of --compound (default its baseline); options given here override them")
@@ -75,7 +76,7 @@ def add_parser(sub):
     p.add_argument("--dose", metavar="INGREDIENT",
                    help="invert the ν window into a window of this ingredient's phr (e.g. sulfur), from the "
                         "manifest's compounds that differ only in it (network_models.dose)")
-    p.add_argument("--json", action="store_true", help="print one JSON object (SI units)")
+    add_json(p, "print one JSON object (SI units)")
     p.set_defaults(run=run)
 
 
@@ -129,7 +130,7 @@ def _current(args, result, study=None):
         if not r.ok or g is None or g.mean is None:
             raise UserError(f"{args.compound} has no fitted small-strain modulus in this study "
                             f"({r.error or 'no specimen fitted'}); give --current-nu instead.")
-        from ..design_advice import nu_for_modulus
+        from ..design.advice import nu_for_modulus
 
         s = result.setup
         nu = nu_for_modulus(s, g.mean)
@@ -140,9 +141,9 @@ def _current(args, result, study=None):
     if args.current:
         if args.current_nu is not None:
             raise UserError("give today's compound either as --current-nu or as --current files, not both.")
-        from ..design_advice import compound_from_fit
+        from ..design.advice import compound_from_fit
         from ..fitting import fit
-        from ..testdata import read_curves
+        from ..labfiles import read_curves
 
         curves = [c for path in args.current for c in read_curves(path)]
         if not curves:
@@ -156,7 +157,7 @@ def _current(args, result, study=None):
             raise UserError("--current-ci needs --current-nu.")
         return None
     ci = _ci(args.current_ci) if args.current_ci else None
-    from ..design_advice import convert_current
+    from ..design.advice import convert_current
 
     return convert_current(result.setup, args.current_nu, ci, getattr(args, "current_basis", "design"))
 
@@ -213,7 +214,7 @@ def _advice_json(advice) -> dict:
 
 
 def _table(r) -> list[str]:
-    from ..design_advice import nu_basis
+    from ..design.advice import nu_basis
 
     out = [f"Design window: {r.setup.describe()}", _basis_line(nu_basis(r.setup))]
     if r.feasible:
@@ -247,7 +248,7 @@ def _table(r) -> list[str]:
     return out
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     study = _project_defaults(args)
     kw = dict(polymer=args.polymer, temperature=args.temperature, filler=args.filler, f=args.functionality,
               N=args.N, entanglements=not args.no_entanglements)
@@ -259,12 +260,12 @@ def run(args):
     models = compare_models(r.targets, **kw) if args.compare_models else None
     over = None
     if args.over:
-        from ..design_map import window_over
+        from ..design.compare import window_over
 
         over = window_over(r.targets, args.over, model=args.model, **kw)
     dose = _dose(args, r)
     if args.json:
-        from ..design_advice import nu_basis
+        from ..design.advice import nu_basis
 
         doc = {"command": "design", **r.to_dict(), "basis": nu_basis(r.setup)}
         if dose is not None:

@@ -7,21 +7,25 @@ statistics, warnings in plain words and the crosslink-density table.
 
 from __future__ import annotations
 
+import argparse
 import math
 import re
+from typing import cast
 
 from ..constants import CAUTION as _CAUTION
+from ..constants import celsius
 from ..crosslinks import from_fit
-from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, fit_many
+from ..fitting import DEFAULT_RESIDUAL, RESIDUALS, FitResult, fit_many
 from ..jsonio import dumps
 from ..models import get_model
 from ..ultimate import RULE as ULTIMATE_RULE
 from ..ultimate import ultimate_rows
+from ._options import add_functionality, add_json, add_polymer
 
 CAUTION = "Caution: " + _CAUTION
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("fit", help="fit network models to lab curves (parameters ± 95 %% intervals, crosslink density)",
                        description="Fit network models to tensile, planar or equibiaxial curves.")
     p.add_argument("files", nargs="+", metavar="FILE", help="lab files (CSV/TSV/TXT, .xlsx, .xls or .ods)")
@@ -47,22 +51,20 @@ def add_parser(sub):
                         f"default {DEFAULT_RESIDUAL}, the same in compare, report, batch and the app")
     p.add_argument("--relative", dest="residual", action="store_const", const="relative",
                    help="alias of --residual relative")
-    p.add_argument("--polymer", default="NR",
-                   help="polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
-                        "(default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
-                   help="junction functionality f for the crosslink table (default 4)")
+    add_polymer(p, "polymer for the crosslink table and the fit's notices, e.g. strain crystallisation of NR "
+                   "(default NR)")
+    add_functionality(p, "junction functionality f for the crosslink table (default 4)")
     p.add_argument("--intervals", choices=("transformed", "profile"), default="transformed",
                    help="95 %% intervals: 'transformed' (default; linearised on log/logit of the parameter, always "
                         "inside its domain) or 'profile' (profile likelihood; slower)")
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 
 # ------------------------------------------------------------------------------------------------
 # shared helpers (also used by the crosslinks and swell commands)
 # ------------------------------------------------------------------------------------------------
-def quantity(text, dimension, what, example):
+def quantity(text, dimension, what, example) -> float:
     """Parse a command-line quantity that must carry a unit, e.g. '23C', '20mm', '0.55MPa'."""
     from ..units import parse_quantity
 
@@ -182,12 +184,12 @@ def _format_result(res, table, stretch_unit="stretch") -> list[str]:
         out.append("  Warnings:")
         out.extend(f"   - {w}" for w in res.warnings)
     if table is not None:
-        out.append(f"  Network estimate (polymer {table.polymer}, T = {table.T - 273.15:.1f} °C, f = {table.f:g}):")
+        out.append(f"  Network estimate (polymer {table.polymer}, T = {celsius(table.T):.1f} °C, f = {table.f:g}):")
         out.extend(format_crosslink_table(table))
     return out
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..network import get_polymer
 
     names = args.model or ["eight-chain"]
@@ -233,16 +235,16 @@ def run(args):
                                            "residuals (statistics.small_strain_modulus_Pa)"}
                 doc["models"][name] = d
         if len(ok) > 1:
-            doc["best_by_aic"] = min(ok, key=lambda n: results[n].aic)
+            doc["best_by_aic"] = min(ok, key=lambda n: cast(FitResult, results[n]).aic)
         print(dumps(doc))
     else:
-        modes = {}
+        modes: dict = {}
         for c in curves:
             modes[c.mode.value] = modes.get(c.mode.value, 0) + 1
         print(f"{len(curves)} curve(s) from {len(args.files)} file(s): "
               + ", ".join(f"{k} {v}" for k, v in modes.items()))
         temps = sorted({c.temperature for c in curves if c.temperature is not None})
-        print("test temperature: " + (", ".join(f"{t - 273.15:.1f} °C" for t in temps) if temps
+        print("test temperature: " + (", ".join(f"{celsius(t):.1f} °C" for t in temps) if temps
                                       else "not stated (23 °C assumed for the crosslink table)"))
         for n in notices:
             print(f"  file note: {n}")
@@ -260,8 +262,8 @@ def run(args):
                 continue
             print("\n".join(_format_result(r, tables.get(name), args.stretch_unit)))
         if len(ok) > 1:
-            best = min(ok, key=lambda n: results[n].aic)
-            print(f"\nLowest AIC on these curves: {results[best].title} (compare AIC only on the same curves and "
+            best = cast(FitResult, results[min(ok, key=lambda n: cast(FitResult, results[n]).aic)])
+            print(f"\nLowest AIC on these curves: {best.title} (compare AIC only on the same curves and "
                   "residual choice; a lower AIC is a better fit per parameter, not proof of the physics)")
         print()
         print(CAUTION)

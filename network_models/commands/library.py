@@ -11,19 +11,14 @@
 
 from __future__ import annotations
 
+import argparse
 import json
 import sys
 
-DB_HELP = ("the library: a SQLAlchemy URL (postgresql+psycopg://USER@HOST/DB, sqlite:///FILE) or a file path "
-           "(SQLite); default $NETSTRETCH_LIBRARY, else ~/.local/share/netstretch/library.sqlite (Linux)")
+from ._options import add_db, add_json, add_polymer
 
 
-def add_db_option(p):
-    """The one ``--db`` option (library commands and ``batch``)."""
-    p.add_argument("--db", metavar="URL", help=DB_HELP)
-
-
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("library", help="the results library: import studies, find compounds by targets, QC trends",
                        description="A database of studies (inputs by SHA-256, settings, compounds, specimens and "
                                    "their results per model and basis): import, find by design targets, follow a "
@@ -37,23 +32,23 @@ def add_parser(sub):
     src.add_argument("--batch", metavar="RESULTS.csv", help="a `netstretch batch` output (CSV or parquet)")
     imp.add_argument("--model", metavar="NAME", help="model of the results (default: the study's own model, else "
                                                      "the comparison default, extended-tube)")
-    add_db_option(imp)
-    imp.add_argument("--json", action="store_true", help="print one JSON object")
+    add_db(imp)
+    add_json(imp, "print one JSON object")
     imp.set_defaults(run=run_import)
 
     fnd = lsub.add_parser("find", help="compounds whose headline 95 %% intervals meet every target, nearest first")
-    add_db_option(fnd)
+    add_db(fnd)
     fnd.add_argument("--target", action="append", default=[], metavar="TARGET",
                      help="a target in the design syntax (repeat): G, E, M100, M300, lock, nu, e.g. "
                           "'nu=250..300mol/m3', 'lock>=6', 'G=0.30..0.40MPa'")
-    fnd.add_argument("--polymer", metavar="KEY", help="only compounds of this polymer (e.g. NR)")
+    add_polymer(fnd, "only compounds of this polymer (e.g. NR)", default=None, metavar="KEY")
     fnd.add_argument("--model", metavar="NAME", help="results of this model (default: each study's own model)")
     fnd.add_argument("--limit", type=int, default=50, metavar="N", help="show at most N matches (default 50)")
-    fnd.add_argument("--json", action="store_true", help="print one JSON object with `matches`")
+    add_json(fnd, "print one JSON object with `matches`")
     fnd.set_defaults(run=run_find)
 
     tr = lsub.add_parser("trend", help="a quantity over time, one point per compound: individuals control chart")
-    add_db_option(tr)
+    add_db(tr)
     tr.add_argument("--quantity", default="strand_density", metavar="Q",
                     help="strand_density (default), G0, lock, N, M100_measured, M300_measured")
     tr.add_argument("--compound-prefix", default="", metavar="PREFIX", help="only compounds whose key starts so")
@@ -61,18 +56,18 @@ def add_parser(sub):
     tr.add_argument("--basis", metavar="BASIS", help="strand-density basis: affine-all (default; all of G read as "
                                                      "strands, never negative) or affine-no-entanglement")
     tr.add_argument("--svg", metavar="FILE.svg", help="also write the control chart as an SVG file")
-    tr.add_argument("--json", action="store_true", help="print one JSON object with `points`, `centre`, `ucl`, `lcl`")
+    add_json(tr, "print one JSON object with `points`, `centre`, `ucl`, `lcl`")
     tr.set_defaults(run=run_trend)
 
     ex = lsub.add_parser("export", help="write a stored study back as a project file")
-    add_db_option(ex)
+    add_db(ex)
     ex.add_argument("--study", required=True, type=int, metavar="ID", help="the study number (library list/find)")
     ex.add_argument("-o", "--output", required=True, metavar="FILE.zip", help="project file to write")
     ex.set_defaults(run=run_export)
 
     ls = lsub.add_parser("list", help="the studies in the library")
-    add_db_option(ls)
-    ls.add_argument("--json", action="store_true", help="print JSON")
+    add_db(ls)
+    add_json(ls, "print JSON")
     ls.set_defaults(run=run_list)
     p.set_defaults(run=lambda args: (p.print_help(), 0)[1])
 
@@ -81,7 +76,7 @@ def _out(obj):
     print(json.dumps(obj, indent=2, ensure_ascii=False, allow_nan=False))
 
 
-def run_import(args):
+def run_import(args: argparse.Namespace) -> int:
     from ..library import import_study
 
     kind, path = next((k, getattr(args, k)) for k in ("manifest", "project", "batch") if getattr(args, k))
@@ -108,7 +103,7 @@ def _shown(key, v) -> str:
     return f"{key}: {_fmt(v['value'], u)}{ci}{unit}"
 
 
-def run_find(args):
+def run_find(args: argparse.Namespace) -> int:
     from ..errors import UserError
     from ..library import find
 
@@ -131,7 +126,7 @@ def run_find(args):
     return 0
 
 
-def run_trend(args):
+def run_trend(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from ..library import trend, trend_svg
@@ -159,7 +154,7 @@ def run_trend(args):
     return 0
 
 
-def run_export(args):
+def run_export(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from ..library import export_study
@@ -170,7 +165,7 @@ def run_export(args):
     return 0
 
 
-def run_list(args):
+def run_list(args: argparse.Namespace) -> int:
     from ..library.query import studies
 
     rows = studies(args.db)

@@ -4,18 +4,20 @@ of every value."""
 
 from __future__ import annotations
 
+import argparse
 import json
 
 from ..materials import add_polymers_option, apply_polymers_option, polymer_listing
 from ..models import MODELS
+from ._options import add_json
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("models", help="list the network models and their parameters (or the polymer table)")
     p.add_argument("--list-polymers", action="store_true",
                    help="list the polymer table instead: every value with its unit and source")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document")
+    add_json(p, "print one JSON document")
     p.set_defaults(run=run)
 
 
@@ -30,7 +32,7 @@ def _print_polymers():
             print(f"{'':10s}note: {row['note']}")
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     apply_polymers_option(args)
     if args.list_polymers:
         if args.json:

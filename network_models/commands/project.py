@@ -11,12 +11,13 @@ and the app opens.
 
 from __future__ import annotations
 
+import argparse
 from pathlib import Path
 
 from .report import _common, build_study
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("project", help="write a project file (the study: inputs byte for byte and settings)",
                        description="Write one project file (zip: project.toml and the input files) from a manifest "
                                    "or --compound files and the settings given here.")
@@ -33,7 +34,7 @@ def add_parser(sub):
     p.set_defaults(run=run)
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..cli import UserError
 
     st = build_study(args)
@@ -52,7 +53,7 @@ def run(args):
     if args.purpose:
         st.purpose = args.purpose
     if st.settings.design_targets:  # a target that does not parse is refused now, not when the project is opened
-        from ..design_targets import parse_targets
+        from ..design.targets import parse_targets
 
         parse_targets(list(st.settings.design_targets))
     out = Path(args.output)

@@ -10,9 +10,14 @@ a baseline and (report) write the self-contained design-review HTML with CSV and
 
 from __future__ import annotations
 
+import argparse
+from pathlib import Path
+from typing import Any, cast
+
 from ..display_units import DENSITY_UNITS, STRESS_UNITS, apply_to_comparison
 from ..errors import merge_notices
 from ..study import DEFAULT_MODEL  # the comparison's default model (one constant, in the study)
+from ._options import add_functionality, add_json, add_polymer
 
 
 def _common(p):
@@ -34,9 +39,8 @@ def _common(p):
                    "temperature)")
     p.add_argument("--mode", choices=("uniaxial", "equibiaxial", "planar"),
                    help="test mode for --compound files that do not state it")
-    p.add_argument("--polymer", default="NR", help="polymer of --compound compounds (default NR)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F",
-                   help="junction functionality f of --compound compounds (default 4)")
+    add_polymer(p, "polymer of --compound compounds (default NR)")
+    add_functionality(p, "junction functionality f of --compound compounds (default 4)")
     p.add_argument("--exclude", action="append", default=[], metavar="COMPOUND:SPECIMEN[:REASON]",
                    help="keep a specimen out of the statistics, with the reason (repeat it); listed in the results")
     p.add_argument("--pool", action="store_true",
@@ -59,7 +63,7 @@ def _common(p):
                         "show any 'different' in at most 5 %% of comparisons (default: 5 %% per quantity)")
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("report", help="design-review report: compare compounds, write HTML + CSV + JSON",
                        description="Fit one model to every compound, compare with a baseline and write a "
                                    "self-contained HTML report with CSV and JSON beside it.")
@@ -75,7 +79,7 @@ def add_parser(sub):
     c = sub.add_parser("compare", help="compare compounds on one model: table on screen (or --json)",
                        description="Fit one model to every compound and print the comparison.")
     _common(c)
-    c.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(c)
     c.set_defaults(run=run_compare)
 
 
@@ -114,7 +118,7 @@ def settings_from_args(args) -> dict:
     return out
 
 
-def build_study(args):
+def build_study(args: argparse.Namespace) -> Any:
     """The study a command works on: from ``--project``, or ``--manifest`` and/or ``--compound`` files; the
     settings given on the command line override the stored ones."""
     from ..cli import UserError
@@ -268,7 +272,7 @@ def verdict_lines(cmp) -> list[str]:
     return out
 
 
-def run_compare(args):
+def run_compare(args: argparse.Namespace) -> int:
     from ..constants import CAUTION
     from ..jsonio import dumps
 
@@ -296,7 +300,7 @@ def _print_pdf(html_path):
     return print_pdf(html_path, how=how)
 
 
-def run_report(args):
+def run_report(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from ..cli import UserError
@@ -321,7 +325,7 @@ def run_report(args):
     print(summary(cmp))
     if args.pdf:
         paths["pdf"] = _print_pdf(paths["html"])
-    charts = paths.pop("charts", [])
+    charts = cast("list[Path]", paths.pop("charts", []))
     print("\nWrote " + ", ".join(str(p) for p in paths.values())
           + (f" and {len(charts)} chart(s) as SVG in {charts[0].parent}" if charts else ""))
     print(CAUTION)

@@ -3,8 +3,10 @@ a folder where it can be opened, copied and used with ``--manifest DIR/compounds
 
 from __future__ import annotations
 
+import argparse
 
-def add_parser(sub):
+
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("samples", help="write the bundled sample set (invented demo data) into a folder",
                        description="Copy the bundled sample set (invented data of an invented scenario) and its "
                                    "manifest compounds.toml into DIR.")
@@ -13,7 +15,7 @@ def add_parser(sub):
     p.set_defaults(run=run)
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..errors import UserError
     from ..samples import write_samples
 

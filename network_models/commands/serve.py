@@ -8,11 +8,12 @@ variable NETSTRETCH_PASSWORD — never from the command line, where other users 
 
 from __future__ import annotations
 
+import argparse
 import importlib
 from pathlib import Path
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("serve", help="serve the browser app (local assets only; works without internet)",
                        description="Serve the browser app.  For a server a lab leaves running see README "
                                    "'Serving a lab'; for Panel's own options use `panel serve` on the file "
@@ -54,7 +55,7 @@ def _app_package():
         return importlib.import_module("app")
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     from ..errors import UserError
 
     if args.entry_file:
@@ -72,7 +73,6 @@ def run(args):
         import panel  # noqa: F401
 
         pkg = _app_package()
-        main = importlib.import_module(f"{pkg.__name__}.main")
         server = importlib.import_module(f"{pkg.__name__}.server")
     except ImportError as exc:
         raise UserError(
@@ -91,7 +91,7 @@ def run(args):
         print(f"shared on the network; pages from {', '.join(origins)} may connect"
               + ("; a password is asked" if auth else "; NO password is asked (see --password-file)"), flush=True)
     try:
-        main.serve(port=args.port, address=args.address, show=args.show, allow_websocket_origin=origins,
+        server.serve(port=args.port, address=args.address, show=args.show, allow_websocket_origin=origins,
                    basic_auth=auth, unused_session_lifetime_ms=int(args.session_lifetime * 1000))
     except OSError as exc:
         if exc.errno in (98, 48, 10048):  # address in use (Linux, macOS, Windows)

@@ -9,16 +9,19 @@
 
 from __future__ import annotations
 
+import argparse
 import re
 
+from ..constants import LAB_TEMPERATURE
 from ..materials import add_polymers_option, apply_polymers_option
 from ..swelling import CHI_BAND, compare_with_modulus, solvents, swelling_estimate
+from ._options import add_functionality, add_json, add_polymer
 from .fit import CAUTION, json_document, quantity
 
 _MASS_UNITS = {"g": 1e-3, "mg": 1e-6, "kg": 1.0}
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("swell", help="crosslink density from a swelling test (Flory–Rehner)",
                        description="Strand density ν from dry and swollen masses (Flory–Rehner, affine and "
                                    "phantom), with the band for χ ± 0.05.")
@@ -27,10 +30,10 @@ def add_parser(sub):
     p.add_argument("--extracted", metavar="MASS",
                    help="mass re-dried after swelling (sol removed); used as the network mass when given")
     p.add_argument("--solvent", default="toluene", help=f"solvent (default toluene; table: {', '.join(solvents())})")
-    p.add_argument("--polymer", default="NR", help="polymer from the polymer table (default NR)")
+    add_polymer(p)
     p.add_argument("--chi", type=float, metavar="CHI", help="polymer–solvent χ (default: the solvent table's value)")
     p.add_argument("--temperature", metavar="T", help="swelling temperature, e.g. 23C (recorded; χ is not rescaled)")
-    p.add_argument("--functionality", type=float, default=4.0, metavar="F", help="junction functionality f (default 4)")
+    add_functionality(p)
     p.add_argument("--rubber-fraction", type=float, metavar="W",
                    help="rubber mass fraction of the dry compound from the recipe (default: 1 for a gum, else "
                         "estimated from --filler with carbon-black density)")
@@ -45,7 +48,7 @@ def add_parser(sub):
                    help="the manifest key of the compound the specimen belongs to (here a KEY of --manifest, unlike "
                         "compare's --compound NAME=FILES)")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document (SI units)")
+    add_json(p)
     p.set_defaults(run=run)
 
 
@@ -76,10 +79,10 @@ def _manifest_compound(path, key):
     p = Path(path)
     try:
         doc = tomllib.loads(p.read_text("utf-8"))
-    except OSError as e:
-        raise DataError(f"manifest {path}: cannot open it ({e.strerror or e})") from None
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
-        raise DataError(f"manifest {p.name}: not valid TOML ({e})") from None
+    except OSError as exc:
+        raise DataError(f"manifest {path}: cannot open it ({exc.strerror or exc})") from None
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise DataError(f"manifest {p.name}: not valid TOML ({exc})") from None
     entries = doc.get("compound", [])
     entries = [dict(v, name=k) for k, v in entries.items()] if isinstance(entries, dict) else list(entries)
     for e in entries:
@@ -98,7 +101,7 @@ def _n(x, scale=1.0):
     return "—" if x is None else f"{x * scale:.4g}"
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     apply_polymers_option(args)
     dry = _mass(args.dry, "--dry")
     swollen = _mass(args.swollen, "--swollen")
@@ -135,7 +138,7 @@ def run(args):
         from ..crosslinks import from_modulus
 
         G = quantity(args.modulus, "pressure", "--modulus", "0.55MPa")
-        table = from_modulus(G, "G", polymer=args.polymer, T=T or 296.15, f=args.functionality)
+        table = from_modulus(G, "G", polymer=args.polymer, T=T or LAB_TEMPERATURE, f=args.functionality)
         side = compare_with_modulus(est, table)
     if args.json:
         doc = {"command": "swell", **est.to_dict(), "caution": CAUTION}
@@ -145,8 +148,8 @@ def run(args):
         return 0
     print(f"polymer {est.polymer} in {est.solvent.title} (V₁ = {est.solvent.molar_volume * 1e6:.2f} cm³/mol); "
           f"χ = {est.chi.chi:g} [{est.chi.status}], band χ ± {CHI_BAND:g}")
-    extra = f" (measured {est.phi_measured:.4f}, Kraus-corrected)" if est.kraus else ""
-    print(f"rubber volume fraction in the swollen gel φ = {est.phi:.4f}{extra}"
+    kraus_note = f" (measured {est.phi_measured:.4f}, Kraus-corrected)" if est.kraus else ""
+    print(f"rubber volume fraction in the swollen gel φ = {est.phi:.4f}{kraus_note}"
           + (f"; soluble fraction {100 * est.soluble_fraction:.1f} %" if est.soluble_fraction is not None else ""))
     print(f"  {'assumption':10s} {'ν mol/m³':>9s} {'χ−0.05 … χ+0.05':>19s} {'ν 10⁻⁴mol/cm³':>14s} "
           f"{'μ_j mol/m³':>11s} {'M_c g/mol':>10s}")

@@ -9,30 +9,31 @@ Flory–Ciferri–Hoeve correction −βT/(λ³ − 1) gives the constant-volume
 
 from __future__ import annotations
 
+import argparse
 import json
 
 import numpy as np
 
 from ..constants import CAUTION, celsius
+from ..labfiles import read_force_temperature
 from ..materials import add_polymers_option, apply_polymers_option, get_polymer
-from ..testdata import read_force_temperature
 from ..thermo import DEPRECATED_KEYS, THERMOELASTIC_KEY, energetic_fraction, inversion_strain
+from ._options import add_json, add_polymer
 
 
-def add_parser(sub):
+def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser("thermo", help="energetic fraction of the force from a force–temperature record")
     p.add_argument("file", help="CSV/TXT/xlsx with 'temperature (°C)' and 'force (N)' columns, '# stretch: λ' line")
     p.add_argument("--stretch", type=float, default=None, help="clamped stretch λ (wins over the file)")
-    p.add_argument("--polymer", default=None,
-                   help="take the volume expansion coefficient β from this polymer's table row")
+    add_polymer(p, "take the volume expansion coefficient β from this polymer's table row", default=None)
     p.add_argument("--expansion", type=float, default=None,
                    help="volume expansion coefficient β in 1/K (wins over --polymer)")
     add_polymers_option(p)
-    p.add_argument("--json", action="store_true", help="print one JSON document")
+    add_json(p, "print one JSON document")
     p.set_defaults(run=run)
 
 
-def analyse(rec, expansion, polymer=None):
+def analyse(rec, expansion, polymer=None) -> dict:
     from ..materials import temperature_notices
 
     T, F = rec.temperature, rec.force
@@ -81,7 +82,7 @@ def analyse(rec, expansion, polymer=None):
 MAX_STRETCH = 100.0
 
 
-def run(args):
+def run(args: argparse.Namespace) -> int:
     apply_polymers_option(args)
     if args.stretch is not None and not (0.0 < args.stretch <= MAX_STRETCH):
         raise ValueError(f"--stretch {args.stretch:g} is not a clamped stretch a rubber can hold (0 < λ ≤ "

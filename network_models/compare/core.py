@@ -4,6 +4,7 @@ against the baseline from the specimens."""
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..constants import celsius
 from ..dose import ladder_fits
@@ -92,7 +93,7 @@ def _headline(res, tier: int, why: str, spread_models, fitter=None) -> Headline:
     else:
         value, n, ci = pooled, 0, None
     ph = 1.0 - 2.0 / c.f
-    unc = {
+    unc: dict[str, Any] = {
         "specimen_scatter": None if s is None or s.ci95 is None else list(s.ci95),
         "specimen_scatter_note": "scatter unknown (fewer than two specimens)" if s is None or s.n < 2 else
         f"95 % interval of the mean of {s.n} specimens (Student t, n − 1)",
@@ -176,7 +177,7 @@ def fit_basis(r: CompoundResult, residual: str | None) -> dict:
         f"the plateau modulus of {c.polymer} (polymer table, ∝ T; an upper bound)"
     h = r.headline
     tier = None if h is None else h.tier
-    ent = {0: "removed", 1: "counted as crosslinks (upper bound)"}.get(tier, "—")
+    ent = {0: "removed", 1: "counted as crosslinks (upper bound)"}.get(-1 if tier is None else tier, "—")
     n = r.n
     common = {"model": m.name, "residual": residual}
     mean = "specimen mean" if n >= 1 else "pooled fit (no specimen could be fitted alone)"

@@ -15,6 +15,7 @@ import numpy as np
 
 from ..compounds import Compound
 from ..constants import TRADE_MODULI, R, celsius, t_quantile
+from ..curves import TestCurve
 from ..deformation import Mode
 from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..errors import about
@@ -22,7 +23,6 @@ from ..fitting import FitError, fit_or_error
 from ..fitting.uncertainty import derived_se
 from ..models import get_model
 from ..network import get_polymer
-from ..testdata import TestCurve
 from .records import DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, ParamRow, Quantity
 from .specimens import BASIS_TIERS, basis_label, row_key, stress_at
 
@@ -72,9 +72,11 @@ def _param_rows(model, fr) -> list[ParamRow]:
         if ci is not None and all(v is not None and np.isfinite(v) for v in ci):
             lo, hi = float(ci[0]), float(ci[1])
         held = bool(est.fixed) or (stderr is None and lo is None)
-        rows.append(ParamRow(decl.name, decl.symbol, float(est.value), stderr, lo, hi, decl.unit,
-                             decl.display_unit or decl.unit, decl.display_scale, decl.meaning, held,
-                             None if held else bool(getattr(est, "determined", True) and lo is not None)))
+        rows.append(ParamRow(name=decl.name, symbol=decl.symbol, value=float(est.value), stderr=stderr, low=lo,
+                             high=hi, unit=decl.unit,
+                             display_unit=decl.display_unit or decl.unit, display_scale=decl.display_scale,
+                             meaning=decl.meaning, held=held,
+                             determined=None if held else bool(getattr(est, "determined", True) and lo is not None)))
     return rows
 
 

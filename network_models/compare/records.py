@@ -5,6 +5,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..compounds import Compound
 from ..constants import LAB_TEMPERATURE
@@ -53,7 +54,7 @@ class Quantity:
                 "note": self.note, "n": self.n, "interval": self.interval}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class ParamRow:
     name: str
     symbol: str
@@ -103,7 +104,7 @@ class Headline:
 class CompoundResult:
     compound: Compound
     model: str
-    fit: object | None = None
+    fit: Any = None  # a FitResult, or None when the pooled fit failed
     error: str | None = None
     params: list[ParamRow] = field(default_factory=list)
     quantities: dict[str, Quantity] = field(default_factory=dict)

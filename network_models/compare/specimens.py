@@ -29,15 +29,11 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..constants import TRADE_MODULI, t_quantile
+from ..crosslinks import BASIS_TIERS, basis_label, from_fit, row_key
 from ..deformation import Mode
 from ..fitting.many import specimen_groups
 from ..network import get_polymer, lock_from_N
 
-#: the headline bases, by tier: (gum row key, filled row key, label) of the crosslink table
-BASIS_TIERS = (
-    ("affine-no-entanglement", "affine-no-entanglement-no-filler", "affine network, entanglement part removed"),
-    ("affine", "affine-no-filler", "affine network, entanglements counted as crosslinks (upper bound)"),
-)
 #: quantities summarised over specimens, with label, SI unit, display unit and scale
 SPECIMEN_QUANTITIES = {
     "G0": ("small-strain shear modulus G₀", "Pa", "MPa", 1e-6),
@@ -49,17 +45,6 @@ SPECIMEN_QUANTITIES = {
     "M100_predicted": ("M100 predicted", "Pa", "MPa", 1e-6),
     "M300_predicted": ("M300 predicted", "Pa", "MPa", 1e-6),
 }
-
-
-def basis_label(tier: int, filled: bool, filler_fraction: float = 0.0) -> str:
-    label = BASIS_TIERS[tier][2]
-    if filled:
-        label += f", filler removed (Guth–Gold, φ = {filler_fraction:g})"
-    return label
-
-
-def row_key(tier: int, filled: bool) -> str:
-    return BASIS_TIERS[tier][1 if filled else 0]
 
 
 def main_mode(groups: dict[str, list]) -> Mode | None:
@@ -135,8 +120,6 @@ def _se_from_ci(ci, dof) -> float | None:
 def read_specimen(model, fr, compound, T: float, spec: SpecimenResult, propagate) -> None:
     """Fill ``spec.values``/``fit_se`` from its fit ``fr``: G₀, ν on both basis tiers, N, lock and the trade
     moduli (measured on its curves, predicted by its fit).  ``propagate(func, fr)`` gives a fit standard error."""
-    from ..crosslinks import from_fit
-
     values = fr.values
     spec.params = {k: float(v) for k, v in values.items()}
     V, S = spec.values, spec.fit_se
@@ -172,7 +155,7 @@ def finish_specimen(spec: SpecimenResult, tier: int, compound) -> None:
         poly = get_polymer(compound.polymer)
         spec.values["N"] = poly.density / nu / poly.kuhn_molar_mass
     if spec.values.get("lock") is None and spec.values.get("N"):
-        spec.values["lock"] = lock_from_N(max(spec.values["N"], 1.0 + 1e-6), Mode.UNIAXIAL)
+        spec.values["lock"] = lock_from_N(max(float(spec.values["N"] or 0.0), 1.0 + 1e-6), Mode.UNIAXIAL)
 
 
 def choose_tier(pooled_nu: dict[int, float | None], specimens: list[SpecimenResult]) -> tuple[int, str]:
@@ -202,7 +185,7 @@ def _serious(warnings) -> list[str]:
             and not any(h in str(w) for h in _HARMLESS)]
 
 
-def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> None:
+def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> tuple[int, str]:
     """Fit every specimen of ``res.compound`` alone, flag outliers, apply exclusions, choose the headline
     basis, summarise every specimen quantity (``res.stats``) and put the specimen means and intervals into
     the comparison table."""
@@ -217,7 +200,8 @@ def analyse_specimens(res, m, fitter, exclude: dict, fit_safely, propagate) -> N
     for name, cs in groups.items():
         spec = SpecimenResult(name, cs, counted=any(cv.mode is main for cv in cs))
         if not spec.counted:
-            spec.note = f"not counted: tested in {', '.join(spec.modes)}, the statistics use {main.value} specimens"
+            main_text = "no" if main is None else main.value
+            spec.note = f"not counted: tested in {', '.join(spec.modes)}, the statistics use {main_text} specimens"
         if name in exclude:
             spec.excluded = str(exclude.pop(name) or "excluded by the user")
         fr, err = fit_safely(m, cs, fitter, f"{c.name} specimen {name}")
@@ -266,7 +250,9 @@ def specimen_table(res, tier: int, why: str) -> None:
         if s.n >= 2:
             fit_se = [sp.fit_se.get(q) for sp in res.specimens if sp.used and sp.values.get(q) is not None]
             qt.value = s.mean
-            qt.low, qt.high = combined_interval(s, fit_se)
+            ci = combined_interval(s, fit_se)
+            assert ci is not None  # n ≥ 2: scatter known
+            qt.low, qt.high = ci
             qt.interval = SPECIMEN_INTERVAL
         elif qt.has_interval:
             sc = qt.display_scale

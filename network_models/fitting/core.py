@@ -7,9 +7,9 @@ from dataclasses import replace
 
 import numpy as np
 
+from ..curves import TestCurve
 from ..errors import FitError
 from ..models import get_model
-from ..testdata import TestCurve
 from .diagnostics import curve_cycle, curve_polymer, diagnose, undetermined_notices
 from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats
@@ -54,7 +54,7 @@ def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: di
             for name in result.free:
                 est = result.params[name]
                 if est.determined:
-                    ci, ok = profile_interval(m, curves, name, kw, result)
+                    ci, ok = profile_interval(m, curves, name, kw, result, refit=fit)
                     result.params[name] = replace(est, ci95=ci, determined=ok)
         result.warnings.extend(undetermined_notices(result))
     return result
@@ -77,8 +77,9 @@ def _result(pr, pj, params, corr, cov, rss, Pm, message, solver) -> FitResult:
         dev = Pd - float(Pd.sum()) / k_m
         sst = float(np.dot(dev, dev))
         ssr = float(np.dot(e, e))
-        mode_stats[mode] = ModeStats(mode, k_m, math.sqrt(ssr / k_m), (1.0 - ssr / sst) if sst > 0 else None,
-                                     data.ranges[mode])
+        mode_stats[mode] = ModeStats(mode=mode, n=k_m, rms=math.sqrt(ssr / k_m),
+                                     r2=(1.0 - ssr / sst) if sst > 0 else None,
+                                     tested_range=data.ranges[mode])
     rss_out = rss * (pr.G0 * pr.G0 if pr.residual == "absolute" else 1.0)  # Pa² for absolute residuals
     if rss_out > 0:
         aic = n * math.log(rss_out / n) + 2 * k

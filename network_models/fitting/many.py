@@ -9,9 +9,9 @@ from pathlib import Path
 
 import numpy as np
 
+from ..curves import TestCurve
 from ..errors import FitError, Notice
 from ..models import get_model
-from ..testdata import TestCurve
 from .core import fit
 from .result import FitResult
 
@@ -41,7 +41,7 @@ def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str
     and a notice (kind ``curves-left-out``) says which curves it left out.  ``kw`` go to :func:`fit`."""
     if isinstance(curves, TestCurve):
         curves = [curves]
-    out = {}
+    out: dict[str, FitResult | FitError] = {}
     for name in [models] if isinstance(models, str) else models:
         mm = get_model(name) if isinstance(name, str) else name
         use = [c for c in curves if mm.supports(c.mode)] if skip_unsupported else list(curves)

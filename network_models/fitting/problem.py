@@ -5,13 +5,15 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 from scipy.optimize import brentq
 
+from ..curves import TestCurve
 from ..deformation import MODES
 from ..errors import FitError, Notice
-from ..testdata import TestCurve
+from .plausibility import unit_plausibility
 
 #: the one residual weighting default of netstretch (fit, compare, report, batch, app, study): relative
 #: residuals weight every point by its own stress, so the small-strain points that fix the modulus G₀ count
@@ -273,11 +275,11 @@ class Coord:
         return self.v_of_z(self.z_of_x(x))
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Problem:
     """Everything the solver and the uncertainty step need, set up once per fit."""
 
-    model: object
+    model: Any
     curves: list
     data: Data
     residual: str
@@ -288,8 +290,8 @@ class Problem:
     lb: dict
     ub: dict
     locks: dict  # name -> (threshold, valid side)
-    weight: np.ndarray = None
-    wd: np.ndarray = None
+    weight: np.ndarray | None = None
+    wd: np.ndarray | None = None
     notices: list = field(default_factory=list)
 
     @property
@@ -319,17 +321,15 @@ def set_up(m, curves, *, residual, free, fixed, start) -> Problem:
         raise FitError("every parameter is fixed: free at least one to fit", kind="bad-option")
     G0 = modulus_from_data(data, curves)
     if G0 > 1e9:  # past every model's modulus domain: say which unit mix-up would explain it (issue #20)
-        from .diagnostics import unit_plausibility
-
-        why = "; ".join(str(n) for n in unit_plausibility(curves, G0))
+        why = "; ".join(str(n) for n in unit_plausibility(curves, G0, estimate_modulus))
         raise FitError(f"the curves' small-strain modulus is {G0 / 1e6:.4g} MPa, far beyond any rubber: {why}",
                        kind="bad-input")
     try:
         p0 = m.resolve({**m.params.defaults(), **m.guess(G0), **start, **fixed})
     except ValueError as exc:
         raise FitError(f"start values rejected: {exc}", kind="bad-option") from None
-    pr = Problem(m, curves, data, residual, free_names, start, G0, p0,
-                 {q.name: q.bounds[0] for q in m.params}, {q.name: q.bounds[1] for q in m.params}, {})
+    pr = Problem(model=m, curves=curves, data=data, residual=residual, free_names=free_names, start=start, G0=G0, p0=p0,
+                 lb={q.name: q.bounds[0] for q in m.params}, ub={q.name: q.bounds[1] for q in m.params}, locks={})
     _lock_bounds(pr)
     _drop_points_past_lock(pr)
     n, k = pr.n, pr.k

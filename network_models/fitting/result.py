@@ -33,7 +33,7 @@ def _has_null(d) -> bool:
     return d is None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class ParamEstimate:
     """One fitted (or fixed) parameter in SI units."""
 
@@ -66,7 +66,7 @@ class ParamEstimate:
                 "determined": determined, "fixed": self.fixed}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class ModeStats:
     mode: Mode
     n: int
@@ -79,7 +79,7 @@ class ModeStats:
                 "tested_range": [float(self.tested_range[0]), float(self.tested_range[1])]}
 
 
-@dataclass
+@dataclass(kw_only=True)
 class FitResult:
     model: str
     title: str

@@ -48,6 +48,7 @@ class Projected:
         self.L_hi = np.array([pr.ub[nm] for nm in self.L])
         self.fixed_moduli = [nm for nm in lin.moduli if nm not in self.L] if lin.linear else []
         self.base = dict(pr.p0)
+        assert pr.wd is not None  # set_up weighs the data
         self.big = 1e3 * max(1.0, float(np.max(np.abs(pr.wd))))
         self.nfev = 0
         self.space = "z"
@@ -274,6 +275,8 @@ class _Axis:
 
     def __init__(self, c: Coord, lock, lb, ub):
         self.c = c
+        self.thr: float | None
+        self.sign: float
         self.thr, self.sign = (None, 0.0) if lock is None else (lock[0], 1.0 if lock[1] == "above" else -1.0)
         if self.thr is None:
             self.lo, self.hi = c.zlo, c.zhi

@@ -161,17 +161,20 @@ def estimates(pj, values, se_z, z) -> dict[str, ParamEstimate]:
         v = float(values[q.name])
         kw = dict(symbol=q.symbol, display_unit=q.display_unit, display_scale=q.display_scale, meaning=q.meaning)
         if q.name not in names:
-            out[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, True, **kw)
+            out[q.name] = ParamEstimate(name=q.name, value=v, stderr=None, ci95=(None, None), unit=q.unit, fixed=True,
+                                        **kw)
             continue
         i = names.index(q.name)
         sz = float(se_z[i])
         if not math.isfinite(sz):
-            out[q.name] = ParamEstimate(q.name, v, None, (None, None), q.unit, False, **kw)
+            out[q.name] = ParamEstimate(name=q.name, value=v, stderr=None, ci95=(None, None), unit=q.unit,
+                                        fixed=False, **kw)
             continue
         c = pj.co[i]
         se_v = float(sz * abs(c.dv_dz(v)))
         ci, ok = domain_interval(v, se_v, tq, q.bounds)
-        out[q.name] = ParamEstimate(q.name, v, se_v, ci, q.unit, False, determined=ok, **kw)
+        out[q.name] = ParamEstimate(name=q.name, value=v, stderr=se_v, ci95=ci, unit=q.unit, fixed=False,
+                                    determined=ok, **kw)
     return out
 
 
@@ -180,16 +183,15 @@ def undetermined(est: ParamEstimate) -> ParamEstimate:
     return replace(est, ci95=(None, None), determined=False)
 
 
-def profile_interval(model, curves, name, fit_kw, base, *, level: float = 0.95):
+def profile_interval(model, curves, name, fit_kw, base, *, refit, level: float = 0.95):
     """Profile-likelihood interval of one free parameter: the set of values v at which the best fit with
     ``name`` held at v has RSS(v) ≤ RSŜ·(1 + t²/(n − k)) (the likelihood-ratio form of the Student-t
     interval; Bates & Watts 1988, *Nonlinear Regression Analysis*, §6.1 [from memory]).  Searched on the
     transformed parameter t(v) of :func:`domain_interval` outwards from the optimum, so every end lies inside
     the domain; an end not found before the domain edge (or 60 steps) means the data do not bound it.
-    Returns ``(ci, determined)``; about 20–60 refits per parameter (an option, not the default)."""
+    Returns ``(ci, determined)``; about 20–60 refits per parameter (an option, not the default).  ``refit``
+    is :func:`network_models.fitting.core.fit` (passed in: ``core`` imports this module)."""
     from scipy.optimize import brentq
-
-    from .core import fit
 
     est = base.params[name]
     q = model.params[name]
@@ -204,7 +206,7 @@ def profile_interval(model, curves, name, fit_kw, base, *, level: float = 0.95):
     def excess(t):
         kw = dict(fit_kw, fixed={**fixed, name: _from_t(t, lo, hi)}, intervals="transformed")
         try:
-            r = fit(model, curves, **kw)
+            r = refit(model, curves, **kw)
         except ValueError:
             return math.inf
         return r.rss - limit

@@ -9,6 +9,7 @@ other options win over it).
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -26,12 +27,31 @@ OPTIONS = ("mode", "gauge_length", "width", "thickness", "area", "diameter", "te
            "units", "decimal", "skip", "profile")
 
 
+#: environment variable the test suite sets (tests/conftest.py): ``guarded`` then re-raises a programming error
+#: instead of turning it into a DataError, so the fuzz tests see a crash as a failure
+STRICT_ENV = "NETSTRETCH_STRICT_READERS"
+#: exception types that mean a bug in the reader, not a bad file: re-raised under :data:`STRICT_ENV`
+#: (a malformed file surfaces as DataError, ValueError, OSError, UnicodeError or a parser library's own error)
+PROGRAMMING_ERRORS = (IndexError, KeyError, AttributeError, TypeError, NameError, AssertionError,
+                      ZeroDivisionError, RecursionError)
+
+
+def strict() -> bool:
+    """True when readers must not hide programming errors (``NETSTRETCH_STRICT_READERS=1``: the tests)."""
+    return os.environ.get(STRICT_ENV) == "1"
+
+
 def guarded(fn_name: str, func, *args):
+    """``func(*args)``; any exception but a :class:`DataError` becomes a DataError naming the file (a user never
+    sees a traceback for a bad file) — except a programming error (:data:`PROGRAMMING_ERRORS`) under the tests
+    (:func:`strict`), which is re-raised so a crash in a reader fails the fuzz tests."""
     try:
         return func(*args)
     except DataError:
         raise
     except Exception as e:  # last line of defence: never a traceback for a bad file
+        if isinstance(e, PROGRAMMING_ERRORS) and strict():
+            raise
         raise DataError(f"{fn_name}: could not be read as a lab table ({type(e).__name__}); check that it is a CSV, "
                         "TXT or workbook table with a header row of column names and units", file=fn_name) from None
 

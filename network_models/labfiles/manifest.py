@@ -6,7 +6,7 @@ read until asked).  :func:`network_models.compounds.load_manifest` builds loaded
 from __future__ import annotations
 
 import tomllib
-from collections.abc import Iterable
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -25,7 +25,7 @@ class CurveFile:
     note: str = ""
 
 
-@dataclass
+@dataclass(kw_only=True)
 class ManifestEntry:
     """One compound's entry in a manifest: its curve files and what the recipe says (not yet read)."""
 
@@ -81,7 +81,7 @@ class ManifestIndex:
                 return c
         raise KeyError(f"no compound {key!r} in {self.path.name}; it lists {', '.join(c.key for c in self.compounds)}")
 
-    def __iter__(self) -> Iterable[ManifestEntry]:
+    def __iter__(self) -> Iterator[ManifestEntry]:
         return iter(self.compounds)
 
     def swelling_results(self) -> list[SwellingResult]:
@@ -134,9 +134,11 @@ def manifest_index(raw: dict, p: Path) -> ManifestIndex:
                 raise DataError(f"{p.name}: compound {c['key']!r}: {e}") from None
             files.append(CurveFile(base / f["path"], mode, str(f.get("note", ""))))
         info = {k: v for k, v in c.items() if k not in ("key", "title", "polymer", "files")}
-        compounds.append(ManifestEntry(str(c["key"]), str(c.get("title", c["key"])),
-                                       str(c.get("polymer", scen.get("polymer", "NR"))), files, info,
-                                       list(raw.get("ingredient", [])) if isinstance(raw.get("ingredient"), list)
+        compounds.append(ManifestEntry(key=str(c["key"]), title=str(c.get("title", c["key"])),
+                                       polymer=str(c.get("polymer", scen.get("polymer", "NR"))), curve_files=files,
+                                       info=info,
+                                       ingredient_rows=list(raw.get("ingredient",
+                                                                    [])) if isinstance(raw.get("ingredient"), list)
                                        else []))
     keys = [c.key for c in compounds]
     if len(set(keys)) != len(keys):

@@ -27,7 +27,9 @@ def parse_meta(table: Table, lenient: frozenset[int] = frozenset()) -> tuple[dic
 
     Our own '# key: value' lines must be right (a DataError names the line); lines in ``lenient`` (a
     tester's preamble above the header) that cannot be read are kept as text and noted instead."""
-    known, extra, comments = {}, {}, []
+    known: dict = {}
+    extra: dict = {}
+    comments: list = []
     for lineno, text in table.meta:
         try:
             _meta_line(table.filename, lineno, text, known, extra, comments)

@@ -11,6 +11,7 @@ import numpy as np
 
 from ..constants import ZERO_CELSIUS
 from ..curves import TestCurve
+from ..deformation import Mode
 from ..errors import DataError, Notice
 from ..ultimate import break_properties, find_rupture, rupture_notice
 from ..units import UnitError, unit_converter
@@ -25,7 +26,7 @@ from .tables import Table, cell_text
 X_KINDS, Y_KINDS = vocab.X_KINDS, vocab.Y_KINDS
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Header:
     """The header row, the optional unit row below it and the classified columns."""
 
@@ -57,7 +58,7 @@ def read_header(table: Table, opts: dict, *, strict: bool = True) -> Header:
     names += [""] * (ncols - len(names))
     cols = [classify(i, h, unit_row[i] if unit_row and i < len(unit_row) else None,
                      kinds=opts.get("columns"), units=opts.get("units")) for i, h in enumerate(names)]
-    return Header(names, start, unit_row, cols)
+    return Header(names=names, start=start, unit_row=unit_row, columns=cols)
 
 
 def pair_columns(cols: list[Column]) -> list[tuple[list[Column], list[Column]]]:
@@ -213,8 +214,9 @@ def curves_from_table(table: Table, source: str, opts: dict) -> list[TestCurve]:
         notices0.append(Notice("geometry given by the user (options or profile), not read from the file: "
                                + ", ".join(k.replace("_", " ") for k in given), "assumed-geometry", fn))
     stem, multi = Path(fn).stem, len(pieces) > 1
-    common = dict(fn=fn, source=source, values=values, numbers=data_numbers, gauge=gauge, area=area, mode=mode,
-                  loading=loading, temperature=temperature, known=known, extra=extra, comments=comments, opts=opts)
+    table_read = TableRead(fn=fn, source=source, values=values, numbers=data_numbers, gauge=gauge, area=area,
+                           mode=mode, loading=loading, temperature=temperature, known=known, extra=extra,
+                           comments=comments, opts=opts)
     curves = []
     for k, (x, y, idx, label, gnotes) in enumerate(pieces, start=1):
         specimen = label if label is not None else known.get("specimen")
@@ -224,7 +226,7 @@ def curves_from_table(table: Table, source: str, opts: dict) -> list[TestCurve]:
         if ignored and k == 1:
             notices.append(Notice("columns not used: " + ", ".join(repr(h) for h in ignored), "unused", fn))
         try:
-            curves.append(_one_curve(x, y, idx, specimen, notices, stem, **common))
+            curves.append(_one_curve(x, y, idx, specimen, notices, stem, table_read))
         except DataError as e:
             if multi and specimen:
                 raise DataError(f"{e} (specimen {specimen})", file=fn, line=e.line, column=e.column) from None
@@ -232,8 +234,29 @@ def curves_from_table(table: Table, source: str, opts: dict) -> list[TestCurve]:
     return curves
 
 
-def _one_curve(x, y, idx, specimen, notices, stem, *, fn, source, values, numbers, gauge, area, mode, loading,
-               temperature, known, extra, comments, opts) -> TestCurve:
+@dataclass(frozen=True, kw_only=True)
+class TableRead:
+    """What :func:`curves_from_table` learnt about one table, shared by every curve (specimen) cut from it."""
+
+    fn: str  # the file name, for messages
+    source: str
+    values: np.ndarray  # the data rows as floats (NaN where a cell is not a number)
+    numbers: list  # the file's line/row number of each data row
+    gauge: float | None  # gauge length, m
+    area: float | None  # cross-section, m²
+    mode: Mode
+    loading: str  # "tension" | "compression"
+    temperature: float | None  # K
+    known: dict  # metadata read from the file's preamble
+    extra: dict
+    comments: list
+    opts: dict  # the reader options given
+
+
+def _one_curve(x, y, idx, specimen, notices, stem, t: TableRead) -> TestCurve:
+    fn, values, numbers, gauge, area, known, opts = t.fn, t.values, t.numbers, t.gauge, t.area, t.known, t.opts
+    mode, loading, temperature, extra, comments = t.mode, t.loading, t.temperature, t.extra, t.comments
+    source = t.source
     compression = loading == "compression"
     lam, stress, kept = convert(fn, x, y, values, idx, numbers, gauge, area, notices, compression)
     ruptured = None if compression else find_rupture(lam, stress)  # break properties (network_models.ultimate)

@@ -43,7 +43,8 @@ class _Words:
     """One list of words (all languages) compiled to one regex."""
 
     def __init__(self, by_language: dict, anywhere: set[str]):
-        start, free = [], []
+        start: list = []
+        free: list = []
         for lang, words in by_language.items():
             for w in words:
                 (free if lang in anywhere else start).append(fold(w))

@@ -17,13 +17,8 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..study import DEFAULT_MODEL, Study  # the comparison's default model, used when a study names none
 from .db import LibraryError
-
-#: the comparison's default model (``netstretch compare``), used when a study names none
-try:
-    from ..commands.report import DEFAULT_MODEL
-except ImportError:  # pragma: no cover
-    DEFAULT_MODEL = "extended-tube"
 
 _DATE = re.compile(r"^\s*(\d{4})-(\d{2})-(\d{2})\s*$")
 
@@ -53,7 +48,7 @@ class StudyInput:
     baseline: str | None = None
     exclusions: dict = field(default_factory=dict)
     #: the study object (network_models.study.Study) the results come from; None for a batch output
-    study: object = None
+    study: Study | None = None
 
     def content_hash(self) -> str:
         """SHA-256 over the inputs (name, bytes' hash, compound, options), the settings, the model and the compound

@@ -142,7 +142,7 @@ def _alembic_config(connection=None):
 def head_revision() -> str:
     from alembic.script import ScriptDirectory
 
-    return ScriptDirectory.from_config(_alembic_config()).get_current_head()
+    return str(ScriptDirectory.from_config(_alembic_config()).get_current_head())
 
 
 @functools.lru_cache(maxsize=1)

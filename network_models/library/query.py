@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import html
 import math
+from typing import Any
 
 from . import schema as S
 from .adapter import DEFAULT_MODEL
@@ -78,7 +79,7 @@ def find(targets, db=None, *, polymer: str | None = None, model: str | None = No
     None: each study's own model."""
     from sqlalchemy import and_, or_, select
 
-    from ..design_targets import parse_targets
+    from ..design.targets import parse_targets
     from ..models import get_model
 
     tl = parse_targets(targets)
@@ -198,20 +199,20 @@ def trend(quantity: str = "strand_density", db=None, *, compound_prefix: str = "
              .where(c.c.id.in_(select(r.c.compound_id).where(r.c.quantity == quantity, r.c.model == mname))))
         if compound_prefix:
             q = q.where(c.c.name.startswith(compound_prefix, autoescape=True))
-        latest: dict[str, object] = {}
+        latest: dict[str, Any] = {}
         for row in conn.execute(q):
             old = latest.get(row.name)
             if old is None or (row.imported_at, row.study) > (old.imported_at, old.study):
                 latest[row.name] = row
         ids = {row.id for row in latest.values()}
         # ... and its value on the one basis asked for (an older import is never used in its place)
-        q = (select(c.c.id, c.c.name, c.c.tested, c.c.date_source, st.c.id.label("study"), r.c.value, r.c.ci_low,
-                    r.c.ci_high, r.c.n, r.c.basis_label)
-             .select_from(r.join(c, c.c.id == r.c.compound_id).join(st, st.c.id == c.c.study_id))
-             .where(r.c.quantity == quantity, r.c.basis == basis, r.c.model == mname))
+        q2 = (select(c.c.id, c.c.name, c.c.tested, c.c.date_source, st.c.id.label("study"), r.c.value, r.c.ci_low,
+                     r.c.ci_high, r.c.n, r.c.basis_label)
+              .select_from(r.join(c, c.c.id == r.c.compound_id).join(st, st.c.id == c.c.study_id))
+              .where(r.c.quantity == quantity, r.c.basis == basis, r.c.model == mname))
         if compound_prefix:
-            q = q.where(c.c.name.startswith(compound_prefix, autoescape=True))
-        found = {row.name: row for row in conn.execute(q) if row.id in ids}
+            q2 = q2.where(c.c.name.startswith(compound_prefix, autoescape=True))
+        found = {row.name: row for row in conn.execute(q2) if row.id in ids}
     missing = sorted(set(latest) - set(found))
     if missing:
         notes.append(f"left out (their latest import has no value on this basis; no other basis or import is "

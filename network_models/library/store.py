@@ -220,7 +220,8 @@ def _write(conn, st: StudyInput, h: str, comps: list[dict], saved_by, now) -> in
             conn.execute(insert(S.results), [dict(x, compound_id=cid) for x in c["results"]])
     if st.kind == "batch":
         rid = conn.execute(insert(S.batch_runs).values(study_id=sid, model=st.model, source=st.source,
-                                                       rows=len(st.rows)).returning(S.batch_runs.c.id)).scalar_one()
+                                                       rows=len(st.rows)).returning(  # type: ignore[attr-defined]
+                                                       S.batch_runs.c.id)).scalar_one()
         known = {"file", "curve", "specimen", "compound", "mode", "model", "points", "G0", "nu", "nu_basis", "rms",
                  "r2", "warnings", "error", "index"}
         conn.execute(insert(S.batch_rows), [{
@@ -229,7 +230,7 @@ def _write(conn, st: StudyInput, h: str, comps: list[dict], saved_by, now) -> in
             "mode": str(r.get("mode") or ""), "G0": _num(r.get("G0")), "nu": _num(r.get("nu")),
             "nu_basis": str(r.get("nu_basis") or ""), "rms": _num(r.get("rms")), "r2": _num(r.get("r2")),
             "warnings": str(r.get("warnings") or ""), "error": str(r.get("error") or ""),
-            "params": _json({k: _num(v) for k, v in r.items() if k not in known})} for r in st.rows])
+            "params": _json({k: _num(v) for k, v in r.items() if k not in known})} for r in st.rows])  # type: ignore[attr-defined]
     return sid
 
 

@@ -7,7 +7,7 @@ import numpy as np
 from ..langevin import LINV_SERIES, inverse_langevin
 
 
-def log_x_over_sinh(b):
+def log_x_over_sinh(b) -> np.ndarray:
     """ln(β / sinh β) for β >= 0, without overflow or cancellation."""
     b = np.abs(np.asarray(b, dtype=np.float64))
     with np.errstate(all="ignore"):
@@ -28,7 +28,7 @@ CHAIN_ENERGY_SERIES = tuple(a / (2 * k + 2) for k, a in enumerate(_LINV10))
 CHAIN_SERIES_MAX_T = 0.05
 
 
-def chain_energy_difference(d, t0):
+def chain_energy_difference(d, t0) -> np.ndarray:
     """g(√t) − g(√t0) with t = t0 + d, as Σ_k c_k (t^(k+1) − t0^(k+1)) with every difference written as
     d·Σ_j t^j t0^(k−j): no cancellation between two nearly equal energies (large N, small strain).
     Accurate for t, t0 ≤ :data:`CHAIN_SERIES_MAX_T`."""
@@ -44,7 +44,7 @@ def chain_energy_difference(d, t0):
     return d * total
 
 
-def chain_energy(r, r0):
+def chain_energy(r, r0) -> np.ndarray:
     """N-free chain energy difference g(r) − g(r0), exact form (ln(β/sinh β) without overflow)."""
     def g(x):
         beta = inverse_langevin(x)

@@ -9,7 +9,9 @@ exception, never a warning).
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from scipy.optimize import brentq
@@ -37,7 +39,7 @@ class ModulusSplit:
     basis: str = ""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class ChainReading:
     """One way a model's fitted parameters read as network numbers beyond G₀ (asked by the crosslink
     table, which turns it into a row with intervals from the fit).
@@ -55,7 +57,7 @@ class ChainReading:
     factor: float = 1.0
     f: float | None = None
     N_param: str | None = None
-    N_map: object = None  # callable float -> float, None = identity
+    N_map: Callable[[float], float] | None = None  # None = identity
     note: str = ""
 
     def N_of(self, value: float) -> float:
@@ -171,7 +173,7 @@ class Model:
     def _W_lam(self, l1, l2, l3, p):
         return np.zeros_like(l1)
 
-    def _margin(self, l1, l2, l3, I1, p):
+    def _margin(self, l1, l2, l3, I1, p) -> Any:
         """Positive inside the model's domain, <= 0 past its finite-extensibility limit; None = no limit."""
         return None
 
@@ -236,7 +238,7 @@ class Model:
             valid &= m > 0
         return valid
 
-    def nominal_stress(self, mode, lam, params: dict | None = None, **kw):
+    def nominal_stress(self, mode, lam, params: dict | None = None, **kw) -> np.ndarray:
         """Nominal (engineering) stress along the loaded direction, Pa; NaN past the locking limit."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
@@ -258,11 +260,11 @@ class Model:
             out = out / l1
         return np.where(valid, out, np.nan)
 
-    def true_stress(self, mode, lam, params=None, **kw):
+    def true_stress(self, mode, lam, params=None, **kw) -> np.ndarray:
         """Cauchy stress along the loaded direction (λ × nominal, incompressible)."""
         return np.asarray(lam, dtype=np.float64) * self.nominal_stress(mode, lam, params, **kw)
 
-    def reduced_stress(self, lam, params=None, **kw):
+    def reduced_stress(self, lam, params=None, **kw) -> np.ndarray:
         """Mooney reduced stress σ* = P/(λ − λ⁻²) in uniaxial tension/compression, Pa.  At λ = 1 (0/0) it
         returns its limit, the small-strain shear modulus G₀ (P ≈ 3G₀(λ − 1) and λ − λ⁻² ≈ 3(λ − 1))."""
         lam = np.asarray(lam, dtype=np.float64)
@@ -274,7 +276,7 @@ class Model:
             out = np.where(at_one, G0, out)
         return out
 
-    def energy(self, mode, lam, params: dict | None = None, **kw):
+    def energy(self, mode, lam, params: dict | None = None, **kw) -> np.ndarray:
         """Strain energy per unit reference volume, J/m³ (zero in the undeformed state); NaN past lock."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
@@ -321,7 +323,8 @@ class Model:
             m = self._margin(l1, l2, l3, I1, p)
             return float(m[0])
 
-        if self._margin(*self._state(mode, np.array([1.0]))[:4], p) is None:
+        l1, l2, l3, I1, _ = self._state(mode, np.array([1.0]))
+        if self._margin(l1, l2, l3, I1, p) is None:
             return 0.0, float("inf")
         hi = float("inf")
         x = 2.0

@@ -42,8 +42,9 @@ def _three_chain_modulus_per_mu(N: float) -> float:
 
 
 def _chain_reading(model):
-    return [ChainReading("model-chain-modulus", f"{model.title}: chain modulus μ = νRT",
-                         "μ = nkT = νRT (affine chain density); N as fitted", "mu", 1.0, N_param="N",
+    return [ChainReading(key="model-chain-modulus", label=f"{model.title}: chain modulus μ = νRT",
+                         assumes="μ = nkT = νRT (affine chain density); N as fitted", modulus_param="mu", factor=1.0,
+                         N_param="N",
                          note="N here is the fitted Kuhn number (filler-amplified when the compound is filled)")]
 
 
@@ -80,7 +81,7 @@ class EightChain(Model):
     def _lock_I1(self, p):
         return 3.0 * p["N"]
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return p["mu"] * _eight_chain_modulus_per_mu(p["N"])
 
@@ -89,10 +90,10 @@ class EightChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _eight_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values):
+    def network_reading(self, values) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}
 
 
@@ -125,7 +126,7 @@ class ThreeChain(Model):
     def _lock_stretch(self, p):
         return float(np.sqrt(p["N"]))
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return p["mu"] * _three_chain_modulus_per_mu(p["N"])
 
@@ -133,8 +134,8 @@ class ThreeChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _three_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values):
+    def network_reading(self, values) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}

@@ -26,13 +26,13 @@ class NeoHookean(Model):
     def _W_inv(self, I1, I2, p):
         return 0.5 * p["G"] * (I1 - 3.0)
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):
         return {"G": Gx + Ge}
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"G": modulus}
 
 
@@ -59,7 +59,7 @@ class Phantom(NeoHookean):
     assumption = ("junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j); from a network, "
                   "entanglements add G_e to G")
 
-    def network_crosslink_modulus(self, network):
+    def network_crosslink_modulus(self, network) -> float:
         return network.phantom_modulus
 
 
@@ -69,10 +69,12 @@ class MooneyRivlin(Model):
     title = "Mooney–Rivlin"
     family = "phenomenological"
     params = ParamSet((
-        Param("C1", "C₁", "Pa", (0.0, 1e9), (0.02e6, 1.5e6), 0.18e6, "Mooney–Rivlin C₁ (2C₁: Mooney intercept)",
-              "Mooney 1940, J. Appl. Phys. 11:582", "MPa", 1e-6),
-        Param("C2", "C₂", "Pa", (-1e9, 1e9), (0.0, 0.5e6), 0.05e6, "Mooney–Rivlin C₂ (2C₂: Mooney slope)",
-              "Rivlin 1948, Phil. Trans. R. Soc. A241:379", "MPa", 1e-6),
+        Param(name="C1", symbol="C₁", unit="Pa", bounds=(0.0, 1e9), typical=(0.02e6, 1.5e6), default=0.18e6,
+              meaning="Mooney–Rivlin C₁ (2C₁: Mooney intercept)",
+              source="Mooney 1940, J. Appl. Phys. 11:582", display_unit="MPa", display_scale=1e-6),
+        Param(name="C2", symbol="C₂", unit="Pa", bounds=(-1e9, 1e9), typical=(0.0, 0.5e6), default=0.05e6,
+              meaning="Mooney–Rivlin C₂ (2C₂: Mooney slope)",
+              source="Rivlin 1948, Phil. Trans. R. Soc. A241:379", display_unit="MPa", display_scale=1e-6),
     ))
     equation = "W = C₁(I₁ − 3) + C₂(I₂ − 3);  σ* = 2C₁ + 2C₂/λ"
     references = ("Mooney 1940, J. Appl. Phys. 11:582", "Rivlin 1948, Phil. Trans. R. Soc. A241:379")
@@ -84,7 +86,7 @@ class MooneyRivlin(Model):
     def _W_inv(self, I1, I2, p):
         return p["C1"] * (I1 - 3.0) + p["C2"] * (I2 - 3.0)
 
-    def modulus_split(self, values):
+    def modulus_split(self, values) -> ModulusSplit:
         G0 = float(self.small_strain_modulus(**values))
         if values["C2"] < 0:
             return ModulusSplit(total=G0, separable=False,
@@ -93,21 +95,21 @@ class MooneyRivlin(Model):
                             separable=True, basis="2C₁ read as crosslink part, 2C₂ as entanglement part "
                             "(the trade's reading of the Mooney plot)")
 
-    def stability_notes(self, values):
+    def stability_notes(self, values) -> list:
         if values.get("C2", 0.0) < 0:
             return [Notice("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains "
                            "and its equibiaxial prediction can fall with stretch; do not use it outside the "
                            "tested range", "unstable", self.name)]
         return []
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return 2.0 * (p["C1"] + p["C2"])
 
     def _from_moduli(self, Gx, Ge, network):
         return {"C1": Gx / 2.0, "C2": Ge / 2.0}
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"C1": 0.4 * modulus, "C2": 0.1 * modulus}
 
 
@@ -119,9 +121,9 @@ class ConstrainedJunction(Model):
     has_stretch_part = True
     params = ParamSet((
         shear_modulus_param("G_ph", "G_ph", "phantom part ξRT", 0.2e6),
-        Param("kappa", "κ", "1", (0.0, 1e4), (0.5, 20.0), 5.0,
-              "constraint strength on junction fluctuations (κ→0 phantom, κ→∞ affine)",
-              "Flory & Erman 1982, Macromolecules 15:800 [paper, as printed in Arruda & Boyce 1993 appendix]"),
+        Param(name="kappa", symbol="κ", unit="1", bounds=(0.0, 1e4), typical=(0.5, 20.0), default=5.0,
+              meaning="constraint strength on junction fluctuations (κ→0 phantom, κ→∞ affine)",
+              source="Flory & Erman 1982, Macromolecules 15:800 [paper, as printed in Arruda & Boyce 1993 appendix]"),
         FUNCTIONALITY,
     ))
     equation = ("W = ½ξRT(I₁ − 3) + ½μ_jRT Σ[Bᵢ + Dᵢ − ln(1 + Bᵢ) − ln(1 + Dᵢ)],  "
@@ -170,11 +172,11 @@ class ConstrainedJunction(Model):
         # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴ with μ_j = 2ξ/(f − 2)  [derived from the strain energy above]
         return 1.0 + 2.0 / (f - 2.0) * kappa * kappa * (kappa * kappa + 1.0) / (1.0 + kappa) ** 4
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return p["G_ph"] * self._modulus_per_G_ph(p["kappa"], p["f"])
 
-    def network_crosslink_modulus(self, network):
+    def network_crosslink_modulus(self, network) -> float:
         # the phantom part (1 − 2/f)νRT·X with the default constraint strength κ on top
         return network.phantom_modulus * self._modulus_per_G_ph(self.params["kappa"].default, network.f)
 
@@ -182,10 +184,11 @@ class ConstrainedJunction(Model):
         k = self.params["kappa"].default
         return {"G_ph": (Gx + Ge) / self._modulus_per_G_ph(k, network.f), "kappa": k, "f": network.f}
 
-    def network_reading(self, values):
+    def network_reading(self, values) -> list:
         f = float(values["f"])
-        return [ChainReading("model-phantom-part", f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
-                             f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", "G_ph", 1.0 - 2.0 / f, f=f)]
+        return [ChainReading(key="model-phantom-part", label=f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
+                             assumes=f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", modulus_param="G_ph",
+                             factor=1.0 - 2.0 / f, f=f)]
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"G_ph": 0.6 * modulus, "kappa": 5.0}

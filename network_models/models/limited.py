@@ -15,8 +15,8 @@ class Gent(Model):
     family = "phenomenological"
     params = ParamSet((
         shear_modulus_param(),
-        Param("Jm", "J_m", "1", (1e-6, 1e6), (10.0, 500.0), 80.0,
-              "limiting value of I₁ − 3 (locks there)", "Gent 1996, Rubber Chem. Technol. 69:59",
+        Param(name="Jm", symbol="J_m", unit="1", bounds=(1e-6, 1e6), typical=(10.0, 500.0), default=80.0,
+              meaning="limiting value of I₁ − 3 (locks there)", source="Gent 1996, Rubber Chem. Technol. 69:59",
               log_scale=True),
     ))
     equation = "W = −(G J_m/2) ln(1 − (I₁ − 3)/J_m)"
@@ -35,18 +35,19 @@ class Gent(Model):
     def _lock_I1(self, p):
         return p["Jm"] + 3.0
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):
         # J_m matched to the eight-chain lock I₁ = 3N of the (filler-amplified) network
         return {"G": Gx + Ge, "Jm": 3.0 * (network.N_effective - 1.0)}
 
-    def network_reading(self, values):
-        return [ChainReading("model-chain-equivalent", f"{self.title}: G = νRT, N from J_m",
-                             "G = νRT (affine, entanglements counted); N = J_m/3 + 1 locks where the eight-chain "
-                             "model with that N does", "G", 1.0, N_param="Jm", N_map=lambda J: J / 3.0 + 1.0,
+    def network_reading(self, values) -> list:
+        return [ChainReading(key="model-chain-equivalent", label=f"{self.title}: G = νRT, N from J_m",
+                             assumes="G = νRT (affine, entanglements counted); N = J_m/3 + 1 locks where the "
+                                     "eight-chain model with that N does", modulus_param="G", factor=1.0, N_param="Jm",
+                             N_map=lambda J: J / 3.0 + 1.0,
                              note="N from J_m = 3(N − 1) (matching locks), not from M_c/M_K")]
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"G": modulus, "Jm": 80.0}

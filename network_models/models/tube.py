@@ -50,17 +50,17 @@ class NonAffineTube(Model):
     def _W_lam(self, l1, l2, l3, p):
         return p["Ge"] * (l1 + 1.0 / l1 + l2 + 1.0 / l2 + l3 + 1.0 / l3 - 6.0)
 
-    def modulus_split(self, values):
+    def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]
 
     def _from_moduli(self, Gx, Ge, network):
         return {"Gc": Gx, "Ge": Ge}
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
@@ -89,7 +89,7 @@ class SlipTube(Model):
             out = red * (lam - lam**-2)
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
-    def energy(self, mode, lam, params=None, **kw):
+    def energy(self, mode, lam, params=None, **kw) -> np.ndarray:
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
         lam = np.asarray(lam, dtype=np.float64)
@@ -103,17 +103,17 @@ class SlipTube(Model):
             out = gc + ge
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
-    def modulus_split(self, values):
+    def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]  # den(1) = 1
 
     def _from_moduli(self, Gx, Ge, network):
         return {"Gc": Gx, "Ge": Ge}
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
@@ -145,13 +145,13 @@ class ExtendedTube(Model):
     has_stretch_part = True
     params = ParamSet((
         _GC, _GE,
-        Param("delta", "δ", "1", (0.0, DELTA_MAX), (0.02, 0.3), 0.1,
-              "finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
-              "Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602; bound δ² < ½ derived in "
+        Param(name="delta", symbol="δ", unit="1", bounds=(0.0, DELTA_MAX), typical=(0.02, 0.3), default=0.1,
+              meaning="finite extensibility: the model locks at I₁ − 3 = 1/δ² (δ² < ½ keeps W convex in I₁)",
+              source="Kaliske & Heinrich 1999, Rubber Chem. Technol. 72:602; bound δ² < ½ derived in "
               "docs/methods.md §extended-tube"),
-        Param("beta", "β", "1", (1e-6, 1.0), (0.05, 1.0), 0.2,
-              "tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
-              "Kaliske & Heinrich 1999 [memory]", held=True),
+        Param(name="beta", symbol="β", unit="1", bounds=(1e-6, 1.0), typical=(0.05, 1.0), default=0.2,
+              meaning="tube-constraint exponent (0 < β ≤ 1; 0.2 typical)",
+              source="Kaliske & Heinrich 1999 [memory]", held=True),
     ))
     equation = ("W = (G_c/2)[(1 − δ²)(I₁ − 3)/(1 − δ²(I₁ − 3)) + ln(1 − δ²(I₁ − 3))] "
                 "+ (2G_e/β²)Σᵢ(λᵢ^(−β) − 1)")
@@ -186,10 +186,10 @@ class ExtendedTube(Model):
     def _lock_I1(self, p):
         return 3.0 + 1.0 / p["delta"] ** 2 if p["delta"] > 0 else None
 
-    def modulus_split(self, values):
+    def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params):
+    def small_strain_modulus(self, **params) -> float:
         p = self.resolve(params)
         d2 = p["delta"] ** 2
         return p["Gc"] * (1.0 - d2 + EXTENDED_TUBE_LOG_SIGN * (-d2)) + p["Ge"]
@@ -207,7 +207,7 @@ class ExtendedTube(Model):
         return {"Gc": Gx / (1.0 - 2.0 * delta * delta), "Ge": Ge, "delta": delta,
                 "beta": self.params["beta"].default}
 
-    def network_notices(self, network):
+    def network_notices(self, network) -> list:
         delta, asked = self._network_delta(network)
         if asked <= delta:
             return []
@@ -217,7 +217,7 @@ class ExtendedTube(Model):
             f"I₁ − 3 = {1 / DELTA_NETWORK_MAX**2:g} instead of {1 / asked**2:.3g} (a strand this short is at "
             "the edge of what the model describes)", "bounded", self.name)]
 
-    def stability_notes(self, values):
+    def stability_notes(self, values) -> list:
         d2 = float(values.get("delta", 0.0)) ** 2
         if 1.0 - 2.0 * d2 < 0.1:
             return [Notice(f"extended tube: δ = {math.sqrt(d2):.3g} is close to 1/√2, where the crosslink part "
@@ -225,5 +225,5 @@ class ExtendedTube(Model):
                            "unstable", self.name)]
         return []
 
-    def guess(self, modulus):
+    def guess(self, modulus) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus, "delta": 0.08}

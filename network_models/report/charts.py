@@ -332,7 +332,7 @@ def specimen_plot(cmp: Comparison, quantity: str = "G0", width: int = 860, heigh
     key = {"G0": "G0", "strand_density": "nu"}.get(quantity, quantity)
     qs = [r.quantities.get(key) for r in ok]
     vals = [v * scale for *_x, v in pts] + [x * scale for q in qs if q is not None and q.has_interval
-                                            for x in (q.low, q.high)]
+                                            for x in (q.low, q.high) if x is not None]
     left, top, bottom, right = 72, 34, 52, 190
     pw, ph = width - left - right, height - top - bottom
     lo, hi = (min(vals), max(vals)) if vals else (0.0, 1.0)
@@ -362,7 +362,7 @@ def specimen_plot(cmp: Comparison, quantity: str = "G0", width: int = 860, heigh
         if q is not None and q.value is not None:
             out.append(f'<line x1="{cx + 8:.1f}" y1="{Y(q.value * scale):.1f}" x2="{cx + 30:.1f}" '
                        f'y2="{Y(q.value * scale):.1f}" stroke="{color}" stroke-width="3"/>')
-            if q.has_interval:
+            if q.low is not None and q.high is not None:  # has_interval
                 xm = cx + 19
                 out.append(f'<g stroke="#222" stroke-width="1.3"><line x1="{xm:.1f}" y1="{Y(q.low * scale):.1f}" '
                            f'x2="{xm:.1f}" y2="{Y(q.high * scale):.1f}"/><line x1="{xm - 5:.1f}" '

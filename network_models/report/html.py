@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import datetime as _dt
 from pathlib import Path
+from typing import Any
 
 from ..compare import TEMPERATURE_NOTE, Comparison
 from ..constants import CAUTION, METHOD_MANUAL_REFERENCE
@@ -105,9 +106,11 @@ class Report:
         return tables.to_csv(self)
 
     # ----- HTML -----------------------------------------------------------------------------------
-    SECTIONS = ("summary", "compounds", "specimens", "comparison", "uncertainty", "plots", "provenance", "params",
-                "crosslink", "swelling",
-                "warnings", "model", "conditions", "recipes", "ultimate", "specifications", "ladders")
+    #: the report's sections in the order the page shows them — the one declaration: :meth:`to_html` writes
+    #: them in this order and :meth:`section_html` serves each by name (method ``_<name>_html``)
+    SECTIONS = ("summary", "compounds", "specimens", "comparison", "conditions", "uncertainty", "plots",
+                "provenance", "params", "crosslink", "swelling", "recipes", "ultimate", "specifications", "ladders",
+                "warnings", "model")
 
     # issue #21's sections (report/recipe_sections.py), by name for section_html
     def _conditions_html(self):
@@ -150,21 +153,8 @@ class Report:
             f"<b>{_e(m.title)}</b> · baseline: <b>{_e(c.baseline or '—')}</b> · service temperature: "
             f"<b>{_temp_c(c.service_temperature)}</b> · {len(c.results)} compound(s)</p>")
         parts.append(f'<div class="caution"><b>Caution.</b> {_e(CAUTION)}</div>')
-        parts += self._summary_html()
-        parts += self._compounds_html()
-        parts += self._specimens_html()
-        parts += self._comparison_html()
-        parts += recipe_sections.conditions_html(self.cmp)
-        parts += self._uncertainty_html()
-        parts += self._plots_html()
-        parts += self._provenance_html()
-        parts += self._params_html()
-        parts += self._crosslink_html()
-        parts += self._swelling_html()
-        parts += recipe_sections.recipes_html(self.cmp) + recipe_sections.ultimate_html(self.cmp)
-        parts += recipe_sections.specs_html(self.cmp) + recipe_sections.ladders_html(self.cmp)
-        parts += self._warnings_html()
-        parts += self._model_html()
+        for name in self.SECTIONS:
+            parts += getattr(self, f"_{name}_html")()
         parts.append("<h2>Cautions</h2><ul>" + "".join(f"<li>{_e(x)}</li>" for x in CAUTIONS) + "</ul>")
         parts.append("<p class='meta'>The numbers in this report are also in the CSV and JSON files written beside "
                      "it (SI units there; trade units here).</p>")
@@ -383,7 +373,7 @@ class Report:
         if p.suffix.lower() not in (".html", ".htm"):
             p = p.with_suffix(".html")
         p.parent.mkdir(parents=True, exist_ok=True)
-        paths = {k: p.with_suffix(f".{k}") for k in ("html", "csv", "json", "xlsx")}
+        paths: dict[str, Any] = {k: p.with_suffix(f".{k}") for k in ("html", "csv", "json", "xlsx")}
         paths["html"] = p
         html_text = self.to_html()
         paths["html"].write_text(html_text, "utf-8")

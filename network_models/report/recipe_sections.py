@@ -3,6 +3,8 @@ properties of the specimens that ruptured (with the rupture rule).  Every user s
 
 from __future__ import annotations
 
+from typing import Any
+
 from ..ultimate import QUANTITIES, RULE, compound_ultimate, ultimate_differences
 from .text import esc as _e
 from .text import fmt
@@ -34,8 +36,7 @@ def _unit(v, unit):
 
 
 def ultimate_html(cmp) -> list[str]:
-    rows = [(r, compound_ultimate(r)) for r in cmp.results]
-    rows = [(r, u) for r, u in rows if u]
+    rows: list[tuple[Any, dict]] = [(r, u) for r in cmp.results if (u := compound_ultimate(r))]
     if not rows:
         return []
     out = ["<h2>Break properties</h2><table><tr><th>compound</th><th>quantity</th><th>n</th><th>mean</th>"

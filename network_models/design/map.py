@@ -15,20 +15,20 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from .constants import CAUTION
-from .design import DesignSetup, _check_modes, _Evaluator, _setup
-from .design_targets import parse_targets
-from .network import get_polymer
+from ..constants import CAUTION
+from ..network import get_polymer
+from . import _scan
+from ._scan import DesignSetup
+from .targets import parse_targets
 
-__all__ = ["DesignMap", "TARGET_COLOURS", "feasibility_map", "map_svg", "nu_span", "result_html", "strip_svg",
-           "window_over"]
+__all__ = ["DesignMap", "TARGET_COLOURS", "feasibility_map", "map_svg", "nu_span", "result_html", "strip_svg"]
 
 #: one colour per target row (cycled), the same in the SVG and in the app's map
 TARGET_COLOURS = ("#1f77b4", "#d62728", "#9467bd", "#8c564b", "#e377c2", "#17becf", "#bcbd22", "#ff7f0e")
 FEASIBLE_COLOUR = "#2ca02c"
 
 
-@dataclass
+@dataclass(kw_only=True)
 class DesignMap:
     """Where each target is met over (ν, y); ``masks[text]`` and ``feasible`` are bool arrays (len(y), len(ν))."""
 
@@ -78,9 +78,9 @@ def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 30
     (decoupled Kuhn number, default 3–200, log)."""
     if axis not in ("filler", "N"):
         raise ValueError(f"the map's second axis must be 'filler' or 'N', not {axis!r}")
-    base = _setup(polymer, temperature, model, filler, f, N, entanglements)
+    base = _scan.setup(polymer, temperature, model, filler, f, N, entanglements)
     tl = parse_targets(targets)
-    _check_modes(base, tl)
+    _scan.check_modes(base, tl)
     if y is None:
         y = np.linspace(0.0, 0.3, 16) if axis == "filler" else np.geomspace(3.0, 200.0, 18)
     y = np.asarray(y, float)
@@ -91,7 +91,7 @@ def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 30
     masks = {t.text: np.zeros((y.size, nu.size), bool) for t in tl}
     for i, yv in enumerate(y):
         setup = replace(base, filler=float(yv)) if axis == "filler" else replace(base, N=float(yv))
-        ev = _Evaluator(setup)
+        ev = _scan.Evaluator(setup)
         for t in tl:
             masks[t.text][i] = [t.margin(ev.value(t, float(v))) >= 0 for v in nu]
     feasible = np.logical_and.reduce(list(masks.values()))
@@ -99,7 +99,7 @@ def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 30
     if axis == "N":
         p = get_polymer(base.polymer)
         coupled = p.density / (nu * p.kuhn_molar_mass)
-    return DesignMap(axis, nu, y, masks, feasible, base, coupled)
+    return DesignMap(axis=axis, nu=nu, y=y, masks=masks, feasible=feasible, setup=base, coupled_N=coupled)
 
 
 # ------------------------------------------------------------------------------------------------
@@ -299,25 +299,3 @@ def result_html(result, map="auto", current: float | None = None) -> str:
         + (f"<ul class='ns-design-notes'>{notes}</ul>" if notes else "")
         + f"<p class='ns-caution'>{e(CAUTION)}</p>"
         "</section>")
-
-
-def window_over(targets, axis: str = "filler", values=None, **kw) -> list[dict]:
-    """The refined ν window (:func:`~network_models.design.design`) at each value of a second design variable:
-    ``axis`` "filler" (φ, default 0–0.3 in steps of 0.025) or "N" (decoupled, default 5–200, log).  Rows:
-    ``{"filler"|"N": value, "feasible", "low", "high", "binding_low", "binding_high"}`` (ν in mol/m³)."""
-    from .design import design
-
-    if axis not in ("filler", "N"):
-        raise ValueError(f"the second design variable must be 'filler' or 'N', not {axis!r}")
-    if values is None:
-        values = np.linspace(0.0, 0.3, 13) if axis == "filler" else np.geomspace(5.0, 200.0, 12)
-    kw.pop(axis, None)
-    rows = []
-    for v in values:
-        r = design(targets, **{axis: float(v)}, **kw)
-        w = r.window
-        rows.append({axis: float(v), "feasible": r.feasible, "low": None if w is None else w.lo,
-                     "high": None if w is None else w.hi,
-                     "binding_low": " and ".join(r.binding["low"]) or None,
-                     "binding_high": " and ".join(r.binding["high"]) or None})
-    return rows

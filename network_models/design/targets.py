@@ -38,10 +38,10 @@ import math
 import re
 from dataclasses import dataclass, field
 
-from .constants import celsius
-from .deformation import Mode
-from .errors import UserError
-from .units import parse_number, parse_quantity
+from ..constants import celsius
+from ..deformation import Mode
+from ..errors import UserError
+from ..units import parse_number, parse_quantity
 
 __all__ = ["Target", "TargetError", "parse_target", "parse_targets", "EXAMPLES"]
 
@@ -99,13 +99,16 @@ class Target:
         if self.kind == "E":
             return "small-strain Young's modulus E = 3G" + at
         if self.kind == "stress":
+            assert self.mode is not None and self.stretch is not None  # parse_target sets both
             return (f"{self.mode.value} nominal stress at λ = {self.stretch:g} "
                     f"({100 * (self.stretch - 1):.4g} % elongation){at}")
         if self.kind == "nu":
             return "strand density ν"
         if self.kind == "lock":
+            assert self.mode is not None
             return f"locking stretch in {self.mode.value} tension"
         if self.kind == "reserve":
+            assert self.stretch is not None
             return (f"elongation reserve between {100 * (self.stretch - 1):.4g} % service elongation and the "
                     "uniaxial lock, 100 % × (λ_lock − λ_service)")
         chi = f", χ = {self.chi:g}" if self.chi is not None else ""
@@ -335,7 +338,7 @@ def parse_target(text) -> Target:
     s = str(text).strip().replace("\u2212", "-")
     if not s:
         raise TargetError("an empty target was given; write e.g. 'M100=1.8MPa±5%'.", kind="design-target")
-    from .hardness import rewrite_target  # hardness=60..65ShoreA → the E target it stands for (Gent 1958)
+    from ..hardness import rewrite_target  # hardness=60..65ShoreA → the E target it stands for (Gent 1958)
 
     hard = rewrite_target(s)
     if hard is not None:
@@ -378,7 +381,7 @@ def parse_targets(texts) -> list[Target]:
     out = [parse_target(t) for t in texts if not (isinstance(t, str) and not t.strip())]
     if not out:
         raise TargetError("no design target was given; add one such as 'M100=1.8MPa±5%'.", kind="design-target")
-    seen = {}
+    seen: dict = {}
     for t in out:
         key = (t.kind, t.mode, t.stretch, t.temperature, t.solvent)
         if key in seen:

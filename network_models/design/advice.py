@@ -13,13 +13,14 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .design import _binding
-from .errors import UserError
+from ..constants import celsius
+from ..errors import UserError
+from ._scan import binding
 
 __all__ = ["CURRENT_BASES", "Advice", "advise", "compound_from_fit", "convert_current", "nu_basis", "nu_for_modulus"]
 
 
-@dataclass
+@dataclass(kw_only=True)
 class Advice:
     """What to change in a measured compound (strand density ``nu`` with 95 % interval ``ci``) to land in
     the window.  ``change`` and ``change_range`` are fractions (0.08 = +8 %); ``change_range`` carries the
@@ -68,7 +69,7 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
         return _advise_infeasible(self, nu, ci, a, b)
     w = min(self.windows, key=lambda iv: 0.0 if iv.contains(nu) else min(abs(math.log(nu / iv.lo)),
                                                                            abs(math.log(nu / iv.hi))))
-    lo_b, hi_b = _binding(self.outcomes, w.lo, "low"), _binding(self.outcomes, w.hi, "high")
+    lo_b, hi_b = binding(self.outcomes, w.lo, "low"), binding(self.outcomes, w.hi, "high")
     centre = None if (w.lo_open or w.hi_open) else math.sqrt(w.lo * w.hi) / nu - 1.0
     interval_txt = "" if ci is None else f" (95 % interval {a:.4g}–{b:.4g})"
     if w.contains(nu):
@@ -79,7 +80,8 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
             out.append(f"its interval reaches above the high edge {w.hi:.4g} mol/m³ ({' and '.join(hi_b)})")
         s = (f"Keep ν: the compound's ν = {nu:.4g} mol/m³{interval_txt} is inside the window "
              f"{w.lo:.4g}–{w.hi:.4g} mol/m³" + ("; but " + " and ".join(out) if out else "") + ".")
-        return Advice(nu, ci, "keep", 0.0, (0.0, 0.0), [], centre, None, [], s)
+        return Advice(nu=nu, ci=ci, action="keep", change=0.0, change_range=(0.0, 0.0), binding=[], to_centre=centre,
+                      limit=None, limit_binding=[], sentence=s)
     raise_ = nu < w.lo
     edge, far, bind, far_bind = (w.lo, w.hi, lo_b, hi_b) if raise_ else (w.hi, w.lo, hi_b, lo_b)
     far_open = w.hi_open if raise_ else w.lo_open
@@ -97,19 +99,22 @@ def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Advice:
         s += f"; {verb} by no more than {_pct(limit)} or {' and '.join(far_bind)} is missed"
     if centre is not None:
         s += f"; {_pct(centre)} lands at the window's centre"
-    return Advice(nu, ci, verb, change, rng, bind, centre, limit, far_bind if limit is not None else [], s + ".")
+    return Advice(nu=nu, ci=ci, action=verb, change=change, change_range=rng, binding=bind, to_centre=centre,
+                  limit=limit, limit_binding=far_bind if limit is not None else [], sentence=s + ".")
 
 def _advise_infeasible(self, nu, ci, a, b) -> Advice:
     if self.compromise is None:
-        return Advice(nu, ci, "none", 0.0, (0.0, 0.0), [], None, None, [],
-                      "No strand density meets these targets and no compromise can be computed: see why.")
+        return Advice(nu=nu, ci=ci, action="none", change=0.0, change_range=(0.0, 0.0), binding=[], to_centre=None,
+                      limit=None, limit_binding=[],
+                      sentence="No strand density meets these targets and no compromise can be computed: see why.")
     c = self.compromise["strand_density"]
     change = c / nu - 1.0
     rng = tuple(sorted((c / b - 1.0, c / a - 1.0)))
     verb = "raise" if change > 0 else "lower"
     s = (f"No window exists for these targets (see why); toward the closest compromise ν = {c:.4g} mol/m³: "
          f"{verb} ν by {_pct_range(*rng)} ({_pct(change)} from the nominal ν = {nu:.4g} mol/m³).")
-    return Advice(nu, ci, "none", change, rng, [], None, None, [], s)
+    return Advice(nu=nu, ci=ci, action="none", change=change, change_range=rng, binding=[], to_centre=None,
+                  limit=None, limit_binding=[], sentence=s)
 
 
 def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
@@ -119,7 +124,7 @@ def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
     import numpy as np
     from scipy.optimize import brentq
 
-    from .models import get_model
+    from ..models import get_model
 
     m = get_model(setup.model)
     T = setup.T if T is None else T
@@ -131,7 +136,8 @@ def nu_for_modulus(setup, G: float, T: float | None = None) -> float:
             return math.nan
         return v if v > 0 else math.nan
 
-    grid = np.geomspace(*setup.nu_range, 97)
+    lo, hi = setup.nu_range
+    grid = np.geomspace(lo, hi, 97)
     vals = [g0(v) for v in grid]
     for k in range(len(grid) - 1):
         a, b = vals[k], vals[k + 1]
@@ -149,7 +155,7 @@ def compound_from_fit(result, fit) -> tuple[float, tuple[float, float] | None]:
     small-strain modulus G₀ and its interval (from :func:`network_models.crosslinks.from_fit`, delta method)
     are each turned into the ν whose network gives that G₀ with the design's model, polymer, filler and f, at
     the fit's temperature.  This keeps the compound and the window on the same reading of ν."""
-    from .crosslinks import from_fit
+    from ..crosslinks import from_fit
 
     s = result.setup
     table = from_fit(fit, polymer=s.polymer, f=s.f, filler_fraction=s.filler)
@@ -171,8 +177,8 @@ def nu_basis(setup) -> dict:
     strands and the network's small-strain modulus is X·(νRT + G_e) for the affine model (G_e the polymer's
     plateau modulus ∝ T, X the Guth–Gold factor) — the basis of ``crosslinks``' headline; with it off, all of G
     is read as crosslinks (G = X·νRT)."""
-    from .models import get_model
-    from .network import get_polymer
+    from ..models import get_model
+    from ..network import get_polymer
 
     m = get_model(setup.model)
     p = get_polymer(setup.polymer)
@@ -180,7 +186,7 @@ def nu_basis(setup) -> dict:
     if setup.entanglements:
         Ge = p.plateau_modulus * setup.T / p.plateau_temperature
         src = (f"plateau modulus of {p.key} G_N⁰ = {p.plateau_modulus / 1e6:.3g} MPa at "
-               f"{p.plateau_temperature - 273.15:.4g} °C scaled ∝ T (polymer table, {p.status})")
+               f"{celsius(p.plateau_temperature):.4g} °C scaled ∝ T (polymer table, {p.status})")
         label = f"{m.title}: ν counts crosslink strands only, entanglement part removed (G_e = {Ge / 1e6:.3g} MPa)"
     else:
         Ge, src = 0.0, "none: entanglements switched off, so all of G is read as crosslinks"
@@ -192,8 +198,8 @@ def nu_basis(setup) -> dict:
 
 def _affine_modulus(setup, nu: float, basis: str) -> float:
     """The small-strain shear modulus (Pa) an affine ν on ``basis`` stands for at the design's T and filler."""
-    from .constants import R
-    from .network import get_polymer, guth_gold
+    from ..constants import R
+    from ..network import get_polymer, guth_gold
 
     p = get_polymer(setup.polymer)
     Ge = p.plateau_modulus * setup.T / p.plateau_temperature if basis == "entanglements-removed" else 0.0
@@ -216,7 +222,7 @@ def convert_current(setup, nu: float, ci, basis: str):
         out = nu_for_modulus(setup, G)
         ci_out = None if ci is None else tuple(nu_for_modulus(setup, _affine_modulus(setup, x, basis)) for x in ci)
     except UserError:
-        from .network import guth_gold
+        from ..network import guth_gold
 
         Ge = own["G_e_Pa"] * guth_gold(setup.filler)
         below = Ge > 0 and G <= Ge

@@ -4,13 +4,17 @@ range of strand density all of them agree on (if any)."""
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
-from .design import DesignResult, Interval, _intersect, design
-from .design_targets import parse_targets
-from .errors import UserError
-from .models import MODELS, get_model
+import numpy as np
 
-__all__ = ["ModelWindows", "compare_models"]
+from ..errors import UserError
+from ..models import MODELS, get_model
+from ._scan import Interval, intersect
+from .core import DesignResult, design
+from .targets import parse_targets
+
+__all__ = ["ModelWindows", "compare_models", "window_over"]
 
 
 @dataclass
@@ -33,7 +37,7 @@ class ModelWindows:
             common = None
             for n in ok:
                 ws = self.results[n].windows
-                common = list(ws) if common is None else _intersect(common, ws)
+                common = list(ws) if common is None else intersect(common, ws)
             if common:
                 w = max(common, key=lambda iv: iv.hi / iv.lo)
                 s += f"; the other {len(ok)} models agree on ν {w.lo:.4g}–{w.hi:.4g} mol/m³"
@@ -69,5 +73,26 @@ def compare_models(targets, models=None, **kw) -> ModelWindows:
         raise UserError("no model covers the test modes these targets need; drop a target or choose models.")
     agreed = None
     for r in results.values():
-        agreed = list(r.windows) if agreed is None else _intersect(agreed, r.windows)
+        agreed = list(r.windows) if agreed is None else intersect(agreed, r.windows)
     return ModelWindows(results, agreed or [], left_out)
+
+
+def window_over(targets, axis: str = "filler", values=None, **kw) -> list[dict]:
+    """The refined ν window (:func:`~network_models.design.design`) at each value of a second design variable:
+    ``axis`` "filler" (φ, default 0–0.3 in steps of 0.025) or "N" (decoupled, default 5–200, log).  Rows:
+    ``{"filler"|"N": value, "feasible", "low", "high", "binding_low", "binding_high"}`` (ν in mol/m³)."""
+    if axis not in ("filler", "N"):
+        raise ValueError(f"the second design variable must be 'filler' or 'N', not {axis!r}")
+    if values is None:
+        values = np.linspace(0.0, 0.3, 13) if axis == "filler" else np.geomspace(5.0, 200.0, 12)
+    kw.pop(axis, None)
+    rows = []
+    for v in values:
+        kw_v: dict[str, Any] = {**kw, axis: float(v)}
+        r = design(targets, **kw_v)
+        w = r.window
+        rows.append({axis: float(v), "feasible": r.feasible, "low": None if w is None else w.lo,
+                     "high": None if w is None else w.hi,
+                     "binding_low": " and ".join(r.binding["low"]) or None,
+                     "binding_high": " and ".join(r.binding["high"]) or None})
+    return rows
