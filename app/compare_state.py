@@ -56,9 +56,10 @@ def make_report(comparison, title: str = "", purpose: str = ""):
     return Report(comparison, title=title or "Compound design review", purpose=purpose)
 
 
-def fit_report(data: DataState, title: str = ""):
+def fit_report(data: DataState, title: str = "", units=None):
     """A single-compound report of the fit view's selection and model (the fit view's polymer, f and
-    filler).  Raises ValueError with a sentence when there is nothing to report."""
+    filler; stretch shown as ``units`` shows it).  Raises ValueError with a sentence when there is nothing to
+    report."""
     files = [f for f in data.files if f.name in data.selected]
     if not files:
         raise ValueError("tick at least one file under 'Files in the fit' first")
@@ -72,7 +73,9 @@ def fit_report(data: DataState, title: str = ""):
     comp = Compound(name, [c for f in files for c in f.curves], swelling=list(info.swelling) if info else [],
                     metadata=meta, polymer=data.polymer, f=float(data.f))
     cmp = compare_compounds([comp], data.table_model, None, None)
-    return make_report(cmp, title or f"Fit report: {name}", purpose="")
+    from .display_units import displayed_comparison
+
+    return make_report(displayed_comparison(cmp, units), title or f"Fit report: {name}", purpose="")
 
 
 # ----- the tab's state ------------------------------------------------------------------------------------
@@ -163,7 +166,11 @@ class CompareState(param.Parameterized):
             raise ValueError("press Compare first: there is no comparison to put in a report yet")
         if self.stale:
             raise ValueError(f"the comparison is {STALE}: press Compare, then download")
-        return make_report(self.comparison, self.title, self.purpose)
+        from .display_units import displayed_comparison
+
+        # stretch shown as the session shows it (λ or elongation; issue #21) — a copy, the comparison stays as is
+        return make_report(displayed_comparison(self.comparison, getattr(self, "display_units", None)), self.title,
+                           self.purpose)
 
     # ----- compounds made in code or from files (kept for scripts and tests written against the old tab) --
     def _set(self, comps: dict, chosen=None, baseline=None):

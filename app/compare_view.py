@@ -66,6 +66,9 @@ class CompareView(pn.viewable.Viewer):
         #: called as ask_missing(name, bytes, missing_items, compound) for a file that lacks geometry
         self.ask_missing = ask_missing
         self.store = s.store  # the session's file store (CompareState.store)
+        units = getattr(s, "display_units", None)
+        if units is not None:  # λ ⇄ elongation: the shown comparison is drawn again (its fits are cached)
+            units.param.watch(lambda *e: self._redraw_units(), ["stretch"])
         self.messages = Messages(area="compare")
         self.chosen = pn.widgets.MultiChoice.from_param(s.param.chosen, sizing_mode="stretch_width",
                                                         css_classes=["ns-cmp-chosen"])
@@ -277,6 +280,10 @@ class CompareView(pn.viewable.Viewer):
                                           f"{esc(cmp.model_obj.title)} model.", "success")
         self._mark()
         return cmp
+
+    def _redraw_units(self):
+        if self.state.comparison is not None and not self.state.stale:
+            self._run()  # guarded in __init__
 
     def _add(self):
         value, names = self.upload.value, self.upload.filename

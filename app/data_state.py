@@ -100,6 +100,9 @@ class LoadedFile:
     polymer: str | None = None
     filler_fraction: float = 0.0
     digest: str = ""
+    #: test conditions the user stated or corrected (network_models.conditions field → text; issue #21):
+    #: written into every curve's metadata, kept across a re-read, saved in the project file
+    conditions: dict = field(default_factory=dict)
 
     @property
     def n_points(self) -> int:
@@ -215,6 +218,21 @@ class FileStore(param.Parameterized):
             self.compounds = comps
             self.revision += 1
 
+    def set_conditions(self, file_name: str, values: dict) -> dict:
+        """The user's test conditions for one file (field → typed text; blank = as the file says): the fields
+        that pass go into the file's curves' metadata (one revision, so the report and Compare follow); returns
+        field → sentence for those that did not (the caller shows them beside the control, keeping the text)."""
+        from network_models.conditions import apply_conditions, check_conditions
+
+        f = self.get(file_name)
+        clean, errors = check_conditions(values)
+        # a field not given, or given badly, keeps its last good value
+        kept = {k: v for k, v in f.conditions.items() if k not in values or k in errors}
+        f.conditions = {**kept, **clean}
+        apply_conditions(f.curves, f.conditions)
+        self.revision += 1
+        return errors
+
     def assign(self, file_name: str, compound: str):
         """Put one file into another (possibly new) compound: the user's edit of the automatic grouping."""
         compound = (compound or "").strip()
@@ -319,6 +337,10 @@ class FileStore(param.Parameterized):
             curves = td.read_curves_bytes(f.data, f.name, **opts)
         else:
             curves = td.read_curves(f.path, **opts)
+        if f.conditions:  # the user's test conditions survive a re-read
+            from network_models.conditions import apply_conditions
+
+            apply_conditions(curves, f.conditions)
         new = replace(f, curves=curves, options=opts)
         self.set_files([new if x.name == name else x for x in self.files])
         return new
@@ -327,7 +349,8 @@ class FileStore(param.Parameterized):
 #: the store's reading and loading API, which a DataState offers through its store (``state.files`` is
 #: ``state.store.files``); watch these on ``state.store``
 STORE_ATTRIBUTES = ("files", "compounds", "revision", "manifest_title", "manifest_note", "manifest_baseline")
-STORE_METHODS = ("set_files", "compound_names", "compound_files", "set_compound_info", "assign", "add_upload",
+STORE_METHODS = ("set_files", "compound_names", "compound_files", "set_compound_info", "set_conditions", "assign",
+                 "add_upload",
                  "accept_uploads", "remove", "get", "set_options")
 
 

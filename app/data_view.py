@@ -66,6 +66,17 @@ class DataView(pn.viewable.Viewer):
         self.apply = pn.widgets.Button(name="Re-read with these settings", button_type="primary", width=220)
         self.remove = pn.widgets.Button(name="Remove file", button_type="light", width=120)
         self.preview = html("", css_classes=["ns-preview"])
+        # the file's test conditions (issue #21): what the file states shows as the placeholder; a typed value
+        # wins, travels into the curves' metadata, the project file and the report's test-conditions table
+        from network_models.conditions import FIELDS
+
+        self.cond_inputs = {k: pn.widgets.TextInput(name=label.capitalize() + (" (°C)" if k == "temperature" else ""),
+                                                    width=130, max_length=80, css_classes=[f"ns-cond-{k}"])
+                            for k, label in FIELDS.items()}
+        self.cond_apply = pn.widgets.Button(name="Keep these test conditions", button_type="light", width=220,
+                                            css_classes=["ns-cond-apply"])
+        self.cond_msg = html("", css_classes=["ns-cond-msg"])
+        self.cond_apply.on_click(lambda e: self._apply_conditions())
         self.scenario = html("", css_classes=["ns-scenario"])
         self.edit_file.param.watch(lambda *e: self._show_file(), "value")
         self.apply.on_click(lambda e: self._apply())
@@ -75,6 +86,7 @@ class DataView(pn.viewable.Viewer):
         self._refit = guarded(self.fit.messages, "fit", "Fit")(self._refit)
         self._apply = guarded(self.messages, "file", "File settings")(self._apply)
         self._remove = guarded(self.messages, "file", "Remove file")(self._remove)
+        self._apply_conditions = guarded(self.messages, "file", "Test conditions")(self._apply_conditions)
         self._show_file = guarded(self.messages, "file", "Preview")(self._show_file)
         self._read_pending = guarded(self.messages, "upload", "Upload")(self._read_pending)
         # one watcher for the store: an upload changes files and selection together and is drawn once
@@ -82,7 +94,7 @@ class DataView(pn.viewable.Viewer):
         s.store.param.watch(self._on_store, ["files"])  # the session's file store (its own object)
         s.param.watch(self._on_store, ["selected"])  # the fit's choice of files
         s.param.watch(lambda *e: self._refit(), ["fit_models", "residual", "polymer"])  # polymer: the fit's notices
-        self.units.param.watch(lambda *e: self._show_file(), ["stress"])
+        self.units.param.watch(lambda *e: self._show_file(), ["stress", "stretch"])
         self._built = self._build()
         self._files_changed()
         self._refit()
@@ -251,6 +263,7 @@ class DataView(pn.viewable.Viewer):
         self.edit_width.value = g["width"]
         self.edit_thick.value = g["thickness"]
         self.edit_compound.value = f.group
+        self._show_conditions(f)
         meta = f.curves[0].metadata if f.curves else {}
         cols, units = meta.get("columns", {}), meta.get("units", {})
         det = ", ".join(f"{k}: '{esc(v)}'" + (f" [{esc(units.get(k))}]" if units.get(k) else "")
@@ -273,6 +286,35 @@ class DataView(pn.viewable.Viewer):
         s.set_options(name, self.edit_mode.value, self.edit_gauge.value, self.edit_width.value,
                       self.edit_thick.value)
         self.messages.show("file", f"{esc(name)} re-read (compound {esc(s.get(name).group)}).", "success")
+
+    def _show_conditions(self, f):
+        """The file's conditions: the user's edits as values, what the file states as placeholders."""
+        from network_models.conditions import stated_conditions
+
+        stated = stated_conditions(f.curves[0]) if f.curves else {}
+        same = getattr(self, "_cond_file", None) == (f.name, id(f))
+        for k, w in self.cond_inputs.items():
+            w.placeholder = str(stated.get(k) or "not stated")
+            if not same:  # a redraw of the same file (a unit toggle, a refit) keeps what is typed
+                w.value = f.conditions.get(k, "")
+        if not same:
+            self.cond_msg.object = ""
+        self._cond_file = (f.name, id(f))
+
+    def _apply_conditions(self):
+        """Check and keep the typed conditions; a bad one gets its sentence here and its text stays typed."""
+        name = self.edit_file.value
+        if not name:
+            raise ValueError("load a file first")
+        errors = self.state.set_conditions(name, {k: w.value for k, w in self.cond_inputs.items()})
+        if errors:
+            self.cond_msg.object = ("<ul class='ns-small ns-cond-errors'>"
+                                    + "".join(f"<li>{esc(e)}</li>" for e in errors.values())
+                                    + "</ul><div class='ns-small'>The other conditions were kept; correct these "
+                                      "and press the button again.</div>")
+        else:
+            self.cond_msg.object = (f"<div class='ns-small'>Test conditions of {esc(name)} kept: they appear in the "
+                                    "report beside the numbers they qualify and are saved with the project.</div>")
 
     def _remove(self):
         if self.edit_file.value:
@@ -315,7 +357,12 @@ class DataView(pn.viewable.Viewer):
                 pn.Column(html("<div class='ns-side-h'>Per-file settings and preview</div>"),
                           pn.Row(self.edit_file, self.edit_mode, self.edit_compound),
                           pn.Row(self.edit_gauge, self.edit_width, self.edit_thick),
-                          pn.Row(self.apply, self.remove), self.preview, sizing_mode="stretch_width"),
+                          pn.Row(self.apply, self.remove),
+                          html("<div class='ns-small'><b>Test conditions</b> (blank: as the file states, shown "
+                               "grey)</div>"),
+                          pn.Row(*list(self.cond_inputs.values())[:3]), pn.Row(*list(self.cond_inputs.values())[3:]),
+                          pn.Row(self.cond_apply), self.cond_msg,
+                          self.preview, sizing_mode="stretch_width"),
                 sizing_mode="stretch_width"),
             self.files_html,
             self.fit,

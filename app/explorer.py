@@ -24,6 +24,7 @@ from .plots import (
     readable_range,
     set_output_backend,
     set_visible_models,
+    show_stretch_as,
     stress_figure,
 )
 from .state import NetworkState, fmt, model_colour, polymer_label
@@ -99,7 +100,13 @@ class NetworkControls(pn.viewable.Viewer):
             s.N_free = round(float(max(coupled_N, s.param.N_free.bounds[0])), 1)
         self.N.visible = not event.new
 
-    def set_readout(self, r: dict, moduli: dict):
+    def set_readout(self, r: dict, moduli: dict, units=None):
+        lock = r["lock_uniaxial"]
+        if units is not None and units.elongation and lock is not None and np.isfinite(lock):
+            lock_row = ("elongation reserve to the uniaxial lock", f"{units.x(lock):.3g} %",
+                        "(λ_lock − 1)·100 %: an upper bound on the elongation at break; eight-chain: I₁ = 3N")
+        else:
+            lock_row = ("locking stretch, uniaxial", f"λ = {lock:.3g}", "eight-chain: I₁ = 3N")
         rows = [
             ("strand density ν", f"{r['nu']:.4g} mol/m³", "elastically active network strands"),
             ("junction density μ<sub>j</sub> = 2ν/f", f"{r['junction_density']:.4g} mol/m³",
@@ -110,7 +117,7 @@ class NetworkControls(pn.viewable.Viewer):
             ("affine νRT", fmt(r["affine_MPa"], 3, "MPa"), "crosslink part"),
             ("phantom (1−2/f)νRT", fmt(r["phantom_MPa"], 3, "MPa"), ""),
             ("entanglement G<sub>e</sub>", fmt(r["Ge_MPa"], 3, "MPa"), r.get("ge_policy", "")),
-            ("locking stretch, uniaxial", f"λ = {r['lock_uniaxial']:.3g}", "eight-chain: I₁ = 3N"),
+            lock_row,
         ]
         body = "".join(f"<tr title='{c}'><td>{a}</td><td class='ns-num'>{b}</td></tr>" for a, b, c in rows)
         g0 = "<tr><th colspan='2'>small-strain shear modulus G₀</th></tr>" + "".join(
@@ -140,9 +147,13 @@ class NetworkControls(pn.viewable.Viewer):
 class ExplorerViews(pn.viewable.Viewer):
     """Force–stretch, Mooney and moduli/limits views of the current network, updated on every change."""
 
-    def __init__(self, state: NetworkState, controls: NetworkControls, messages: Messages, **params):
+    def __init__(self, state: NetworkState, controls: NetworkControls, messages: Messages, units=None, **params):
         super().__init__(**params)
         self.state, self.controls, self.messages = state, controls, messages
+        from .display_units import DisplayUnits
+
+        #: the session's display units: stretch axes and read-outs follow its λ / elongation choice (issue #21)
+        self.units = units if units is not None else DisplayUnits()
         self.stress = {}
         for mode in MODES:
             self.stress[mode.value] = stress_figure(mode.value, initial=state.models)
@@ -177,8 +188,22 @@ class ExplorerViews(pn.viewable.Viewer):
         self._dirty: set[str] = {"mooney", "moduli"}
         for w in (controls.nu, controls.N, controls.T, controls.f, controls.filler, controls.lam_max):
             w.param.watch(self._on_throttled, "value_throttled")
+        self.units.param.watch(self._on_stretch_unit, ["stretch"])
         self._update_fast()
         self._update_slow()
+
+    def _on_stretch_unit(self, *events):
+        """λ ⇄ elongation: redraw the stretch axes, data points and read-outs (no model is recomputed)."""
+        self._show_overlay()
+        self._update_fast()
+        self._update_slow()
+
+    def _show_overlay(self):
+        x = self.units.x
+        for mode in MODES:
+            pts = dict(self._data_overlay.get(mode.value, empty_points()))
+            pts["x"] = list(x(pts["x"])) if len(pts.get("x", [])) else []
+            self.stress[mode.value].data.data = pts
 
     # -- figures built on first use ----------------------------------------------------------------
     def _figure(self, key: str, build):
@@ -230,8 +255,7 @@ class ExplorerViews(pn.viewable.Viewer):
         self._data_overlay = points
         xs = [max(d["x"]) for d in points.values() if len(d.get("x", []))]
         self.state.data_lam_max = max(xs) if xs else None
-        for mode in MODES:
-            self.stress[mode.value].data.data = dict(points.get(mode.value, empty_points()))
+        self._show_overlay()  # in λ or elongation, as the session shows stretch
         if "mooney" in self._lazy:  # else the points are drawn when the Mooney figure is built
             self.mooney.data.data = self._mooney_points()
         self._update_fast()
@@ -291,22 +315,24 @@ class ExplorerViews(pn.viewable.Viewer):
                 sf = self.stress[mode.value]
                 p, locks, data = sf.fig, sf.locks, sf.data
                 cols = res["curves"][mode.value]
-                sf.source.data = cols
+                x = self.units.x  # λ, or elongation (λ − 1)·100 % (the core's stretch_shown)
+                sf.source.data = {n: (x(v) if n == "lam" else v) for n, v in cols.items()}
                 lk = res["locks"][mode.value]
                 lo, hi = readable_range([cols[n] for n in shown], data.data.get("y", []), floor=0.0)
                 lam_hi = s.lam_shown()
                 items = [(n, v) for n, v in lk.items() if v is not None and v <= lam_hi and n in shown]
-                locks.data = {"x": [v for _, v in items], "y0": [lo] * len(items), "y1": [hi] * len(items),
+                locks.data = {"x": [x(v) for _, v in items], "y0": [lo] * len(items), "y1": [hi] * len(items),
                               "color": [model_colour(n) for n, _ in items],
                               "model": [get_model(n).title for n, _ in items]}
-                p.x_range.start, p.x_range.end = 1.0, lam_hi
+                p.x_range.start, p.x_range.end = x(1.0), x(lam_hi)
+                show_stretch_as(p, self.units)
                 p.y_range.start, p.y_range.end = min(lo, 0.0), hi
                 set_visible_models(sf.lines, shown, p)
             if self.visible["mooney"]:
                 self._update_mooney(net)
             else:
                 self._dirty.add("mooney")
-            self.controls.set_readout(s.readout(net), s.moduli(net))
+            self.controls.set_readout(s.readout(net), s.moduli(net), self.units)
             for lg in self.legends:
                 lg.object = legend_html(s.models, self._data_overlay)
 
@@ -379,8 +405,12 @@ class ExplorerViews(pn.viewable.Viewer):
 
     def _limits_html(self, net) -> str:
         rows = self.state.limit_rows(net)
-        df = pd.DataFrame(rows).rename(columns={"model": "model", "uniaxial": "uniaxial λ_lock",
-                                                 "equibiaxial": "equibiaxial λ_lock", "planar": "planar λ_lock"})
+        df = pd.DataFrame(rows)
+        if self.units.elongation:  # the lock read as an elongation reserve (λ_lock − 1)·100 %, issue #21
+            df = _limits_as_elongation(self.state, net, self.units)
+        else:
+            df = df.rename(columns={"model": "model", "uniaxial": "uniaxial λ_lock",
+                                    "equibiaxial": "equibiaxial λ_lock", "planar": "planar λ_lock"})
         r = self.state.readout(net)
         extra = (f"<p class='ns-small'>Poisson's ratio ν<sub>P</sub> = {r['poisson']:.5f} and bulk-to-shear ratio "
                  f"K/G = {r['K_over_G']:.0f} (bulk modulus K = 2 GPa, a typical gum value [common practice]); "
@@ -427,3 +457,19 @@ class ExplorerViews(pn.viewable.Viewer):
 
     def __panel__(self):
         return self.stress_tab()
+
+
+def _limits_as_elongation(state, net, units):
+    """The locking-stretch table with each mode's λ_lock (unrounded) shown as elongation reserve (%)."""
+    rows = []
+    for m in state.selected_models():
+        p = net.model_params(m)
+        row = {"model": m.title}
+        for mode in MODES:
+            if not m.supports(mode):
+                row[f"{mode.value} elongation reserve (%)"] = "not defined"
+                continue
+            lk = m.stretch_limit(mode, p)
+            row[f"{mode.value} elongation reserve (%)"] = "no limit" if lk is None else f"{units.x(lk):.3g}"
+        rows.append(row)
+    return pd.DataFrame(rows)

@@ -119,6 +119,9 @@ class FitPanel(pn.viewable.Viewer):
                                                                   css_classes=["ns-stress-unit"])
         self.density_unit = pn.widgets.RadioButtonGroup.from_param(self.units.param.density, button_type="light",
                                                                    css_classes=["ns-density-unit"])
+        # stretch as λ or as elongation (λ − 1)·100 % — a display choice like the stress unit (issue #21)
+        self.stretch_unit = pn.widgets.RadioButtonGroup.from_param(self.units.param.stretch, button_type="light",
+                                                                   css_classes=["ns-stretch-unit"])
         self.to_explorer = pn.widgets.Button(
             name="Draw this network in the explorer", button_type="primary", width=280,
             css_classes=["ns-to-explorer"], disabled=network_state is None,
@@ -145,7 +148,7 @@ class FitPanel(pn.viewable.Viewer):
         self._send_to_explorer = guarded(am, "table", "Explorer")(self._send_to_explorer)
         self._report_file = guarded(am, "report", "Fit report")(self._report_file)
         s.param.watch(lambda *e: self._table(), ["table_model", "polymer", "f", "filler"])
-        self.units.param.watch(lambda *e: self.draw(), ["stress", "density"])
+        self.units.param.watch(lambda *e: self.draw(), ["stress", "density", "stretch"])
         self._boxes = {}
         self._layout = self._build()
 
@@ -221,19 +224,23 @@ class FitPanel(pn.viewable.Viewer):
         data_modes = self._data_modes()
         k = self.units.s(1e6)  # the state draws MPa; the plots follow the display unit
         unit = self.units.stress
+        x = self.units.x  # stretch as shown: λ, or elongation (λ − 1)·100 % (the core's one conversion)
         with pn.io.hold():
             for mode in MODES:
                 ff = self.figs[mode.value]
-                cols = {n: (v if n == "lam" else np.asarray(v) * k) for n, v in fc[mode.value].items()}
+                cols = {n: (x(v) if n == "lam" else np.asarray(v) * k) for n, v in fc[mode.value].items()}
                 ff.source.data = cols
-                ff.resid.data = {**rp[mode.value], "y": [y * k for y in rp[mode.value]["y"]]}
-                ff.data.data = {**pts[mode.value], "y": [y * k for y in pts[mode.value]["y"]]}
+                ff.resid.data = {**rp[mode.value], "x": list(x(rp[mode.value]["x"])),
+                                 "y": [y * k for y in rp[mode.value]["y"]]}
+                ff.data.data = {**pts[mode.value], "x": list(x(pts[mode.value]["x"])),
+                                "y": [y * k for y in pts[mode.value]["y"]]}
                 ff.fig.yaxis.axis_label = f"nominal stress P ({unit})"
                 ff.resid_fig.yaxis.axis_label = f"model − data ({unit})"
+                ff.fig.xaxis.axis_label = ff.resid_fig.xaxis.axis_label = self.units.x_label()
                 set_visible_models(ff.lines, shown)
                 # every axis follows the data just drawn (explicit ranges, reset target included): a 1.6 MPa
                 # curve is not left on the 0–5 MPa axis of the previous fit
-                set_range(ff.fig.x_range, 1.0, float(cols["lam"][-1]))
+                set_range(ff.fig.x_range, x(1.0), float(cols["lam"][-1]))
                 lo, hi = readable_range([cols[n] for n in shown if n in cols], ff.data.data["y"], floor=0.0)
                 set_range(ff.fig.y_range, min(lo, 0.0), hi)
                 set_range(ff.resid_fig.y_range, *residual_range(ff.resid.data["y"]))
@@ -275,7 +282,7 @@ class FitPanel(pn.viewable.Viewer):
 
     # ----- actions --------------------------------------------------------------------------------------
     def _report_file(self):
-        rep = fit_report(self.state)
+        rep = fit_report(self.state, units=self.units)  # stretch as the session shows it
         self.action_messages.show("report", "Fit report written: it holds this fit with the polymer, f and filler set "
                                      "here.", "success")
         return io.BytesIO(rep.to_html().encode("utf-8"))
@@ -308,7 +315,8 @@ class FitPanel(pn.viewable.Viewer):
             pn.Row(pn.Column(html("<div class='ns-small'>Residual</div>"), self.residual), self.polymer, self.f,
                    self.filler, self.table_model),
             pn.Row(html("<div class='ns-small'>Tables show stress in</div>", width=150), self.stress_unit,
-                   html("<div class='ns-small'>and crosslink density in</div>", width=170), self.density_unit),
+                   html("<div class='ns-small'>and crosslink density in</div>", width=170), self.density_unit,
+                   html("<div class='ns-small'>Stretch shown as</div>", width=110), self.stretch_unit),
             self.messages,
             pn.Column(self.summary, self._figures_view.slot, self.warn_html,
                       self.xlink_html, pn.Row(self.to_explorer, self.dl_report), self.action_messages,

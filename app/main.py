@@ -57,7 +57,7 @@ def _build_page(load_samples: bool = True):
         problems = _load_samples(session)
     messages = Messages(area="page")
     controls = NetworkControls(session.network)
-    explorer = ExplorerViews(session.network, controls, messages)
+    explorer = ExplorerViews(session.network, controls, messages, units=session.units)
     data_view = DataView(session.data, network_state=session.network, explorer=explorer, units=session.units)
     swell_view = SwellView(session.swell, data=session.data, units=session.units)
     compare = CompareView(session.compare, ask_missing=data_view.ask_missing)

@@ -271,3 +271,15 @@ def data_legend_html(points: dict) -> str:
     items = "".join(f"<span class='ns-leg-item'><span class='ns-leg-marker' style='background:{c}'></span>"
                     f"{_html.escape(str(lbl))}</span>" for lbl, c in seen.items())
     return f"<div class='ns-legend-box ns-data-legend'>{items}</div>"
+
+
+def show_stretch_as(fig, units) -> None:
+    """A stress figure's stretch axis and hover read as the session shows stretch: 'stretch λ' or
+    'elongation (%)' (the data in its sources is converted by the caller with ``units.x``)."""
+    from bokeh.models import HoverTool
+
+    fig.xaxis.axis_label = units.x_label()
+    for t in fig.select(type=HoverTool):
+        if t.tooltips and isinstance(t.tooltips, list):
+            t.tooltips = [(("e (%)", "@x{0.0}") if units.elongation else ("λ", "@x{0.000}")) if k in ("λ", "e (%)")
+                          else (k, v) for k, v in t.tooltips]

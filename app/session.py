@@ -33,7 +33,7 @@ SETTINGS = {
                             "models", "lam_max", "lam_follows_data", "clamp_stretch", "expansion")),
     "fit": ("data", ("fit_models", "residual", "polymer", "f", "filler", "table_model")),
     "compare": ("compare", ("chosen", "baseline", "model", "service_C", "title", "purpose")),
-    "display": ("units", ("stress", "density")),
+    "display": ("units", ("stress", "density", "stretch")),
     # compound first: restoring it fills the recipe and stated χ, which the saved form values then override
     "swelling": ("swell", ("compound", "dry_g", "swollen_g", "extracted_g", "solvent", "polymer", "chi", "f",
                            "filler", "T_C")),
@@ -53,6 +53,7 @@ class Session:
         self.design = DesignState()
         self.design.dose_compounds = self._dose_compounds  # the Design tab's dose window reads the store
         self.units = DisplayUnits()
+        self.compare.display_units = self.units  # the Compare tab's tables follow the stretch display (#21)
         self._study = None  # (store revision, Study)
         self.compare.study_source = self.study
         #: the results summary of a reopened project, shown as out of date until the comparison is recomputed
@@ -132,12 +133,13 @@ class Session:
         for f in d.files:
             if f.data is None and f.path is None:  # curves made in code: kept as one CSV per curve
                 inputs += [ProjectInput(name=f"{f.name} {c.name}.csv", data=curve_csv(c), compound=f.group,
-                                        options={"mode": c.mode.value}, selected=f.name in d.selected)
+                                        options={"mode": c.mode.value}, selected=f.name in d.selected,
+                                        conditions=dict(f.conditions))
                            for c in f.curves]
                 continue
             data = f.data if f.data is not None else f.path.read_bytes()
             inputs.append(ProjectInput(name=f.name, data=data, compound=f.group, options=dict(f.options),
-                                       selected=f.name in d.selected))
+                                       selected=f.name in d.selected, conditions=dict(f.conditions)))
         from network_models.study import recipe_record
 
         comps = [ProjectCompound(name=n, polymer=i.polymer, f=i.f, filler_volume_fraction=i.filler, notes=i.notes,
@@ -161,7 +163,7 @@ class Session:
         from network_models.labfiles import read_curves_bytes
 
         proj = read_project(source)
-        files, seen = [], set()
+        files, seen, cond_problems = [], set(), []
         for inp in proj.inputs:
             if inp.kind != "curves":  # a swelling table or force–temperature record: its rows are in [[compound]]
                 continue
@@ -170,9 +172,16 @@ class Session:
             while name in seen:
                 name = "copy of " + name
             seen.add(name)
+            conds = {}
+            if inp.conditions:  # the user's test conditions, checked again (the file may have been edited)
+                from network_models.conditions import apply_conditions, check_conditions
+
+                conds, bad = check_conditions(inp.conditions)
+                cond_problems.extend(f"{name}: {e} — that condition was not restored" for e in bad.values())
+                apply_conditions(curves, conds)
             files.append(LoadedFile(name=name, group=inp.compound or "uploaded", curves=curves,
                                     detected_mode=curves[0].mode.value if curves else "uniaxial", data=inp.data,
-                                    options=dict(inp.options), digest=""))
+                                    options=dict(inp.options), digest="", conditions=conds))
         comps = {}
         for c in proj.compounds:
             tests = [SwellingTest(**{k: v for k, v in s.items() if k in _SWELL_FIELDS}) for s in c.swelling]
@@ -184,7 +193,7 @@ class Session:
                                          where=f"project file: compound {c.name!r}: recipe")
             comps[c.name] = CompoundInfo(polymer=c.polymer, f=c.f, filler=c.filler_volume_fraction, notes=c.notes,
                                          metadata=dict(c.metadata), swelling=tests, recipe=recipe)
-        problems = list(getattr(proj, "notices", []))  # fields of the file that were ignored
+        problems = list(getattr(proj, "notices", [])) + cond_problems  # fields of the file that were ignored
         d = self.data
         self.store.manifest_title, self.store.manifest_note = "", ""
         selected = [i.name for i in proj.inputs if i.selected]

@@ -219,7 +219,9 @@ def preview_rows(f, n: int = 4, units: DisplayUnits | None = None) -> list[dict]
     rows = []
     for c in f.curves:
         for lam, P in list(zip(c.stretch, c.stress, strict=True))[:n]:
-            rows.append({"curve": c.name, "mode": c.mode.value, "stretch λ": f"{lam:.4f}",
+            shown = (("elongation (%)", f"{units.x(lam):.2f}") if units.elongation  # (λ − 1)·100 %, issue #21
+                     else ("stretch λ", f"{lam:.4f}"))
+            rows.append({"curve": c.name, "mode": c.mode.value, shown[0]: shown[1],
                          f"nominal stress ({units.stress})": sig(units.s(P), 4)})
     return rows
 

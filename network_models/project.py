@@ -37,6 +37,7 @@ Layout of the zip::
     kind = "curves"                   # "curves" | "swelling" | "force-temperature"
     selected = true                   # in the app's fit selection
     options = { mode = "uniaxial", gauge_length = 0.02 }   # reader options, SI
+    conditions = { speed = "500 mm/min", die = "…" }       # test conditions the user stated (text; issue #21)
     [[compound]]                      # recipe facts per compound (SI)
     name = "A"
     polymer = "NR"
@@ -86,6 +87,8 @@ class ProjectInput:
     options: dict = field(default_factory=dict)
     selected: bool = False
     kind: str = "curves"  # "curves" | "swelling" | "force-temperature"
+    #: test conditions the user stated or corrected for this file (network_models.conditions field → text)
+    conditions: dict = field(default_factory=dict)
 
 
 @dataclass
@@ -174,7 +177,8 @@ def manifest_text(project: Project, files: list[str]) -> str:
         out.append(_table(f"settings.{_key(section)}", values))
     for inp, path in zip(project.inputs, files, strict=True):
         out.append(_table("input", {"file": path, "name": inp.name, "compound": inp.compound,
-                                    "kind": inp.kind, "selected": bool(inp.selected), "options": inp.options},
+                                    "kind": inp.kind, "selected": bool(inp.selected), "options": inp.options,
+                                    **({"conditions": inp.conditions} if inp.conditions else {})},
                           array=True))
     for c in project.compounds:
         out.append(_table("compound", {"name": c.name, "polymer": c.polymer, "f": float(c.f),
@@ -248,7 +252,8 @@ def read_project(source) -> Project:
                 raise ProjectFileError(f"{name}: input {i} ({e.get('name', path)}) is listed but not in the zip")
             inputs.append(ProjectInput(name=str(e.get("name", Path(path).name)), data=z.read(path),
                                        compound=str(e.get("compound", "")), options=dict(e.get("options", {})),
-                                       selected=bool(e.get("selected", False)), kind=str(e.get("kind", "curves"))))
+                                       selected=bool(e.get("selected", False)), kind=str(e.get("kind", "curves")),
+                                       conditions=dict(e.get("conditions", {}))))
     version = int(head.get("version", 1))
     compounds = []
     for c in doc.get("compound", []):

@@ -13,7 +13,8 @@ _TEXT, _NUM, _BOOL, _TABLE, _LIST = "text", "number", "true/false", "table", "li
 
 _PROJECT = {"format": _TEXT, "version": "whole number", "created": _TEXT, "netstretch_version": _TEXT,
             "title": _TEXT, "purpose": _TEXT}
-_INPUT = {"file": _TEXT, "name": _TEXT, "compound": _TEXT, "kind": _TEXT, "selected": _BOOL, "options": _TABLE}
+_INPUT = {"file": _TEXT, "name": _TEXT, "compound": _TEXT, "kind": _TEXT, "selected": _BOOL, "options": _TABLE,
+          "conditions": _TABLE}  # conditions: test conditions the user stated (field = text)
 # `filler` is version 1's name of the filler volume fraction (still read)
 _COMPOUND = {"name": _TEXT, "polymer": _TEXT, "f": _NUM, "filler": _NUM, "filler_volume_fraction": _NUM,
              "baseline": _BOOL, "notes": _TEXT, "metadata": _TABLE, "swelling_source": _TEXT, "swelling": _LIST,
@@ -71,6 +72,19 @@ def check_manifest(doc: dict, name: str, error=ValueError) -> dict:
                 else:
                     notices.append(f"[[input]] {i}: the reader option {k!r} is not known and was ignored")
             e["options"] = opts
+        from .conditions import FIELDS
+
+        conds = {}
+        for k, v in e.get("conditions", {}).items():
+            if k not in FIELDS:
+                notices.append(f"[[input]] {i}: the test condition {k!r} is not known and was ignored")
+            elif not _is(v, _TEXT):
+                raise error(f"{name}: [[input]] {i} conditions {k} must be text (found {type(v).__name__}); fix "
+                            "that field or save the project again")
+            else:
+                conds[k] = v
+        if "conditions" in e:
+            e["conditions"] = conds
         inputs.append(e)
     doc["input"] = inputs
     comps = []

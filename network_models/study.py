@@ -321,7 +321,12 @@ class Study:
         ft = []
         for inp in proj.inputs:
             if inp.kind == "curves":
-                curves.setdefault(inp.compound, []).extend(read_curves_bytes(inp.data, inp.name, **inp.options))
+                read = read_curves_bytes(inp.data, inp.name, **inp.options)
+                if inp.conditions:  # test conditions the user stated in the app (checked again; issue #21)
+                    from .conditions import apply_conditions, check_conditions
+
+                    apply_conditions(read, check_conditions(inp.conditions)[0])
+                curves.setdefault(inp.compound, []).extend(read)
             elif inp.kind == "force-temperature":
                 ft.append(read_force_temperature(inp.data, inp.name))
         comps = []
