@@ -1,5 +1,5 @@
 """Unit plausibility of lab curves (issue #20): notices when the numbers cannot be right as their units say
-(docs/methods.md §unit-plausibility).  Used before a fit (``problem.set_up`` refuses a modulus past 1 GPa with
+(docs/methods.md §plausibility).  Used before a fit (``problem.set_up`` refuses a modulus past 1 GPa with
 these sentences) and after it (``diagnostics.diagnose``); it imports nothing of the fitting package."""
 
 from __future__ import annotations
