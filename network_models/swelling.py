@@ -340,7 +340,8 @@ def check_absorbed_mass(network_mass: float, swollen: float, *, resolution_kg: f
     absorbed = swollen - network_mass
     if absorbed < WEIGHING_ERROR_FRACTION * network_mass or absorbed < resolution_kg:
         raise ValueError(
-            f"the piece absorbed only {absorbed:.3g} (swollen {swollen:.6g} − dry {network_mass:.6g}, same unit): "
+            f"the piece absorbed only {absorbed * 1e3:.3g} g (swollen {swollen * 1e3:.6g} g − dry "
+            f"{network_mass * 1e3:.6g} g; masses are taken in kg, the core's SI unit): "
             f"{100 * absorbed / network_mass:.2g} % of its dry mass, within weighing error (below 1 % of the dry "
             "mass or 1 mg); no strand density can be read from it — check that the piece swelled to equilibrium "
             "(about 72 h), that the swollen mass was weighed before the solvent evaporated, and the masses' units")
