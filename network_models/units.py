@@ -163,6 +163,29 @@ def _pint_unit(text: str, dimension: str | None):
     return unit
 
 
+# The spellings nearly every lab file uses, as exact SI (dimension, factor, offset), so a command that meets
+# only these never imports pint (its import and registry are ~0.3 s of a cold command).  pint stays the
+# source of truth: tests/test_units.py::test_si_table_matches_pint checks every entry against pint's own
+# conversion.  Only exact spellings; anything else goes to pint.  Masses are kept apart (_SI_MASS): with a
+# force or pressure expected the trade reads "g"/"kg" as gram-/kilogram-force, which pint handles.
+# psi = 4.4482216152605 N / (0.0254 m)², both exact by definition; the correctly rounded double of that is
+# 6894.757293168362, but pint's chain of definitions lands 2 ulp higher.  The table keeps pint's double so
+# every result stays byte-identical with and without pint (the test checks both facts).
+_PSI = 6894.7572931683635
+_SI_TABLE: dict[str, tuple[str, float, float]] = {
+    "Pa": ("pressure", 1.0, 0.0), "kPa": ("pressure", 1e3, 0.0), "MPa": ("pressure", 1e6, 0.0),
+    "GPa": ("pressure", 1e9, 0.0), "psi": ("pressure", _PSI, 0.0), "N/mm²": ("pressure", 1e6, 0.0),
+    "N/mm2": ("pressure", 1e6, 0.0), "N": ("force", 1.0, 0.0), "kN": ("force", 1e3, 0.0),
+    "mm": ("length", 1e-3, 0.0), "cm": ("length", 1e-2, 0.0), "m": ("length", 1.0, 0.0),
+    "mm²": ("area", 1e-6, 0.0), "mm2": ("area", 1e-6, 0.0), "%": ("dimensionless", 0.01, 0.0),
+    "mm/mm": ("dimensionless", 1.0, 0.0), "1": ("dimensionless", 1.0, 0.0), "-": ("dimensionless", 1.0, 0.0),
+    "K": ("temperature", 1.0, 0.0), "°C": ("temperature", 1.0, ZERO_CELSIUS),
+    "C": ("temperature", 1.0, ZERO_CELSIUS), "degC": ("temperature", 1.0, ZERO_CELSIUS),
+}
+#: masses in kg, for swelling records (tests/test_units.py checks them against pint too)
+_SI_MASS: dict[str, float] = {"g": 1e-3, "kg": 1.0, "mg": 1e-6}
+
+
 def unit_converter(unit_text: str, dimension: str) -> UnitConverter:
     """A converter from ``unit_text`` to the SI unit of ``dimension``; UnitError if unknown or wrong kind.
 
@@ -171,6 +194,17 @@ def unit_converter(unit_text: str, dimension: str) -> UnitConverter:
     """
     if dimension not in DIMENSIONS:
         raise ValueError(f"unknown dimension {dimension!r}; use one of {', '.join(DIMENSIONS)}")
+    target, example = DIMENSIONS[dimension]
+    known = _SI_TABLE.get(unit_text.strip())
+    if known is not None:
+        if known[0] != dimension:  # the same sentence pint's path gives (tests/test_units.py)
+            raise UnitError(f"unit {unit_text!r} is not a {dimension} unit; write e.g. {example!r}")
+        return UnitConverter(unit=unit_text.strip(), dimension=dimension, factor=known[1], offset=known[2])
+    return _pint_converter(unit_text, dimension)
+
+
+def _pint_converter(unit_text: str, dimension: str) -> UnitConverter:
+    """:func:`unit_converter` through pint alone (every spelling; the table above is checked against it)."""
     target, example = DIMENSIONS[dimension]
     unit = _pint_unit(unit_text, dimension)
     ureg = _registry()
@@ -287,13 +321,24 @@ _NOT_UNITS = {"strain", "point", "points", "at", "in", "a", "cycle", "cycles", "
               "count", "b", "ε", "λ", "σ", "x", "y", "no", "nr", "id", "ratio"}
 
 
+# Header words, metadata keys and cells that are never units; checked cheaply before pint is asked, and
+# each one checked against pint's own answer in tests/test_units.py::test_never_units_agree_with_pint.
+_NEVER_UNITS = {"date", "time stamp", "speed", "type", "length", "width", "thickness", "piece", "specimen",
+                "sample", "operator", "compound", "batch", "mode", "test", "name", "comment", "remark",
+                "remarks", "notes", "note", "temperature", "force", "stress", "extension", "elongation"}
+# Specimen/batch ids such as "B-1", "PB-1", "S3-1" (pint reads them as a subtraction, not a unit)
+_SPECIMEN_ID = re.compile(r"[A-Z][A-Z0-9]*-\d+")
+
+
 def _looks_like_unit(text: str) -> bool:
     """True when ``text`` reads as a unit of a dimension lab tables carry (length, force, stress, ...)."""
     t = text.strip()
     if not t or len(t) > 20 or t.isdigit() or t.lower() in _NOT_UNITS:
         return False
-    if t.lower() in _TEMPERATURE_NAMES or t in {"%", "-", "1"}:
+    if t.lower() in _TEMPERATURE_NAMES or t in {"%", "-", "1"} or t in _SI_TABLE:
         return True
+    if t.lower() in _NEVER_UNITS or _SPECIMEN_ID.fullmatch(t):  # pint says "not a unit" to these too
+        return False
     try:
         unit = _pint_unit(t, None)
         dim = _registry().Quantity(1, unit).dimensionality

@@ -203,3 +203,99 @@ def test_trade_and_full_width_units(text, dim, si):
 def test_full_width_brackets_in_headers():
     assert split_header("荷重（N）") == ("荷重", "N")
     assert split_header("伸び［％］") == ("伸び", "％")
+
+
+# ---- the exact SI table used before pint (cold commands never import pint) -----------------------
+
+def _pint_kg_per(unit: str) -> float:
+    from network_models.units import _registry
+
+    return float(_registry().Quantity(1.0, unit).to("kilogram").magnitude)
+
+
+def test_si_table_matches_pint():
+    # pint (its own definitions file) stays the source of truth: every table entry must give exactly
+    # pint's factor and offset, and every other dimension the same refusal sentence pint's path gives.
+    from network_models.units import _SI_MASS, _SI_TABLE, DIMENSIONS, _pint_converter
+
+    for text, (dim, factor, offset) in _SI_TABLE.items():
+        for other in DIMENSIONS:
+            fast_err = pint_err = None
+            try:
+                fast = unit_converter(text, other)
+            except UnitError as exc:
+                fast_err = str(exc)
+            try:
+                slow = _pint_converter(text, other)
+            except UnitError as exc:
+                pint_err = str(exc)
+            assert fast_err == pint_err, (text, other)
+            if other == dim:
+                assert (fast.factor, fast.offset) == (slow.factor, slow.offset) == (factor, offset), text
+    for text, kg in _SI_MASS.items():
+        assert kg == _pint_kg_per(text), text
+
+
+def test_si_table_against_definitions():
+    # Independent of pint: psi = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)² (international pound and inch,
+    # 1959; g_n 3rd CGPM) — the table holds pint's double, within 2 ulp of the exact value; °C offset
+    # 273.15 K (SI Brochure, 9th ed., 2.3.1); N/mm² = 1e6 Pa.
+    from fractions import Fraction
+
+    from network_models.units import _SI_TABLE
+
+    exact_psi = Fraction("0.45359237") * Fraction("9.80665") / Fraction("0.0254") ** 2
+    assert abs(_SI_TABLE["psi"][1] - float(exact_psi)) <= 2 * math.ulp(float(exact_psi))
+    assert _SI_TABLE["psi"][1] == pytest.approx(sc.psi, rel=1e-15)
+    assert _SI_TABLE["°C"][2] == sc.zero_Celsius == 273.15
+    assert _SI_TABLE["N/mm²"][1] == 1e6 and _SI_TABLE["mm²"][1] == sc.milli**2
+
+
+def test_never_units_agree_with_pint():
+    # The cheap "never a unit" filters of _looks_like_unit only shortcut words pint also rejects.
+    import itertools
+    import string
+
+    from network_models import units
+
+    def pint_says(text: str) -> bool:
+        try:
+            unit = units._pint_unit(text, None)
+            dim = units._registry().Quantity(1, unit).dimensionality
+        except Exception:
+            return False
+        known = [units._dimensionality(d) for d in units.DIMENSIONS]
+        return dim in known + [units._registry().Quantity(1, "second").dimensionality]
+
+    for word in units._NEVER_UNITS:
+        assert pint_says(word) is False, word
+        assert units._looks_like_unit(word) is False
+    ids = [f"{a}-{n}" for a in string.ascii_uppercase for n in (1, 2, 12)]
+    ids += [f"{a}{b}-1" for a, b in itertools.product(string.ascii_uppercase, string.ascii_uppercase + "0123")]
+    for text in ids:
+        assert units._SPECIMEN_ID.fullmatch(text)
+        assert pint_says(text) is False, text
+    for text in units._SI_TABLE:
+        if text.isdigit():  # a bare digit is never a header unit (an older rule, asked before pint)
+            continue
+        assert units._looks_like_unit(text) is pint_says(text) is True, text
+
+
+def test_sample_compare_never_imports_pint():
+    # A command that meets only the common units must not pay for pint's import (issue 18, cold compare).
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    code = ("import sys, io, contextlib\n"
+            "from network_models.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n"
+            "    try:\n"
+            "        main(['compare', '--manifest', 'sample_sets/compounds.toml', '--json'])\n"
+            "    except SystemExit:\n"
+            "        pass\n"
+            "print('pint' in sys.modules)\n")
+    out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip().splitlines()[-1] == "False"

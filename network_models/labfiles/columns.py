@@ -98,6 +98,8 @@ def looks_like_unit_row(cells) -> bool:
     nonempty = [c for c in cells if c != ""]
     if not nonempty or any(not isinstance(c, str) for c in nonempty):
         return False
+    if any(is_number_cell(c) for c in nonempty):  # a row with a number is never the unit row (asked first:
+        return False                              # it spares reading data cells as units)
     ok = 0
     for c in nonempty:
         if unit_dimension(c.strip("[]() ")) is not None or c.strip("[]() ") in {"-", "1", "%"}:

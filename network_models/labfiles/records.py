@@ -155,7 +155,11 @@ def read_swelling(path_or_bytes, filename: str | None = None) -> list[SwellingRe
 def _mass_or_temp(unit: str, key: str):
     if key == "temperature":
         return unit_converter(unit, "temperature")
-    from ..units import _registry
+    from ..units import _SI_MASS, _registry
+
+    if unit.strip() in _SI_MASS:  # g, kg, mg without pint (checked against pint in tests/test_units.py)
+        factor = _SI_MASS[unit.strip()]
+        return lambda v: v * factor
 
     ureg = _registry()
     try:
