@@ -54,12 +54,15 @@ import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .constants import kelvin
 from .curves import TestCurve
 from .errors import DataError
 from .labfiles import read_curves
+
+if TYPE_CHECKING:
+    from .swelling import SwellingEstimate
 
 
 @dataclass
@@ -114,7 +117,8 @@ class SwellingTest:
                    chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
 
-    def estimate(self, polymer="NR", f=4.0, filler_fraction=0.0, **recipe_options):
+    def estimate(self, polymer: str = "NR", f: float = 4.0, filler_fraction: float = 0.0,
+                 **recipe_options: Any) -> SwellingEstimate:
         """``recipe_options``: ``insoluble_fraction`` and ``rho_polymer`` from :meth:`Compound.swelling_options`."""
         from .swelling import swelling_estimate
 

@@ -32,12 +32,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
 from .fitting.uncertainty import derived
 from .materials import temperature_notices
 from .network import get_polymer, guth_gold
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
            "shear_modulus_from"]
@@ -129,7 +133,7 @@ class CrosslinkTable:
     entanglement_share: float | None = None
     entanglement_share_text: str = "—"
 
-    def to_frame(self):
+    def to_frame(self) -> pd.DataFrame:
         """One row per assumption (ν, its interval, μ_j, M_c, N), as a pandas DataFrame (SI units)."""
         from .frames import crosslink_frame
 

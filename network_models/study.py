@@ -32,6 +32,7 @@ from __future__ import annotations
 import tomllib
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
+from typing import Any
 
 from .compounds import Compound, SwellingTest
 from .errors import UserError
@@ -240,7 +241,7 @@ class Study:
                 replace(c, swelling=[replace(s, chi=None) for s in c.swelling]) for c in comps]}
         return self._chi_table["compounds"]
 
-    def comparison(self):
+    def comparison(self) -> Any:
         """The comparison of every compound (:class:`network_models.compare.Comparison`), once per settings."""
         from .compare import compare
 
@@ -263,7 +264,7 @@ class Study:
         """One fit to the compound's counted curves: {model, G0 (Pa), residual, ...} (None when it failed)."""
         return self.comparison()[name].pooled
 
-    def design(self, compound: str | None = None):
+    def design(self, compound: str | None = None) -> Any:
         """The design window for the study's targets (``settings.design_targets``) on the polymer, f, filler
         and test temperature of ``compound`` (default: the baseline); None without targets."""
         from .design import design

@@ -30,6 +30,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from scipy.optimize import brentq
 
@@ -227,7 +228,7 @@ class SwellingEstimate:
     def nu(self, network="affine") -> float:
         return self.nu_affine if network == "affine" else self.nu_phantom
 
-    def nu_band(self, network="affine"):
+    def nu_band(self, network: str = "affine") -> Any:
         return self.band[network]
 
     def junction_density(self, network="affine") -> float:

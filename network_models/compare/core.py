@@ -4,12 +4,12 @@ against the baseline from the specimens."""
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..constants import celsius
 from ..dose import ladder_fits
 from ..errors import Notice
-from ..models import MODELS, get_model
+from ..models import MODELS, Model, get_model
 from ..specs import judge as judge_specs
 from ..statistics import (
     ALPHA,
@@ -26,6 +26,9 @@ from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
 from .specimens import SPECIMEN_QUANTITIES, analyse_specimens, basis_label, row_key, specimen_table
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 #: quantities judged against the baseline, in order (the JSON contract names "G0" and "strand_density")
 VERDICT_QUANTITIES = ("G0", "strand_density", "N", "lock", "M100_measured", "M300_measured", "M100_predicted",
@@ -220,13 +223,13 @@ class Comparison:
     #: specifications in the design-target grammar, judged per compound (network_models.specs)
     specs: list = field(default_factory=list)
 
-    def to_frame(self):
+    def to_frame(self) -> pd.DataFrame:
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
         from ..frames import comparison_frame
 
         return comparison_frame(self)
 
-    def differences_frame(self):
+    def differences_frame(self) -> pd.DataFrame:
         """One row per difference against the baseline, with its verdict, as a pandas DataFrame."""
         from ..frames import differences_frame
 
@@ -261,7 +264,7 @@ class Comparison:
         return self[self.baseline] if self.baseline else None
 
     @property
-    def model_obj(self):
+    def model_obj(self) -> Model:
         return get_model(self.model)
 
     def rows(self) -> list[dict]:

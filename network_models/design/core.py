@@ -91,7 +91,7 @@ class DesignResult:
         return {t.text: t.margin(v) >= 0 for t, v in zip(self.targets, self.values_at(nu).values(), strict=True)}
 
     # ----- from a measured compound -------------------------------------------------------------------
-    def advise(self, nu: float, ci: tuple[float, float] | None = None):
+    def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Any:
         """What change brings a compound of strand density ``nu`` (95 % interval ``ci``) into the window
         (:func:`network_models.design.advice.advise`)."""
         return advise(self, nu, ci)

@@ -12,6 +12,7 @@ from __future__ import annotations
 import html
 import math
 from dataclasses import dataclass, replace
+from typing import Any
 
 import numpy as np
 
@@ -169,7 +170,7 @@ def _svg(body, w, h, label):
             f'role="img" aria-label="{html.escape(label)}" font-family="sans-serif">' + "".join(body) + "</svg>")
 
 
-def nu_span(result):
+def nu_span(result: Any) -> tuple[float, float]:
     """A ν range (mol/m³) that shows every target edge with room on both sides, within the scan."""
     edges = [e for o in result.outcomes for iv in o.intervals
              for e, op in ((iv.lo, iv.lo_open), (iv.hi, iv.hi_open)) if not op]

@@ -10,8 +10,10 @@ other options win over it).
 from __future__ import annotations
 
 import os
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from ..curves import TestCurve
 from ..deformation import Mode
@@ -41,7 +43,7 @@ def strict() -> bool:
     return os.environ.get(STRICT_ENV) == "1"
 
 
-def guarded(fn_name: str, func, *args):
+def guarded(fn_name: str, func: Callable[..., Any], *args: Any) -> Any:
     """``func(*args)``; any exception but a :class:`DataError` becomes a DataError naming the file (a user never
     sees a traceback for a bad file) — except a programming error (:data:`PROGRAMMING_ERRORS`) under the tests
     (:func:`strict`), which is re-raised so a crash in a reader fails the fuzz tests."""

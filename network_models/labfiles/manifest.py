@@ -9,6 +9,7 @@ import tomllib
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from ..curves import ForceTemperatureRecord, SwellingResult, TestCurve
 from ..deformation import Mode
@@ -38,7 +39,7 @@ class ManifestEntry:
     ingredient_rows: list = field(default_factory=list)
 
     @property
-    def recipe(self):
+    def recipe(self) -> Any:
         """The ``[compound.recipe]`` resolved (:class:`network_models.recipes.Recipe`), or None."""
         raw = self.info.get("recipe")
         if not isinstance(raw, dict):
