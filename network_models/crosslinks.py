@@ -32,7 +32,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
@@ -455,7 +455,7 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
                           "filler_fraction": filler_fraction}, notes=notes)
 
 
-def crosslink_table(source, kind: str = "G", **kw) -> CrosslinkTable:
+def crosslink_table(source, kind: str = "G", **kw: Any) -> CrosslinkTable:
     """One entry point: ``source`` is a FitResult (→ :func:`from_fit`) or a modulus in Pa of ``kind``
     (→ :func:`from_modulus`).  The table iterates over its rows; each row has ``to_dict()``."""
     if hasattr(source, "params") and hasattr(source, "model"):

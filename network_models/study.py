@@ -192,7 +192,7 @@ class Study:
         self._chi_table: dict = {}
 
     # ----- settings ---------------------------------------------------------------------------------------
-    def update(self, **changes) -> Settings:
+    def update(self, **changes: Any) -> Settings:
         """Change settings (unknown names and bad values are refused with a sentence); results that depend
         on a changed setting are recomputed when next asked for."""
         known = {f.name for f in fields(Settings)}
@@ -286,7 +286,7 @@ class Study:
 
     # ----- building ----------------------------------------------------------------------------------------
     @classmethod
-    def from_manifest(cls, path=None, **settings) -> Study:
+    def from_manifest(cls, path=None, **settings: Any) -> Study:
         """From a manifest (either format; default: the bundled sample set), keeping its files' bytes."""
         from .compounds import load_manifest
 
@@ -298,7 +298,7 @@ class Study:
         return st
 
     @classmethod
-    def from_specs(cls, specs, *, polymer="NR", f=4.0, read_options=None, **settings) -> Study:
+    def from_specs(cls, specs, *, polymer: str = "NR", f: float = 4.0, read_options=None, **settings: Any) -> Study:
         """From ``NAME=FILE[,FILE...]`` strings (the CLI's ``--compound``)."""
         from .compounds import load_compound, parse_spec
 

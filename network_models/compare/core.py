@@ -118,7 +118,7 @@ def _headline(res, tier: int, why: str, spread_models, fitter=None) -> Headline:
 
 
 def analyse_compound(compound, m, service_temperature, fitter=None, exclude=None, spread_models=(),
-                     pool=False) -> CompoundResult:
+                     pool: bool = False) -> CompoundResult:
     """Pooled fit, specimen fits and statistics, headline — one compound."""
     problem = None if pool else _pooling_problem(compound)
     if problem:
@@ -399,7 +399,8 @@ def _exclusions(exclude) -> dict[str, dict[str, str]]:
     return out
 
 
-def compare(compounds, model="eight-chain", baseline: str | None = None, service_temperature: float | None = None,
+def compare(compounds, model: str = "eight-chain", baseline: str | None = None,
+            service_temperature: float | None = None,
             fitter=None, *, exclude=None, pool: bool = False, spread_models=None, holm: bool = False,
             residual: str | None = None) -> Comparison:
     """Fit ``model`` to every compound (pooled and specimen by specimen) and compare with ``baseline``.

@@ -164,7 +164,7 @@ def _iv(value, se, dof):
 
 
 # ----- the pooled analysis ---------------------------------------------------------------------------
-def analyse(compound: Compound, model="eight-chain", service_temperature: float | None = None,
+def analyse(compound: Compound, model: str = "eight-chain", service_temperature: float | None = None,
             fitter=None) -> CompoundResult:
     """Fit ``model`` to all of one compound's curves and derive every comparison number from that fit
     (fit-only intervals; :func:`network_models.compare.compare` adds the specimen statistics)."""

@@ -129,7 +129,7 @@ class DesignResult:
         })
         return doc
 
-    def to_html(self, map="auto", current: float | None = None) -> str:
+    def to_html(self, map: str = "auto", current: float | None = None) -> str:
         """A self-contained HTML section (inline SVG: ν strip per target and, unless ``map=None``, the
         feasibility map over ν and filler fraction, or the given :class:`~network_models.design.map.DesignMap`)
         for the review report; ``current`` marks a compound's ν."""

@@ -73,8 +73,9 @@ class DesignMap:
 
 
 def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 3000.0), n_nu: int = 60,
-                    polymer="NR", temperature=296.15, model="eight-chain", filler=None, f=4.0, N=None,
-                    entanglements=True) -> DesignMap:
+                    polymer: str = "NR", temperature: float = 296.15, model: str = "eight-chain", filler=None,
+                    f: float = 4.0, N=None,
+                    entanglements: bool = True) -> DesignMap:
     """Targets over a grid of ν (log, ``nu_range`` mol/m³) and ``axis``: "filler" (φ, default 0–0.3) or "N"
     (decoupled Kuhn number, default 3–200, log)."""
     if axis not in ("filler", "N"):

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import logging
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -18,7 +19,7 @@ from .result import FitResult
 _log = logging.getLogger("netstretch.fitting")
 
 
-def fit_or_error(model, curves, **kw) -> FitResult | FitError:
+def fit_or_error(model, curves, **kw: Any) -> FitResult | FitError:
     """The one fit → catch step every caller (CLI, app, comparison) goes through: a FitResult, or a FitError
     whose sentence says what failed — a user's bad input, a numerical breakdown, or (logged with its
     traceback on the server, never shown) a defect; it never raises for a fit that fails."""
@@ -35,7 +36,7 @@ def fit_or_error(model, curves, **kw) -> FitResult | FitError:
                         "files", kind="defect")
 
 
-def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str, FitResult | FitError]:
+def fit_many(models, curves, *, skip_unsupported: bool = True, **kw: Any) -> dict[str, FitResult | FitError]:
     """Fit several models to the same curves: ``{model name: FitResult | FitError}``.  With
     ``skip_unsupported`` a model fits only the curves in the modes it supports (e.g. slip tube: uniaxial)
     and a notice (kind ``curves-left-out``) says which curves it left out.  ``kw`` go to :func:`fit`."""
@@ -79,7 +80,7 @@ def specimen_groups(curves) -> dict[str, list[TestCurve]]:
     return groups
 
 
-def fit_specimens(model, curves, **kw) -> dict[str, FitResult | FitError]:
+def fit_specimens(model, curves, **kw: Any) -> dict[str, FitResult | FitError]:
     """Fit ``model`` to each specimen alone: ``{specimen: FitResult | FitError}`` in first-seen order.
     Curves are grouped by :func:`specimen_groups` (a specimen tested in several modes is fitted to all of
     them together).  ``kw`` go to :func:`fit`; a specimen whose fit fails keeps its place with its FitError."""

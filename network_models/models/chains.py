@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 
@@ -81,7 +82,7 @@ class EightChain(Model):
     def _lock_I1(self, p):
         return 3.0 * p["N"]
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["mu"] * _eight_chain_modulus_per_mu(p["N"])
 
@@ -126,7 +127,7 @@ class ThreeChain(Model):
     def _lock_stretch(self, p):
         return float(np.sqrt(p["N"]))
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["mu"] * _three_chain_modulus_per_mu(p["N"])
 

@@ -3,6 +3,8 @@ the constrained-junction model of Flory & Erman."""
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..errors import Notice
@@ -26,7 +28,7 @@ class NeoHookean(Model):
     def _W_inv(self, I1, I2, p):
         return 0.5 * p["G"] * (I1 - 3.0)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):
@@ -102,7 +104,7 @@ class MooneyRivlin(Model):
                            "tested range", "unstable", self.name)]
         return []
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return 2.0 * (p["C1"] + p["C2"])
 
@@ -172,7 +174,7 @@ class ConstrainedJunction(Model):
         # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴ with μ_j = 2ξ/(f − 2)  [derived from the strain energy above]
         return 1.0 + 2.0 / (f - 2.0) * kappa * kappa * (kappa * kappa + 1.0) / (1.0 + kappa) ** 4
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["G_ph"] * self._modulus_per_G_ph(p["kappa"], p["f"])
 

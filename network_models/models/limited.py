@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..params import Param, ParamSet, shear_modulus_param
@@ -35,7 +37,7 @@ class Gent(Model):
     def _lock_I1(self, p):
         return p["Jm"] + 3.0
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):

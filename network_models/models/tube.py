@@ -7,6 +7,7 @@ the uncrosslinked polymer).  Both scale with absolute temperature at a fixed net
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -53,7 +54,7 @@ class NonAffineTube(Model):
     def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]
 
@@ -89,7 +90,7 @@ class SlipTube(Model):
             out = red * (lam - lam**-2)
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
-    def energy(self, mode, lam, params=None, **kw) -> np.ndarray:
+    def energy(self, mode, lam, params=None, **kw: Any) -> np.ndarray:
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
         lam = np.asarray(lam, dtype=np.float64)
@@ -106,7 +107,7 @@ class SlipTube(Model):
     def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]  # den(1) = 1
 
@@ -189,7 +190,7 @@ class ExtendedTube(Model):
     def modulus_split(self, values) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         d2 = p["delta"] ** 2
         return p["Gc"] * (1.0 - d2 + EXTENDED_TUBE_LOG_SIGN * (-d2)) + p["Ge"]
