@@ -91,10 +91,10 @@ class EightChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _eight_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}
 
 
@@ -135,8 +135,8 @@ class ThreeChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _three_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}
