@@ -426,7 +426,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
 LAB_SUFFIXES = (".csv", ".txt", ".tsv", ".dat", ".xlsx", ".xls", ".json")
 
 
-def load_folder(path, **read_options: Any) -> list[Compound]:
+def load_folder(path: str | Path, **read_options: Any) -> list[Compound]:
     """A folder with a manifest, or one sub-folder per compound holding its lab files."""
     p = Path(path)
     if not p.is_dir():

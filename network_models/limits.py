@@ -20,9 +20,12 @@ from __future__ import annotations
 import io
 import time
 import zipfile
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .errors import DataError
+
+if TYPE_CHECKING:
+    from pathlib import Path
 
 MAX_FILE_BYTES = 20_000_000
 MAX_MEMBER_BYTES = 50_000_000
@@ -60,7 +63,7 @@ def check_size(n: int, name: str, limit: int = MAX_FILE_BYTES, what: str = "the 
                          "(stretch/strain/extension and stress/force columns)", file=name)
 
 
-def read_file(path, limit: int = MAX_FILE_BYTES, what: str = "the file") -> bytes:
+def read_file(path: str | Path, limit: int = MAX_FILE_BYTES, what: str = "the file") -> bytes:
     """At most ``limit`` bytes of a file (reading stops at the limit whatever the file system says)."""
     from pathlib import Path
 

@@ -92,7 +92,7 @@ class ManifestIndex:
         return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def read_manifest(path=None) -> ManifestIndex:
+def read_manifest(path: str | Path | None = None) -> ManifestIndex:
     """Read a sample-set manifest (``compounds.toml``; format in sample_sets/README.md).  File paths in it
     are relative to the manifest.  Default: the bundled sample set.  Raises DataError for a missing or
     malformed manifest (the files it lists are read later, by ``ManifestEntry.curves()``)."""
