@@ -80,7 +80,7 @@ def unannotated_params(source: str) -> list[str]:
 
 #: parameters of the core's public functions still without an annotation (may only go down; lower it when you
 #: annotate more — the return annotations above are complete, the parameter annotations are not yet)
-PARAMS_REMAINING_LIMIT = 290
+PARAMS_REMAINING_LIMIT = 280
 
 
 def test_the_finder_sees_a_missing_parameter_annotation():

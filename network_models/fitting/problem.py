@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -115,7 +116,7 @@ def _bad_curve(curves):
     raise FitError("the curves hold values too large to fit; check the stress unit", kind="bad-data")
 
 
-def estimate_modulus(curves) -> float:
+def estimate_modulus(curves: TestCurve | Sequence[TestCurve]) -> float:
     """Small-strain shear modulus G₀ (Pa) from curves: neo-Hookean least-squares slope over the points with
     0.7 ≤ λ ≤ 1.5 (λ ≠ 1), or the five points nearest λ = 1 when fewer than three lie there."""
     if isinstance(curves, TestCurve):
