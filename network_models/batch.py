@@ -25,9 +25,13 @@ import sys
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .cellguard import guard, unguard
 from .errors import UserError
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 __all__ = ["COLUMNS_FIRST", "COLUMNS_LAST", "HEADLINE_ROW", "READABLE_SUFFIXES", "BatchSummary", "collect_files",
            "fit_file", "fit_files", "read_results", "run_batch",
@@ -174,7 +178,7 @@ def read_results(path) -> list[dict]:
         return [{k: (unguard(v) if v != "" else None) for k, v in r.items()} for r in csv.DictReader(fh)]
 
 
-def to_frame(path):
+def to_frame(path: str | Path) -> pd.DataFrame:
     """A batch output (CSV or parquet) as a pandas DataFrame, numbers as floats, empty cells as NaN
     (read ``error`` for why a row has no numbers)."""
     import pandas as pd
@@ -293,7 +297,7 @@ class OutputLock:
         fh.flush()
         self.fh = fh
 
-    def release(self):
+    def release(self) -> None:
         if self.fh is not None:
             self.path.unlink(missing_ok=True)
             self.fh.close()  # closing drops the lock

@@ -9,6 +9,11 @@ formula).  The project's own readers of those files strip the apostrophe again (
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    import pandas as pd
+
 FORMULA_LEAD = ("=", "+", "-", "@", "\t", "\r")
 
 
@@ -20,21 +25,21 @@ def _is_number(text: str) -> bool:
     return True
 
 
-def guard(value):
+def guard(value: Any) -> Any:
     """A CSV cell: text that begins like a formula gets a leading ``'``; anything else unchanged."""
     if isinstance(value, str) and value.startswith(FORMULA_LEAD) and not _is_number(value):
         return "'" + value
     return value
 
 
-def unguard(value):
+def unguard(value: Any) -> Any:
     """The reader's side of :func:`guard`."""
     if isinstance(value, str) and len(value) > 1 and value[0] == "'" and value[1] in FORMULA_LEAD:
         return value[1:]
     return value
 
 
-def write_xlsx_text(frame, path, sheet_name: str = "Sheet1"):
+def write_xlsx_text(frame: pd.DataFrame, path: Any, sheet_name: str = "Sheet1") -> Any:
     """A DataFrame as a workbook whose text cells are text (never formulas) and numbers are numbers.  The
     frame may hold guarded CSV cells: their apostrophe is removed and the cell is typed as a string."""
     from openpyxl import Workbook

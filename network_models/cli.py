@@ -70,7 +70,7 @@ def _value_options(parser) -> set[str]:
     return out
 
 
-def negative_values(parser, argv: list[str]) -> list[str]:
+def negative_values(parser: argparse.ArgumentParser, argv: list[str]) -> list[str]:
     """``--temperature -20C`` as ``--temperature=-20C``: argparse takes a word starting with '-' for an option
     unless it is a plain number, so a negative quantity with its unit after an option is joined to it."""
     takes, out = _value_options(parser), list[str]()

@@ -54,12 +54,15 @@ import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .constants import kelvin
 from .curves import TestCurve
 from .errors import DataError
 from .labfiles import read_curves
+
+if TYPE_CHECKING:
+    from .swelling import SwellingEstimate
 
 
 @dataclass
@@ -114,7 +117,8 @@ class SwellingTest:
                    chi=chi,
                    temperature=r.temperature, specimen=r.specimen, source=f"{r.source}, line {r.line}")
 
-    def estimate(self, polymer="NR", f=4.0, filler_fraction=0.0, **recipe_options):
+    def estimate(self, polymer: str = "NR", f: float = 4.0, filler_fraction: float = 0.0,
+                 **recipe_options: Any) -> SwellingEstimate:
         """``recipe_options``: ``insoluble_fraction`` and ``rho_polymer`` from :meth:`Compound.swelling_options`."""
         from .swelling import swelling_estimate
 
@@ -227,8 +231,8 @@ def _read(path, **opts) -> list[TestCurve]:
     return list(curves)
 
 
-def load_compound(name: str, files, *, polymer="NR", f=4.0, metadata=None, swelling=(), notes="",
-                  read_options=None, baseline=False, recipe=None) -> Compound:
+def load_compound(name: str, files, *, polymer="NR", f: float = 4.0, metadata=None, swelling=(), notes: str = "",
+                  read_options=None, baseline: bool = False, recipe=None) -> Compound:
     """A compound from one or more lab files (each may hold several curves)."""
     files = [files] if isinstance(files, (str, Path)) else list(files)
     if not files:
@@ -251,7 +255,7 @@ def parse_spec(spec: str) -> tuple[str, list[str]]:
     return name.strip(), files
 
 
-def compounds_from_specs(specs, **kw) -> list[Compound]:
+def compounds_from_specs(specs, **kw: Any) -> list[Compound]:
     out: list[Compound] = []
     for spec in specs:
         name, files = parse_spec(spec)
@@ -319,7 +323,7 @@ class Manifest:
         return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def load_manifest(path=None, **read_options) -> Manifest:
+def load_manifest(path=None, **read_options: Any) -> Manifest:
     """Read a manifest (TOML or JSON); file paths in it are relative to the manifest's folder.  Default: the
     bundled sample set (sample_sets/compounds.toml)."""
     if path is None:
@@ -422,7 +426,7 @@ def _from_sample_manifest(p: Path, doc: dict, read_options: dict) -> Manifest:
 LAB_SUFFIXES = (".csv", ".txt", ".tsv", ".dat", ".xlsx", ".xls", ".json")
 
 
-def load_folder(path, **read_options) -> list[Compound]:
+def load_folder(path: str | Path, **read_options: Any) -> list[Compound]:
     """A folder with a manifest, or one sub-folder per compound holding its lab files."""
     p = Path(path)
     if not p.is_dir():

@@ -32,12 +32,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 from .constants import LAB_TEMPERATURE, R, celsius
 from .entanglement import UPPER_BOUND_NOTE, entanglement_share, trapping_factor
 from .fitting.uncertainty import derived
 from .materials import temperature_notices
 from .network import get_polymer, guth_gold
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 __all__ = ["KINDS", "CrosslinkRow", "CrosslinkTable", "crosslink_table", "from_fit", "from_modulus",
            "shear_modulus_from"]
@@ -129,7 +133,7 @@ class CrosslinkTable:
     entanglement_share: float | None = None
     entanglement_share_text: str = "—"
 
-    def to_frame(self):
+    def to_frame(self) -> pd.DataFrame:
         """One row per assumption (ν, its interval, μ_j, M_c, N), as a pandas DataFrame (SI units)."""
         from .frames import crosslink_frame
 
@@ -451,7 +455,7 @@ def from_fit(result, *, polymer: str = "NR", T: float | None = None, f: float = 
                           "filler_fraction": filler_fraction}, notes=notes)
 
 
-def crosslink_table(source, kind: str = "G", **kw) -> CrosslinkTable:
+def crosslink_table(source, kind: str = "G", **kw: Any) -> CrosslinkTable:
     """One entry point: ``source`` is a FitResult (→ :func:`from_fit`) or a modulus in Pa of ``kind``
     (→ :func:`from_modulus`).  The table iterates over its rows; each row has ``to_dict()``."""
     if hasattr(source, "params") and hasattr(source, "model"):

@@ -7,6 +7,7 @@ direction.  Stress in test data is nominal: force per undeformed cross-section.
 from __future__ import annotations
 
 from enum import StrEnum
+from typing import Any
 
 import numpy as np
 
@@ -44,7 +45,7 @@ class Mode(StrEnum):
 MODES = (Mode.UNIAXIAL, Mode.EQUIBIAXIAL, Mode.PLANAR)
 
 
-def principal_stretches(mode, lam):
+def principal_stretches(mode: Mode | str, lam: Any) -> tuple[Any, Any, Any]:
     """(λ1, λ2, λ3) for stretch ``lam`` in ``mode``; λ3 is the free direction."""
     mode = Mode.parse(mode)
     lam = np.asarray(lam, dtype=np.float64)
@@ -57,20 +58,20 @@ def principal_stretches(mode, lam):
         return lam, np.ones_like(lam), 1.0 / lam
 
 
-def invariants(mode, lam):
+def invariants(mode: Mode | str, lam: Any) -> tuple[Any, Any]:
     """(I1, I2) of the left Cauchy–Green tensor for the mode (incompressible, I3 = 1)."""
     l1, l2, l3 = principal_stretches(mode, lam)
     a, b, c = l1 * l1, l2 * l2, l3 * l3
     return a + b + c, a * b + b * c + c * a
 
 
-def chain_stretch(mode, lam):
+def chain_stretch(mode: Mode | str, lam: Any) -> Any:
     """Eight-chain stretch λ_ch = sqrt(I1/3)."""
     i1, _ = invariants(mode, lam)
     return np.sqrt(i1 / 3.0)
 
 
-def check_stretch(lam, name="stretch"):
+def check_stretch(lam: Any, name: str = "stretch") -> np.ndarray:
     """Return ``lam`` as float array; raise ValueError on non-positive or non-finite values."""
     arr = np.asarray(lam, dtype=np.float64)
     bad = ~(np.isfinite(arr) & (arr > 0))

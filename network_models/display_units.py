@@ -7,6 +7,7 @@ mol/kg divides the volumetric density by the polymer's density (ν/ρ).
 from __future__ import annotations
 
 from functools import cache
+from typing import Any
 
 STRESS_UNITS = ("MPa", "psi", "kgf/cm²")
 DENSITY_UNITS = ("mol/m³", "10⁻⁴ mol/cm³", "mol/kg")
@@ -64,7 +65,7 @@ def stretch_shown(lam: float | None, unit: str = "stretch") -> float | None:
     raise ValueError(f"unknown stretch unit {unit!r}; use one of {', '.join(STRETCH_UNITS)}")
 
 
-def elongation_reserve(q):
+def elongation_reserve(q: Any) -> Any:
     """The uniaxial locking stretch quantity read as an **elongation reserve**: (λ_lock − 1)·100 %, the
     elongation the network can take before it locks (an upper bound on the elongation at break), with its
     interval mapped the same way."""
@@ -79,7 +80,8 @@ def elongation_reserve(q):
                                                             "at break; real compounds break earlier")
 
 
-def apply_to_comparison(cmp, stress: str = "MPa", density: str = "mol/m³", stretch: str = "stretch"):
+def apply_to_comparison(cmp: Any, stress: str = "MPa", density: str = "mol/m³", stretch: str = "stretch"
+                        ) -> Any:
     """Show a comparison's stresses in ``stress`` and strand/junction densities in ``density`` (its tables,
     the CLI summary, the report and the CSV's display columns; SI values are untouched).  Returns ``cmp``."""
     if stress not in STRESS_UNITS:

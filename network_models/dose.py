@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from typing import Any
 
 import numpy as np
 
@@ -121,7 +122,7 @@ def _key(name):
     return str(name).strip().lower().replace("_", "-").replace(" ", "-")
 
 
-def ladder(compounds, ingredient: str):
+def ladder(compounds: Any, ingredient: str) -> tuple[list[Any], dict[str, str]]:
     """``(rows, left_out)``: the compounds that differ only in ``ingredient`` — rows of (compound, phr), phr
     of the ingredient (0 when the recipe lacks it) — and {name: why} for the others."""
     k = _key(ingredient)

@@ -9,7 +9,12 @@ Numbers stay in SI with a ``unit`` column.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 from .constants import celsius
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 
 def _pd():
@@ -18,7 +23,7 @@ def _pd():
     return pd
 
 
-def fit_frame(result):
+def fit_frame(result: Any) -> pd.DataFrame:
     rows = []
     for name, p in result.params.items():
         lo, hi = p.ci95 if p.ci95 is not None else (None, None)
@@ -28,7 +33,7 @@ def fit_frame(result):
     return _pd().DataFrame(rows).set_index("parameter")
 
 
-def crosslink_frame(table):
+def crosslink_frame(table: Any) -> pd.DataFrame:
     rows = []
     for r in table.rows:
         lo, hi = r.nu_ci if r.nu_ci else (None, None)
@@ -41,7 +46,7 @@ def crosslink_frame(table):
     return df
 
 
-def comparison_frame(cmp):
+def comparison_frame(cmp: Any) -> pd.DataFrame:
     rows = []
     for r in cmp.results:
         for key, q in r.quantities.items():
@@ -50,7 +55,7 @@ def comparison_frame(cmp):
     return _pd().DataFrame(rows).set_index(["compound", "quantity"])
 
 
-def differences_frame(cmp):
+def differences_frame(cmp: Any) -> pd.DataFrame:
     cols = ("compound", "quantity", "percent", "absolute", "ci95", "verdict", "detectable", "n", "n_baseline")
     return _pd().DataFrame([{k: d.get(k) for k in cols} for d in cmp.differences()], columns=list(cols))
 

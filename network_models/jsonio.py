@@ -7,9 +7,10 @@ import json
 import math
 from enum import Enum
 from pathlib import Path
+from typing import Any
 
 
-def to_jsonable(obj, *, _path: str = "", _found: list | None = None):
+def to_jsonable(obj: Any, *, _path: str = "", _found: list | None = None) -> Any:
     """Plain JSON-ready structure; non-finite floats become None and their paths are appended to ``_found``."""
     found = _found if _found is not None else []
     if hasattr(obj, "to_dict") and not isinstance(obj, (dict, str)):

@@ -30,6 +30,7 @@ Edge values: ``|y| == 1`` gives ``±inf`` (a chain at full extension needs infin
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -76,7 +77,7 @@ def _horner(coeffs, z):
     return out
 
 
-def langevin(x):
+def langevin(x: Any) -> Any:
     """L(x) = coth(x) - 1/x, odd, accurate near 0 (series) and for large |x|."""
     x = np.asarray(x, dtype=np.float64)
     scalar = x.ndim == 0
@@ -96,7 +97,7 @@ def langevin(x):
     return out[0] if scalar else out
 
 
-def langevin_derivative(x):
+def langevin_derivative(x: Any) -> np.ndarray:
     """dL/dx = 1/x² - 1/sinh²(x); equals 1/3 at x = 0."""
     x = np.asarray(x, dtype=np.float64)
     ax = np.abs(x)
@@ -219,7 +220,7 @@ def _inverse_block(a, out, work):
         _refine(x, t, w[:5], halley=False)
 
 
-def inverse_langevin(y):
+def inverse_langevin(y: Any) -> Any:
     """Inverse Langevin function, vectorised float64, relative error <= 1e-13 for |y| <= 1 - 1e-12.
 
     ``|y| == 1`` returns ±inf, ``|y| > 1`` or NaN returns NaN; never warns.

@@ -20,8 +20,12 @@ from __future__ import annotations
 import io
 import time
 import zipfile
+from typing import TYPE_CHECKING, Any
 
 from .errors import DataError
+
+if TYPE_CHECKING:
+    from pathlib import Path
 
 MAX_FILE_BYTES = 20_000_000
 MAX_MEMBER_BYTES = 50_000_000
@@ -47,19 +51,19 @@ class Budget:
     def __init__(self, name: str, seconds: float = TIME_BUDGET_S):
         self.name, self.seconds, self.start = name, seconds, time.monotonic()
 
-    def check(self):
+    def check(self) -> None:
         if time.monotonic() - self.start > self.seconds:
             raise LimitError(f"{self.name}: reading it took longer than the {self.seconds:g} s budget; it is "
                              "too large or too complex — export only the test curves", file=self.name)
 
 
-def check_size(n: int, name: str, limit: int = MAX_FILE_BYTES, what: str = "the file"):
+def check_size(n: int, name: str, limit: int = MAX_FILE_BYTES, what: str = "the file") -> None:
     if n > limit:
         raise LimitError(f"{name}: {what} is over the {_mb(limit)} limit; export only the test curves "
                          "(stretch/strain/extension and stress/force columns)", file=name)
 
 
-def read_file(path, limit: int = MAX_FILE_BYTES, what: str = "the file") -> bytes:
+def read_file(path: str | Path, limit: int = MAX_FILE_BYTES, what: str = "the file") -> bytes:
     """At most ``limit`` bytes of a file (reading stops at the limit whatever the file system says)."""
     from pathlib import Path
 
@@ -100,7 +104,7 @@ def read_member(z: zipfile.ZipFile, member, name: str, limit: int = MAX_MEMBER_B
     return b"".join(_inflate(z, info, name, limit, budget, "it is not a file this tool reads"))
 
 
-def check_zip(data: bytes, name: str, limit: int = MAX_MEMBER_BYTES, budget: Budget | None = None):
+def check_zip(data: bytes, name: str, limit: int = MAX_MEMBER_BYTES, budget: Budget | None = None) -> None:
     """Inflate every member of a zip (a workbook) in small steps, counting real bytes, WITHOUT keeping them:
     refuse the file before any library inflates it in one go."""
     try:
@@ -117,7 +121,7 @@ def check_zip(data: bytes, name: str, limit: int = MAX_MEMBER_BYTES, budget: Bud
                 pass
 
 
-def check_text_shape(lines: list[str], delim: str, name: str):
+def check_text_shape(lines: list[str], delim: str, name: str) -> None:
     """Columns per line and cells in all: refused before any cell is split."""
     cells = 0
     for i, ln in enumerate(lines, 1):
@@ -132,7 +136,7 @@ def check_text_shape(lines: list[str], delim: str, name: str):
                              "the test curves", file=name)
 
 
-def check_table_shape(nrows: int, ncols: int, name: str):
+def check_table_shape(nrows: int, ncols: int, name: str) -> None:
     if ncols > MAX_COLUMNS:
         raise LimitError(f"{name}: the table has {ncols:,} columns, over the limit of {MAX_COLUMNS:,} columns per "
                          "table", file=name)
@@ -162,7 +166,7 @@ class BoundedZipFile(zipfile.ZipFile):
         self._label, self._error = name, error
         self._budget = Budget(name)
 
-    def read(self, name, pwd=None):
+    def read(self, name: Any, pwd: bytes | None = None) -> bytes:
         member = name.filename if isinstance(name, zipfile.ZipInfo) else str(name)
         try:
             if member.lower().endswith(".toml"):

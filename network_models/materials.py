@@ -37,10 +37,13 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .constants import LAB_TEMPERATURE, celsius, kelvin
 from .errors import DataError
+
+if TYPE_CHECKING:
+    import argparse
 
 __all__ = [
     "ENV_VAR", "FIELDS", "Polymer", "UserTable", "active_polymer_table", "add_polymers_option",
@@ -226,7 +229,7 @@ def _chi_rows(rows, origin: str) -> list[dict]:
     return out
 
 
-def load_polymer_table(path) -> UserTable:
+def load_polymer_table(path: str | Path) -> UserTable:
     """Read and check a user polymer table (TOML, same schema as the built-in one).  Rows whose key is in
     the built-in table override it field by field; new keys need every field.  Raises :class:`DataError`
     naming the file, row and field for anything wrong."""
@@ -262,7 +265,7 @@ _UNSET = object()
 _active: Any = _UNSET
 
 
-def use_polymer_table(path) -> UserTable | None:
+def use_polymer_table(path: str | Path | None) -> UserTable | None:
     """Make a user table active for this process (``None``: built-in table only, ignoring the environment
     variable).  The file is checked at once; a bad file leaves the previous table active."""
     global _active
@@ -321,14 +324,14 @@ def polymer_listing() -> list[dict]:
 
 
 # ---- command-line helpers -------------------------------------------------------------------------
-def add_polymers_option(parser) -> None:
+def add_polymers_option(parser: argparse.ArgumentParser) -> None:
     """Add ``--polymers FILE`` to an argparse (sub)parser; call :func:`apply_polymers_option` in its run."""
     parser.add_argument("--polymers", metavar="FILE", default=None,
                         help=f"your own polymer table (TOML, same fields as the built-in one; its rows override "
                              f"or extend the built-in rows; also ${ENV_VAR})")
 
 
-def apply_polymers_option(args) -> None:
+def apply_polymers_option(args: argparse.Namespace) -> None:
     """Activate the table given with ``--polymers`` (no-op without the option)."""
     path = getattr(args, "polymers", None)
     if path:

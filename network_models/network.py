@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from typing import Any
 
 from scipy.constants import R
 
@@ -68,7 +69,7 @@ class Network:
     N_direct: bool = field(init=False, default=False)
 
     @classmethod
-    def from_chemical(cls, nu_chemical: float, Mn: float, **kw) -> Network:
+    def from_chemical(cls, nu_chemical: float, Mn: float, **kw: Any) -> Network:
         """A network from its chemical (total) strand density ν_chem and primary-chain M_n: the
         elastically active density is ν = ν_chem(1 − 2M_c/M_n) with M_c = ρ/ν_chem (Flory [from memory],
         docs/methods.md §dangling-ends).  M_n ≤ 2M_c means no gel (every strand dangles): a ParameterError says so."""
@@ -123,7 +124,7 @@ class Network:
     def poly(self) -> Polymer:
         return get_polymer(self.polymer)
 
-    def with_(self, **changes) -> Network:
+    def with_(self, **changes: Any) -> Network:
         """A copy with changes; setting ``nu`` clears ``Mc`` and vice versa."""
         if "Mc" in changes and "nu" not in changes:
             changes["nu"] = None

@@ -100,7 +100,8 @@ STRAND_DENSITY = Param(
 )
 
 
-def shear_modulus_param(name="G", symbol="G", meaning="small-strain shear modulus", default=0.4e6):
+def shear_modulus_param(name: str = "G", symbol: str = "G", meaning: str = "small-strain shear modulus",
+                        default: float = 0.4e6) -> Param:
     return Param(
         name=name, symbol=symbol, unit="Pa", bounds=(0.0, 1e9), typical=(0.05e6, 3e6), default=default, meaning=meaning,
         source="definition", display_unit="MPa", display_scale=1e-6,
@@ -112,7 +113,7 @@ def shear_modulus_param(name="G", symbol="G", meaning="small-strain shear modulu
 KUHN_N_MIN = 1.01
 
 
-def kuhn_number_param(default=26.5):
+def kuhn_number_param(default: float = 26.5) -> Param:
     return Param(
         name="N", symbol="N", unit="1", bounds=(KUHN_N_MIN, 1e6), typical=(3.0, 200.0), default=default,
         meaning="Kuhn segments per network strand (sets the locking stretch; at least 1.01: nearer 1 the chain is "

@@ -31,8 +31,12 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .errors import DataError, Notice
+
+if TYPE_CHECKING:
+    import argparse
 
 __all__ = [
     "ENV_VAR", "KINDS", "NETWORK_KINDS", "SOLUBLE_DEFAULT", "Ingredient", "Recipe", "add_ingredients_option",
@@ -157,7 +161,7 @@ def ingredient_rows(rows, origin, base: dict[str, Ingredient] | None = None) -> 
     return out
 
 
-def load_ingredient_table(path) -> dict[str, Ingredient]:
+def load_ingredient_table(path: str | Path) -> dict[str, Ingredient]:
     """A user ingredient table (TOML; ``[NAME]`` tables or ``[[ingredient]]`` blocks, fields as the built-in)."""
     p = Path(path)
     try:
@@ -178,7 +182,7 @@ _UNSET = object()
 _active: object = _UNSET
 
 
-def use_ingredient_table(path) -> dict[str, Ingredient] | None:
+def use_ingredient_table(path: str | Path | None) -> dict[str, Ingredient] | None:
     """Make a user ingredient table active for this process (None: built-in only, ignoring $NETSTRETCH_INGREDIENTS)."""
     global _active
     table = None if path is None else load_ingredient_table(path)
@@ -353,14 +357,14 @@ def recipe_notices(recipe: Recipe, metadata: dict, who: str, polymer: str | None
 
 
 # ---- command-line helpers -------------------------------------------------------------------------
-def add_ingredients_option(parser) -> None:
+def add_ingredients_option(parser: argparse.ArgumentParser) -> None:
     """Add ``--ingredients FILE`` to an argparse (sub)parser; call :func:`apply_ingredients_option` in its run."""
     parser.add_argument("--ingredients", metavar="FILE", default=None,
                         help="your own ingredient table for recipes (TOML, same fields as the built-in "
                              f"ingredients.toml; its rows override or extend the built-in ones; also ${ENV_VAR})")
 
 
-def apply_ingredients_option(args) -> None:
+def apply_ingredients_option(args: argparse.Namespace) -> None:
     path = getattr(args, "ingredients", None)
     if path:
         use_ingredient_table(path)

@@ -32,6 +32,7 @@ from __future__ import annotations
 import tomllib
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
+from typing import Any
 
 from .compounds import Compound, SwellingTest
 from .errors import UserError
@@ -191,7 +192,7 @@ class Study:
         self._chi_table: dict = {}
 
     # ----- settings ---------------------------------------------------------------------------------------
-    def update(self, **changes) -> Settings:
+    def update(self, **changes: Any) -> Settings:
         """Change settings (unknown names and bad values are refused with a sentence); results that depend
         on a changed setting are recomputed when next asked for."""
         known = {f.name for f in fields(Settings)}
@@ -240,7 +241,7 @@ class Study:
                 replace(c, swelling=[replace(s, chi=None) for s in c.swelling]) for c in comps]}
         return self._chi_table["compounds"]
 
-    def comparison(self):
+    def comparison(self) -> Any:
         """The comparison of every compound (:class:`network_models.compare.Comparison`), once per settings."""
         from .compare import compare
 
@@ -263,7 +264,7 @@ class Study:
         """One fit to the compound's counted curves: {model, G0 (Pa), residual, ...} (None when it failed)."""
         return self.comparison()[name].pooled
 
-    def design(self, compound: str | None = None):
+    def design(self, compound: str | None = None) -> Any:
         """The design window for the study's targets (``settings.design_targets``) on the polymer, f, filler
         and test temperature of ``compound`` (default: the baseline); None without targets."""
         from .design import design
@@ -285,7 +286,7 @@ class Study:
 
     # ----- building ----------------------------------------------------------------------------------------
     @classmethod
-    def from_manifest(cls, path=None, **settings) -> Study:
+    def from_manifest(cls, path=None, **settings: Any) -> Study:
         """From a manifest (either format; default: the bundled sample set), keeping its files' bytes."""
         from .compounds import load_manifest
 
@@ -297,7 +298,7 @@ class Study:
         return st
 
     @classmethod
-    def from_specs(cls, specs, *, polymer="NR", f=4.0, read_options=None, **settings) -> Study:
+    def from_specs(cls, specs, *, polymer: str = "NR", f: float = 4.0, read_options=None, **settings: Any) -> Study:
         """From ``NAME=FILE[,FILE...]`` strings (the CLI's ``--compound``)."""
         from .compounds import load_compound, parse_spec
 

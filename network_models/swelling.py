@@ -30,6 +30,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from scipy.optimize import brentq
 
@@ -224,13 +225,13 @@ class SwellingEstimate:
         return self.chi.chi
     insoluble_fraction: float | None = None  # F of the Ellis–Welding correction (None: not applied)
 
-    def nu(self, network="affine") -> float:
+    def nu(self, network: str = "affine") -> float:
         return self.nu_affine if network == "affine" else self.nu_phantom
 
-    def nu_band(self, network="affine"):
+    def nu_band(self, network: str = "affine") -> Any:
         return self.band[network]
 
-    def junction_density(self, network="affine") -> float:
+    def junction_density(self, network: str = "affine") -> float:
         return 2.0 * self.nu(network) / self.f
 
     def rows(self) -> list[dict]:
@@ -475,7 +476,7 @@ def _published_band(phi, cv: ChiValue, V1, f, notes) -> tuple[float, str, dict]:
     return spread, basis, band
 
 
-def from_record(record, polymer: str, **kw) -> SwellingEstimate:
+def from_record(record, polymer: str, **kw: Any) -> SwellingEstimate:
     """Estimate from a :class:`network_models.curves.SwellingResult` row (``read_swelling``)."""
     kw.setdefault("T", record.temperature)
     return swelling_estimate(record.dry_mass, record.swollen_mass, record.solvent or "toluene", polymer,

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -28,8 +29,8 @@ def _check_temperatures(T, T_ref, allow_zero=True):
                          "(a reference of 0 would divide by zero: give e.g. 296.15 for 23 °C)")
 
 
-def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, expansion=0.0,
-                          energetic_fraction=0.0):
+def force_at_fixed_length(T: Any, clamp_stretch: Any, modulus_ref: float, T_ref: float, area_ref: float = 1.0,
+                          expansion: float = 0.0, energetic_fraction: float = 0.0) -> Any:
     """Uniaxial force at a clamped length (Gaussian network), N (or Pa·m² units of ``area_ref``).
 
     ``clamp_stretch`` is the clamped length over the unstretched length at ``T_ref``; ``expansion`` the
@@ -53,7 +54,7 @@ def force_at_fixed_length(T, clamp_stretch, modulus_ref, T_ref, area_ref=1.0, ex
     return modulus_ref * ((1.0 - fe) * T / T_ref + fe) * area_ref * np.cbrt(s) * (lam - lam**-2)
 
 
-def inversion_strain(T, expansion, energetic_fraction=0.0):
+def inversion_strain(T: float, expansion: float, energetic_fraction: float = 0.0) -> float:
     """Clamped strain at which dF/dT = 0 at temperature T: λ³ − 1 = βT for the ideal network above, so
     ε ≈ βT/3 = β_lin·T at small strain [derived].  With an energetic share f_e/f of the force (known from a
     force–temperature record, ``energetic_fraction``) only the entropic part grows with T and the inversion
@@ -107,7 +108,7 @@ class EnergeticFraction:
     correction: float = 0.0  # βT/(λ³ − 1) subtracted from the constant-pressure value
     notices: tuple = ()
 
-    def as_dict(self):
+    def as_dict(self) -> dict[str, Any]:
         d = dict(self.__dict__)
         d["notices"] = list(self.notices)
         return d
@@ -132,7 +133,7 @@ def _check_record(T, F, stretch, expansion):
                          "6e-4 1/K (give 0 for no correction)")
 
 
-def energetic_fraction(T, force, stretch, expansion=None):
+def energetic_fraction(T: Any, force: Any, stretch: float, expansion: float | None = None) -> EnergeticFraction:
     """f_e/f from a force–temperature record at constant length and (atmospheric) pressure.
 
     The record gives −T·∂ln(F/T)/∂T at constant **pressure** and length (evaluated at the mean temperature

@@ -23,9 +23,11 @@ of kind ``rupture``; :func:`split_at_rupture` does the same for a curve made in 
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from typing import Any
 
 import numpy as np
 
+from .curves import TestCurve
 from .errors import Notice
 
 __all__ = ["RULE", "RUPTURE_LEVEL", "RUPTURE_STEP", "Ultimate", "break_properties", "find_rupture",
@@ -79,7 +81,7 @@ def find_rupture(stretch, stress) -> int | None:
     return None
 
 
-def split_at_rupture(curve):
+def split_at_rupture(curve: TestCurve) -> tuple[TestCurve, Any]:
     """``(curve with the points after the break removed, Ultimate)`` — or ``(curve, None)`` without a rupture.
     A curve made in code is not changed in place."""
     j = find_rupture(curve.stretch, curve.stress) if curve.loading != "compression" else None

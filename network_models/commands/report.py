@@ -96,7 +96,7 @@ def _service_temperature(text):
         raise UserError(f"service temperature: {exc}") from None
 
 
-def settings_from_args(args) -> dict:
+def settings_from_args(args: argparse.Namespace) -> dict:
     """The study settings the command line gives explicitly (they override a project's stored settings)."""
     out = {}
     if getattr(args, "model", None):

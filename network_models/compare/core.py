@@ -4,12 +4,12 @@ against the baseline from the specimens."""
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..constants import celsius
 from ..dose import ladder_fits
 from ..errors import Notice
-from ..models import MODELS, get_model
+from ..models import MODELS, Model, get_model
 from ..specs import judge as judge_specs
 from ..statistics import (
     ALPHA,
@@ -26,6 +26,9 @@ from ..ultimate import compound_ultimate, ultimate_differences
 from .pooled import _service_part, analyse, fit_safely, network_quantities, propagate
 from .records import BASIS, DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, Headline
 from .specimens import SPECIMEN_QUANTITIES, analyse_specimens, basis_label, row_key, specimen_table
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 #: quantities judged against the baseline, in order (the JSON contract names "G0" and "strand_density")
 VERDICT_QUANTITIES = ("G0", "strand_density", "N", "lock", "M100_measured", "M300_measured", "M100_predicted",
@@ -115,7 +118,7 @@ def _headline(res, tier: int, why: str, spread_models, fitter=None) -> Headline:
 
 
 def analyse_compound(compound, m, service_temperature, fitter=None, exclude=None, spread_models=(),
-                     pool=False) -> CompoundResult:
+                     pool: bool = False) -> CompoundResult:
     """Pooled fit, specimen fits and statistics, headline — one compound."""
     problem = None if pool else _pooling_problem(compound)
     if problem:
@@ -220,13 +223,13 @@ class Comparison:
     #: specifications in the design-target grammar, judged per compound (network_models.specs)
     specs: list = field(default_factory=list)
 
-    def to_frame(self):
+    def to_frame(self) -> pd.DataFrame:
         """One row per compound and quantity (value, 95 % interval, unit, basis), as a pandas DataFrame."""
         from ..frames import comparison_frame
 
         return comparison_frame(self)
 
-    def differences_frame(self):
+    def differences_frame(self) -> pd.DataFrame:
         """One row per difference against the baseline, with its verdict, as a pandas DataFrame."""
         from ..frames import differences_frame
 
@@ -261,7 +264,7 @@ class Comparison:
         return self[self.baseline] if self.baseline else None
 
     @property
-    def model_obj(self):
+    def model_obj(self) -> Model:
         return get_model(self.model)
 
     def rows(self) -> list[dict]:
@@ -396,7 +399,8 @@ def _exclusions(exclude) -> dict[str, dict[str, str]]:
     return out
 
 
-def compare(compounds, model="eight-chain", baseline: str | None = None, service_temperature: float | None = None,
+def compare(compounds, model: str = "eight-chain", baseline: str | None = None,
+            service_temperature: float | None = None,
             fitter=None, *, exclude=None, pool: bool = False, spread_models=None, holm: bool = False,
             residual: str | None = None) -> Comparison:
     """Fit ``model`` to every compound (pooled and specimen by specimen) and compare with ``baseline``.

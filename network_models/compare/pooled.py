@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import logging
 import math
+from collections.abc import Callable
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -21,24 +23,28 @@ from ..entanglement import UPPER_BOUND_NOTE, entanglement_share
 from ..errors import about
 from ..fitting import FitError, fit_or_error
 from ..fitting.uncertainty import derived_se
-from ..models import get_model
+from ..models import Model, get_model
 from ..network import get_polymer
 from .records import DEFAULT_TEST_TEMPERATURE, TEMPERATURE_NOTE, CompoundResult, ParamRow, Quantity
 from .specimens import BASIS_TIERS, basis_label, row_key, stress_at
+
+if TYPE_CHECKING:
+    from ..fitting.result import FitResult
 
 log = logging.getLogger("netstretch.compare")
 log.addHandler(logging.NullHandler())  # no traceback on a CLI user's screen; an app server's handlers still see it
 
 
 # ----- fitting adapter ----------------------------------------------------------------------------
-def default_fitter(model, curves):
+def default_fitter(model: Model | str, curves: list[TestCurve]) -> FitResult:
     """Fit with :func:`network_models.fitting.fit`."""
     from ..fitting import fit
 
     return fit(model, curves)
 
 
-def fit_safely(m, curves, fitter, who: str):
+def fit_safely(m: Model, curves: list[TestCurve], fitter: Callable[..., Any] | None, who: str
+               ) -> tuple[Any, Any]:
     """(fit result, None) or (None, error sentence), through the core's one fit → catch step
     (``fitting.fit_or_error``); ``fitter`` replaces ``fit`` (tests, custom fitters)."""
     if fitter is None or fitter is default_fitter:
@@ -158,7 +164,7 @@ def _iv(value, se, dof):
 
 
 # ----- the pooled analysis ---------------------------------------------------------------------------
-def analyse(compound: Compound, model="eight-chain", service_temperature: float | None = None,
+def analyse(compound: Compound, model: str = "eight-chain", service_temperature: float | None = None,
             fitter=None) -> CompoundResult:
     """Fit ``model`` to all of one compound's curves and derive every comparison number from that fit
     (fit-only intervals; :func:`network_models.compare.compare` adds the specimen statistics)."""

@@ -44,7 +44,7 @@ class Quantity:
     def has_interval(self) -> bool:
         return self.low is not None and self.high is not None
 
-    def shown(self, x):
+    def shown(self, x: float | None) -> float | None:
         return None if x is None else x * self.display_scale
 
     def to_dict(self) -> dict:
@@ -70,7 +70,7 @@ class ParamRow:
     #: False when the data do not bound the parameter (no interval; issue #20), None for held parameters
     determined: bool | None = None
 
-    def to_dict(self):
+    def to_dict(self) -> dict[str, Any]:
         return dict(self.__dict__)
 
 

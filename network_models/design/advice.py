@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from ..constants import celsius
 from ..errors import UserError
@@ -206,7 +207,8 @@ def _affine_modulus(setup, nu: float, basis: str) -> float:
     return guth_gold(setup.filler) * (nu * R * setup.T + Ge)
 
 
-def convert_current(setup, nu: float, ci, basis: str):
+def convert_current(setup: Any, nu: float, ci: tuple[float, ...] | None, basis: str
+                    ) -> tuple[float, tuple[float, ...] | None, str]:
     """``(ν, ci, sentence)`` of today's compound on the design's own basis, from ν (mol/m³) given on ``basis``
     (``"design"``: already on it; ``"entanglements-removed"`` or ``"all-of-G"``: the affine readings of the
     ``crosslinks`` table, the first being its headline).  The given ν is turned into the modulus it stands for

@@ -56,7 +56,7 @@ class ModelWindows:
                 "sentence": self.sentence}
 
 
-def compare_models(targets, models=None, **kw) -> ModelWindows:
+def compare_models(targets, models=None, **kw: Any) -> ModelWindows:
     """:func:`design` for every model that covers the targets' test modes (or the given ``models``)."""
     tl = parse_targets(targets)
     modes = {t.mode for t in tl if t.mode is not None}
@@ -77,7 +77,7 @@ def compare_models(targets, models=None, **kw) -> ModelWindows:
     return ModelWindows(results, agreed or [], left_out)
 
 
-def window_over(targets, axis: str = "filler", values=None, **kw) -> list[dict]:
+def window_over(targets, axis: str = "filler", values=None, **kw: Any) -> list[dict]:
     """The refined ν window (:func:`~network_models.design.design`) at each value of a second design variable:
     ``axis`` "filler" (φ, default 0–0.3 in steps of 0.025) or "N" (decoupled, default 5–200, log).  Rows:
     ``{"filler"|"N": value, "feasible", "low", "high", "binding_low", "binding_high"}`` (ν in mol/m³)."""

@@ -91,7 +91,7 @@ class DesignResult:
         return {t.text: t.margin(v) >= 0 for t, v in zip(self.targets, self.values_at(nu).values(), strict=True)}
 
     # ----- from a measured compound -------------------------------------------------------------------
-    def advise(self, nu: float, ci: tuple[float, float] | None = None):
+    def advise(self, nu: float, ci: tuple[float, float] | None = None) -> Any:
         """What change brings a compound of strand density ``nu`` (95 % interval ``ci``) into the window
         (:func:`network_models.design.advice.advise`)."""
         return advise(self, nu, ci)
@@ -129,7 +129,7 @@ class DesignResult:
         })
         return doc
 
-    def to_html(self, map="auto", current: float | None = None) -> str:
+    def to_html(self, map: str = "auto", current: float | None = None) -> str:
         """A self-contained HTML section (inline SVG: ν strip per target and, unless ``map=None``, the
         feasibility map over ν and filler fraction, or the given :class:`~network_models.design.map.DesignMap`)
         for the review report; ``current`` marks a compound's ν."""

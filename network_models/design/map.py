@@ -12,6 +12,7 @@ from __future__ import annotations
 import html
 import math
 from dataclasses import dataclass, replace
+from typing import Any
 
 import numpy as np
 
@@ -72,8 +73,9 @@ class DesignMap:
 
 
 def feasibility_map(targets, *, axis: str = "filler", y=None, nu_range=(10.0, 3000.0), n_nu: int = 60,
-                    polymer="NR", temperature=296.15, model="eight-chain", filler=None, f=4.0, N=None,
-                    entanglements=True) -> DesignMap:
+                    polymer: str = "NR", temperature: float = 296.15, model: str = "eight-chain", filler=None,
+                    f: float = 4.0, N=None,
+                    entanglements: bool = True) -> DesignMap:
     """Targets over a grid of ν (log, ``nu_range`` mol/m³) and ``axis``: "filler" (φ, default 0–0.3) or "N"
     (decoupled Kuhn number, default 3–200, log)."""
     if axis not in ("filler", "N"):
@@ -169,7 +171,7 @@ def _svg(body, w, h, label):
             f'role="img" aria-label="{html.escape(label)}" font-family="sans-serif">' + "".join(body) + "</svg>")
 
 
-def nu_span(result):
+def nu_span(result: Any) -> tuple[float, float]:
     """A ν range (mol/m³) that shows every target edge with room on both sides, within the scan."""
     edges = [e for o in result.outcomes for iv in o.intervals
              for e, op in ((iv.lo, iv.lo_open), (iv.hi, iv.hi_open)) if not op]

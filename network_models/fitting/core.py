@@ -3,13 +3,14 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import replace
 
 import numpy as np
 
 from ..curves import TestCurve
 from ..errors import FitError
-from ..models import get_model
+from ..models import Model, get_model
 from .diagnostics import curve_cycle, curve_polymer, diagnose, undetermined_notices
 from .problem import DEFAULT_RESIDUAL, set_up
 from .result import FitResult, ModeStats
@@ -17,7 +18,8 @@ from .solver import solve
 from .uncertainty import INTERVAL_METHODS, covariance, estimates, profile_interval, undetermined
 
 
-def fit(model, curves, *, residual: str = DEFAULT_RESIDUAL, free=None, fixed: dict | None = None,
+def fit(model: str | Model, curves: TestCurve | Sequence[TestCurve], *, residual: str = DEFAULT_RESIDUAL, free=None,
+        fixed: dict | None = None,
         start: dict | None = None, polymer: str | None = None, intervals: str = "transformed") -> FitResult:
     """Fit ``model`` (name or Model) to ``curves`` (TestCurve or list, any mix of modes).
 

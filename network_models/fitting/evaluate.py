@@ -10,13 +10,15 @@ from __future__ import annotations
 
 import itertools
 import math
+from collections.abc import Callable
+from typing import Any
 
 import numpy as np
 
 from ..models.base import Model as _BaseModel
 
 
-def fast_evaluator(model, data):
+def fast_evaluator(model: Any, data: Any) -> Callable[[Any], np.ndarray]:
     """p -> nominal stress at every data point (NaN past the lock), through the model's private pieces."""
     generic = type(model)._nominal_stress is _BaseModel._nominal_stress
     if not generic:  # models with their own stress expression (e.g. slip tube)
@@ -77,7 +79,7 @@ class _Tiled:
         return _Tiled(self._data, j, arrays)
 
 
-def stacked_evaluator(model, data, k):
+def stacked_evaluator(model: Any, data: Any, k: int) -> Callable[[Any], np.ndarray]:
     """Like :func:`fast_evaluator`, on the data repeated k times: parameters may be arrays with one value
     per point (np.repeat of k values), so k parameter sets cost one model call — the per-call overhead of
     a model evaluation on ~60 points is most of its cost.  Only used for models that pass
@@ -98,7 +100,7 @@ class LinearModuli:
         self.ev = ev
         self.model, self.data = m, data
         self.n = 0 if data is None else int(data.lam.size)
-        self._stacked: dict[int, object] = {}
+        self._stacked: dict[int, Any] = {}
         self._tiled = None
         self.free = list(free_names)
         self.co = co
@@ -132,7 +134,7 @@ class LinearModuli:
         q[name] = 1.0
         return self.ev(q)
 
-    def h(self, p, name):
+    def h(self, p: dict[str, Any], name: str) -> np.ndarray:
         """hᵢ at p, cached on the parameters it depends on (a few entries: the base point and its steps)."""
         key = tuple(p[j] for j in self.deps[name])
         cache = self._cache[name]
@@ -143,7 +145,7 @@ class LinearModuli:
             out = cache[key] = self._unit_eval(p, name)
         return out
 
-    def prefetch(self, ps):
+    def prefetch(self, ps: list[dict[str, Any]]) -> None:
         """Fill the hᵢ caches for several parameter sets with one stacked model call per modulus (when the
         model stacks; else nothing: :meth:`h` evaluates on demand)."""
         if not (self.linear and self.stacks) or len(ps) < 2:
@@ -234,7 +236,7 @@ class LinearModuli:
         a, b = self._unit_eval(p, name), self._unit_eval(q, name)
         return not np.array_equal(a, b, equal_nan=True)
 
-    def stress(self, p):
+    def stress(self, p: dict[str, Any]) -> np.ndarray:
         if not self.linear:
             return self.ev(p)
         if len(self.moduli) == 1:
@@ -251,7 +253,7 @@ class LinearModuli:
             out = 0.0 * self.h(p, self.moduli[0])
         return out
 
-    def dP_dz(self, p, P, only=None):
+    def dP_dz(self, p: dict[str, Any], P: np.ndarray, only: str | None = None) -> np.ndarray:
         """Full Jacobian dP/dz at p (P = stress at p): modulus columns analytic (hᵢ), the others by forward
         differences in z (stepping back when a step crosses a lock).  ``only``: that one column (1-D)."""
         if only is not None:
@@ -276,7 +278,7 @@ class LinearModuli:
         return J
 
 
-def bounded_lstsq(H, y, lo, hi):
+def bounded_lstsq(H: np.ndarray, y: Any, lo: Any, hi: Any) -> np.ndarray:
     """min ‖Hθ − y‖ with lo ≤ θ ≤ hi for a few columns: the unconstrained solution when it is feasible
     (then it is optimal: convex problem), else the best feasible one over the active sets."""
     k = H.shape[1]
@@ -297,7 +299,7 @@ def bounded_lstsq(H, y, lo, hi):
     return _active_sets(A, b, lo, hi)
 
 
-def two_column(A, b, lo, hi):
+def two_column(A: Any, b: Any, lo: Any, hi: Any) -> Any:
     """Two columns in closed form (A = HᵀH, only its upper triangle read; b = Hᵀy): the interior optimum,
     else the best of the four box edges (convex problem)."""
     a11, a12, a22 = float(A[0][0]), float(A[0][1]), float(A[1][1])

@@ -5,20 +5,22 @@ The CLI, the app and the comparison all go through these."""
 from __future__ import annotations
 
 import logging
+from collections.abc import Sequence
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
 from ..curves import TestCurve
 from ..errors import FitError, Notice
-from ..models import get_model
+from ..models import Model, get_model
 from .core import fit
 from .result import FitResult
 
 _log = logging.getLogger("netstretch.fitting")
 
 
-def fit_or_error(model, curves, **kw) -> FitResult | FitError:
+def fit_or_error(model: str | Model, curves: TestCurve | Sequence[TestCurve], **kw: Any) -> FitResult | FitError:
     """The one fit → catch step every caller (CLI, app, comparison) goes through: a FitResult, or a FitError
     whose sentence says what failed — a user's bad input, a numerical breakdown, or (logged with its
     traceback on the server, never shown) a defect; it never raises for a fit that fails."""
@@ -35,7 +37,8 @@ def fit_or_error(model, curves, **kw) -> FitResult | FitError:
                         "files", kind="defect")
 
 
-def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str, FitResult | FitError]:
+def fit_many(models: Sequence[str | Model], curves: TestCurve | Sequence[TestCurve], *, skip_unsupported: bool = True,
+             **kw: Any) -> dict[str, FitResult | FitError]:
     """Fit several models to the same curves: ``{model name: FitResult | FitError}``.  With
     ``skip_unsupported`` a model fits only the curves in the modes it supports (e.g. slip tube: uniaxial)
     and a notice (kind ``curves-left-out``) says which curves it left out.  ``kw`` go to :func:`fit`."""
@@ -62,7 +65,7 @@ def fit_many(models, curves, *, skip_unsupported: bool = True, **kw) -> dict[str
     return out
 
 
-def specimen_groups(curves) -> dict[str, list[TestCurve]]:
+def specimen_groups(curves: Sequence[TestCurve]) -> dict[str, list[TestCurve]]:
     """Curves grouped by specimen, in order of first appearance — the one grouping rule: a curve's specimen
     is its ``specimen`` (specimen column, specimen metadata line, column pairs), else its file (one file per
     specimen), else its own name; the same name in the same mode from two different files is two specimens
@@ -79,7 +82,8 @@ def specimen_groups(curves) -> dict[str, list[TestCurve]]:
     return groups
 
 
-def fit_specimens(model, curves, **kw) -> dict[str, FitResult | FitError]:
+def fit_specimens(model: str | Model, curves: TestCurve | Sequence[TestCurve],
+                  **kw: Any) -> dict[str, FitResult | FitError]:
     """Fit ``model`` to each specimen alone: ``{specimen: FitResult | FitError}`` in first-seen order.
     Curves are grouped by :func:`specimen_groups` (a specimen tested in several modes is fitted to all of
     them together).  ``kw`` go to :func:`fit`; a specimen whose fit fails keeps its place with its FitError."""

@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -115,7 +116,7 @@ def _bad_curve(curves):
     raise FitError("the curves hold values too large to fit; check the stress unit", kind="bad-data")
 
 
-def estimate_modulus(curves) -> float:
+def estimate_modulus(curves: TestCurve | Sequence[TestCurve]) -> float:
     """Small-strain shear modulus G₀ (Pa) from curves: neo-Hookean least-squares slope over the points with
     0.7 ≤ λ ≤ 1.5 (λ ≠ 1), or the five points nearest λ = 1 when fewer than three lie there."""
     if isinstance(curves, TestCurve):
@@ -164,7 +165,7 @@ def inside(model, data: Data, p) -> np.ndarray:
     return np.asarray(m > 0)
 
 
-def lock_threshold(model, data: Data, p, name, lo, hi):
+def lock_threshold(model: Any, data: Data, p: dict[str, Any], name: str, lo: float, hi: float) -> Any:
     """If ``name`` controls the model's domain on these data, (threshold, valid_side) with valid_side
     'above' or 'below'; else None.  The threshold is the root of the smallest domain margin over the data
     points (the model's own ``_margin``), found with brentq (the margins here are linear or quadratic in
@@ -204,7 +205,7 @@ def lock_threshold(model, data: Data, p, name, lo, hi):
     return zr, ("below" if ok_a else "above")
 
 
-def resolve_names(model, names, what):
+def resolve_names(model: Any, names: Any, what: str) -> Any:
     if names is None:
         return set()
     names = {names} if isinstance(names, str) else set(names)
@@ -240,16 +241,16 @@ class Coord:
         lo_ok, hi_ok = math.isfinite(self.zlo), math.isfinite(self.zhi)
         self.kind = "both" if lo_ok and hi_ok else "lower" if lo_ok else "upper" if hi_ok else "none"
 
-    def z_of_v(self, v):
+    def z_of_v(self, v: float) -> float:
         return math.log(v) if self.log else v / self.scale
 
-    def v_of_z(self, z):
+    def v_of_z(self, z: float) -> float:
         return math.exp(min(z, 700.0)) if self.log else z * self.scale
 
-    def dv_dz(self, v):
+    def dv_dz(self, v: float) -> float:
         return v if self.log else self.scale
 
-    def z_of_x(self, x):
+    def z_of_x(self, x: float) -> float:
         if self.kind == "both":
             return self.zlo + (self.zhi - self.zlo) * (math.sin(x) + 1.0) / 2.0
         if self.kind == "lower":
@@ -258,7 +259,7 @@ class Coord:
             return self.zhi + 1.0 - math.sqrt(x * x + 1.0)
         return x
 
-    def x_of_v(self, v):
+    def x_of_v(self, v: float) -> float:
         """Optimiser coordinate of a start value, nudged off a bound (the transforms are flat there)."""
         z = self.z_of_v(v)
         if self.kind == "both":
@@ -271,7 +272,7 @@ class Coord:
             return math.sqrt((max(self.zhi - z, 1e-3) + 1.0) ** 2 - 1.0)
         return z
 
-    def v_of_x(self, x):
+    def v_of_x(self, x: float) -> float:
         return self.v_of_z(self.z_of_x(x))
 
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -11,8 +12,11 @@ from ..deformation import Mode
 from ..errors import Notice
 from ..models import Model, get_model
 
+if TYPE_CHECKING:
+    import pandas as pd
 
-def clean(x):
+
+def clean(x: Any) -> float | None:
     """A finite float, or None (for JSON: undefined numbers are null, never NaN)."""
     if x is None:
         return None
@@ -111,7 +115,7 @@ class FitResult:
     max_stress: float | None = None
 
     # ----- notebooks and pandas (network_models.frames) ------------------------------------------
-    def to_frame(self):
+    def to_frame(self) -> pd.DataFrame:
         """One row per parameter (value, stderr, 95 % interval, unit), as a pandas DataFrame."""
         from ..frames import fit_frame
 
@@ -149,7 +153,7 @@ class FitResult:
         out = [w if isinstance(w, Notice) else Notice(str(w)) for w in self.warnings]
         return out if kind is None else [w for w in out if w.kind == kind]
 
-    def predict(self, mode, lam):
+    def predict(self, mode: Mode | str, lam: Any) -> np.ndarray:
         """Nominal stress (Pa) of the fitted model in any mode it supports; NaN past its lock.
         Use :meth:`range_note` to learn whether ``lam`` lies outside the tested range."""
         return self.model_obj.nominal_stress(mode, lam, self.values)

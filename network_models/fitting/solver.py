@@ -11,6 +11,8 @@ the step — the small loop then converges like Gauss–Newton on the reduced pr
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
+from typing import Any
 
 import numpy as np
 from scipy.optimize import least_squares
@@ -59,13 +61,15 @@ class Projected:
         self._fast = bool(lin.linear and not self.fixed_moduli and 1 <= len(self.L) <= 2
                           and set(self.L) == set(lin.moduli))
 
-    def params_of(self, u):
+    def params_of(self, u: np.ndarray) -> dict[str, Any]:
         p = self._nl_params(u)
         L = self.L
         if not L:
             return p
+        weight: Any
         lin, weight = self.lin, self.pr.weight
-        y = self.pr.wd
+        y: Any = self.pr.wd
+        b: Any
         if self.fixed_moduli:
             y = y - sum(p[nm] * lin.h(p, nm) for nm in self.fixed_moduli) * weight
         if len(L) == 1:  # the common case, in scalars: θ = <h, y>/<h, h>, clipped to its bounds
@@ -85,7 +89,7 @@ class Projected:
                 p[nm] = float(theta[j])
         return p
 
-    def residual(self, u):
+    def residual(self, u: np.ndarray) -> tuple[dict[str, Any], np.ndarray, np.ndarray]:
         """(parameters, stress, weighted residual) at u; non-finite residuals become a large number so an
         optimiser backs away from them.  The last few points are remembered (the optimum is asked again)."""
         key = (self.space, u.tobytes())
@@ -133,7 +137,7 @@ class Projected:
         p[L[0]], p[L[1]] = t1, t2
         return p, t1 * h1 + t2 * h2, t1 * hw1 + t2 * hw2 - self.pr.wd
 
-    def cost(self, u):
+    def cost(self, u: np.ndarray) -> float:
         """‖residual‖² at u from the Gram entries alone (no residual vector) in the common case."""
         if not self._fast:
             r = self.residual(u)[2]
@@ -152,7 +156,7 @@ class Projected:
             c = self.yy - 2.0 * (t1 * b1 + t2 * b2) + t1 * t1 * a11 + 2.0 * t1 * t2 * a12 + t2 * t2 * a22
         return c if math.isfinite(c) else math.inf
 
-    def costs(self, us):
+    def costs(self, us: Any) -> Any:
         """:meth:`cost` at several points, vectorised over them (the unit responses already fetched)."""
         if not self._fast or len(us) < 2:
             return [self.cost(u) for u in us]
@@ -205,7 +209,7 @@ class Projected:
         self._pmemo[key] = p
         return p.copy()
 
-    def steps(self, u):
+    def steps(self, u: np.ndarray) -> list[tuple[np.ndarray, float]]:
         """The points the forward-difference Jacobian at u evaluates."""
         out = []
         for j in range(u.size):
@@ -217,11 +221,11 @@ class Projected:
             out.append((u2, h))
         return out
 
-    def prefetch(self, us):
+    def prefetch(self, us: Any) -> None:
         """Evaluate the model at several points in one stacked call (fills the unit-response caches)."""
         self.lin.prefetch([self._nl_params(u) for u in us])
 
-    def full_jacobian(self, u, p, P):
+    def full_jacobian(self, u: np.ndarray, p: dict[str, Any], P: np.ndarray) -> np.ndarray:
         """dP/dz at the optimum for every free parameter (moduli held, not re-solved): modulus columns are
         the unit responses, the others forward differences over the same steps the optimiser's last
         Jacobian used (cached, so usually no model call)."""
@@ -243,14 +247,14 @@ class Projected:
             J[:, i] = (lin.stress(q) - P) / dz if dz != 0 else lin.dP_dz(p, P, only=nm)
         return J
 
-    def residual_ahead(self, u):
+    def residual_ahead(self, u: np.ndarray) -> np.ndarray:
         """The residual at u, with the model evaluated at u and at the Jacobian's steps from u in one call:
         an accepted step then needs no further model call for its Jacobian."""
         if (self.space, u.tobytes()) not in self._memo:
             self.prefetch([u] + [u2 for u2, _ in self.steps(u)])
         return self.residual(u)[2]
 
-    def jac(self, u, r):
+    def jac(self, u: np.ndarray, r: np.ndarray) -> np.ndarray:
         """Forward-difference Jacobian of the projected residual (moduli re-solved at each step); in z the
         step points away from a bound it would cross."""
         J = np.empty((r.size, u.size))
@@ -259,7 +263,7 @@ class Projected:
         J[~np.isfinite(J)] = 0.0
         return J
 
-    def u_of(self, p):
+    def u_of(self, p: dict[str, Any]) -> np.ndarray:
         if self.space == "z":
             return np.array([a.u_of(p[nm]) for nm, a in zip(self.NL, self._axes, strict=True)])
         return np.array([c.x_of_v(p[nm]) for nm, c in zip(self.NL, self._nl_co, strict=True)])
@@ -295,7 +299,7 @@ class _Axis:
         return min(max(u, self.lo), self.hi)
 
 
-def start_point(pj: Projected):
+def start_point(pj: Projected) -> tuple[np.ndarray, np.ndarray]:
     """The best start for the optimiser: the model's guess, or for each locking parameter a few candidates
     placed relative to the value at which the largest data stretch reaches the lock.  Returns (x, r)."""
     pr = pj.pr
@@ -367,7 +371,9 @@ def _solve_damped(A, D, g, mu, free=None):
     return np.linalg.solve(A + np.diag(mu * D), -g)
 
 
-def levenberg_marquardt(fun, jac, x0, r0=None, *, lo=None, hi=None, xtol=1e-8, ftol=1e-14, max_iter=60):
+def levenberg_marquardt(fun: Callable[[np.ndarray], np.ndarray], jac: Callable[..., np.ndarray], x0: Any,
+                        r0: np.ndarray | None = None, *, lo: Any = None, hi: Any = None, xtol: float = 1e-8,
+                        ftol: float = 1e-14, max_iter: int = 60) -> tuple[np.ndarray, np.ndarray, str] | None:
     """Minimise ‖fun(x)‖² over a few parameters within the box lo ≤ x ≤ hi.
 
     Levenberg–Marquardt with Marquardt's diagonal scaling and Nielsen's damping update (Madsen, Nielsen &
@@ -522,7 +528,7 @@ def _scipy(pj: Projected, p_start):
                    "use relative residuals, or check the data for outliers", kind="no-convergence")
 
 
-def solve(pr: Problem):
+def solve(pr: Problem) -> tuple[Projected, np.ndarray, dict[str, Any], np.ndarray, np.ndarray, str, str]:
     """Run the fit.  Returns (projected problem, optimiser coordinates, parameter values, stress, residual,
     message, solver name)."""
     pj = Projected(pr)

@@ -19,7 +19,9 @@ profile-likelihood intervals instead (:func:`profile_interval`; docs/methods.md 
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import replace
+from typing import Any
 
 import numpy as np
 
@@ -85,7 +87,8 @@ def is_determined(ci, bounds) -> bool:
     return True
 
 
-def domain_interval(v, se_v, tq, bounds):
+def domain_interval(v: float, se_v: float, tq: float, bounds: tuple[float, float]
+                    ) -> tuple[tuple[float, float] | tuple[None, None], bool]:
     """(ci, determined) of a parameter with value ``v`` and standard error ``se_v`` (SI) on its declared
     ``bounds``: v's interval formed on the transformed parameter t(v) (see the module text), t ± tq·se_t with
     se_t = se_v·|dt/dv|, mapped back.  ``((None, None), False)`` when it is not determined."""
@@ -131,7 +134,8 @@ def _inverse(A):
     return nan
 
 
-def covariance(pj, u_hat, values, Pm, rss):
+def covariance(pj: Any, u_hat: np.ndarray, values: dict[str, Any], Pm: np.ndarray, rss: float
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """(cov_z, se_z, correlation, cov_SI, z) of the free parameters at the optimum."""
     pr = pj.pr
     k = pr.k
@@ -183,7 +187,8 @@ def undetermined(est: ParamEstimate) -> ParamEstimate:
     return replace(est, ci95=(None, None), determined=False)
 
 
-def profile_interval(model, curves, name, fit_kw, base, *, refit, level: float = 0.95):
+def profile_interval(model: Any, curves: Any, name: str, fit_kw: dict[str, Any], base: Any, *,
+                     refit: Callable[..., Any], level: float = 0.95) -> tuple[Any, bool]:
     """Profile-likelihood interval of one free parameter: the set of values v at which the best fit with
     ``name`` held at v has RSS(v) ≤ RSŜ·(1 + t²/(n − k)) (the likelihood-ratio form of the Student-t
     interval; Bates & Watts 1988, *Nonlinear Regression Analysis*, §6.1 [from memory]).  Searched on the
@@ -255,7 +260,8 @@ def derived_se(result, fn) -> tuple[float, float | None]:
     return v0, math.sqrt(var)
 
 
-def derived(result, fn, *, level: float = 0.95):
+def derived(result: Any, fn: Callable[..., Any], *, level: float = 0.95
+            ) -> tuple[float, tuple[float, float] | None]:
     """Value and interval of a quantity computed from a fit (:func:`derived_se`) with Student's t at n − k
     degrees of freedom.  Returns ``(value, (lo, hi))``, or ``(value, None)`` without a usable covariance."""
     v0, se = derived_se(result, fn)

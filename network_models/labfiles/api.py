@@ -10,8 +10,10 @@ other options win over it).
 from __future__ import annotations
 
 import os
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from ..curves import TestCurve
 from ..deformation import Mode
@@ -41,7 +43,7 @@ def strict() -> bool:
     return os.environ.get(STRICT_ENV) == "1"
 
 
-def guarded(fn_name: str, func, *args):
+def guarded(fn_name: str, func: Callable[..., Any], *args: Any) -> Any:
     """``func(*args)``; any exception but a :class:`DataError` becomes a DataError naming the file (a user never
     sees a traceback for a bad file) — except a programming error (:data:`PROGRAMMING_ERRORS`) under the tests
     (:func:`strict`), which is re-raised so a crash in a reader fails the fuzz tests."""
@@ -89,7 +91,7 @@ def _read(data: bytes, filename: str, source: str, opts: dict) -> list[TestCurve
 
 
 def read_curves(path, *, mode=None, gauge_length=None, width=None, thickness=None, area=None, temperature=None,
-                sheet=None, **options) -> list[TestCurve]:
+                sheet=None, **options: Any) -> list[TestCurve]:
     """Read a lab file (CSV/TSV/TXT, .xlsx, .xls or .ods) into test curves, one per specimen.
 
     Options are SI (m, m², K) and win over the file's metadata (see the module docstring for the full
@@ -107,7 +109,7 @@ def _upload_name(filename) -> str:
     return Path(str(filename or "upload.csv")).name or "upload.csv"
 
 
-def read_curves_bytes(data: bytes, filename: str, **options) -> list[TestCurve]:
+def read_curves_bytes(data: bytes, filename: str, **options: Any) -> list[TestCurve]:
     """Same as :func:`read_curves` for bytes already in memory (uploads); ``filename`` gives the format."""
     opts = check_options(dict(options))
     fn = _upload_name(filename)
@@ -172,7 +174,7 @@ class FileInfo:
     options: dict = field(default_factory=dict)
 
 
-def inspect_bytes(data: bytes, filename: str, *, sheet=None, preview_rows: int = 8, **options) -> FileInfo:
+def inspect_bytes(data: bytes, filename: str, *, sheet=None, preview_rows: int = 8, **options: Any) -> FileInfo:
     """Look into a lab file without converting it: columns and their kinds, metadata, what is missing
     (given the options, which take the same names as :func:`read_curves`'s).  Raises DataError for a file
     that cannot be read as a table at all."""

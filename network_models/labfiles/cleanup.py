@@ -3,6 +3,8 @@ extreme stretch and points that do not advance the stretch — each counted in a
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..errors import DataError, Notice
@@ -29,7 +31,8 @@ def is_slack(lam, stress, j, limit, peak) -> bool:
     return span > 2.0 * limit / slope + 1e-3
 
 
-def clean(fn, lam, stress, rows, notices, y, compression: bool = False):
+def clean(fn: str, lam: np.ndarray, stress: np.ndarray, rows: np.ndarray, notices: list[Any], y: Any,
+          compression: bool = False) -> tuple[np.ndarray, np.ndarray, list[Any]]:
     """Keep the loading branch: drop slack at the start, the return after the extreme stretch, and points
     that do not advance the stretch — each counted in ``notices``."""
     n0 = lam.size

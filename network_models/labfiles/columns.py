@@ -6,6 +6,7 @@ import math
 import unicodedata
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 from ..units import UnitError, parse_number, split_header, unit_converter
 from . import vocabulary as vocab
@@ -118,7 +119,7 @@ def looks_garbled(text: str) -> bool:
     return odd > 0.2 * len(text)
 
 
-def column_converter(fn, col: Column, dimension: str, example: str):
+def column_converter(fn: str, col: Column, dimension: str, example: str) -> Any:
     """The SI converter for a column's unit, or a DataError naming the file and column: no unit (with an
     example header to write) or a unit of the wrong kind."""
     from ..errors import DataError

@@ -8,6 +8,8 @@ holding both signs is refused.
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..errors import DataError, Notice
@@ -114,7 +116,8 @@ def _nominal_stress(fn, y: Column, yv, lam, area, compression: bool, notices, si
     return stress
 
 
-def convert(fn, x: Column, y: Column, values, idx, numbers, gauge, area, notices, compression=False):
+def convert(fn: str, x: Column, y: Column, values: Any, idx: Any, numbers: Any, gauge: Any, area: Any,
+            notices: list[Any], compression: bool = False) -> tuple[Any, Any, Any]:
     """Stretch and nominal stress (Pa) for rows ``idx``; rows missing a number are counted and dropped."""
     xv = values[idx, x.index]
     yv = values[idx, y.index]

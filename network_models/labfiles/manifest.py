@@ -9,6 +9,7 @@ import tomllib
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from ..curves import ForceTemperatureRecord, SwellingResult, TestCurve
 from ..deformation import Mode
@@ -38,7 +39,7 @@ class ManifestEntry:
     ingredient_rows: list = field(default_factory=list)
 
     @property
-    def recipe(self):
+    def recipe(self) -> Any:
         """The ``[compound.recipe]`` resolved (:class:`network_models.recipes.Recipe`), or None."""
         raw = self.info.get("recipe")
         if not isinstance(raw, dict):
@@ -91,7 +92,7 @@ class ManifestIndex:
         return [read_force_temperature(p) for p in self.force_temperature]
 
 
-def read_manifest(path=None) -> ManifestIndex:
+def read_manifest(path: str | Path | None = None) -> ManifestIndex:
     """Read a sample-set manifest (``compounds.toml``; format in sample_sets/README.md).  File paths in it
     are relative to the manifest.  Default: the bundled sample set.  Raises DataError for a missing or
     malformed manifest (the files it lists are read later, by ``ManifestEntry.curves()``)."""

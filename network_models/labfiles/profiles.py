@@ -50,7 +50,7 @@ def _q(text) -> str:
     return json.dumps(str(text), ensure_ascii=False)
 
 
-def save_profile(path, options: dict, *, note: str = "") -> Path:
+def save_profile(path: str | Path, options: dict, *, note: str = "") -> Path:
     """Write the reading options a user gave (the names of ``read_curves``'s options, SI values) as a
     profile.  Options that are not part of a profile's shape (``profile`` itself) are left out."""
     lines = ["# How to read lab files of one shape (netstretch; reuse with `netstretch fit --profile FILE`)",
@@ -84,7 +84,7 @@ def save_profile(path, options: dict, *, note: str = "") -> Path:
     return p
 
 
-def load_profile(path) -> dict:
+def load_profile(path: str | Path) -> dict:
     """Reader options (SI) from a profile file; DataError naming the file and entry for anything wrong."""
     p = Path(path)
     try:

@@ -6,6 +6,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -93,7 +94,7 @@ def _choose(fn, gx, gy):
     return x, ycols, notes
 
 
-def split_pieces(fn, groups, spec_col, data_rows, values):
+def split_pieces(fn: str, groups: Any, spec_col: Any, data_rows: Any, values: Any) -> list[Any]:
     """(x col, y col, row indices, specimen label or None, notices) — one per curve to make."""
     pieces = []
     for gx, gy in groups:
@@ -141,7 +142,7 @@ def _temperature(fn, opts, known, cols, values, notices):
     return t, tcol
 
 
-def check_geometry(fn, pieces, gauge, area, opts, known):
+def check_geometry(fn: str, pieces: Any, gauge: Any, area: Any, opts: Any, known: Any) -> None:
     """Every geometry item the chosen columns need and the file lacks, in ONE DataError (``missing``)."""
     needs_gauge = gauge is None and any(x.kind == "extension" for x, *_ in pieces)
     needs_area = area is None and any(y.kind == "force" for _, y, *_ in pieces)
@@ -155,7 +156,7 @@ def check_geometry(fn, pieces, gauge, area, opts, known):
         why["area"] = "for " + ", ".join(sorted({repr(y.header) for _, y, *_ in pieces if y.kind == "force"}))
     err = DataError(missing_sentence(fn, missing, why), file=fn, kind="missing-geometry", missing=list(missing),
                     fix="give " + ", ".join(missing))
-    err.missing = list(missing)
+    err.missing = list(missing)  # type: ignore[attr-defined]
     raise err
 
 

@@ -44,7 +44,7 @@ def limit_message(fn: str, size: int) -> str:
             "export only the test curves (stretch/strain/extension and stress/force columns)")
 
 
-def read_file_bytes(path) -> tuple[bytes, str, str]:
+def read_file_bytes(path: str | Path) -> tuple[bytes, str, str]:
     """(bytes, file name, source path) of a file, or a DataError naming it."""
     p = Path(path)
     try:

@@ -18,8 +18,12 @@ import sys
 import threading
 import time
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from ..errors import UserError
+
+if TYPE_CHECKING:
+    from sqlalchemy.engine import Engine
 
 #: the folder of the Alembic scripts, shipped in the wheel as package data
 MIGRATIONS = Path(__file__).resolve().parent / "migrations"
@@ -95,11 +99,11 @@ def _reason(exc: BaseException) -> str:
     return line.rstrip(".")
 
 
-_ENGINES: dict[str, object] = {}
+_ENGINES: dict[str, Engine] = {}
 _LOCK = threading.Lock()
 
 
-def engine_for(url: str):
+def engine_for(url: str) -> Engine:
     """One engine per URL per process (SQLite: a 30 s busy timeout and foreign keys on)."""
     from sqlalchemy import create_engine, event
     from sqlalchemy.exc import ArgumentError, NoSuchModuleError
@@ -187,7 +191,7 @@ def upgrade(engine, url: str | None = None) -> str:
     return head  # pragma: no cover
 
 
-def connect(db: str | None = None):
+def connect(db: str | None = None) -> Engine:
     """An engine on the library at ``db`` (see :func:`resolve_url`), its schema at head.  Raises
     :class:`LibraryError` with one sentence when it cannot be used."""
     from sqlalchemy.exc import DBAPIError, SQLAlchemyError

@@ -182,7 +182,7 @@ def trend(quantity: str = "strand_density", db=None, *, compound_prefix: str = "
     notes = []
     with eng.connect() as conn:
         if model:
-            mname = get_model(model).name
+            mname: str | None = get_model(model).name
         else:
             q0 = select(st.c.model).select_from(st.join(c, c.c.study_id == st.c.id))
             if compound_prefix:

@@ -129,7 +129,7 @@ class Model:
     colour: str = "#777777"
 
     # ----- parameters -------------------------------------------------------------------------
-    def resolve(self, params: dict | None = None, **kw) -> dict[str, float]:
+    def resolve(self, params: dict | None = None, **kw: Any) -> dict[str, float]:
         """Defaults filled in, every value checked against its declaration."""
         given = dict(params or {}, **kw)
         unknown = set(given) - set(self.params.names())
@@ -147,7 +147,7 @@ class Model:
     def _check_combination(self, p):
         """Hook for constraints between parameters."""
 
-    def supports(self, mode) -> bool:
+    def supports(self, mode: Mode | str) -> bool:
         return Mode.parse(mode) in self.modes
 
     def _require_mode(self, mode) -> Mode:
@@ -177,16 +177,16 @@ class Model:
         """Positive inside the model's domain, <= 0 past its finite-extensibility limit; None = no limit."""
         return None
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         raise NotImplementedError
 
     # ----- from a network: the one entanglement policy (network_models.entanglement) ----------------
-    def network_crosslink_modulus(self, network) -> float:
+    def network_crosslink_modulus(self, network: Any) -> float:
         """The crosslink part of the small-strain modulus this model gives a :class:`Network` (Pa, filler
         amplified): affine νRT·X unless the model's physics says otherwise (phantom, constrained junction)."""
         return network.affine_modulus
 
-    def from_network(self, network) -> dict[str, float]:
+    def from_network(self, network: Any) -> dict[str, float]:
         """Parameters for a network under the one entanglement policy: the small-strain modulus is
         G₀ = G_x + G_e (crosslink part as this model reads ν, plus the network's entanglement part), and
         the lock follows the network's filler-amplified N (``network.N_effective``)."""
@@ -199,7 +199,7 @@ class Model:
         """Parameters whose small-strain modulus is exactly Gx + Ge (each model; tested over the registry)."""
         raise NotImplementedError
 
-    def network_notices(self, network) -> list:
+    def network_notices(self, network: Any) -> list:
         """Sentences (``errors.Notice``) when the mapping from this network had to bound something
         (e.g. the extended tube's δ); empty when the mapping is exact."""
         return []
@@ -238,7 +238,7 @@ class Model:
             valid &= m > 0
         return valid
 
-    def nominal_stress(self, mode, lam, params: dict | None = None, **kw) -> np.ndarray:
+    def nominal_stress(self, mode: Mode | str, lam: Any, params: dict | None = None, **kw: Any) -> np.ndarray:
         """Nominal (engineering) stress along the loaded direction, Pa; NaN past the locking limit."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
@@ -260,11 +260,11 @@ class Model:
             out = out / l1
         return np.where(valid, out, np.nan)
 
-    def true_stress(self, mode, lam, params=None, **kw) -> np.ndarray:
+    def true_stress(self, mode: Mode | str, lam: Any, params: dict | None = None, **kw: Any) -> np.ndarray:
         """Cauchy stress along the loaded direction (λ × nominal, incompressible)."""
         return np.asarray(lam, dtype=np.float64) * self.nominal_stress(mode, lam, params, **kw)
 
-    def reduced_stress(self, lam, params=None, **kw) -> np.ndarray:
+    def reduced_stress(self, lam: Any, params: dict | None = None, **kw: Any) -> np.ndarray:
         """Mooney reduced stress σ* = P/(λ − λ⁻²) in uniaxial tension/compression, Pa.  At λ = 1 (0/0) it
         returns its limit, the small-strain shear modulus G₀ (P ≈ 3G₀(λ − 1) and λ − λ⁻² ≈ 3(λ − 1))."""
         lam = np.asarray(lam, dtype=np.float64)
@@ -276,7 +276,7 @@ class Model:
             out = np.where(at_one, G0, out)
         return out
 
-    def energy(self, mode, lam, params: dict | None = None, **kw) -> np.ndarray:
+    def energy(self, mode: Mode | str, lam: Any, params: dict | None = None, **kw: Any) -> np.ndarray:
         """Strain energy per unit reference volume, J/m³ (zero in the undeformed state); NaN past lock."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
@@ -301,7 +301,7 @@ class Model:
         (three-chain); None otherwise."""
         return None
 
-    def stretch_range(self, mode, params: dict | None = None, **kw) -> tuple[float, float]:
+    def stretch_range(self, mode: Mode | str, params: dict | None = None, **kw: Any) -> tuple[float, float]:
         """(lowest, highest) stretch the model allows in this mode; (0, inf) when it never locks."""
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
@@ -342,7 +342,7 @@ class Model:
             x *= 0.5
         return lo, hi
 
-    def stretch_limit(self, mode, params: dict | None = None, **kw) -> float | None:
+    def stretch_limit(self, mode: Mode | str, params: dict | None = None, **kw: Any) -> float | None:
         """Locking stretch in tension for the mode (finite-extensibility limit), or None."""
         hi = self.stretch_range(mode, params, **kw)[1]
         return None if not np.isfinite(hi) else hi

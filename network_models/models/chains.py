@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 
@@ -81,7 +82,7 @@ class EightChain(Model):
     def _lock_I1(self, p):
         return 3.0 * p["N"]
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["mu"] * _eight_chain_modulus_per_mu(p["N"])
 
@@ -90,10 +91,10 @@ class EightChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _eight_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}
 
 
@@ -126,7 +127,7 @@ class ThreeChain(Model):
     def _lock_stretch(self, p):
         return float(np.sqrt(p["N"]))
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["mu"] * _three_chain_modulus_per_mu(p["N"])
 
@@ -134,8 +135,8 @@ class ThreeChain(Model):
         N = network.N_effective
         return {"mu": (Gx + Ge) / _three_chain_modulus_per_mu(N), "N": N}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         return _chain_reading(self)
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"mu": 0.95 * modulus, "N": 30.0}

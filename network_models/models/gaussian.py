@@ -3,6 +3,8 @@ the constrained-junction model of Flory & Erman."""
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..errors import Notice
@@ -26,13 +28,13 @@ class NeoHookean(Model):
     def _W_inv(self, I1, I2, p):
         return 0.5 * p["G"] * (I1 - 3.0)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):
         return {"G": Gx + Ge}
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"G": modulus}
 
 
@@ -59,7 +61,7 @@ class Phantom(NeoHookean):
     assumption = ("junctions fluctuate freely: G = (1 − 2/f)νRT (cycle rank ξ = ν − μ_j); from a network, "
                   "entanglements add G_e to G")
 
-    def network_crosslink_modulus(self, network) -> float:
+    def network_crosslink_modulus(self, network: Any) -> float:
         return network.phantom_modulus
 
 
@@ -86,7 +88,7 @@ class MooneyRivlin(Model):
     def _W_inv(self, I1, I2, p):
         return p["C1"] * (I1 - 3.0) + p["C2"] * (I2 - 3.0)
 
-    def modulus_split(self, values) -> ModulusSplit:
+    def modulus_split(self, values: dict) -> ModulusSplit:
         G0 = float(self.small_strain_modulus(**values))
         if values["C2"] < 0:
             return ModulusSplit(total=G0, separable=False,
@@ -95,21 +97,21 @@ class MooneyRivlin(Model):
                             separable=True, basis="2C₁ read as crosslink part, 2C₂ as entanglement part "
                             "(the trade's reading of the Mooney plot)")
 
-    def stability_notes(self, values) -> list:
+    def stability_notes(self, values: dict) -> list:
         if values.get("C2", 0.0) < 0:
             return [Notice("the fitted Mooney–Rivlin C₂ is negative: the model is not stable at large strains "
                            "and its equibiaxial prediction can fall with stretch; do not use it outside the "
                            "tested range", "unstable", self.name)]
         return []
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return 2.0 * (p["C1"] + p["C2"])
 
     def _from_moduli(self, Gx, Ge, network):
         return {"C1": Gx / 2.0, "C2": Ge / 2.0}
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"C1": 0.4 * modulus, "C2": 0.1 * modulus}
 
 
@@ -172,11 +174,11 @@ class ConstrainedJunction(Model):
         # G = ξRT + μ_jRT κ²(κ² + 1)/(1 + κ)⁴ with μ_j = 2ξ/(f − 2)  [derived from the strain energy above]
         return 1.0 + 2.0 / (f - 2.0) * kappa * kappa * (kappa * kappa + 1.0) / (1.0 + kappa) ** 4
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["G_ph"] * self._modulus_per_G_ph(p["kappa"], p["f"])
 
-    def network_crosslink_modulus(self, network) -> float:
+    def network_crosslink_modulus(self, network: Any) -> float:
         # the phantom part (1 − 2/f)νRT·X with the default constraint strength κ on top
         return network.phantom_modulus * self._modulus_per_G_ph(self.params["kappa"].default, network.f)
 
@@ -184,11 +186,11 @@ class ConstrainedJunction(Model):
         k = self.params["kappa"].default
         return {"G_ph": (Gx + Ge) / self._modulus_per_G_ph(k, network.f), "kappa": k, "f": network.f}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         f = float(values["f"])
         return [ChainReading(key="model-phantom-part", label=f"{self.title}: phantom part G_ph = (1 − 2/f)νRT",
                              assumes=f"G_ph = (1 − 2/f)νRT with the model's f = {f:g}", modulus_param="G_ph",
                              factor=1.0 - 2.0 / f, f=f)]
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"G_ph": 0.6 * modulus, "kappa": 5.0}

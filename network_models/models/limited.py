@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..params import Param, ParamSet, shear_modulus_param
@@ -35,19 +37,19 @@ class Gent(Model):
     def _lock_I1(self, p):
         return p["Jm"] + 3.0
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         return self.resolve(params)["G"]
 
     def _from_moduli(self, Gx, Ge, network):
         # J_m matched to the eight-chain lock I₁ = 3N of the (filler-amplified) network
         return {"G": Gx + Ge, "Jm": 3.0 * (network.N_effective - 1.0)}
 
-    def network_reading(self, values) -> list:
+    def network_reading(self, values: dict) -> list:
         return [ChainReading(key="model-chain-equivalent", label=f"{self.title}: G = νRT, N from J_m",
                              assumes="G = νRT (affine, entanglements counted); N = J_m/3 + 1 locks where the "
                                      "eight-chain model with that N does", modulus_param="G", factor=1.0, N_param="Jm",
                              N_map=lambda J: J / 3.0 + 1.0,
                              note="N from J_m = 3(N − 1) (matching locks), not from M_c/M_K")]
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"G": modulus, "Jm": 80.0}

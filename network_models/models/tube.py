@@ -7,6 +7,7 @@ the uncrosslinked polymer).  Both scale with absolute temperature at a fixed net
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -50,17 +51,17 @@ class NonAffineTube(Model):
     def _W_lam(self, l1, l2, l3, p):
         return p["Ge"] * (l1 + 1.0 / l1 + l2 + 1.0 / l2 + l3 + 1.0 / l3 - 6.0)
 
-    def modulus_split(self, values) -> ModulusSplit:
+    def modulus_split(self, values: dict) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]
 
     def _from_moduli(self, Gx, Ge, network):
         return {"Gc": Gx, "Ge": Ge}
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
@@ -89,7 +90,7 @@ class SlipTube(Model):
             out = red * (lam - lam**-2)
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
-    def energy(self, mode, lam, params=None, **kw) -> np.ndarray:
+    def energy(self, mode: Mode | str, lam: Any, params: dict | None = None, **kw: Any) -> np.ndarray:
         mode = self._require_mode(mode)
         p = self.resolve(params, **kw)
         lam = np.asarray(lam, dtype=np.float64)
@@ -103,17 +104,17 @@ class SlipTube(Model):
             out = gc + ge
         return np.where(np.isfinite(lam) & (lam > 0), out, np.nan)
 
-    def modulus_split(self, values) -> ModulusSplit:
+    def modulus_split(self, values: dict) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         return p["Gc"] + p["Ge"]  # den(1) = 1
 
     def _from_moduli(self, Gx, Ge, network):
         return {"Gc": Gx, "Ge": Ge}
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus}
 
 
@@ -186,10 +187,10 @@ class ExtendedTube(Model):
     def _lock_I1(self, p):
         return 3.0 + 1.0 / p["delta"] ** 2 if p["delta"] > 0 else None
 
-    def modulus_split(self, values) -> ModulusSplit:
+    def modulus_split(self, values: dict) -> ModulusSplit:
         return _tube_split(self, values)
 
-    def small_strain_modulus(self, **params) -> float:
+    def small_strain_modulus(self, **params: Any) -> float:
         p = self.resolve(params)
         d2 = p["delta"] ** 2
         return p["Gc"] * (1.0 - d2 + EXTENDED_TUBE_LOG_SIGN * (-d2)) + p["Ge"]
@@ -207,7 +208,7 @@ class ExtendedTube(Model):
         return {"Gc": Gx / (1.0 - 2.0 * delta * delta), "Ge": Ge, "delta": delta,
                 "beta": self.params["beta"].default}
 
-    def network_notices(self, network) -> list:
+    def network_notices(self, network: Any) -> list:
         delta, asked = self._network_delta(network)
         if asked <= delta:
             return []
@@ -217,7 +218,7 @@ class ExtendedTube(Model):
             f"I₁ − 3 = {1 / DELTA_NETWORK_MAX**2:g} instead of {1 / asked**2:.3g} (a strand this short is at "
             "the edge of what the model describes)", "bounded", self.name)]
 
-    def stability_notes(self, values) -> list:
+    def stability_notes(self, values: dict) -> list:
         d2 = float(values.get("delta", 0.0)) ** 2
         if 1.0 - 2.0 * d2 < 0.1:
             return [Notice(f"extended tube: δ = {math.sqrt(d2):.3g} is close to 1/√2, where the crosslink part "
@@ -225,5 +226,5 @@ class ExtendedTube(Model):
                            "unstable", self.name)]
         return []
 
-    def guess(self, modulus) -> dict:
+    def guess(self, modulus: float) -> dict:
         return {"Gc": 0.6 * modulus, "Ge": 0.4 * modulus, "delta": 0.08}

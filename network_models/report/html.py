@@ -429,7 +429,7 @@ def write_charts(html_text: str, folder: Path) -> list[Path]:
     return out
 
 
-def build_report(comparison: Comparison, title="", purpose="") -> Report:
+def build_report(comparison: Comparison, title: str = "", purpose: str = "") -> Report:
     return Report(comparison, title=title, purpose=purpose)
 
 
