@@ -6,6 +6,24 @@ the page; :data:`DEEP_TEXT_JS` walks the shadow roots instead.
 
 from __future__ import annotations
 
+import contextlib
+import socket
+import subprocess
+import sys
+import time
+import urllib.request
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
 #: JavaScript: the visible text of every element matching a CSS selector, looking inside shadow roots
 #: (Panel/Bokeh render each component in its own shadow DOM); style/script text is left out.
 DEEP_TEXT_JS = """(sel) => {
@@ -44,3 +62,40 @@ def open_tab(page, label: str, ready: str):
         except Exception:
             continue
     raise AssertionError(f"the tab {label!r} did not open")
+
+
+@contextlib.contextmanager
+def netstretch_server(log_path: Path, env: dict | None = None):
+    """``netstretch serve`` in a subprocess on a free port (``env``: the server's environment, e.g. a results
+    library); yields the base URL once a first page was built, and stops the server afterwards."""
+    port = _free_port()
+    log = log_path.open("w")  # the server's output, for when a browser test fails
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "network_models.cli", "serve", "--port", str(port), "--address", "127.0.0.1"],
+        cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env,
+    )
+    url = f"http://127.0.0.1:{port}/"
+    try:
+        deadline = time.monotonic() + 60
+        while True:
+            if proc.poll() is not None:
+                pytest.fail(f"the app server exited with code {proc.returncode} before it answered")
+            try:  # the port answers: the server is up (the first page build itself takes a few seconds)
+                with socket.create_connection(("127.0.0.1", port), timeout=2):
+                    break
+            except OSError:
+                pass
+            if time.monotonic() > deadline:
+                pytest.fail("the app server did not answer within 60 s")
+            time.sleep(0.3)
+        # warm-up: build one session so the tests' first page does not pay the imports
+        with contextlib.suppress(OSError), urllib.request.urlopen(url, timeout=60):
+            pass
+        yield url
+    finally:
+        proc.terminate()
+        try:
+            proc.wait(timeout=10)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+        log.close()

@@ -8,15 +8,9 @@ that a failure.
 
 from __future__ import annotations
 
-import contextlib
 import os
 import shutil
-import socket
-import subprocess
-import sys
 import tempfile
-import time
-import urllib.request
 from pathlib import Path
 
 import pytest
@@ -39,7 +33,7 @@ CHROMIUM_ARGS = [
     "--disable-sync", "--no-first-run", "--disable-quic",
 ]
 
-from _browser import DEEP_TEXT_JS  # noqa: E402  (the one copy; browser helpers live there)
+from _browser import DEEP_TEXT_JS, netstretch_server  # noqa: E402  (the one copy; browser helpers live there)
 
 
 def _require_browser() -> bool:
@@ -49,12 +43,6 @@ def _require_browser() -> bool:
 def _chromium_path() -> str | None:
     p = os.environ.get("NETSTRETCH_CHROMIUM") or shutil.which("chromium") or shutil.which("chromium-browser")
     return p if p and Path(p).exists() else None
-
-
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
 
 
 @pytest.fixture(scope="session")
@@ -101,37 +89,8 @@ def chromium_browser():
 @pytest.fixture(scope="session")
 def app_server():
     """``netstretch serve`` in a subprocess on a free port; yields the base URL."""
-    port = _free_port()
-    log_path = Path(tempfile.gettempdir()) / f"netstretch_app_server_{port}.log"
-    log = log_path.open("w")  # the server's output, for when a browser test fails
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "network_models.cli", "serve", "--port", str(port), "--address", "127.0.0.1"],
-        cwd=ROOT, stdout=log, stderr=subprocess.STDOUT,
-    )
-    url = f"http://127.0.0.1:{port}/"
-    deadline = time.monotonic() + 60
-    while True:
-        if proc.poll() is not None:
-            pytest.fail(f"the app server exited with code {proc.returncode} before it answered")
-        try:  # the port answers: the server is up (the first page build itself takes a few seconds)
-            with socket.create_connection(("127.0.0.1", port), timeout=2):
-                break
-        except OSError:
-            pass
-        if time.monotonic() > deadline:
-            proc.terminate()
-            pytest.fail("the app server did not answer within 60 s")
-        time.sleep(0.3)
-    # warm-up: build one session so the tests' first page does not pay the imports
-    with contextlib.suppress(OSError), urllib.request.urlopen(url, timeout=60):
-        pass
-    yield url
-    proc.terminate()
-    try:
-        proc.wait(timeout=10)
-    except subprocess.TimeoutExpired:
-        proc.kill()
-    log.close()
+    with netstretch_server(Path(tempfile.gettempdir()) / "netstretch_app_server.log") as url:
+        yield url
 
 
 @pytest.fixture(scope="session")
